@@ -1,0 +1,190 @@
+// International Chronostratigraphic Chart v2024/12, as published by the International Commission
+// on Stratigraphy (Cohen, Harper, Gibbard & Car 2025, Episodes 48: 105-115), copied row by row
+// from the chart's machine-readable form (the CSV kept beside the project at
+// ../shared/data/ics-chart-2024-12.csv). The data are committed here because that file lives
+// outside the repository. Numbers are written exactly as in that file (e.g. 3.600, 66.00).
+//
+// Fields: base = base age in Ma; uncertainty = the stated +/- in Myr, null where none is given;
+// parent = the next broader unit named in the data; gsspRatified = true where the data mark the
+// base as defined by a ratified GSSP (blank in the data -> false).
+//
+// Known inconsistency in the source data, kept as read: the Neogene (and Miocene) base is 23.04
+// but its lowest stage, the Aquitanian, has base 23.03; so the Chattian's top (23.03) differs
+// from the Oligocene's and Paleogene's top (23.04).
+//
+// Every row below was read from the chart data; nothing here is recalled from memory. Units that
+// the data name only as parents (Mississippian, Pennsylvanian, Phanerozoic) are added, marked as
+// derived, in ./units.ts; so is the Pridoli (Silurian), which the data lack, marked as recalled.
+
+export const TIMESCALE_VERSION = "2024/12";
+
+export const TIMESCALE_CITATION =
+  "ICS International Chronostratigraphic Chart v2024/12 (Cohen, Harper, Gibbard & Car 2025, Episodes 48: 105-115)";
+
+export type ChartRank = "Era" | "Period" | "Epoch" | "Age";
+
+export interface ChartRow {
+  readonly name: string;
+  readonly rank: ChartRank;
+  readonly parent: string;
+  readonly base: number;
+  readonly uncertainty: number | null;
+  readonly gsspRatified: boolean;
+}
+
+// Rows in the order of the source file (youngest base first).
+export const ICS_2024_12_ROWS: readonly ChartRow[] = [
+  { name: "Meghalayan", rank: "Age", parent: "Holocene", base: 0.0042, uncertainty: null, gsspRatified: true },
+  { name: "Northgrippian", rank: "Age", parent: "Holocene", base: 0.0082, uncertainty: null, gsspRatified: true },
+  { name: "Greenlandian", rank: "Age", parent: "Holocene", base: 0.0117, uncertainty: null, gsspRatified: true },
+  { name: "Holocene", rank: "Epoch", parent: "Quaternary", base: 0.0117, uncertainty: null, gsspRatified: true },
+  { name: "UpperPleistocene", rank: "Age", parent: "Pleistocene", base: 0.129, uncertainty: null, gsspRatified: false },
+  { name: "Chibanian", rank: "Age", parent: "Pleistocene", base: 0.774, uncertainty: null, gsspRatified: true },
+  { name: "Calabrian", rank: "Age", parent: "Pleistocene", base: 1.80, uncertainty: null, gsspRatified: true },
+  { name: "Gelasian", rank: "Age", parent: "Pleistocene", base: 2.58, uncertainty: null, gsspRatified: true },
+  { name: "Pleistocene", rank: "Epoch", parent: "Quaternary", base: 2.58, uncertainty: null, gsspRatified: true },
+  { name: "Quaternary", rank: "Period", parent: "Cenozoic", base: 2.58, uncertainty: null, gsspRatified: true },
+  { name: "Piacenzian", rank: "Age", parent: "Pliocene", base: 3.600, uncertainty: null, gsspRatified: true },
+  { name: "Pliocene", rank: "Epoch", parent: "Neogene", base: 5.333, uncertainty: null, gsspRatified: true },
+  { name: "Zanclean", rank: "Age", parent: "Pliocene", base: 5.333, uncertainty: null, gsspRatified: true },
+  { name: "Messinian", rank: "Age", parent: "Miocene", base: 7.246, uncertainty: null, gsspRatified: true },
+  { name: "Tortonian", rank: "Age", parent: "Miocene", base: 11.63, uncertainty: null, gsspRatified: true },
+  { name: "Serravallian", rank: "Age", parent: "Miocene", base: 13.82, uncertainty: null, gsspRatified: true },
+  { name: "Langhian", rank: "Age", parent: "Miocene", base: 15.98, uncertainty: null, gsspRatified: true },
+  { name: "Burdigalian", rank: "Age", parent: "Miocene", base: 20.45, uncertainty: null, gsspRatified: false },
+  { name: "Aquitanian", rank: "Age", parent: "Miocene", base: 23.03, uncertainty: null, gsspRatified: true },
+  { name: "Miocene", rank: "Epoch", parent: "Neogene", base: 23.04, uncertainty: null, gsspRatified: true },
+  { name: "Neogene", rank: "Period", parent: "Cenozoic", base: 23.04, uncertainty: null, gsspRatified: true },
+  { name: "Chattian", rank: "Age", parent: "Oligocene", base: 27.30, uncertainty: null, gsspRatified: true },
+  { name: "Oligocene", rank: "Epoch", parent: "Paleogene", base: 33.9, uncertainty: null, gsspRatified: true },
+  { name: "Rupelian", rank: "Age", parent: "Oligocene", base: 33.9, uncertainty: null, gsspRatified: true },
+  { name: "Priabonian", rank: "Age", parent: "Eocene", base: 37.71, uncertainty: null, gsspRatified: true },
+  { name: "Bartonian", rank: "Age", parent: "Eocene", base: 41.03, uncertainty: null, gsspRatified: false },
+  { name: "Lutetian", rank: "Age", parent: "Eocene", base: 48.07, uncertainty: null, gsspRatified: true },
+  { name: "Eocene", rank: "Epoch", parent: "Paleogene", base: 56.00, uncertainty: null, gsspRatified: true },
+  { name: "Ypresian", rank: "Age", parent: "Eocene", base: 56.00, uncertainty: null, gsspRatified: true },
+  { name: "Thanetian", rank: "Age", parent: "Paleocene", base: 59.24, uncertainty: null, gsspRatified: true },
+  { name: "Selandian", rank: "Age", parent: "Paleocene", base: 61.66, uncertainty: null, gsspRatified: true },
+  { name: "Cenozoic", rank: "Era", parent: "Phanerozoic", base: 66.00, uncertainty: null, gsspRatified: true },
+  { name: "Danian", rank: "Age", parent: "Paleocene", base: 66.00, uncertainty: null, gsspRatified: true },
+  { name: "Paleocene", rank: "Epoch", parent: "Paleogene", base: 66.00, uncertainty: null, gsspRatified: true },
+  { name: "Paleogene", rank: "Period", parent: "Cenozoic", base: 66.00, uncertainty: null, gsspRatified: true },
+  { name: "Maastrichtian", rank: "Age", parent: "UpperCretaceous", base: 72.2, uncertainty: 0.2, gsspRatified: true },
+  { name: "Campanian", rank: "Age", parent: "UpperCretaceous", base: 83.6, uncertainty: 0.2, gsspRatified: true },
+  { name: "Santonian", rank: "Age", parent: "UpperCretaceous", base: 85.7, uncertainty: 0.2, gsspRatified: true },
+  { name: "Coniacian", rank: "Age", parent: "UpperCretaceous", base: 89.8, uncertainty: 0.3, gsspRatified: true },
+  { name: "Turonian", rank: "Age", parent: "UpperCretaceous", base: 93.9, uncertainty: 0.2, gsspRatified: true },
+  { name: "Cenomanian", rank: "Age", parent: "UpperCretaceous", base: 100.5, uncertainty: 0.1, gsspRatified: true },
+  { name: "UpperCretaceous", rank: "Epoch", parent: "Cretaceous", base: 100.5, uncertainty: 0.1, gsspRatified: true },
+  { name: "Albian", rank: "Age", parent: "LowerCretaceous", base: 113.2, uncertainty: 0.3, gsspRatified: true },
+  { name: "Aptian", rank: "Age", parent: "LowerCretaceous", base: 121.4, uncertainty: 0.6, gsspRatified: false },
+  { name: "Barremian", rank: "Age", parent: "LowerCretaceous", base: 125.77, uncertainty: null, gsspRatified: true },
+  { name: "Hauterivian", rank: "Age", parent: "LowerCretaceous", base: 132.6, uncertainty: 0.6, gsspRatified: true },
+  { name: "Valanginian", rank: "Age", parent: "LowerCretaceous", base: 137.05, uncertainty: 0.2, gsspRatified: true },
+  { name: "Berriasian", rank: "Age", parent: "LowerCretaceous", base: 143.1, uncertainty: 0.6, gsspRatified: false },
+  { name: "Cretaceous", rank: "Period", parent: "Mesozoic", base: 143.1, uncertainty: 0.6, gsspRatified: false },
+  { name: "LowerCretaceous", rank: "Epoch", parent: "Cretaceous", base: 143.1, uncertainty: 0.6, gsspRatified: false },
+  { name: "Tithonian", rank: "Age", parent: "UpperJurassic", base: 149.2, uncertainty: 0.7, gsspRatified: false },
+  { name: "Kimmeridgian", rank: "Age", parent: "UpperJurassic", base: 154.8, uncertainty: 0.8, gsspRatified: true },
+  { name: "Oxfordian", rank: "Age", parent: "UpperJurassic", base: 161.5, uncertainty: 1.0, gsspRatified: false },
+  { name: "UpperJurassic", rank: "Epoch", parent: "Jurassic", base: 161.5, uncertainty: 1.0, gsspRatified: false },
+  { name: "Callovian", rank: "Age", parent: "MiddleJurassic", base: 165.3, uncertainty: 1.1, gsspRatified: false },
+  { name: "Bathonian", rank: "Age", parent: "MiddleJurassic", base: 168.2, uncertainty: 1.2, gsspRatified: true },
+  { name: "Bajocian", rank: "Age", parent: "MiddleJurassic", base: 170.9, uncertainty: 0.8, gsspRatified: true },
+  { name: "Aalenian", rank: "Age", parent: "MiddleJurassic", base: 174.7, uncertainty: 0.8, gsspRatified: true },
+  { name: "MiddleJurassic", rank: "Epoch", parent: "Jurassic", base: 174.7, uncertainty: 0.8, gsspRatified: true },
+  { name: "Toarcian", rank: "Age", parent: "LowerJurassic", base: 184.2, uncertainty: 0.3, gsspRatified: true },
+  { name: "Pliensbachian", rank: "Age", parent: "LowerJurassic", base: 192.9, uncertainty: 0.3, gsspRatified: true },
+  { name: "Sinemurian", rank: "Age", parent: "LowerJurassic", base: 199.5, uncertainty: 0.3, gsspRatified: true },
+  { name: "Hettangian", rank: "Age", parent: "LowerJurassic", base: 201.4, uncertainty: 0.2, gsspRatified: true },
+  { name: "Jurassic", rank: "Period", parent: "Mesozoic", base: 201.4, uncertainty: 0.2, gsspRatified: true },
+  { name: "LowerJurassic", rank: "Epoch", parent: "Jurassic", base: 201.4, uncertainty: 0.2, gsspRatified: true },
+  { name: "Rhaetian", rank: "Age", parent: "UpperTriassic", base: 205.7, uncertainty: null, gsspRatified: false },
+  { name: "Norian", rank: "Age", parent: "UpperTriassic", base: 227.3, uncertainty: null, gsspRatified: false },
+  { name: "Carnian", rank: "Age", parent: "UpperTriassic", base: 237, uncertainty: null, gsspRatified: true },
+  { name: "UpperTriassic", rank: "Epoch", parent: "Triassic", base: 237, uncertainty: null, gsspRatified: true },
+  { name: "Ladinian", rank: "Age", parent: "MiddleTriassic", base: 241.464, uncertainty: 0.28, gsspRatified: true },
+  { name: "Anisian", rank: "Age", parent: "MiddleTriassic", base: 246.7, uncertainty: null, gsspRatified: false },
+  { name: "MiddleTriassic", rank: "Epoch", parent: "Triassic", base: 246.7, uncertainty: null, gsspRatified: false },
+  { name: "Olenekian", rank: "Age", parent: "LowerTriassic", base: 249.9, uncertainty: null, gsspRatified: false },
+  { name: "Induan", rank: "Age", parent: "LowerTriassic", base: 251.902, uncertainty: 0.024, gsspRatified: true },
+  { name: "LowerTriassic", rank: "Epoch", parent: "Triassic", base: 251.902, uncertainty: 0.024, gsspRatified: true },
+  { name: "Mesozoic", rank: "Era", parent: "Phanerozoic", base: 251.902, uncertainty: 0.024, gsspRatified: true },
+  { name: "Triassic", rank: "Period", parent: "Mesozoic", base: 251.902, uncertainty: 0.024, gsspRatified: true },
+  { name: "Changhsingian", rank: "Age", parent: "Lopingian", base: 254.14, uncertainty: 0.07, gsspRatified: true },
+  { name: "Lopingian", rank: "Epoch", parent: "Permian", base: 259.51, uncertainty: 0.21, gsspRatified: true },
+  { name: "Wuchiapingian", rank: "Age", parent: "Lopingian", base: 259.51, uncertainty: 0.21, gsspRatified: true },
+  { name: "Capitanian", rank: "Age", parent: "Guadalupian", base: 264.28, uncertainty: 0.16, gsspRatified: true },
+  { name: "Wordian", rank: "Age", parent: "Guadalupian", base: 266.9, uncertainty: 0.4, gsspRatified: true },
+  { name: "Guadalupian", rank: "Epoch", parent: "Permian", base: 274.4, uncertainty: 0.4, gsspRatified: true },
+  { name: "Roadian", rank: "Age", parent: "Guadalupian", base: 274.4, uncertainty: 0.4, gsspRatified: true },
+  { name: "Kungurian", rank: "Age", parent: "Cisuralian", base: 283.3, uncertainty: 0.4, gsspRatified: false },
+  { name: "Artinskian", rank: "Age", parent: "Cisuralian", base: 290.1, uncertainty: 0.26, gsspRatified: true },
+  { name: "Sakmarian", rank: "Age", parent: "Cisuralian", base: 293.52, uncertainty: 0.17, gsspRatified: true },
+  { name: "Asselian", rank: "Age", parent: "Cisuralian", base: 298.9, uncertainty: 0.15, gsspRatified: true },
+  { name: "Cisuralian", rank: "Epoch", parent: "Permian", base: 298.9, uncertainty: 0.15, gsspRatified: true },
+  { name: "Permian", rank: "Period", parent: "Paleozoic", base: 298.9, uncertainty: 0.15, gsspRatified: true },
+  { name: "Gzhelian", rank: "Age", parent: "UpperPennsylvanian", base: 303.7, uncertainty: 0.1, gsspRatified: false },
+  { name: "Kasimovian", rank: "Age", parent: "UpperPennsylvanian", base: 307.0, uncertainty: 0.1, gsspRatified: false },
+  { name: "UpperPennsylvanian", rank: "Epoch", parent: "Pennsylvanian", base: 307.0, uncertainty: 0.1, gsspRatified: false },
+  { name: "MiddlePennsylvanian", rank: "Epoch", parent: "Pennsylvanian", base: 315.2, uncertainty: 0.2, gsspRatified: false },
+  { name: "Moscovian", rank: "Age", parent: "MiddlePennsylvanian", base: 315.2, uncertainty: 0.2, gsspRatified: false },
+  { name: "Bashkirian", rank: "Age", parent: "LowerPennsylvanian", base: 323.4, uncertainty: 0.4, gsspRatified: true },
+  { name: "LowerPennsylvanian", rank: "Epoch", parent: "Pennsylvanian", base: 323.4, uncertainty: 0.4, gsspRatified: true },
+  { name: "Serpukhovian", rank: "Age", parent: "UpperMississippian", base: 330.3, uncertainty: 0.4, gsspRatified: false },
+  { name: "UpperMississippian", rank: "Epoch", parent: "Mississippian", base: 330.3, uncertainty: 0.4, gsspRatified: false },
+  { name: "MiddleMississippian", rank: "Epoch", parent: "Mississippian", base: 346.7, uncertainty: 0.4, gsspRatified: true },
+  { name: "Visean", rank: "Age", parent: "MiddleMississippian", base: 346.7, uncertainty: 0.4, gsspRatified: true },
+  { name: "Carboniferous", rank: "Period", parent: "Paleozoic", base: 358.86, uncertainty: 0.19, gsspRatified: true },
+  { name: "LowerMississippian", rank: "Epoch", parent: "Mississippian", base: 358.86, uncertainty: 0.19, gsspRatified: true },
+  { name: "Tournaisian", rank: "Age", parent: "LowerMississippian", base: 358.86, uncertainty: 0.19, gsspRatified: true },
+  { name: "Famennian", rank: "Age", parent: "UpperDevonian", base: 372.15, uncertainty: 0.46, gsspRatified: true },
+  { name: "Frasnian", rank: "Age", parent: "UpperDevonian", base: 382.31, uncertainty: 1.36, gsspRatified: true },
+  { name: "UpperDevonian", rank: "Epoch", parent: "Devonian", base: 382.31, uncertainty: 1.36, gsspRatified: true },
+  { name: "Givetian", rank: "Age", parent: "MiddleDevonian", base: 387.95, uncertainty: 1.04, gsspRatified: true },
+  { name: "Eifelian", rank: "Age", parent: "MiddleDevonian", base: 393.47, uncertainty: 0.99, gsspRatified: true },
+  { name: "MiddleDevonian", rank: "Epoch", parent: "Devonian", base: 393.47, uncertainty: 0.99, gsspRatified: true },
+  { name: "Emsian", rank: "Age", parent: "LowerDevonian", base: 410.62, uncertainty: 1.95, gsspRatified: true },
+  { name: "Pragian", rank: "Age", parent: "LowerDevonian", base: 413.02, uncertainty: 1.91, gsspRatified: true },
+  { name: "Devonian", rank: "Period", parent: "Paleozoic", base: 419.62, uncertainty: 1.36, gsspRatified: true },
+  { name: "Lochkovian", rank: "Age", parent: "LowerDevonian", base: 419.62, uncertainty: 1.36, gsspRatified: true },
+  { name: "LowerDevonian", rank: "Epoch", parent: "Devonian", base: 419.62, uncertainty: 1.36, gsspRatified: true },
+  { name: "Ludfordian", rank: "Age", parent: "Ludlow", base: 425.0, uncertainty: 1.5, gsspRatified: true },
+  { name: "Gorstian", rank: "Age", parent: "Ludlow", base: 426.7, uncertainty: 1.5, gsspRatified: true },
+  { name: "Ludlow", rank: "Epoch", parent: "Silurian", base: 426.7, uncertainty: 1.5, gsspRatified: true },
+  { name: "Homerian", rank: "Age", parent: "Wenlock", base: 430.6, uncertainty: 1.3, gsspRatified: true },
+  { name: "Sheinwoodian", rank: "Age", parent: "Wenlock", base: 432.9, uncertainty: 1.2, gsspRatified: true },
+  { name: "Wenlock", rank: "Epoch", parent: "Silurian", base: 432.9, uncertainty: 1.2, gsspRatified: true },
+  { name: "Telychian", rank: "Age", parent: "Llandovery", base: 438.6, uncertainty: 1.0, gsspRatified: true },
+  { name: "Aeronian", rank: "Age", parent: "Llandovery", base: 440.5, uncertainty: 1.0, gsspRatified: true },
+  { name: "Llandovery", rank: "Epoch", parent: "Silurian", base: 443.1, uncertainty: 1.0, gsspRatified: true },
+  { name: "Rhuddanian", rank: "Age", parent: "Llandovery", base: 443.1, uncertainty: 1.0, gsspRatified: true },
+  { name: "Silurian", rank: "Period", parent: "Paleozoic", base: 443.1, uncertainty: 1.0, gsspRatified: true },
+  { name: "Hirnantian", rank: "Age", parent: "UpperOrdovician", base: 445.2, uncertainty: 0.9, gsspRatified: true },
+  { name: "Katian", rank: "Age", parent: "UpperOrdovician", base: 452.8, uncertainty: 0.7, gsspRatified: true },
+  { name: "Sandbian", rank: "Age", parent: "UpperOrdovician", base: 458.2, uncertainty: 0.7, gsspRatified: true },
+  { name: "UpperOrdovician", rank: "Epoch", parent: "Ordovician", base: 458.2, uncertainty: 0.7, gsspRatified: true },
+  { name: "Darriwilian", rank: "Age", parent: "MiddleOrdovician", base: 469.4, uncertainty: 0.9, gsspRatified: true },
+  { name: "Dapingian", rank: "Age", parent: "MiddleOrdovician", base: 471.3, uncertainty: 1.4, gsspRatified: true },
+  { name: "MiddleOrdovician", rank: "Epoch", parent: "Ordovician", base: 471.3, uncertainty: 1.4, gsspRatified: true },
+  { name: "Floian", rank: "Age", parent: "LowerOrdovician", base: 477.1, uncertainty: 1.2, gsspRatified: true },
+  { name: "LowerOrdovician", rank: "Epoch", parent: "Ordovician", base: 486.85, uncertainty: 1.5, gsspRatified: true },
+  { name: "Ordovician", rank: "Period", parent: "Paleozoic", base: 486.85, uncertainty: 1.5, gsspRatified: true },
+  { name: "Tremadocian", rank: "Age", parent: "LowerOrdovician", base: 486.85, uncertainty: 1.5, gsspRatified: true },
+  { name: "CambrianStage10", rank: "Age", parent: "Furongian", base: 491.0, uncertainty: null, gsspRatified: false },
+  { name: "Jiangshanian", rank: "Age", parent: "Furongian", base: 494.2, uncertainty: null, gsspRatified: true },
+  { name: "Furongian", rank: "Epoch", parent: "Cambrian", base: 497.0, uncertainty: null, gsspRatified: true },
+  { name: "Paibian", rank: "Age", parent: "Furongian", base: 497.0, uncertainty: null, gsspRatified: true },
+  { name: "Guzhangian", rank: "Age", parent: "Miaolingian", base: 500.5, uncertainty: null, gsspRatified: true },
+  { name: "Drumian", rank: "Age", parent: "Miaolingian", base: 504.5, uncertainty: null, gsspRatified: true },
+  { name: "Miaolingian", rank: "Epoch", parent: "Cambrian", base: 506.5, uncertainty: null, gsspRatified: true },
+  { name: "Wuliuan", rank: "Age", parent: "Miaolingian", base: 506.5, uncertainty: null, gsspRatified: true },
+  { name: "CambrianStage4", rank: "Age", parent: "CambrianSeries2", base: 514.5, uncertainty: null, gsspRatified: false },
+  { name: "CambrianSeries2", rank: "Epoch", parent: "Cambrian", base: 521.0, uncertainty: null, gsspRatified: false },
+  { name: "CambrianStage3", rank: "Age", parent: "CambrianSeries2", base: 521.0, uncertainty: null, gsspRatified: false },
+  { name: "CambrianStage2", rank: "Age", parent: "Terreneuvian", base: 529.0, uncertainty: null, gsspRatified: false },
+  { name: "Cambrian", rank: "Period", parent: "Paleozoic", base: 538.8, uncertainty: 0.6, gsspRatified: true },
+  { name: "Fortunian", rank: "Age", parent: "Terreneuvian", base: 538.8, uncertainty: 0.6, gsspRatified: true },
+  { name: "Paleozoic", rank: "Era", parent: "Phanerozoic", base: 538.8, uncertainty: 0.6, gsspRatified: true },
+  { name: "Terreneuvian", rank: "Epoch", parent: "Cambrian", base: 538.8, uncertainty: 0.6, gsspRatified: true },
+];
