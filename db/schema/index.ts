@@ -1,0 +1,4 @@
+export * from "./accounts";
+export * from "./studies";
+export * from "./mail";
+export * from "./timescale";

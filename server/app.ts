@@ -1,0 +1,86 @@
+import express, { type Express } from "express";
+import cookieParser from "cookie-parser";
+import helmet from "helmet";
+import { existsSync } from "node:fs";
+import { join } from "node:path";
+import { OpenAPIRegistry, OpenApiGeneratorV31 } from "@asteasolutions/zod-to-openapi";
+import type { AppContext } from "./context";
+import { errorHandler, notFound } from "./http/errors";
+import { sameOriginOnly } from "./http/origin";
+import type { ApiRouter, RegisteredRoute } from "./http/route";
+import { loadSession } from "./auth/session";
+import { healthRouter } from "./routes/health";
+import { authRouter } from "./routes/auth";
+import { studiesRouter } from "./routes/studies";
+import { membersRouter } from "./routes/members";
+import { invitationsRouter } from "./routes/invitations";
+import { outboxRouter } from "./routes/outbox";
+
+export interface BuiltApp {
+  app: Express;
+  openapi: Record<string, unknown>;
+  routes: RegisteredRoute[];
+}
+
+const RESOURCE_ROUTERS = [healthRouter, authRouter, studiesRouter, membersRouter, invitationsRouter, outboxRouter];
+
+export function buildOpenApi(registry: OpenAPIRegistry) {
+  registry.registerComponent("securitySchemes", "session", { type: "apiKey", in: "cookie", name: "ss_session" });
+  return new OpenApiGeneratorV31(registry.definitions).generateDocument({
+    openapi: "3.1.0",
+    info: {
+      title: "Stratasieve API",
+      version: process.env.npm_package_version ?? "0.1.0",
+      description: "Every endpoint validates its input with the same zod schemas the client uses. Errors are `{ error: { code, message, fields? } }`.",
+    },
+    servers: [{ url: "/" }],
+  });
+}
+
+export function createApp(ctx: AppContext, opts: { clientDir?: string } = {}): BuiltApp {
+  const app = express();
+  app.disable("x-powered-by");
+  app.set("trust proxy", process.env.TRUST_PROXY ? Number(process.env.TRUST_PROXY) || process.env.TRUST_PROXY : false);
+  app.use(
+    helmet({
+      contentSecurityPolicy: {
+        useDefaults: true,
+        directives: {
+          "default-src": ["'self'"],
+          "img-src": ["'self'", "data:", "blob:"],
+          "style-src": ["'self'", "'unsafe-inline'"], // charts set inline styles
+          "font-src": ["'self'", "data:"],
+          "connect-src": ["'self'"],
+          "upgrade-insecure-requests": ctx.config.environment === "production" ? [] : null,
+        },
+      },
+      hsts: ctx.config.environment === "production",
+    }),
+  );
+  app.use(express.json({ limit: "2mb" }));
+  app.use(cookieParser());
+
+  const registry = new OpenAPIRegistry();
+  const routers: ApiRouter[] = RESOURCE_ROUTERS.map((make) => make(ctx, registry));
+  const openapi = buildOpenApi(registry) as unknown as Record<string, unknown>;
+
+  const api = express.Router();
+  api.use(sameOriginOnly(ctx.config.appUrl));
+  api.use(loadSession(ctx));
+  api.get("/openapi.json", (_req, res) => {
+    res.json(openapi);
+  });
+  for (const r of routers) api.use(r.router);
+  api.use((req, _res, next) => next(notFound(`No API endpoint ${req.method} ${req.originalUrl}.`)));
+  app.use("/api", api);
+
+  const clientDir = opts.clientDir;
+  if (clientDir && existsSync(join(clientDir, "index.html"))) {
+    app.use(express.static(clientDir, { index: false, maxAge: "1h" }));
+    app.get("/{*splat}", (_req, res) => {
+      res.sendFile(join(clientDir, "index.html"));
+    });
+  }
+  app.use(errorHandler);
+  return { app, openapi, routes: routers.flatMap((r) => r.routes) };
+}

@@ -1,0 +1,62 @@
+import { existsSync, mkdirSync, readFileSync, writeFileSync } from "node:fs";
+import { randomBytes } from "node:crypto";
+import { join } from "node:path";
+
+export type Environment = "production" | "development" | "test";
+
+export interface AppConfig {
+  environment: Environment;
+  host: string;
+  port: number;
+  /** The app's public origin, used in e-mailed links and the cross-origin check. */
+  appUrl: string;
+  databaseUrl: string;
+  sessionSecret: Uint8Array;
+  sessionTtlSeconds: number;
+  smtpUrl: string | null;
+  mailFrom: string;
+  loginLimit: { windowMs: number; perIp: number; perAccount: number };
+  uploadDir: string;
+}
+
+export const DATA_DIR = join(process.cwd(), ".data");
+
+/** SESSION_SECRET, or a random secret generated once into .data/ so sessions survive restarts. */
+export function loadSessionSecret(): string {
+  if (process.env.SESSION_SECRET) return process.env.SESSION_SECRET;
+  const file = join(DATA_DIR, "session-secret");
+  if (existsSync(file)) return readFileSync(file, "utf8").trim();
+  mkdirSync(DATA_DIR, { recursive: true });
+  const secret = randomBytes(48).toString("base64url");
+  writeFileSync(file, secret, { mode: 0o600 });
+  return secret;
+}
+
+export function loadConfig(overrides: Partial<AppConfig> = {}): AppConfig {
+  const env = process.env;
+  const environment: Environment =
+    env.NODE_ENV === "production" ? "production" : env.NODE_ENV === "test" ? "test" : "development";
+  const host = env.HOST ?? "127.0.0.1";
+  const port = Number(env.PORT ?? 5180);
+  if (!env.DATABASE_URL && !overrides.databaseUrl) throw new Error("DATABASE_URL is not set.");
+  const secret = overrides.sessionSecret ?? new TextEncoder().encode(loadSessionSecret());
+  if (secret.length < 32) throw new Error("SESSION_SECRET must be at least 32 characters long.");
+  return {
+    environment,
+    host,
+    port,
+    appUrl: (env.APP_URL ?? `http://${host}:${port}`).replace(/\/$/, ""),
+    databaseUrl: env.DATABASE_URL ?? "",
+    sessionSecret: secret,
+    sessionTtlSeconds: Number(env.SESSION_TTL_HOURS ?? 24 * 14) * 3600,
+    smtpUrl: env.SMTP_URL || null,
+    mailFrom: env.MAIL_FROM ?? "Stratasieve <no-reply@stratasieve.invalid>",
+    loginLimit: {
+      windowMs: 15 * 60 * 1000,
+      perIp: Number(env.LOGIN_LIMIT_PER_IP ?? 50),
+      perAccount: Number(env.LOGIN_LIMIT_PER_ACCOUNT ?? 10),
+    },
+    uploadDir: env.UPLOAD_DIR ?? join(DATA_DIR, "uploads"),
+    ...overrides,
+  };
+}

@@ -1,0 +1,38 @@
+import type { AppConfig } from "./config";
+import { connectDatabase } from "./db";
+import type { AppContext } from "./context";
+import { createMailer } from "./mail/mailer";
+import { startFakeSmtp, type FakeSmtp } from "./mail/fakeSmtp";
+import { createServices } from "./services";
+
+export interface RunningContext extends AppContext {
+  fakeSmtp: FakeSmtp | null;
+  close(): Promise<void>;
+}
+
+/** Connects the database and the mail transport (starting the local fake when SMTP_URL is unset). */
+export async function createContext(config: AppConfig): Promise<RunningContext> {
+  const database = connectDatabase(config.databaseUrl);
+  let fakeSmtp: FakeSmtp | null = null;
+  let smtpUrl = config.smtpUrl;
+  if (!smtpUrl) {
+    if (config.environment === "production") throw new Error("SMTP_URL must be set in production.");
+    fakeSmtp = await startFakeSmtp(database.db);
+    smtpUrl = `smtp://127.0.0.1:${fakeSmtp.port}`;
+  }
+  const mailer = createMailer(smtpUrl, config.mailFrom, fakeSmtp !== null);
+  const services = createServices(database.db, mailer, config.appUrl);
+  return {
+    config,
+    db: database.db,
+    database,
+    mailer,
+    services,
+    fakeSmtp,
+    async close() {
+      mailer.close();
+      await fakeSmtp?.close();
+      await database.close();
+    },
+  };
+}

@@ -1,0 +1,77 @@
+import type { ErrorRequestHandler } from "express";
+import { ZodError } from "zod";
+import multer from "multer";
+
+export class HttpError extends Error {
+  constructor(
+    readonly status: number,
+    readonly code: string,
+    message: string,
+    readonly fields?: Record<string, string>,
+    readonly headers?: Record<string, string>,
+  ) {
+    super(message);
+  }
+}
+
+export const badRequest = (message: string, fields?: Record<string, string>) => new HttpError(400, "bad_request", message, fields);
+export const unauthorized = (message = "Sign in to continue.") => new HttpError(401, "unauthorized", message);
+export const forbidden = (message = "Your role in this study does not allow this.") => new HttpError(403, "forbidden", message);
+export const notFound = (message = "Not found.") => new HttpError(404, "not_found", message);
+export const conflict = (message: string, fields?: Record<string, string>) => new HttpError(409, "conflict", message, fields);
+
+/** Turns zod issues into `{ field: message }`, naming nested paths with dots. */
+export function zodFields(error: ZodError): Record<string, string> {
+  const fields: Record<string, string> = {};
+  for (const issue of error.issues) {
+    const key = issue.path.length ? issue.path.join(".") : "_";
+    if (!fields[key]) fields[key] = issue.message;
+  }
+  return fields;
+}
+
+export function validationError(error: ZodError, where: string): HttpError {
+  const fields = zodFields(error);
+  const summary = Object.entries(fields)
+    .map(([k, v]) => (k === "_" ? v : `${k}: ${v}`))
+    .join("; ");
+  return new HttpError(400, "validation_failed", `Invalid ${where}: ${summary}`, fields);
+}
+
+const CONNECTION_ERRORS = new Set(["ECONNREFUSED", "ECONNRESET", "57P01", "57P03", "08006", "08001", "08003"]);
+
+function isDatabaseDown(err: unknown): boolean {
+  const e = err as { code?: string; message?: string } | null;
+  if (!e) return false;
+  if (e.code && CONNECTION_ERRORS.has(e.code)) return true;
+  return /timeout exceeded when trying to connect|Connection terminated/i.test(e.message ?? "");
+}
+
+export const errorHandler: ErrorRequestHandler = (err, _req, res, _next) => {
+  void _next;
+  if (err instanceof HttpError) {
+    if (err.headers) res.set(err.headers);
+    res.status(err.status).json({ error: { code: err.code, message: err.message, ...(err.fields ? { fields: err.fields } : {}) } });
+    return;
+  }
+  if (err instanceof multer.MulterError) {
+    const status = err.code === "LIMIT_FILE_SIZE" ? 413 : 400;
+    res.status(status).json({ error: { code: err.code.toLowerCase(), message: err.code === "LIMIT_FILE_SIZE" ? "The file is larger than the upload limit." : err.message } });
+    return;
+  }
+  if ((err as { type?: string }).type === "entity.parse.failed") {
+    res.status(400).json({ error: { code: "invalid_json", message: "The request body is not valid JSON." } });
+    return;
+  }
+  if ((err as { type?: string }).type === "entity.too.large") {
+    res.status(413).json({ error: { code: "too_large", message: "The request body is too large." } });
+    return;
+  }
+  if (isDatabaseDown(err)) {
+    res.set("Retry-After", "5");
+    res.status(503).json({ error: { code: "database_unavailable", message: "The database is not reachable right now. Try again in a few seconds." } });
+    return;
+  }
+  console.error(err);
+  res.status(500).json({ error: { code: "internal", message: "Something went wrong on the server. The error was logged." } });
+};

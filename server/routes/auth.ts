@@ -1,0 +1,135 @@
+import type { OpenAPIRegistry } from "@asteasolutions/zod-to-openapi";
+import {
+  accountUpdateSchema,
+  loginSchema,
+  meSchema,
+  passwordChangeSchema,
+  passwordResetConfirmSchema,
+  passwordResetRequestSchema,
+  signupSchema,
+  userSchema,
+} from "../../shared/schemas/auth";
+import { okSchema } from "../../shared/schemas/common";
+import type { AppContext } from "../context";
+import { ApiRouter } from "../http/route";
+import { clearSessionCookie, startSession } from "../auth/session";
+import { loginLimiters } from "../auth/loginLimiter";
+import { passwordResetMail } from "../mail/templates";
+
+export function authRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRouter {
+  const api = new ApiRouter(registry, ctx);
+  const { users } = ctx.services;
+
+  api.add({
+    method: "post",
+    path: "/auth/signup",
+    summary: "Create an account and sign in",
+    tags: ["auth"],
+    access: "public",
+    body: signupSchema,
+    response: { status: 201, schema: userSchema },
+    async handler({ body, res }) {
+      const user = await users.signup(body);
+      await startSession(ctx, res, user.id);
+      return user;
+    },
+  });
+
+  api.add({
+    method: "post",
+    path: "/auth/login",
+    summary: "Sign in (rate-limited per address and per account)",
+    tags: ["auth"],
+    access: "public",
+    before: loginLimiters(ctx),
+    body: loginSchema,
+    response: { status: 200, schema: userSchema },
+    async handler({ body, res }) {
+      const user = await users.authenticate(body.email, body.password);
+      await startSession(ctx, res, user.id);
+      return user;
+    },
+  });
+
+  api.add({
+    method: "post",
+    path: "/auth/logout",
+    summary: "Sign out of this browser",
+    tags: ["auth"],
+    access: "public",
+    response: { status: 204 },
+    async handler({ user, res }) {
+      if (user) await users.endSession(user.sessionId);
+      clearSessionCookie(ctx, res);
+    },
+  });
+
+  api.add({
+    method: "get",
+    path: "/auth/me",
+    summary: "The signed-in account",
+    tags: ["auth"],
+    access: "user",
+    response: { status: 200, schema: meSchema },
+    async handler({ user }) {
+      return { user: await users.get(user!.id), environment: ctx.config.environment };
+    },
+  });
+
+  api.add({
+    method: "patch",
+    path: "/auth/me",
+    summary: "Change the account's name",
+    tags: ["auth"],
+    access: "user",
+    body: accountUpdateSchema,
+    response: { status: 200, schema: userSchema },
+    handler: ({ user, body }) => users.updateName(user!.id, body.name),
+  });
+
+  api.add({
+    method: "post",
+    path: "/auth/password",
+    summary: "Change the password; ends every other session of the account",
+    tags: ["auth"],
+    access: "user",
+    body: passwordChangeSchema,
+    response: { status: 204 },
+    async handler({ user, body }) {
+      await users.changePassword(user!.id, user!.sessionId, body.currentPassword, body.newPassword);
+    },
+  });
+
+  api.add({
+    method: "post",
+    path: "/auth/password-reset/request",
+    summary: "E-mail a one-time reset link (answers the same whether or not the account exists)",
+    tags: ["auth"],
+    access: "public",
+    before: loginLimiters(ctx, "reset"),
+    body: passwordResetRequestSchema,
+    response: { status: 202, schema: okSchema },
+    async handler({ body }) {
+      const reset = await users.createPasswordReset(body.email);
+      if (reset) {
+        await ctx.mailer.send({ to: body.email, ...passwordResetMail({ link: `${ctx.config.appUrl}/reset-password/${reset.token}` }) });
+      }
+      return { ok: true };
+    },
+  });
+
+  api.add({
+    method: "post",
+    path: "/auth/password-reset/confirm",
+    summary: "Set a new password with the e-mailed token",
+    tags: ["auth"],
+    access: "public",
+    body: passwordResetConfirmSchema,
+    response: { status: 204 },
+    async handler({ body }) {
+      await users.confirmPasswordReset(body.token, body.password);
+    },
+  });
+
+  return api;
+}

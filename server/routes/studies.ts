@@ -1,0 +1,67 @@
+import type { OpenAPIRegistry } from "@asteasolutions/zod-to-openapi";
+import { studyParamsSchema } from "../../shared/schemas/common";
+import { studyCreateSchema, studyListSchema, studySchema, studyUpdateSchema } from "../../shared/schemas/studies";
+import type { AppContext } from "../context";
+import { ApiRouter } from "../http/route";
+
+export function studiesRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRouter {
+  const api = new ApiRouter(registry, ctx);
+  const { studies } = ctx.services;
+
+  api.add({
+    method: "get",
+    path: "/studies",
+    summary: "Studies the caller is a member of",
+    tags: ["studies"],
+    access: "user",
+    response: { status: 200, schema: studyListSchema },
+    handler: async ({ user }) => ({ studies: await studies.listFor(user!.id) }),
+  });
+
+  api.add({
+    method: "post",
+    path: "/studies",
+    summary: "Create a study; the caller becomes its owner",
+    tags: ["studies"],
+    access: "user",
+    body: studyCreateSchema,
+    response: { status: 201, schema: studySchema },
+    handler: ({ user, body }) => studies.create(user!.id, body),
+  });
+
+  api.add({
+    method: "get",
+    path: "/studies/:studyId",
+    summary: "One study",
+    tags: ["studies"],
+    access: "study.read",
+    params: studyParamsSchema,
+    response: { status: 200, schema: studySchema },
+    handler: ({ params, role }) => studies.get(params.studyId, role!),
+  });
+
+  api.add({
+    method: "patch",
+    path: "/studies/:studyId",
+    summary: "Rename or describe a study",
+    tags: ["studies"],
+    access: "study.update",
+    params: studyParamsSchema,
+    body: studyUpdateSchema,
+    response: { status: 200, schema: studySchema },
+    handler: ({ params, role, body }) => studies.update(params.studyId, role!, body),
+  });
+
+  api.add({
+    method: "delete",
+    path: "/studies/:studyId",
+    summary: "Delete a study and everything in it",
+    tags: ["studies"],
+    access: "study.delete",
+    params: studyParamsSchema,
+    response: { status: 204 },
+    handler: ({ params }) => studies.remove(params.studyId),
+  });
+
+  return api;
+}

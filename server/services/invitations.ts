@@ -1,0 +1,75 @@
+import { and, eq, gt, isNull } from "drizzle-orm";
+import type { Database } from "../db";
+import { invitations, memberships, studies, users } from "../../db/schema/index";
+import type { StudyRole } from "../../shared/roles";
+import type { InvitationPreview } from "../../shared/schemas/studies";
+import { HttpError } from "../http/errors";
+import type { Mailer } from "../mail/mailer";
+import { invitationMail } from "../mail/templates";
+import { hashToken, newToken } from "./tokens";
+
+const INVITATION_TTL_MS = 7 * 24 * 3600 * 1000;
+
+const invalid = () => new HttpError(404, "invalid_invitation", "This invitation link is invalid, already used or expired. Ask the study lead for a new one.");
+
+export function createInvitationService(db: Database, mailer: Mailer, appUrl: string) {
+  async function findLive(token: string) {
+    const [row] = await db
+      .select({ invitation: invitations, studyName: studies.name, inviter: users.name })
+      .from(invitations)
+      .innerJoin(studies, eq(studies.id, invitations.studyId))
+      .leftJoin(users, eq(users.id, invitations.invitedBy))
+      .where(and(eq(invitations.tokenHash, hashToken(token)), isNull(invitations.acceptedAt), gt(invitations.expiresAt, new Date())));
+    return row ?? null;
+  }
+
+  return {
+    async invite(studyId: string, inviter: { id: string; name: string }, email: string, role: StudyRole): Promise<{ id: string }> {
+      const study = await db.query.studies.findFirst({ where: eq(studies.id, studyId) });
+      if (!study) throw invalid();
+      const member = await db
+        .select({ id: users.id })
+        .from(users)
+        .innerJoin(memberships, and(eq(memberships.userId, users.id), eq(memberships.studyId, studyId)))
+        .where(eq(users.email, email));
+      if (member.length) throw new HttpError(409, "already_member", `${email} is already a member of this study.`, { email: "Already a member" });
+      const { token, hash } = newToken();
+      const expiresAt = new Date(Date.now() + INVITATION_TTL_MS);
+      const [row] = await db.insert(invitations).values({ studyId, email, role, tokenHash: hash, invitedBy: inviter.id, expiresAt }).returning();
+      const mail = invitationMail({ studyName: study.name, inviter: inviter.name, role, link: `${appUrl}/invitations/${token}`, expiresAt });
+      await mailer.send({ to: email, ...mail });
+      return { id: row.id };
+    },
+
+    async preview(token: string): Promise<InvitationPreview> {
+      const row = await findLive(token);
+      if (!row) throw invalid();
+      return {
+        studyName: row.studyName,
+        role: row.invitation.role,
+        email: row.invitation.email,
+        invitedBy: row.inviter,
+        expiresAt: row.invitation.expiresAt.toISOString(),
+      };
+    },
+
+    /** Adds the membership (or raises an existing one to the invited role) and spends the token. */
+    async accept(token: string, userId: string): Promise<{ studyId: string; role: StudyRole }> {
+      return db.transaction(async (tx) => {
+        const [invitation] = await tx
+          .update(invitations)
+          .set({ acceptedAt: new Date(), acceptedBy: userId })
+          .where(and(eq(invitations.tokenHash, hashToken(token)), isNull(invitations.acceptedAt), gt(invitations.expiresAt, new Date())))
+          .returning();
+        if (!invitation) throw invalid();
+        const existing = await tx.query.memberships.findFirst({
+          where: and(eq(memberships.studyId, invitation.studyId), eq(memberships.userId, userId)),
+        });
+        if (existing) return { studyId: invitation.studyId, role: existing.role };
+        await tx.insert(memberships).values({ studyId: invitation.studyId, userId, role: invitation.role });
+        return { studyId: invitation.studyId, role: invitation.role };
+      });
+    },
+  };
+}
+export type InvitationService = ReturnType<typeof createInvitationService>;

@@ -1,0 +1,112 @@
+import { and, count, desc, eq, gt, isNull, sql } from "drizzle-orm";
+import type { Database } from "../db";
+import { invitations, memberships, studies, users } from "../../db/schema/index";
+import type { StudyRole } from "../../shared/roles";
+import type { Member, Study, StudyUpdateInput } from "../../shared/schemas/studies";
+import { HttpError, notFound } from "../http/errors";
+
+type StudyRow = typeof studies.$inferSelect;
+
+function toStudy(row: StudyRow, role: StudyRole, memberCount: number): Study {
+  return {
+    id: row.id,
+    name: row.name,
+    description: row.description,
+    role,
+    memberCount,
+    createdAt: row.createdAt.toISOString(),
+    updatedAt: row.updatedAt.toISOString(),
+  };
+}
+
+const memberCountSql = sql<number>`(SELECT count(*)::int FROM memberships m2 WHERE m2.study_id = ${studies.id})`;
+
+export function createStudyService(db: Database) {
+  const service = {
+    async roleOf(studyId: string, userId: string): Promise<StudyRole | null> {
+      const row = await db.query.memberships.findFirst({
+        where: and(eq(memberships.studyId, studyId), eq(memberships.userId, userId)),
+        columns: { role: true },
+      });
+      return row?.role ?? null;
+    },
+
+    async listFor(userId: string): Promise<Study[]> {
+      const rows = await db
+        .select({ study: studies, role: memberships.role, memberCount: memberCountSql })
+        .from(memberships)
+        .innerJoin(studies, eq(studies.id, memberships.studyId))
+        .where(eq(memberships.userId, userId))
+        .orderBy(desc(studies.updatedAt));
+      return rows.map((r) => toStudy(r.study, r.role, Number(r.memberCount)));
+    },
+
+    async get(studyId: string, role: StudyRole): Promise<Study> {
+      const [row] = await db.select({ study: studies, memberCount: memberCountSql }).from(studies).where(eq(studies.id, studyId));
+      if (!row) throw notFound("Study not found.");
+      return toStudy(row.study, role, Number(row.memberCount));
+    },
+
+    /** The creator becomes the study's owner, in the same transaction. */
+    async create(userId: string, input: { name: string; description: string }): Promise<Study> {
+      return db.transaction(async (tx) => {
+        const [row] = await tx.insert(studies).values({ ...input, createdBy: userId }).returning();
+        await tx.insert(memberships).values({ studyId: row.id, userId, role: "owner" });
+        return toStudy(row, "owner", 1);
+      });
+    },
+
+    async update(studyId: string, role: StudyRole, input: StudyUpdateInput): Promise<Study> {
+      await db.update(studies).set({ ...input, updatedAt: new Date() }).where(eq(studies.id, studyId));
+      return service.get(studyId, role);
+    },
+
+    async remove(studyId: string): Promise<void> {
+      await db.delete(studies).where(eq(studies.id, studyId));
+    },
+
+    async members(studyId: string) {
+      const rows = await db
+        .select({ userId: users.id, name: users.name, email: users.email, role: memberships.role, joinedAt: memberships.createdAt })
+        .from(memberships)
+        .innerJoin(users, eq(users.id, memberships.userId))
+        .where(eq(memberships.studyId, studyId))
+        .orderBy(users.name);
+      const members: Member[] = rows.map((r) => ({ ...r, joinedAt: r.joinedAt.toISOString() }));
+      const pending = await db
+        .select()
+        .from(invitations)
+        .where(and(eq(invitations.studyId, studyId), isNull(invitations.acceptedAt), gt(invitations.expiresAt, new Date())))
+        .orderBy(desc(invitations.createdAt));
+      return {
+        members,
+        invitations: pending.map((i) => ({ id: i.id, email: i.email, role: i.role, expiresAt: i.expiresAt.toISOString(), createdAt: i.createdAt.toISOString() })),
+      };
+    },
+
+    /**
+     * Changes a member's role or removes the member. A study always keeps at least one owner:
+     * the owner rows are locked first so two concurrent demotions cannot both pass the check.
+     */
+    async changeMembership(studyId: string, userId: string, newRole: StudyRole | null): Promise<void> {
+      await db.transaction(async (tx) => {
+        await tx.execute(sql`SELECT 1 FROM memberships WHERE study_id = ${studyId} AND role = 'owner' FOR UPDATE`);
+        const current = await tx.query.memberships.findFirst({ where: and(eq(memberships.studyId, studyId), eq(memberships.userId, userId)) });
+        if (!current) throw notFound("This person is not a member of the study.");
+        if (current.role === "owner" && newRole !== "owner") {
+          const [{ owners }] = await tx
+            .select({ owners: count() })
+            .from(memberships)
+            .where(and(eq(memberships.studyId, studyId), eq(memberships.role, "owner")));
+          if (owners <= 1) {
+            throw new HttpError(409, "last_owner", "A study must keep at least one study lead (owner). Make someone else owner first.");
+          }
+        }
+        if (newRole) await tx.update(memberships).set({ role: newRole }).where(and(eq(memberships.studyId, studyId), eq(memberships.userId, userId)));
+        else await tx.delete(memberships).where(and(eq(memberships.studyId, studyId), eq(memberships.userId, userId)));
+      });
+    },
+  };
+  return service;
+}
+export type StudyService = ReturnType<typeof createStudyService>;

@@ -1,0 +1,44 @@
+// Per-study roles and what each may do. Access is decided here, in one place, from
+// (role, action); the server's `authorize` middleware and the client's buttons both read it.
+
+export const STUDY_ROLES = ["owner", "coder", "analyst", "reviewer", "viewer"] as const;
+export type StudyRole = (typeof STUDY_ROLES)[number];
+
+export const ROLE_LABELS: Record<StudyRole, string> = {
+  owner: "Study lead",
+  coder: "Coder",
+  analyst: "Analyst",
+  reviewer: "Reviewer",
+  viewer: "Guest",
+};
+
+export const ROLE_SUMMARIES: Record<StudyRole, string> = {
+  owner: "Everything, plus members, invitations and study settings",
+  coder: "Defines the codebook, imports and codes trait tables",
+  analyst: "Derives outcomes, tests selectivity, saves runs and modern comparisons",
+  reviewer: "Reads everything and discusses decisions and results",
+  viewer: "Reads only",
+};
+
+export const STUDY_ACTIONS = {
+  "study.read": ["owner", "coder", "analyst", "reviewer", "viewer"],
+  "study.update": ["owner"],
+  "study.delete": ["owner"],
+  "members.read": ["owner", "coder", "analyst", "reviewer", "viewer"],
+  "members.manage": ["owner"],
+  "codebook.edit": ["owner", "coder"],
+  "taxa.edit": ["owner", "coder"],
+  "imports.run": ["owner", "coder"],
+  "outcomes.override": ["owner", "coder", "analyst"],
+  "runs.create": ["owner", "analyst"],
+  "comparisons.create": ["owner", "analyst"],
+  "threads.post": ["owner", "coder", "analyst", "reviewer"],
+  "threads.resolve": ["owner", "coder"],
+} as const satisfies Record<string, readonly StudyRole[]>;
+
+export type StudyAction = keyof typeof STUDY_ACTIONS;
+
+export function can(role: StudyRole | null | undefined, action: StudyAction): boolean {
+  if (!role) return false;
+  return (STUDY_ACTIONS[action] as readonly StudyRole[]).includes(role);
+}

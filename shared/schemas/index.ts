@@ -1,0 +1,5 @@
+export * from "./common";
+export * from "./auth";
+export * from "./studies";
+export * from "./outbox";
+export * from "./health";
