@@ -82,8 +82,9 @@ export function boundaryCrosserRates(taxa: Array<{ fad: number; lad: number }>, 
   const nt = nbt + nFt;
   const taxonCount = nbt + nbL + nFt + nFL;
   const duration = base - top;
-  const q = -Math.log(nbt / nb);
-  const p = -Math.log(nbt / nt);
+  // ln(nb / nbt) equals -ln(nbt / nb) but gives +0 rather than -0 when nothing is lost.
+  const q = Math.log(nb / nbt);
+  const p = Math.log(nt / nbt);
   return {
     ...counts,
     q,
