@@ -1,0 +1,131 @@
+// Every route of the OpenAPI document, called as each role, as a signed-in stranger and without
+// a session. A route missing from the table fails the test, so new routes must state their rights.
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import request, { type Response } from "supertest";
+import { STUDY_ROLES } from "../../shared/roles";
+import { createTestApp, PASSWORD, signedInAgent, uniqueEmail, type TestApp } from "../support/server";
+import { memberships } from "../../db/schema/index";
+import { castOfRoles, EVERYONE, type Cast, type Who } from "./fixtures";
+
+type Agent = Cast["anonymous"];
+interface Row {
+  /** Who gets a 2xx. Everyone else gets 401 (anonymous) or 403. "public" rows never answer 401/403. */
+  allowed: Who[] | "public";
+  /** Builds the request for one caller; a fresh study per call keeps destructive rows independent. */
+  call: (agent: Agent, env: { studyId: string; cast: Cast; who: Who }) => PromiseLike<Response>;
+  freshStudy?: boolean;
+}
+
+const SIGNED_IN: Who[] = ["stranger", ...STUDY_ROLES];
+const MEMBERS: Who[] = [...STUDY_ROLES];
+
+const MATRIX: Record<string, Row> = {
+  "GET /api/health": { allowed: "public", call: (a) => a.get("/api/health") },
+  "POST /api/auth/signup": {
+    allowed: "public",
+    call: () => request(app.app).post("/api/auth/signup").send({ email: uniqueEmail("m"), password: PASSWORD, name: "Matrix" }),
+  },
+  // Signing in on a cookie-less client, so the callers' agents keep their own sessions.
+  "POST /api/auth/login": {
+    allowed: "public",
+    call: (_a, { cast, who }) => request(app.app).post("/api/auth/login").send({ email: cast.people[who === "anonymous" ? "viewer" : who].email, password: PASSWORD }),
+  },
+  // Signing out must not end the session the other rows use: sign in afresh, then out.
+  "POST /api/auth/logout": {
+    allowed: "public",
+    call: async (a, { cast, who }) => {
+      if (who === "anonymous") return a.post("/api/auth/logout");
+      const fresh = request.agent(app.app);
+      await fresh.post("/api/auth/login").send({ email: cast.people[who].email, password: PASSWORD });
+      return fresh.post("/api/auth/logout");
+    },
+  },
+  "GET /api/auth/me": { allowed: SIGNED_IN, call: (a) => a.get("/api/auth/me") },
+  "PATCH /api/auth/me": { allowed: SIGNED_IN, call: (a, { who }) => a.patch("/api/auth/me").send({ name: `Test ${who}` }) },
+  "POST /api/auth/password": { allowed: SIGNED_IN, call: (a) => a.post("/api/auth/password").send({ currentPassword: PASSWORD, newPassword: PASSWORD }) },
+  "POST /api/auth/password-reset/request": { allowed: "public", call: (a) => a.post("/api/auth/password-reset/request").send({ email: uniqueEmail("nobody") }) },
+  "POST /api/auth/password-reset/confirm": {
+    allowed: "public",
+    call: (a) => a.post("/api/auth/password-reset/confirm").send({ token: "x".repeat(40), password: PASSWORD }),
+  },
+  "GET /api/studies": { allowed: SIGNED_IN, call: (a) => a.get("/api/studies") },
+  "POST /api/studies": { allowed: SIGNED_IN, call: (a) => a.post("/api/studies").send({ name: "Matrix study" }) },
+  "GET /api/studies/{studyId}": { allowed: MEMBERS, call: (a, { studyId }) => a.get(`/api/studies/${studyId}`) },
+  "PATCH /api/studies/{studyId}": { allowed: ["owner"], call: (a, { studyId }) => a.patch(`/api/studies/${studyId}`).send({ description: "Edited" }) },
+  "DELETE /api/studies/{studyId}": { allowed: ["owner"], freshStudy: true, call: (a, { studyId }) => a.delete(`/api/studies/${studyId}`) },
+  "GET /api/studies/{studyId}/members": { allowed: MEMBERS, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/members`) },
+  "POST /api/studies/{studyId}/invitations": {
+    allowed: ["owner"],
+    call: (a, { studyId }) => a.post(`/api/studies/${studyId}/invitations`).send({ email: uniqueEmail("invitee"), role: "reviewer" }),
+  },
+  "PATCH /api/studies/{studyId}/members/{userId}": {
+    allowed: ["owner"],
+    freshStudy: true,
+    call: (a, { studyId, cast }) => a.patch(`/api/studies/${studyId}/members/${cast.people.viewer.user.id}`).send({ role: "reviewer" }),
+  },
+  "DELETE /api/studies/{studyId}/members/{userId}": {
+    allowed: ["owner"],
+    freshStudy: true,
+    call: (a, { studyId, cast }) => a.delete(`/api/studies/${studyId}/members/${cast.people.viewer.user.id}`),
+  },
+  "GET /api/invitations/{token}": {
+    allowed: "public",
+    call: async (a, { studyId, cast }) => a.get(`/api/invitations/${await cast.makeInvitation(studyId, uniqueEmail("x"))}`),
+  },
+  "POST /api/invitations/{token}/accept": {
+    allowed: SIGNED_IN,
+    call: async (a, { studyId, cast }) => a.post(`/api/invitations/${await cast.makeInvitation(studyId, uniqueEmail("x"))}/accept`),
+  },
+  // The fake mailbox is for study leads. Earlier rows made everyone create a study of their own,
+  // so the non-owner cells use a newcomer who holds only that role (or, as stranger, none).
+  "GET /api/outbox": {
+    allowed: ["owner"],
+    call: async (a, { who, studyId }) => {
+      if (who === "anonymous" || who === "owner") return a.get("/api/outbox");
+      const newcomer = await signedInAgent(app, `outbox-${who}`);
+      if (who !== "stranger") {
+        await app.ctx.db.insert(memberships).values({ studyId, userId: newcomer.user.id, role: who });
+      }
+      return newcomer.agent.get("/api/outbox");
+    },
+  },
+};
+
+let app: TestApp;
+let cast: Cast;
+let sharedStudy: string;
+
+beforeAll(async () => {
+  app = await createTestApp();
+  cast = await castOfRoles(app);
+  sharedStudy = await cast.makeStudy();
+});
+afterAll(() => app.close());
+
+describe("role matrix", () => {
+  it("has a row for every route of the OpenAPI document", () => {
+    const documented = Object.entries(app.openapi.paths as Record<string, Record<string, unknown>>).flatMap(([path, ops]) =>
+      Object.keys(ops).map((method) => `${method.toUpperCase()} ${path}`),
+    );
+    expect(documented.length).toBeGreaterThan(15);
+    const missing = documented.filter((route) => !(route in MATRIX));
+    expect(missing, `routes without a row in the role matrix: ${missing.join(", ")}`).toEqual([]);
+  });
+
+  for (const [route, row] of Object.entries(MATRIX)) {
+    for (const who of EVERYONE) {
+      const expected = row.allowed === "public" ? "not 401/403" : row.allowed.includes(who) ? "2xx" : who === "anonymous" ? "401" : "403";
+      it(`${route} as ${who}: ${expected}`, async () => {
+        const agent = who === "anonymous" ? cast.anonymous : cast.people[who].agent;
+        const studyId = row.freshStudy ? await cast.makeStudy() : sharedStudy;
+        const res = await row.call(agent, { studyId, cast, who });
+        if (expected === "2xx") expect(res.status, JSON.stringify(res.body)).toBeGreaterThanOrEqual(200);
+        if (expected === "2xx") expect(res.status, JSON.stringify(res.body)).toBeLessThan(300);
+        if (expected === "401") expect(res.status).toBe(401);
+        if (expected === "403") expect(res.status).toBe(403);
+        if (expected === "not 401/403") expect([401, 403]).not.toContain(res.status);
+        if (res.status >= 400) expect(res.body.error?.message, "errors carry a message a person can act on").toMatch(/\w+/);
+      });
+    }
+  }
+});
