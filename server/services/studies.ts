@@ -1,6 +1,7 @@
 import { and, count, desc, eq, gt, isNull, sql } from "drizzle-orm";
 import type { Database } from "../db";
-import { invitations, memberships, studies, users } from "../../db/schema/index";
+import { invitations, memberships, studies, traits, users } from "../../db/schema/index";
+import { SUGGESTED_CODEBOOK } from "../../shared/codebook";
 import type { StudyRole } from "../../shared/roles";
 import type { Member, Study, StudyUpdateInput } from "../../shared/schemas/studies";
 import { HttpError, notFound } from "../http/errors";
@@ -47,11 +48,12 @@ export function createStudyService(db: Database) {
       return toStudy(row.study, role, Number(row.memberCount));
     },
 
-    /** The creator becomes the study's owner, in the same transaction. */
+    /** The creator becomes the study's owner; the study starts from the suggested codebook. */
     async create(userId: string, input: { name: string; description: string }): Promise<Study> {
       return db.transaction(async (tx) => {
         const [row] = await tx.insert(studies).values({ ...input, createdBy: userId }).returning();
         await tx.insert(memberships).values({ studyId: row.id, userId, role: "owner" });
+        await tx.insert(traits).values(SUGGESTED_CODEBOOK.map((t, i) => ({ ...t, studyId: row.id, sortOrder: i })));
         return toStudy(row, "owner", 1);
       });
     },
