@@ -1,0 +1,54 @@
+import { createBrowserRouter } from "react-router-dom";
+import { AccountPage } from "../features/account/AccountPage";
+import { ForgotPasswordPage } from "../features/auth/ForgotPasswordPage";
+import { ResetPasswordPage } from "../features/auth/ResetPasswordPage";
+import { SignInPage } from "../features/auth/SignInPage";
+import { SignUpPage } from "../features/auth/SignUpPage";
+import { InvitationPage } from "../features/invitations/InvitationPage";
+import { MembersPage } from "../features/members/MembersPage";
+import { OutboxPage } from "../features/outbox/OutboxPage";
+import { NewStudyPage } from "../features/studies/NewStudyPage";
+import { StudiesPage } from "../features/studies/StudiesPage";
+import { StudyOverviewPage } from "../features/study-overview/StudyOverviewPage";
+import { AppShell } from "./AppShell";
+import { NotFoundPage } from "./NotFoundPage";
+import { PUBLIC_ROUTES } from "./publicRoutes";
+import { PublicLayout } from "./PublicLayout";
+import { RouteErrorPage } from "./RouteErrorPage";
+import { StudyLayout } from "./StudyLayout";
+
+export const router = createBrowserRouter([
+  {
+    errorElement: <RouteErrorPage />,
+    children: [
+      {
+        element: <PublicLayout />,
+        children: [
+          { path: PUBLIC_ROUTES.signIn, element: <SignInPage /> },
+          { path: PUBLIC_ROUTES.signUp, element: <SignUpPage /> },
+          { path: PUBLIC_ROUTES.forgotPassword, element: <ForgotPasswordPage /> },
+          { path: PUBLIC_ROUTES.resetPassword, element: <ResetPasswordPage /> },
+          { path: PUBLIC_ROUTES.invitation, element: <InvitationPage /> },
+          { path: "*", element: <NotFoundPage /> },
+        ],
+      },
+      {
+        element: <AppShell />,
+        children: [
+          { index: true, element: <StudiesPage /> },
+          { path: "studies/new", element: <NewStudyPage /> },
+          {
+            path: "studies/:studyId",
+            element: <StudyLayout />,
+            children: [
+              { index: true, element: <StudyOverviewPage /> },
+              { path: "members", element: <MembersPage /> },
+            ],
+          },
+          { path: "account", element: <AccountPage /> },
+          { path: "outbox", element: <OutboxPage /> },
+        ],
+      },
+    ],
+  },
+]);
