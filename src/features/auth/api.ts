@@ -1,0 +1,45 @@
+import { useMutation, useQueryClient } from "@tanstack/react-query";
+import type { LoginInput, SignupInput, User } from "@shared/schemas/auth";
+import { api } from "../../lib/api";
+
+/**
+ * After signing in, up or out, nothing cached for the previous account may be shown again:
+ * the cache is emptied and every screen loads afresh.
+ */
+function useForgetCachedData() {
+  const queryClient = useQueryClient();
+  return () => queryClient.removeQueries();
+}
+
+/** POST /api/auth/login (401 for a wrong e-mail or password, 429 with Retry-After when limited). */
+export function useSignIn() {
+  const forget = useForgetCachedData();
+  return useMutation({
+    mutationFn: (input: LoginInput) => api.post<User>("/auth/login", input),
+    onSuccess: forget,
+  });
+}
+
+/** POST /api/auth/signup: creates the account and signs it in. */
+export function useSignUp() {
+  const forget = useForgetCachedData();
+  return useMutation({
+    mutationFn: (input: SignupInput) => api.post<User>("/auth/signup", input),
+    onSuccess: forget,
+  });
+}
+
+/** POST /api/auth/logout */
+export function useSignOut() {
+  return useMutation({ mutationFn: () => api.post<void>("/auth/logout") });
+}
+
+/** POST /api/auth/password-reset/request: answers the same whether or not the account exists. */
+export function useRequestPasswordReset() {
+  return useMutation({ mutationFn: (input: { email: string }) => api.post<{ ok: true }>("/auth/password-reset/request", input) });
+}
+
+/** POST /api/auth/password-reset/confirm with the e-mailed token. */
+export function useConfirmPasswordReset() {
+  return useMutation({ mutationFn: (input: { token: string; password: string }) => api.post<void>("/auth/password-reset/confirm", input) });
+}

@@ -1,0 +1,61 @@
+import { useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
+import type { StudyRole } from "@shared/roles";
+import type { z } from "zod";
+import type { InvitationCreateInput, Member, pendingInvitationSchema } from "@shared/schemas/studies";
+import { api } from "../../lib/api";
+import { queryKeys } from "../../lib/queryKeys";
+
+export type PendingInvitation = z.infer<typeof pendingInvitationSchema>;
+export interface MemberList {
+  members: Member[];
+  invitations: PendingInvitation[];
+}
+
+const studyPath = (studyId: string) => `/studies/${encodeURIComponent(studyId)}`;
+
+/** GET /api/studies/:studyId/members: members and pending invitations. */
+export function useMembers(studyId: string) {
+  return useQuery({
+    queryKey: queryKeys.studies.members(studyId),
+    queryFn: ({ signal }) => api.get<MemberList>(`${studyPath(studyId)}/members`, signal),
+  });
+}
+
+/** POST /api/studies/:studyId/invitations: e-mails a one-time link. */
+export function useInviteMember(studyId: string) {
+  const queryClient = useQueryClient();
+  return useMutation({
+    mutationFn: (input: InvitationCreateInput) => api.post<{ id: string }>(`${studyPath(studyId)}/invitations`, input),
+    onSuccess: () =>
+      Promise.all([
+        queryClient.invalidateQueries({ queryKey: queryKeys.studies.members(studyId) }),
+        // The invitation mail lands in the local outbox.
+        queryClient.invalidateQueries({ queryKey: queryKeys.outbox }),
+      ]),
+  });
+}
+
+/** PATCH /api/studies/:studyId/members/:userId (409 `last_owner` when no owner would remain). */
+export function useChangeMemberRole(studyId: string) {
+  const queryClient = useQueryClient();
+  return useMutation({
+    mutationFn: ({ userId, role }: { userId: string; role: StudyRole }) =>
+      api.patch<void>(`${studyPath(studyId)}/members/${encodeURIComponent(userId)}`, { role }),
+    // The caller's own role may have changed, so the study (and its role) is refreshed too.
+    onSuccess: () => queryClient.invalidateQueries({ queryKey: queryKeys.studies.all }),
+  });
+}
+
+/**
+ * DELETE /api/studies/:studyId/members/:userId (409 `last_owner` when no owner would remain).
+ * `leaving` is true when the caller removes themself: the study's pages are then not refetched,
+ * since the caller may no longer read them.
+ */
+export function useRemoveMember(studyId: string) {
+  const queryClient = useQueryClient();
+  return useMutation({
+    mutationFn: ({ userId }: { userId: string; leaving: boolean }) => api.delete(`${studyPath(studyId)}/members/${encodeURIComponent(userId)}`),
+    onSuccess: (_result, { leaving }) =>
+      queryClient.invalidateQueries({ queryKey: queryKeys.studies.all, refetchType: leaving ? "none" : "active" }),
+  });
+}

@@ -1,0 +1,57 @@
+import { useNavigate } from "react-router-dom";
+import { studyCreateSchema } from "@shared/schemas/studies";
+import { Button, ButtonLink } from "../../components/Button";
+import { Card } from "../../components/Card";
+import { FormError } from "../../components/Notice";
+import { PageHeader } from "../../components/PageHeader";
+import { TextArea, TextField } from "../../components/TextField";
+import { useToast } from "../../components/Toast";
+import { formLevelMessage, useZodForm } from "../../lib/forms";
+import { paths } from "../../lib/paths";
+import { useDocumentTitle } from "../../lib/useDocumentTitle";
+import { useCreateStudy } from "./api";
+
+export function NewStudyPage() {
+  useDocumentTitle("New study");
+  const navigate = useNavigate();
+  const toast = useToast();
+  const create = useCreateStudy();
+  const form = useZodForm(studyCreateSchema, { name: "", description: "" });
+
+  const submit = form.handleSubmit((input) =>
+    create.mutate(input, {
+      onSuccess: (study) => {
+        toast.show(`Study “${study.name}” created. You are its study lead.`);
+        navigate(paths.study(study.id));
+      },
+      onError: form.showServerErrors,
+    }),
+  );
+
+  return (
+    <div className="max-w-2xl">
+      <PageHeader title="New study" description="You become the study lead: you invite the team and give each person a role." />
+      <Card>
+        <FormError message={formLevelMessage(create.error)} className="mb-5" />
+        <form noValidate onSubmit={submit} className="space-y-5">
+          <TextField label="Name" placeholder="e.g. Bivalves across the end-Triassic" {...form.field("name")} />
+          <TextArea
+            label="Description"
+            optional
+            rows={5}
+            hint="The question, the clade or region, and the boundaries of interest. Members see it on the study’s overview."
+            {...form.field("description")}
+          />
+          <div className="flex flex-col-reverse gap-3 pt-2 sm:flex-row sm:justify-end">
+            <ButtonLink to={paths.home} variant="secondary">
+              Cancel
+            </ButtonLink>
+            <Button type="submit" busy={create.isPending}>
+              Create study
+            </Button>
+          </div>
+        </form>
+      </Card>
+    </div>
+  );
+}
