@@ -3,3 +3,5 @@ export * from "./auth";
 export * from "./studies";
 export * from "./outbox";
 export * from "./health";
+export * from "./timescale";
+export * from "./outcomes";
