@@ -5,3 +5,8 @@ export * from "./outbox";
 export * from "./health";
 export * from "./timescale";
 export * from "./outcomes";
+export * from "./traits";
+export * from "./taxa";
+export * from "./decisions";
+export * from "./imports";
+export * from "./exports";
