@@ -97,8 +97,9 @@ export function MemberList({ study, members, myUserId, canManage }: MemberListPr
                     {member.name}
                     {isMe && <span className="ml-2 text-sm font-normal text-stone-500">(you)</span>}
                   </p>
-                  <p className="truncate text-sm text-stone-500">
-                    {member.email} · joined {formatDate(member.joinedAt)}
+                  <p className="flex flex-wrap gap-x-2 text-sm text-stone-500">
+                    <span className="break-all">{member.email}</span>
+                    <span className="whitespace-nowrap tabular-nums">joined {formatDate(member.joinedAt)}</span>
                   </p>
                 </div>
               </div>
