@@ -7,6 +7,7 @@ import { cx, focusRing } from "../components/focus";
 import { LoadingState } from "../components/LoadingState";
 import { RoleBadge } from "../components/RoleBadge";
 import { useStudy } from "../features/studies/api";
+import { ApiError } from "../lib/api";
 import { CurrentStudyContext } from "../lib/currentStudy";
 import { paths } from "../lib/paths";
 import { STUDY_NAV } from "./studyNav";
@@ -18,11 +19,13 @@ export function StudyLayout() {
 
   if (study.isPending) return <LoadingState label="Loading the study" />;
   if (study.isError) {
+    // A mistyped address answers 400 about the id; say it in words.
+    const malformedAddress = study.error instanceof ApiError && study.error.status === 400 && "studyId" in study.error.fields;
     return (
       <ErrorState
-        error={study.error}
+        error={malformedAddress ? new Error("This address does not point to a study. Check the link, or open the study from your list.") : study.error}
         title="This study could not be opened"
-        onRetry={() => void study.refetch()}
+        onRetry={malformedAddress ? undefined : () => void study.refetch()}
         actions={
           <Link to={paths.home} className={buttonClasses("ghost", "sm")}>
             Back to your studies

@@ -54,6 +54,10 @@ export function ConfirmDialog({
         event.preventDefault();
         if (!busy) onCancel();
       }}
+      // The browser may close it anyway (a repeated Escape); keep `open` in step with it.
+      onClose={() => {
+        if (open) onCancel();
+      }}
       className="m-auto w-[calc(100%-2rem)] max-w-md rounded-xl border border-stone-200 bg-white p-0 text-stone-900 shadow-xl backdrop:bg-stone-900/45"
     >
       {open && (
