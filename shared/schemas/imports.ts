@@ -88,7 +88,7 @@ export const importUploadSchema = z
     import: importSummarySchema,
     columns: z.array(z.string()).meta({ description: "Header names, in file order" }),
     delimiter: csvDelimiterSchema,
-    encoding: z.enum(["utf-8", "windows-1252"]).meta({ description: "windows-1252 when the file is not valid UTF-8" }),
+    encoding: z.enum(["utf-8", "utf-16le", "utf-16be", "windows-1252"]).meta({ description: "From the byte-order mark; else utf-8, or windows-1252 when the file is not valid UTF-8" }),
     hadBom: z.boolean(),
     rowCount: z.number().int().meta({ description: "Data rows (blank lines not counted)" }),
     sampleRows: z.array(z.array(z.string())).meta({ description: "The first 10 data rows, cells in column order" }),
