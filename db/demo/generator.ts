@@ -152,7 +152,8 @@ const PLANTED = {
   confoundedLifeHabit: "infaunal",
 } as const;
 
-const INVENTED_NOTE = "Invented genus of the Vessiran Basin demo.";
+/** The note of every genus without a planted problem (problem notes start with it). */
+export const INVENTED_NOTE = "Invented genus of the Vessiran Basin demo.";
 
 // ---------------------------------------------------------------------------------------------
 // Small helpers
