@@ -1,5 +1,5 @@
-import { relations } from "drizzle-orm";
-import { doublePrecision, index, integer, jsonb, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid } from "drizzle-orm/pg-core";
+import { relations, sql } from "drizzle-orm";
+import { doublePrecision, index, integer, jsonb, pgEnum, pgTable, real, text, timestamp, uniqueIndex, uuid } from "drizzle-orm/pg-core";
 import { studies } from "./studies";
 import { users } from "./accounts";
 import { TRAIT_KINDS, TRAIT_ASPECTS, NUMERIC_TRANSFORMS, type TraitState } from "../../shared/codebook";
@@ -59,7 +59,8 @@ export const taxa = pgTable(
     deletedAt: timestamp("deleted_at", { withTimezone: true }),
   },
   (t) => [
-    uniqueIndex("taxa_study_name_idx").on(t.studyId, t.name),
+    // Unique among live taxa only: a taxon removed by a revert keeps its history and its name is free again.
+    uniqueIndex("taxa_study_live_name_idx").on(t.studyId, t.name).where(sql`deleted_at IS NULL`),
     index("taxa_study_higher_idx").on(t.studyId, t.higherTaxon),
     index("taxa_study_lad_idx").on(t.studyId, t.ladMa),
   ],
@@ -76,7 +77,7 @@ export const imports = pgTable(
     fileName: text("file_name").notNull(),
     /** Where the upload is kept (outside the served folder) until it is committed or discarded. */
     storedPath: text("stored_path"),
-    status: text("status").notNull().default("previewed"), // previewed | committing | committed | failed | reverted | discarded
+    status: text("status").notNull().default("previewed"), // previewed | committing | committed | reverted | discarded
     mapping: jsonb("mapping").$type<Record<string, unknown>>().notNull().default({}),
     rowCount: integer("row_count").notNull().default(0),
     validCount: integer("valid_count").notNull().default(0),
@@ -85,6 +86,8 @@ export const imports = pgTable(
     updatedCount: integer("updated_count").notNull().default(0),
     skippedInvalid: integer("skipped_invalid").notNull().default(0),
     failureReason: text("failure_reason"),
+    /** 0..1 while a commit runs, written outside the commit's transaction so pollers can see it. */
+    progress: real("progress").notNull().default(0),
     createdBy: uuid("created_by").references(() => users.id, { onDelete: "set null" }),
     createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
     committedAt: timestamp("committed_at", { withTimezone: true }),
@@ -96,8 +99,9 @@ export const imports = pgTable(
 
 /**
  * The audit trail: every change of a trait value, a range, a taxon or an outcome is one row.
- * `field` names what changed: a trait id for values, or name | higherTaxon | fadMa | ladMa |
- * fadInterval | ladInterval | notes | taxon (created or deleted) | outcome (an override).
+ * `field` names what changed: a trait id for values, or name | higherTaxon | notes | fad | lad
+ * (a range end, valued { ma, interval }) | taxon (created, deleted or restored; valued by a
+ * snapshot of the taxon) | outcome (an override).
  */
 export const codingDecisions = pgTable(
   "coding_decisions",
@@ -121,6 +125,8 @@ export const codingDecisions = pgTable(
     index("decisions_study_idx").on(t.studyId, t.createdAt),
     index("decisions_taxon_idx").on(t.taxonId, t.createdAt),
     index("decisions_import_idx").on(t.importId),
+    index("decisions_reverts_idx").on(t.revertsId),
+    index("decisions_batch_idx").on(t.batchId),
   ],
 );
 
