@@ -1,0 +1,327 @@
+// Numerical kernels of binary logistic regression on a flat row-major design matrix whose first
+// column is the intercept. Every pass over the rows accumulates into preallocated arrays, so a fit
+// allocates nothing per row.
+
+import { choleskyDecompose, choleskyLogDeterminant, choleskySolve } from "./linalg";
+
+/** Design matrix with the intercept in column 0, row-major: element (i, j) at data[i * p + j]. */
+export interface Design {
+  data: Float64Array;
+  n: number;
+  p: number;
+}
+
+/** ln(1 + e^x) without overflow or loss of precision. */
+export function softplus(x: number): number {
+  return x > 0 ? x + Math.log1p(Math.exp(-x)) : Math.log1p(Math.exp(x));
+}
+
+/** Log-likelihood of 0/1 outcomes at linear predictor values, sum of y*eta - ln(1 + e^eta). */
+function rowLogLikelihood(y: number, eta: number): number {
+  return y === 1 ? -softplus(-eta) : -softplus(eta);
+}
+
+/** Scratch arrays for one model size, reused across passes. */
+export class Workspace {
+  readonly information: Float64Array;
+  readonly lower: Float64Array;
+  readonly score: Float64Array;
+  readonly step: Float64Array;
+  readonly vector: Float64Array;
+  constructor(readonly p: number) {
+    this.information = new Float64Array(p * p);
+    this.lower = new Float64Array(p * p);
+    this.score = new Float64Array(p);
+    this.step = new Float64Array(p);
+    this.vector = new Float64Array(p);
+  }
+}
+
+/**
+ * One pass at beta: fills the upper triangle of the information X'WX and the score X'(y - mu),
+ * and returns the log-likelihood and the largest |eta|.
+ */
+export function informationPass(design: Design, y: ArrayLike<number>, beta: ArrayLike<number>, work: Workspace): { logLik: number; maxAbsEta: number } {
+  const { data, n, p } = design;
+  const info = work.information;
+  const score = work.score;
+  info.fill(0);
+  score.fill(0);
+  let logLik = 0;
+  let maxAbsEta = 0;
+  for (let i = 0; i < n; i++) {
+    const offset = i * p;
+    let eta = 0;
+    for (let j = 0; j < p; j++) eta += data[offset + j] * beta[j];
+    const e = Math.exp(-Math.abs(eta));
+    const mu = eta >= 0 ? 1 / (1 + e) : e / (1 + e);
+    const w = e / ((1 + e) * (1 + e));
+    const yi = y[i];
+    // y - mu without cancellation: 1 - mu is computed from e directly.
+    const residual = yi === 1 ? (eta >= 0 ? e / (1 + e) : 1 / (1 + e)) : -mu;
+    logLik += rowLogLikelihood(yi, eta);
+    const absEta = Math.abs(eta);
+    if (absEta > maxAbsEta) maxAbsEta = absEta;
+    for (let a = 0; a < p; a++) {
+      const xa = data[offset + a];
+      score[a] += xa * residual;
+      const wxa = w * xa;
+      const row = a * p;
+      for (let b = a; b < p; b++) info[row + b] += wxa * data[offset + b];
+    }
+  }
+  return { logLik, maxAbsEta };
+}
+
+/**
+ * Firth's modified score U*_r = sum_i (y_i - mu_i + h_i (1/2 - mu_i)) x_ir at beta (Firth 1993;
+ * Heinze & Schemper 2002), where h_i = w_i x_i' (X'WX)^-1 x_i comes from the Cholesky factor in
+ * work.lower (of the information at the same beta). Written to work.score.
+ */
+export function modifiedScorePass(design: Design, y: ArrayLike<number>, beta: ArrayLike<number>, work: Workspace): void {
+  const { data, n, p } = design;
+  const score = work.score;
+  const lower = work.lower;
+  const v = work.vector;
+  score.fill(0);
+  for (let i = 0; i < n; i++) {
+    const offset = i * p;
+    let eta = 0;
+    for (let j = 0; j < p; j++) eta += data[offset + j] * beta[j];
+    const e = Math.exp(-Math.abs(eta));
+    const mu = eta >= 0 ? 1 / (1 + e) : e / (1 + e);
+    const sqrtW = Math.sqrt(e) / (1 + e);
+    // h_i = |L^-1 sqrt(w_i) x_i|^2 by forward substitution.
+    let h = 0;
+    for (let a = 0; a < p; a++) {
+      let sum = sqrtW * data[offset + a];
+      const row = a * p;
+      for (let k = 0; k < a; k++) sum -= lower[row + k] * v[k];
+      const value = sum / lower[row + a];
+      v[a] = value;
+      h += value * value;
+    }
+    const residual = y[i] === 1 ? (eta >= 0 ? e / (1 + e) : 1 / (1 + e)) : -mu;
+    const modified = residual + h * (0.5 - mu);
+    for (let a = 0; a < p; a++) score[a] += modified * data[offset + a];
+  }
+}
+
+/** Result of a maximum likelihood fit by iteratively reweighted least squares. */
+export interface MaximumLikelihoodFit {
+  beta: Float64Array;
+  deviance: number;
+  iterations: number;
+  converged: boolean;
+  /** Information X'WX at beta (upper triangle) and its Cholesky factor; factorOk false if singular. */
+  information: Float64Array;
+  lower: Float64Array;
+  factorOk: boolean;
+  /** beta minus the previous iterate: under separation it points along the diverging direction. */
+  lastStep: Float64Array;
+  maxAbsEta: number;
+}
+
+/**
+ * Maximum likelihood by iteratively reweighted least squares, following R's glm.fit for the
+ * binomial family: start from mu = (y + 1/2)/2, stop when |dev - dev_old| / (|dev| + 0.1) <
+ * tolerance, halve the step when the deviance rises or is not finite.
+ */
+export function fitMaximumLikelihood(design: Design, y: ArrayLike<number>, maxIterations: number, tolerance: number): MaximumLikelihoodFit {
+  const { data, n, p } = design;
+  const work = new Workspace(p);
+  const info = work.information;
+  const rhs = work.score;
+
+  // First solve: weighted least squares from the starting means, as glm.fit does.
+  info.fill(0);
+  rhs.fill(0);
+  let devianceOld = 0;
+  for (let i = 0; i < n; i++) {
+    const offset = i * p;
+    const mu = (y[i] + 0.5) / 2;
+    const eta = Math.log(mu / (1 - mu));
+    const w = mu * (1 - mu);
+    const wz = w * eta + (y[i] - mu);
+    devianceOld -= 2 * (y[i] === 1 ? Math.log(mu) : Math.log(1 - mu));
+    for (let a = 0; a < p; a++) {
+      const xa = data[offset + a];
+      rhs[a] += xa * wz;
+      const wxa = w * xa;
+      const row = a * p;
+      for (let b = a; b < p; b++) info[row + b] += wxa * data[offset + b];
+    }
+  }
+  let beta = new Float64Array(p);
+  let previous = new Float64Array(p);
+  let factorOk = choleskyDecompose(info, p, work.lower) < 0;
+  if (!factorOk) throw new Error("logisticRegression: the information matrix is singular at the start; check the predictors for collinearity");
+  choleskySolve(work.lower, p, rhs, beta);
+  let iterations = 1;
+  let converged = false;
+  let deviance = NaN;
+  let maxAbsEta = 0;
+
+  for (;;) {
+    let pass = informationPass(design, y, beta, work);
+    deviance = -2 * pass.logLik;
+    // Step halving: glm.fit halves on a non-finite deviance; a rising one is halved here too, except
+    // after the first solve, whose reference deviance belongs to the starting means, not a model.
+    const rising = (): boolean => iterations > 1 && deviance > devianceOld * (1 + 1e-12) + 1e-12;
+    for (let halvings = 0; (!Number.isFinite(deviance) || rising()) && halvings < 30; halvings++) {
+      for (let j = 0; j < p; j++) beta[j] = (beta[j] + previous[j]) / 2;
+      pass = informationPass(design, y, beta, work);
+      deviance = -2 * pass.logLik;
+    }
+    maxAbsEta = pass.maxAbsEta;
+    factorOk = choleskyDecompose(info, p, work.lower) < 0;
+    if (Math.abs(deviance - devianceOld) / (Math.abs(deviance) + 0.1) < tolerance) {
+      converged = true;
+      break;
+    }
+    if (!factorOk || iterations >= maxIterations) break;
+    choleskySolve(work.lower, p, work.score, work.step);
+    const swap = previous;
+    previous = beta;
+    beta = swap;
+    for (let j = 0; j < p; j++) beta[j] = previous[j] + work.step[j];
+    devianceOld = deviance;
+    iterations++;
+  }
+  const lastStep = new Float64Array(p);
+  for (let j = 0; j < p; j++) lastStep[j] = beta[j] - previous[j];
+  return { beta, deviance, iterations, converged, information: info, lower: work.lower, factorOk, lastStep, maxAbsEta };
+}
+
+/** Result of a (possibly penalized, possibly constrained) Newton fit. */
+export interface NewtonFit {
+  beta: Float64Array;
+  logLik: number;
+  /** logLik + (1/2) ln det(X'WX) when penalized, else logLik. */
+  objective: number;
+  iterations: number;
+  converged: boolean;
+  information: Float64Array;
+  lower: Float64Array;
+}
+
+export interface NewtonOptions {
+  /** Firth's penalty (1/2) ln det(X'WX) on the log-likelihood. */
+  penalized: boolean;
+  start: ArrayLike<number>;
+  /** Coefficients held at their values in `start` (profiles, reduced models). */
+  fixed?: ReadonlySet<number>;
+  maxIterations: number;
+  /** Convergence when every free coefficient's Newton step is below this. */
+  tolerance: number;
+}
+
+const MAX_STEP = 5;
+
+/**
+ * Maximises the log-likelihood, or Firth's penalized log-likelihood l(beta) + (1/2) ln det I(beta),
+ * over the free coefficients. Steps solve I_FF delta = U*_F with the expected information I (the
+ * scheme of Heinze & Schemper 2002), are capped at 5 per coefficient, and are halved until the
+ * objective does not fall. The penalty always uses the full model's information.
+ */
+export function fitNewton(design: Design, y: ArrayLike<number>, options: NewtonOptions): NewtonFit {
+  const { p } = design;
+  const work = new Workspace(p);
+  const free: number[] = [];
+  for (let j = 0; j < p; j++) if (!options.fixed?.has(j)) free.push(j);
+  const q = free.length;
+  const subInformation = new Float64Array(q * q);
+  const subLower = new Float64Array(q * q);
+  const subScore = new Float64Array(q);
+  const subStep = new Float64Array(q);
+  let beta = Float64Array.from(options.start);
+  let candidate = new Float64Array(p);
+
+  const evaluate = (at: Float64Array): { logLik: number; objective: number; ok: boolean } => {
+    const { logLik } = informationPass(design, y, at, work);
+    const ok = choleskyDecompose(work.information, p, work.lower) < 0;
+    if (!options.penalized) return { logLik, objective: logLik, ok };
+    return { logLik, objective: ok ? logLik + 0.5 * choleskyLogDeterminant(work.lower, p) : -Infinity, ok };
+  };
+
+  let current = evaluate(beta);
+  if (!current.ok && options.penalized) throw new Error("logisticRegression: the information matrix is singular; check the predictors for collinearity");
+  let iterations = 0;
+  let converged = false;
+  while (iterations < options.maxIterations) {
+    // Score at beta (the information and its factor are current from the last evaluation).
+    if (options.penalized) modifiedScorePass(design, y, beta, work);
+    for (let a = 0; a < q; a++) {
+      subScore[a] = work.score[free[a]];
+      for (let b = a; b < q; b++) {
+        const i = Math.min(free[a], free[b]);
+        const j = Math.max(free[a], free[b]);
+        subInformation[a * q + b] = work.information[i * p + j];
+      }
+    }
+    if (q === 0) {
+      converged = true;
+      break;
+    }
+    if (choleskyDecompose(subInformation, q, subLower) >= 0) break;
+    choleskySolve(subLower, q, subScore, subStep);
+    let maxStep = 0;
+    for (let a = 0; a < q; a++) maxStep = Math.max(maxStep, Math.abs(subStep[a]));
+    if (maxStep < options.tolerance) {
+      converged = true;
+      break;
+    }
+    const scale = maxStep > MAX_STEP ? MAX_STEP / maxStep : 1;
+    let factor = scale;
+    let accepted = false;
+    for (let halvings = 0; halvings < 40; halvings++) {
+      candidate.set(beta);
+      for (let a = 0; a < q; a++) candidate[free[a]] += factor * subStep[a];
+      const next = evaluate(candidate);
+      if (next.ok && next.objective >= current.objective - 1e-12 * Math.abs(current.objective)) {
+        const swap = beta;
+        beta = candidate;
+        candidate = swap;
+        current = next;
+        accepted = true;
+        break;
+      }
+      factor /= 2;
+    }
+    iterations++;
+    if (!accepted) {
+      // No ascent along the step: we sit at the optimum to rounding. Restore beta's information.
+      current = evaluate(beta);
+      converged = maxStep * factor < 1e-6;
+      break;
+    }
+    if (maxStep * factor < options.tolerance) {
+      converged = true;
+      break;
+    }
+  }
+  // The information and factor in the workspace belong to the last evaluated point, which is beta.
+  return { beta, logLik: current.logLik, objective: current.objective, iterations, converged, information: work.information, lower: work.lower };
+}
+
+/**
+ * Checks a candidate direction d for (quasi-)complete separation (Albert & Anderson 1984): every
+ * row must satisfy (2y - 1) x_i'd >= 0, up to rounding, and some row strictly. Along such a d
+ * the likelihood keeps rising, so the maximum likelihood estimate does not exist.
+ */
+export function isSeparatingDirection(design: Design, y: ArrayLike<number>, direction: ArrayLike<number>): boolean {
+  const { data, n, p } = design;
+  let largest = 0;
+  const products = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    let dot = 0;
+    for (let j = 0; j < p; j++) dot += data[i * p + j] * direction[j];
+    products[i] = y[i] === 1 ? dot : -dot;
+    largest = Math.max(largest, Math.abs(dot));
+  }
+  // Newton keeps moving the separated rows' linear predictor by about one unit per step.
+  if (largest < 0.1) return false;
+  const slack = 1e-6 * largest;
+  for (let i = 0; i < n; i++) if (products[i] < -slack) return false;
+  return true;
+}
