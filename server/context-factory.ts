@@ -4,6 +4,8 @@ import type { AppContext } from "./context";
 import { createMailer } from "./mail/mailer";
 import { startFakeSmtp, type FakeSmtp } from "./mail/fakeSmtp";
 import { createServices } from "./services";
+import { JobQueue } from "./jobs/queue";
+import { WorkerPool } from "./jobs/workerPool";
 
 export interface RunningContext extends AppContext {
   fakeSmtp: FakeSmtp | null;
@@ -21,15 +23,23 @@ export async function createContext(config: AppConfig): Promise<RunningContext> 
     smtpUrl = `smtp://127.0.0.1:${fakeSmtp.port}`;
   }
   const mailer = createMailer(smtpUrl, config.mailFrom, fakeSmtp !== null);
-  const services = createServices(database.db, mailer, config.appUrl);
+  const jobs = new JobQueue(config.databaseUrl);
+  const workers = new WorkerPool();
+  const services = createServices(database.db, mailer, config.appUrl, { jobs, workers });
+  // Every app process works the shared queue; the services registered their job kinds above.
+  await jobs.start();
   return {
     config,
     db: database.db,
     database,
     mailer,
     services,
+    jobs,
+    workers,
     fakeSmtp,
     async close() {
+      await jobs.stop();
+      await workers.close();
       mailer.close();
       await fakeSmtp?.close();
       await database.close();
