@@ -15,6 +15,10 @@ import { studiesRouter } from "./routes/studies";
 import { membersRouter } from "./routes/members";
 import { invitationsRouter } from "./routes/invitations";
 import { outboxRouter } from "./routes/outbox";
+import { timescaleRouter } from "./routes/timescale";
+import { outcomesRouter } from "./routes/outcomes";
+import { overridesRouter } from "./routes/overrides";
+import { ratesRouter } from "./routes/rates";
 
 export interface BuiltApp {
   app: Express;
@@ -22,7 +26,7 @@ export interface BuiltApp {
   routes: RegisteredRoute[];
 }
 
-const RESOURCE_ROUTERS = [healthRouter, authRouter, studiesRouter, membersRouter, invitationsRouter, outboxRouter];
+const RESOURCE_ROUTERS = [healthRouter, authRouter, studiesRouter, membersRouter, invitationsRouter, outboxRouter, timescaleRouter, outcomesRouter, overridesRouter, ratesRouter];
 
 export function buildOpenApi(registry: OpenAPIRegistry) {
   registry.registerComponent("securitySchemes", "session", { type: "apiKey", in: "cookie", name: "ss_session" });

@@ -1,10 +1,11 @@
 // Every route of the OpenAPI document, called as each role, as a signed-in stranger and without
 // a session. A route missing from the table fails the test, so new routes must state their rights.
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { randomUUID } from "node:crypto";
 import request, { type Response } from "supertest";
 import { STUDY_ROLES } from "../../shared/roles";
 import { createTestApp, PASSWORD, signedInAgent, uniqueEmail, type TestApp } from "../support/server";
-import { memberships } from "../../db/schema/index";
+import { memberships, outcomeOverrides, taxa } from "../../db/schema/index";
 import { castOfRoles, EVERYONE, type Cast, type Who } from "./fixtures";
 
 type Agent = Cast["anonymous"];
@@ -18,6 +19,13 @@ interface Row {
 
 const SIGNED_IN: Who[] = ["stranger", ...STUDY_ROLES];
 const MEMBERS: Who[] = [...STUDY_ROLES];
+const OUTCOME_EDITORS: Who[] = ["owner", "coder", "analyst"];
+
+/** A new invented taxon in the study, for rows that need one to act on. */
+async function matrixTaxon(studyId: string) {
+  const [taxon] = await app.ctx.db.insert(taxa).values({ studyId, name: `Matrixella ${randomUUID().slice(0, 8)}`, fadMa: 70, ladMa: 67 }).returning();
+  return taxon;
+}
 
 const MATRIX: Record<string, Row> = {
   "GET /api/health": { allowed: "public", call: (a) => a.get("/api/health") },
@@ -75,6 +83,34 @@ const MATRIX: Record<string, Row> = {
   "POST /api/invitations/{token}/accept": {
     allowed: SIGNED_IN,
     call: async (a, { studyId, cast }) => a.post(`/api/invitations/${await cast.makeInvitation(studyId, uniqueEmail("x"))}/accept`),
+  },
+  "GET /api/timescale": { allowed: SIGNED_IN, call: (a) => a.get("/api/timescale") },
+  // Fresh studies from here on: the invitation rows above made the stranger a member of the shared one.
+  "GET /api/studies/{studyId}/outcomes": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/outcomes?boundary=66`) },
+  "GET /api/studies/{studyId}/rates": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/rates`) },
+  "GET /api/studies/{studyId}/outcome-overrides": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/outcome-overrides`) },
+  "POST /api/studies/{studyId}/outcome-overrides": {
+    allowed: OUTCOME_EDITORS,
+    freshStudy: true,
+    call: async (a, { studyId }) =>
+      a.post(`/api/studies/${studyId}/outcome-overrides`).send({ taxonId: (await matrixTaxon(studyId)).id, outcome: "victim", boundaryMa: 66, reason: "Matrix" }),
+  },
+  "POST /api/studies/{studyId}/outcome-overrides/bulk": {
+    allowed: OUTCOME_EDITORS,
+    freshStudy: true,
+    call: async (a, { studyId }) =>
+      a
+        .post(`/api/studies/${studyId}/outcome-overrides/bulk`)
+        .send({ boundaryMa: 66, reason: "Matrix", items: [{ taxonName: (await matrixTaxon(studyId)).name, outcome: "survivor" }] }),
+  },
+  "POST /api/studies/{studyId}/outcome-overrides/{overrideId}/revoke": {
+    allowed: OUTCOME_EDITORS,
+    freshStudy: true,
+    call: async (a, { studyId }) => {
+      const taxon = await matrixTaxon(studyId);
+      const [override] = await app.ctx.db.insert(outcomeOverrides).values({ studyId, taxonId: taxon.id, outcome: "victim", reason: "Matrix" }).returning();
+      return a.post(`/api/studies/${studyId}/outcome-overrides/${override.id}/revoke`).send({ reason: "Matrix" });
+    },
   },
   // The fake mailbox is for study leads. Earlier rows made everyone create a study of their own,
   // so the non-owner cells use a newcomer who holds only that role (or, as stranger, none).
