@@ -1,0 +1,128 @@
+// The shapes of a selectivity analysis: what goes in (plain arrays built by the server from the
+// trait table and the outcomes across a boundary) and what comes out (stored in a run).
+import type { TraitKind } from "../codebook";
+
+export type MultipleTestingMethod = "bh" | "holm" | "bonferroni";
+
+export interface SelectivityTaxon {
+  id: string;
+  name: string;
+  /** The stratum for the clade-adjusted (Mantel-Haenszel) odds ratios, e.g. the higher taxon. */
+  clade: string;
+  /** 1 = victim (died in the crisis), 0 = survivor. Taxa not at risk never enter. */
+  outcome: 0 | 1;
+  /** Values by trait key: a state code, a number, or null when missing. */
+  values: Record<string, string | number | null>;
+}
+
+export interface SelectivityTraitSpec {
+  key: string;
+  label: string;
+  kind: TraitKind;
+  /** For binary, categorical and ordinal traits, in codebook order. */
+  states: Array<{ code: string; label: string }>;
+  /** Reference state for odds ratios; defaults to the most common state. */
+  reference?: string;
+  transform: "none" | "log10";
+  /** Numeric traits: centre and scale to one standard deviation before fitting. */
+  standardise: boolean;
+}
+
+export interface SelectivityOptions {
+  correction: MultipleTestingMethod;
+  /** Fit Firth's bias-reduced regression even without separation. */
+  forceFirth: boolean;
+  level: number;
+  /** Relative change of an odds ratio on adjustment that flags possible confounding (0.1 = 10%). */
+  confoundingThreshold: number;
+}
+
+export interface SelectivityInput {
+  taxa: SelectivityTaxon[];
+  traits: SelectivityTraitSpec[];
+  options: SelectivityOptions;
+}
+
+export interface Interval {
+  estimate: number;
+  ci: [number, number];
+}
+
+export interface StateRow {
+  state: string;
+  label: string;
+  victims: number;
+  survivors: number;
+  /** Extinction proportion victims / (victims + survivors) with its Wilson interval. */
+  proportion: number | null;
+  ci: [number, number] | null;
+}
+
+export interface ContrastResult {
+  /** "marine vs nonmarine", or "per 1 log10 unit" / "per SD" for numeric traits. */
+  contrast: string;
+  state: string | null;
+  reference: string | null;
+  /** Crude odds ratio (2x2 sample OR with Woolf interval; univariate logistic for numbers). */
+  crude: Interval & { method: string };
+  /** Adjusted for clade: Mantel-Haenszel over clades (categorical) or logistic with clade terms (numeric). */
+  cladeAdjusted: (Interval & { method: string; breslowDay?: { chiSquare: number; df: number; pValue: number } }) | null;
+  /** Adjusted for the other traits in the multiple logistic regression. */
+  modelAdjusted: Interval | null;
+  /** Relative changes |adjusted/crude - 1| on the odds-ratio scale. */
+  changeOnCladeAdjustment: number | null;
+  changeOnModelAdjustment: number | null;
+  flagged: boolean;
+}
+
+export interface TraitResult {
+  key: string;
+  label: string;
+  kind: TraitKind;
+  used: number;
+  droppedMissing: number;
+  table: StateRow[];
+  test: { method: string; pValue: number; adjustedPValue: number; statistic?: number; df?: number };
+  contrasts: ContrastResult[];
+  /** Plain-language note when a contrast is flagged by the confounding check. */
+  confoundingNote: string | null;
+}
+
+/** What scoring new taxa with the fitted model needs (the modern comparison uses it). */
+export interface ModelEncoding {
+  columns: Array<
+    | { name: string; trait: string; kind: "state"; state: string }
+    | { name: string; trait: string; kind: "numeric"; transform: "none" | "log10"; center: number; scale: number }
+  >;
+}
+
+export interface ModelResult {
+  n: number;
+  coefficients: Array<{ name: string; estimate: number; se: number; z: number; pValue: number; ci: [number, number]; oddsRatio: number }>;
+  terms: Array<{ name: string; df: number; chiSquare: number; pValue: number }>;
+  deviance: number;
+  nullDeviance: number;
+  aic: number;
+  converged: boolean;
+  firth: boolean;
+  firthReason: "separation" | "requested" | null;
+  separatedPredictors: string[];
+  encoding: ModelEncoding;
+  /** Covariance of the coefficients (row-major, intercept first), for prediction intervals. */
+  covariance: number[][];
+}
+
+export interface SelectivityResult {
+  design: {
+    victims: number;
+    survivors: number;
+    /** Taxa left out of each trait's own test for a missing value. */
+    droppedByTrait: Record<string, number>;
+    /** Taxa with every chosen trait present: the multiple regression's sample. */
+    completeCases: number;
+  };
+  traits: TraitResult[];
+  model: ModelResult | null;
+  /** Why no model could be fitted, when it could not. */
+  modelNote: string | null;
+}
