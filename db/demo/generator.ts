@@ -342,6 +342,20 @@ const POSITION_WORDS: Record<string, string> = {
   terrestrial: "on land",
 };
 const DIET_WORDS: Record<string, string> = { suspension: "filter feeder", deposit: "sediment eater", predator: "hunter", grazer: "scraper" };
+const invert = (words: Record<string, string>) => Object.fromEntries(Object.entries(words).map(([code, word]) => [word, code]));
+
+/**
+ * The crosswalk the modern list was written with: list column -> study trait, and for categorical
+ * columns each phrase -> state code. Values missing here ("unknown", "parasite of fishes") map to
+ * no state on purpose. Numeric columns carry the trait's own unit.
+ */
+export const MODERN_CROSSWALK = {
+  habitat: { trait: "environment", states: { ...invert(HABITAT_WORDS), land: "nonmarine" } },
+  position: { trait: "life_habit", states: invert(POSITION_WORDS) },
+  diet: { trait: "feeding", states: invert(DIET_WORDS) },
+  length_mm: { trait: "body_size" },
+  ecoregions: { trait: "geographic_range" },
+} as const satisfies Record<string, { trait: string; states?: Record<string, string> }>;
 
 /**
  * Threat category from the same risk factors as the crisis, plus noise: listed threatened (CR, EN, VU)
