@@ -16,3 +16,13 @@ export {
   type LogisticTermTest,
 } from "./logisticRegression";
 export { buildDesignMatrix, type DesignMatrix, type DesignVariable, type VariableEncoding } from "./buildDesignMatrix";
+export {
+  mantelHaenszel,
+  type BreslowDayResult,
+  type MantelHaenszelOptions,
+  type MantelHaenszelResult,
+} from "./mantelHaenszel";
+export { adjustPValues, type PValueAdjustment } from "./adjustPValues";
+export { rocAuc, type RocAucResult } from "./rocAuc";
+export { rocCurve, type RocPoint } from "./rocCurve";
+export { spearman, type SpearmanResult } from "./spearman";
