@@ -22,13 +22,17 @@ export const runs = pgTable(
     error: text("error"),
     appVersion: text("app_version").notNull(),
     jobId: text("job_id"),
+    /** 1, plus one for each retry; a job works the run only while the attempt it was sent for is current. */
+    attempt: integer("attempt").notNull().default(1),
+    /** Renewed every few seconds by the process computing the run; a stale one means that process stopped. */
+    heartbeatAt: timestamp("heartbeat_at", { withTimezone: true }),
     rerunOf: uuid("rerun_of"),
     createdBy: uuid("created_by").references(() => users.id, { onDelete: "set null" }),
     createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
     startedAt: timestamp("started_at", { withTimezone: true }),
     finishedAt: timestamp("finished_at", { withTimezone: true }),
   },
-  (t) => [index("runs_study_idx").on(t.studyId, t.createdAt)],
+  (t) => [index("runs_study_idx").on(t.studyId, t.createdAt), index("runs_status_idx").on(t.status)],
 );
 
 /** A modern species list with threat categories (IUCN Red List Categories and Criteria 3.1). */

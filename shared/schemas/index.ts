@@ -10,3 +10,4 @@ export * from "./taxa";
 export * from "./decisions";
 export * from "./imports";
 export * from "./exports";
+export * from "./runs";
