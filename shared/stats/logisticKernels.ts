@@ -11,16 +11,6 @@ export interface Design {
   p: number;
 }
 
-/** ln(1 + e^x) without overflow or loss of precision. */
-export function softplus(x: number): number {
-  return x > 0 ? x + Math.log1p(Math.exp(-x)) : Math.log1p(Math.exp(x));
-}
-
-/** Log-likelihood of 0/1 outcomes at linear predictor values, sum of y*eta - ln(1 + e^eta). */
-function rowLogLikelihood(y: number, eta: number): number {
-  return y === 1 ? -softplus(-eta) : -softplus(eta);
-}
-
 /** Scratch arrays for one model size, reused across passes. */
 export class Workspace {
   readonly information: Float64Array;
@@ -59,7 +49,8 @@ export function informationPass(design: Design, y: ArrayLike<number>, beta: Arra
     const yi = y[i];
     // y - mu without cancellation: 1 - mu is computed from e directly.
     const residual = yi === 1 ? (eta >= 0 ? e / (1 + e) : 1 / (1 + e)) : -mu;
-    logLik += rowLogLikelihood(yi, eta);
+    // y eta - ln(1 + e^eta), from the same e = exp(-|eta|): only the sign of eta picks the form.
+    logLik -= Math.log1p(e) + (yi === 1 ? (eta < 0 ? -eta : 0) : eta > 0 ? eta : 0);
     const absEta = Math.abs(eta);
     if (absEta > maxAbsEta) maxAbsEta = absEta;
     for (let a = 0; a < p; a++) {
@@ -133,25 +124,26 @@ export function fitMaximumLikelihood(design: Design, y: ArrayLike<number>, maxIt
   const info = work.information;
   const rhs = work.score;
 
-  // First solve: weighted least squares from the starting means, as glm.fit does.
+  // First solve: weighted least squares from the starting means mu = (y + 1/2)/2, as glm.fit does.
+  // mu is 3/4 or 1/4, so every row has weight 3/16 and working response +-ln 3.
+  const startWeight = 3 / 16;
+  const startWz = startWeight * Math.log(3) + 0.25;
   info.fill(0);
   rhs.fill(0);
-  let devianceOld = 0;
+  let events = 0;
   for (let i = 0; i < n; i++) {
     const offset = i * p;
-    const mu = (y[i] + 0.5) / 2;
-    const eta = Math.log(mu / (1 - mu));
-    const w = mu * (1 - mu);
-    const wz = w * eta + (y[i] - mu);
-    devianceOld -= 2 * (y[i] === 1 ? Math.log(mu) : Math.log(1 - mu));
+    const wz = y[i] === 1 ? startWz : -startWz;
+    events += y[i];
     for (let a = 0; a < p; a++) {
       const xa = data[offset + a];
       rhs[a] += xa * wz;
-      const wxa = w * xa;
+      const wxa = startWeight * xa;
       const row = a * p;
       for (let b = a; b < p; b++) info[row + b] += wxa * data[offset + b];
     }
   }
+  let devianceOld = -2 * (events * Math.log(0.75) + (n - events) * Math.log(0.25));
   let beta = new Float64Array(p);
   let previous = new Float64Array(p);
   let factorOk = choleskyDecompose(info, p, work.lower) < 0;
