@@ -142,6 +142,7 @@ export const runPreviewTraitSchema = z
     victimsUsed: z.number().int(),
     survivorsUsed: z.number().int(),
     droppedMissing: z.number().int().meta({ description: "Taxa at risk left out of this trait's test for a missing value" }),
+    droppedInvalid: z.number().int().meta({ description: "Taxa at risk left out for a value the test cannot use (a code outside the codebook, zero or below under log10); `notes` says which" }),
     states: z
       .array(z.object({ code: z.string(), label: z.string(), victims: z.number().int(), survivors: z.number().int() }))
       .meta({ description: "Per state, in codebook order (empty for numeric traits)" }),
@@ -388,7 +389,7 @@ export const runDiffQuerySchema = z.object({ against: uuidSchema.meta({ descript
 
 // ---------------------------------------------------------------- export
 
-export const RUN_EXPORT_TABLES = ["design", "states", "tests", "contrasts", "coefficients", "terms"] as const;
+export const RUN_EXPORT_TABLES = ["run", "design", "states", "tests", "contrasts", "coefficients", "terms"] as const;
 export type RunExportTable = (typeof RUN_EXPORT_TABLES)[number];
 
 export const runExportQuerySchema = z.object({
@@ -398,7 +399,7 @@ export const runExportQuerySchema = z.object({
     .optional()
     .meta({
       description:
-        "CSV only: one table (design, states: extinction proportions per trait state, tests, contrasts: odds ratios crude and adjusted, coefficients and terms of the multiple regression); default: all, each row naming its table in the first column",
+        "CSV only: one table (run: name, parameters, data hash and cautions as field and value; design, states: extinction proportions per trait state, tests, contrasts: odds ratios crude and adjusted, coefficients and terms of the multiple regression); default: all, each row naming its table in the first column",
     }),
 });
 export type RunExportQuery = z.input<typeof runExportQuerySchema>;
