@@ -110,7 +110,6 @@ export interface MaximumLikelihoodFit {
   factorOk: boolean;
   /** beta minus the previous iterate: under separation it points along the diverging direction. */
   lastStep: Float64Array;
-  maxAbsEta: number;
 }
 
 /**
@@ -152,7 +151,6 @@ export function fitMaximumLikelihood(design: Design, y: ArrayLike<number>, maxIt
   let iterations = 1;
   let converged = false;
   let deviance = NaN;
-  let maxAbsEta = 0;
 
   for (;;) {
     let pass = informationPass(design, y, beta, work);
@@ -165,7 +163,6 @@ export function fitMaximumLikelihood(design: Design, y: ArrayLike<number>, maxIt
       pass = informationPass(design, y, beta, work);
       deviance = -2 * pass.logLik;
     }
-    maxAbsEta = pass.maxAbsEta;
     factorOk = choleskyDecompose(info, p, work.lower) < 0;
     if (Math.abs(deviance - devianceOld) / (Math.abs(deviance) + 0.1) < tolerance) {
       converged = true;
@@ -182,7 +179,7 @@ export function fitMaximumLikelihood(design: Design, y: ArrayLike<number>, maxIt
   }
   const lastStep = new Float64Array(p);
   for (let j = 0; j < p; j++) lastStep[j] = beta[j] - previous[j];
-  return { beta, deviance, iterations, converged, information: info, lower: work.lower, factorOk, lastStep, maxAbsEta };
+  return { beta, deviance, iterations, converged, information: info, lower: work.lower, factorOk, lastStep };
 }
 
 /** Result of a (possibly penalized, possibly constrained) Newton fit. */
@@ -294,6 +291,42 @@ export function fitNewton(design: Design, y: ArrayLike<number>, options: NewtonO
   }
   // The information and factor in the workspace belong to the last evaluated point, which is beta.
   return { beta, logLik: current.logLik, objective: current.objective, iterations, converged, information: work.information, lower: work.lower };
+}
+
+/** Largest |x_i' step| over the rows: how far the last iteration moved any linear predictor. */
+export function largestRowChange(design: Design, step: ArrayLike<number>): number {
+  const { data, n, p } = design;
+  let largest = 0;
+  for (let i = 0; i < n; i++) {
+    let dot = 0;
+    for (let j = 0; j < p; j++) dot += data[i * p + j] * step[j];
+    largest = Math.max(largest, Math.abs(dot));
+  }
+  return largest;
+}
+
+/**
+ * Continues unpenalized Newton steps from a fit that still moves (the deviance criterion can stop
+ * a diverging fit early when the deviance is large) until the linear predictors reach |eta| = 30
+ * or the information becomes singular. Along a separation the step settles on the diverging
+ * direction while every other coefficient converges, so the last step is a clean candidate for
+ * isSeparatingDirection.
+ */
+export function divergingDirection(design: Design, y: ArrayLike<number>, fit: MaximumLikelihoodFit): Float64Array {
+  const { p } = design;
+  const work = new Workspace(p);
+  const beta = Float64Array.from(fit.beta);
+  const direction = Float64Array.from(fit.lastStep);
+  for (let iteration = 0; iteration < 40; iteration++) {
+    const { maxAbsEta } = informationPass(design, y, beta, work);
+    if (maxAbsEta > 30 || choleskyDecompose(work.information, p, work.lower) >= 0) break;
+    choleskySolve(work.lower, p, work.score, work.step);
+    direction.set(work.step);
+    // A negligible step means the fit has converged after all: nothing diverges.
+    if (largestRowChange(design, work.step) < 1e-6) break;
+    for (let j = 0; j < p; j++) beta[j] += work.step[j];
+  }
+  return direction;
 }
 
 /**

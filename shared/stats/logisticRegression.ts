@@ -1,6 +1,6 @@
 import { chiSquareUpperTail, normalTwoSidedP, twoSidedCriticalValue } from "./distributions";
 import { choleskyDecompose, choleskyInverse } from "./linalg";
-import { fitMaximumLikelihood, fitNewton, isSeparatingDirection, type Design } from "./logisticKernels";
+import { divergingDirection, fitMaximumLikelihood, fitNewton, isSeparatingDirection, largestRowChange, type Design } from "./logisticKernels";
 import { brentRoot } from "./roots";
 import type { FlatMatrix } from "./types";
 import { assertBinaryLabels, assertLevel } from "./validate";
@@ -87,7 +87,7 @@ export interface LogisticRegressionResult {
 }
 
 const FN = "logisticRegression";
-const SEPARATION_ETA = 15;
+const STILL_MOVING = 0.01;
 const PROFILE_WORK_LIMIT = 2e6;
 const FIRTH_MAX_ITERATIONS = 200;
 const FIRTH_TOLERANCE = 1e-10;
@@ -145,11 +145,14 @@ export function logisticRegression(X: number[][] | FlatMatrix, y: number[], opts
   const ml = fitMaximumLikelihood(design, y, maxIterations, tolerance);
   let separation = false;
   let separatedPredictors: string[] = [];
-  if (!ml.converged || !ml.factorOk || ml.maxAbsEta > SEPARATION_ETA) {
-    if (isSeparatingDirection(design, y, ml.lastStep)) {
+  // At genuine convergence the last Newton step is tiny; a step that still moves some linear
+  // predictor by more than 0.01 means the fit may be running off along a separation.
+  if (!ml.converged || !ml.factorOk || largestRowChange(design, ml.lastStep) > STILL_MOVING) {
+    const direction = divergingDirection(design, y, ml);
+    if (isSeparatingDirection(design, y, direction)) {
       separation = true;
       separatedPredictors = separatingOnTheirOwn(design, y, coefficientNames);
-      if (separatedPredictors.length === 0) separatedPredictors = predictorsAlong(design, ml.lastStep, coefficientNames);
+      if (separatedPredictors.length === 0) separatedPredictors = predictorsAlong(design, direction, coefficientNames);
     }
   }
   const meanY = events / n;

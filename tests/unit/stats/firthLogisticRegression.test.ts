@@ -197,6 +197,26 @@ describe("property: Firth estimates stay finite under separation (seeded random 
     expect(fitted).toBeGreaterThanOrEqual(15);
   });
 
+  it("a small separated group among many taxa is found (the deviance criterion alone stops early)", () => {
+    // Invented: 13 of 20,000 taxa carry a rare state and all went extinct; the rest follow a weak trend.
+    const random = createUniformSource(5);
+    const rowsX: number[][] = [];
+    const y: number[] = [];
+    for (let i = 0; i < 20_000; i++) {
+      const rare = i < 13 ? 1 : 0;
+      const size = random() * 2 - 1;
+      rowsX.push([rare, size]);
+      y.push(rare === 1 ? 1 : random() < 1 / (1 + Math.exp(-0.5 * size)) ? 1 : 0);
+    }
+    const ml = logisticRegression(rowsX, y, { names: ["rare", "size"], firth: false });
+    expect(ml.converged).toBe(true); // glm's criterion is met while the coefficient still runs off
+    expect(ml.separation).toBe(true);
+    expect(ml.separatedPredictors).toEqual(["rare"]);
+    const firth = logisticRegression(rowsX, y, { names: ["rare", "size"], firthIntervals: "wald" });
+    expect(firth.firthReason).toBe("separation");
+    expect(Number.isFinite(firth.coefficients[1].estimate)).toBe(true);
+  });
+
   it("strong but overlapping data are not flagged", () => {
     const rowsX = [[1], [2], [3], [4], [5], [6], [7], [8], [9], [10]];
     const y = [0, 0, 0, 1, 0, 1, 1, 1, 1, 1]; // invented
