@@ -26,6 +26,8 @@ export interface SelectivityTraitSpec {
   transform: "none" | "log10";
   /** Numeric traits: centre and scale to one standard deviation before fitting. */
   standardise: boolean;
+  /** Numeric traits: unit of the raw values, shown in the labels of the quartile bins (e.g. "mm"). */
+  unit?: string | null;
 }
 
 export interface SelectivityOptions {
@@ -73,6 +75,8 @@ export interface ContrastResult {
   changeOnCladeAdjustment: number | null;
   changeOnModelAdjustment: number | null;
   flagged: boolean;
+  /** Why an adjusted odds ratio is missing, or what limits it: short sentences. */
+  notes: string[];
 }
 
 export interface TraitResult {
@@ -82,14 +86,26 @@ export interface TraitResult {
   used: number;
   droppedMissing: number;
   table: StateRow[];
-  test: { method: string; pValue: number; adjustedPValue: number; statistic?: number; df?: number };
+  /** pValue and adjustedPValue are null when no test was possible (the method says why). */
+  test: { method: string; pValue: number | null; adjustedPValue: number | null; statistic?: number; df?: number };
   contrasts: ContrastResult[];
   /** Plain-language note when a contrast is flagged by the confounding check. */
   confoundingNote: string | null;
+  /** Reference state of the odds ratios (null for numeric traits, or when no state has taxa). */
+  reference: string | null;
+  /** Taxa left out for a value that cannot be used (a code outside the codebook, not a number, <= 0 under log10). */
+  droppedInvalid: number;
+  /** What was left out and why, the reference chosen, how numbers were scaled: short sentences. */
+  notes: string[];
 }
 
 /** What scoring new taxa with the fitted model needs (the modern comparison uses it). */
 export interface ModelEncoding {
+  /** One per trait in the model: its reference state and the states it knows, or its numeric scaling. */
+  traits: Array<
+    | { key: string; label: string; kind: "states"; reference: string; states: string[] }
+    | { key: string; label: string; kind: "numeric"; transform: "none" | "log10"; center: number; scale: number }
+  >;
   columns: Array<
     | { name: string; trait: string; kind: "state"; state: string }
     | { name: string; trait: string; kind: "numeric"; transform: "none" | "log10"; center: number; scale: number }
@@ -98,8 +114,27 @@ export interface ModelEncoding {
 
 export interface ModelResult {
   n: number;
-  coefficients: Array<{ name: string; estimate: number; se: number; z: number; pValue: number; ci: [number, number]; oddsRatio: number }>;
-  terms: Array<{ name: string; df: number; chiSquare: number; pValue: number }>;
+  /** Victims among the n taxa used. */
+  victims: number;
+  /** Taxa left out because a chosen trait had no usable value (complete cases only). */
+  droppedIncomplete: number;
+  /** How the model was fitted and tested, in words. */
+  method: string;
+  coefficients: Array<{
+    name: string;
+    estimate: number;
+    se: number;
+    z: number;
+    pValue: number;
+    ci: [number, number];
+    oddsRatio: number;
+    /** exp(ci): the interval of the odds ratio. */
+    oddsRatioCi: [number, number];
+    /** "(Intercept)", "Life habit: infaunal (vs epifaunal)", "Body size (log10, per SD)". */
+    label: string;
+  }>;
+  /** Likelihood ratio test per trait (all its columns at once); name is the trait key. */
+  terms: Array<{ name: string; df: number; chiSquare: number; pValue: number; label: string }>;
   deviance: number;
   nullDeviance: number;
   aic: number;
@@ -110,13 +145,15 @@ export interface ModelResult {
   encoding: ModelEncoding;
   /** Covariance of the coefficients (row-major, intercept first), for prediction intervals. */
   covariance: number[][];
+  /** Visible notes: Firth used and why, traits left out of the model, convergence. */
+  notes: string[];
 }
 
 export interface SelectivityResult {
   design: {
     victims: number;
     survivors: number;
-    /** Taxa left out of each trait's own test for a missing value. */
+    /** Taxa left out of each trait's own test for a missing or unusable value. */
     droppedByTrait: Record<string, number>;
     /** Taxa with every chosen trait present: the multiple regression's sample. */
     completeCases: number;

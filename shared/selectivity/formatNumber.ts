@@ -1,0 +1,18 @@
+/**
+ * A number for a sentence or a label, to about three significant figures without exponent notation
+ * for everyday magnitudes: 2.8046 -> "2.80", 0.01234 -> "0.0123", 1234.4 -> "1234", 0 -> "0";
+ * beyond them exponent notation (3.2e-7).
+ *
+ * @example
+ * formatNumber(2.8046) // => "2.80"
+ */
+export function formatNumber(value: number): string {
+  if (!Number.isFinite(value)) return String(value);
+  if (value === 0) return "0";
+  const magnitude = Math.abs(value);
+  if (magnitude >= 1e6 || magnitude < 1e-4) return value.toPrecision(3);
+  if (magnitude >= 100) return value.toFixed(0);
+  if (magnitude >= 10) return value.toFixed(1);
+  if (magnitude >= 1) return value.toFixed(2);
+  return value.toPrecision(3);
+}

@@ -1,0 +1,19 @@
+// Selectivity analysis: per-trait tables and tests, odds ratios crude and adjusted, the multiple
+// logistic regression and the confounding check; and scoring new taxa with the fitted model. Pure
+// functions over plain data, free of Node and DOM APIs.
+
+export type * from "./types";
+export { analyzeSelectivity } from "./analyzeSelectivity";
+export { scoreWithModel, type ModelScore } from "./scoreWithModel";
+export { encodeTrait, MISSING, INVALID, type DropReason, type EncodedNumbers, type EncodedStates, type EncodedTrait } from "./encodeTrait";
+export { countStates, proportionRow, stateRows, type StateCounts } from "./stateTable";
+export { chooseReference } from "./chooseReference";
+export { quartileBins } from "./quartileBins";
+export { testStateTrait, whyNoTest, whyNoOutcomeContrast, type TraitTest } from "./testStateTrait";
+export { countCladeStates, stateContrasts, type CladeStateCounts } from "./stateContrasts";
+export { scaleNumericTrait, numericStep, numericPredictorLabel, type NumericScaling } from "./scaleNumericTrait";
+export { testNumericTrait, plainMessage, type NumericTraitTest } from "./testNumericTrait";
+export { cladeAdjustedSlope } from "./cladeAdjustedSlope";
+export { fitSelectivityModel, type ModelTraitInput, type SelectivityModelFit } from "./fitSelectivityModel";
+export { confoundingCheck, relativeChange, type ConfoundingContext } from "./confoundingCheck";
+export { formatNumber } from "./formatNumber";
