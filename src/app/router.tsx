@@ -1,5 +1,9 @@
 import { createBrowserRouter } from "react-router-dom";
 import { AccountPage } from "../features/account/AccountPage";
+import { BoundaryPage } from "../features/boundary/BoundaryPage";
+import { CodebookPage } from "../features/codebook/CodebookPage";
+import { ImportsPage } from "../features/imports/ImportsPage";
+import { TraitTablePage } from "../features/trait-table/TraitTablePage";
 import { ForgotPasswordPage } from "../features/auth/ForgotPasswordPage";
 import { ResetPasswordPage } from "../features/auth/ResetPasswordPage";
 import { SignInPage } from "../features/auth/SignInPage";
@@ -42,6 +46,10 @@ export const router = createBrowserRouter([
             element: <StudyLayout />,
             children: [
               { index: true, element: <StudyOverviewPage /> },
+              { path: "table", element: <TraitTablePage /> },
+              { path: "codebook", element: <CodebookPage /> },
+              { path: "imports", element: <ImportsPage /> },
+              { path: "boundary", element: <BoundaryPage /> },
               { path: "members", element: <MembersPage /> },
             ],
           },

@@ -12,6 +12,10 @@ export interface StudyNavItem {
 
 export const STUDY_NAV: readonly StudyNavItem[] = [
   { label: "Overview", path: "" },
-  // Trait table, Codebook, Imports, Boundary, Selectivity, Runs, Modern comparison and Threads go here, in that order.
+  { label: "Trait table", path: "table" },
+  { label: "Codebook", path: "codebook" },
+  { label: "Imports", path: "imports" },
+  { label: "Boundary", path: "boundary" },
+  // Boundary, Selectivity, Runs, Modern comparison and Threads go here, in that order.
   { label: "Members", path: "members" },
 ];

@@ -10,6 +10,8 @@ export class ApiError extends Error {
     readonly fields: Record<string, string> = {},
     /** Seconds to wait before trying again, from Retry-After (rate limits, database restarts). */
     readonly retryAfterSeconds: number | null = null,
+    /** The whole answer, for refusals that carry more than the error (a 409 with the current value). */
+    readonly body: unknown = null,
   ) {
     super(message);
     this.name = "ApiError";
@@ -63,7 +65,7 @@ async function request<T>(method: Method, path: string, body?: unknown, signal?:
   const parsed = apiErrorSchema.safeParse(data);
   if (parsed.success) {
     const { code, message, fields } = parsed.data.error;
-    throw new ApiError(response.status, code, message, fields, Number.isFinite(retryAfter) && retryAfter > 0 ? retryAfter : null);
+    throw new ApiError(response.status, code, message, fields, Number.isFinite(retryAfter) && retryAfter > 0 ? retryAfter : null, data);
   }
   throw new ApiError(
     response.status,

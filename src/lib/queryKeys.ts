@@ -8,6 +8,33 @@ export const queryKeys = {
     detail: (studyId: string) => ["studies", "detail", studyId] as const,
     members: (studyId: string) => ["studies", "detail", studyId, "members"] as const,
   },
+  // Trait tables: everything below a study's detail key, so leaving or refreshing a study covers them.
+  traits: {
+    list: (studyId: string) => ["studies", "detail", studyId, "traits"] as const,
+    usage: (studyId: string, traitId: string) => ["studies", "detail", studyId, "traits", traitId, "usage"] as const,
+  },
+  taxa: {
+    all: (studyId: string) => ["studies", "detail", studyId, "taxa"] as const,
+    page: (studyId: string, query: string) => ["studies", "detail", studyId, "taxa", "page", query] as const,
+    history: (studyId: string, taxonId: string, cell: string) => ["studies", "detail", studyId, "taxa", "history", taxonId, cell] as const,
+  },
+  decisions: {
+    all: (studyId: string) => ["studies", "detail", studyId, "decisions"] as const,
+    list: (studyId: string, query: string) => ["studies", "detail", studyId, "decisions", query] as const,
+  },
+  imports: {
+    all: (studyId: string) => ["studies", "detail", studyId, "imports"] as const,
+    list: (studyId: string, page: number) => ["studies", "detail", studyId, "imports", "list", page] as const,
+    detail: (studyId: string, importId: string) => ["studies", "detail", studyId, "imports", "detail", importId] as const,
+  },
   invitation: (token: string) => ["invitations", token] as const,
   outbox: ["outbox"] as const,
+  timescale: ["timescale"] as const,
+  boundary: {
+    outcomesAll: (studyId: string) => ["studies", "detail", studyId, "boundary", "outcomes"] as const,
+    outcomes: (studyId: string, query: Record<string, string | number | undefined>) => ["studies", "detail", studyId, "boundary", "outcomes", query] as const,
+    overridesAll: (studyId: string) => ["studies", "detail", studyId, "boundary", "overrides"] as const,
+    overrides: (studyId: string, query: Record<string, string | number>) => ["studies", "detail", studyId, "boundary", "overrides", query] as const,
+    rates: (studyId: string) => ["studies", "detail", studyId, "boundary", "rates"] as const,
+  },
 };

@@ -1,0 +1,100 @@
+import { useMemo, useState } from "react";
+import type { ImportMapping, ImportPreview, ImportSummary, ImportUpload } from "@shared/schemas/imports";
+import type { Trait } from "@shared/schemas/traits";
+import { ButtonLink, Button } from "../../components/Button";
+import { Card } from "../../components/Card";
+import { cx } from "../../components/focus";
+import { Notice } from "../../components/Notice";
+import { pluralize } from "../../lib/format";
+import { paths } from "../../lib/paths";
+import { useDiscardImport } from "./api";
+import { MappingStep } from "./MappingStep";
+import { PreviewStep } from "./PreviewStep";
+import { UploadStep } from "./UploadStep";
+
+type Stage =
+  | { step: "upload" }
+  | { step: "map"; upload: ImportUpload; mapping?: ImportMapping }
+  | { step: "preview"; upload: ImportUpload; mapping: ImportMapping; preview: ImportPreview }
+  | { step: "done"; summary: ImportSummary };
+
+const STEPS = [
+  { key: "map", label: "Map the columns" },
+  { key: "preview", label: "Check every row" },
+  { key: "done", label: "Commit" },
+] as const;
+
+function StepList({ current }: { current: Stage["step"] }) {
+  const index = current === "upload" ? -1 : STEPS.findIndex((s) => s.key === current);
+  return (
+    <ol className="mb-6 flex flex-wrap gap-2 text-sm" aria-label="Steps of the import">
+      {STEPS.map((s, i) => (
+        <li
+          key={s.key}
+          aria-current={i === index ? "step" : undefined}
+          className={cx(
+            "flex items-center gap-2 rounded-full px-3 py-1 ring-1",
+            i === index ? "bg-accent-50 font-semibold text-accent-900 ring-accent-200" : i < index ? "text-stone-700 ring-stone-200" : "text-stone-400 ring-stone-200",
+          )}
+        >
+          <span className="tabular-nums">{i + 1}</span> {s.label}
+          {i < index && <span className="sr-only">(done)</span>}
+        </li>
+      ))}
+    </ol>
+  );
+}
+
+/** Upload, map, preview and commit one CSV file. */
+export function ImportWizard({ studyId, traits }: { studyId: string; traits: Trait[] }) {
+  const [stage, setStage] = useState<Stage>({ step: "upload" });
+  const discard = useDiscardImport(studyId);
+  const traitsById = useMemo(() => new Map(traits.map((t) => [t.id, t])), [traits]);
+
+  function startOver(importId?: string) {
+    // The upload was never committed: drop the stored file rather than leave it behind.
+    if (importId) discard.mutate(importId);
+    setStage({ step: "upload" });
+  }
+
+  return (
+    <Card title="Import a CSV file" description="Each row is a taxon: its name, higher taxon, range and trait values.">
+      <StepList current={stage.step} />
+      {stage.step === "upload" && <UploadStep studyId={studyId} onUploaded={(upload) => setStage({ step: "map", upload })} />}
+      {stage.step === "map" && (
+        <MappingStep
+          studyId={studyId}
+          upload={stage.upload}
+          traits={traits}
+          initialMapping={stage.mapping}
+          onPreviewed={(mapping, preview) => setStage({ step: "preview", upload: stage.upload, mapping, preview })}
+          onStartOver={() => startOver(stage.upload.import.id)}
+        />
+      )}
+      {stage.step === "preview" && (
+        <PreviewStep
+          studyId={studyId}
+          mapping={stage.mapping}
+          preview={stage.preview}
+          traits={traitsById}
+          onBack={() => setStage({ step: "map", upload: stage.upload, mapping: stage.mapping })}
+          onCommitted={(summary) => setStage({ step: "done", summary })}
+        />
+      )}
+      {stage.step === "done" && (
+        <div className="space-y-4">
+          <Notice tone="success" title={`Imported ${stage.summary.fileName}`}>
+            {pluralize(stage.summary.createdCount, "taxon added", "taxa added")}, {pluralize(stage.summary.updatedCount, "taxon changed", "taxa changed")}
+            {stage.summary.skippedInvalid > 0 && `, ${pluralize(stage.summary.skippedInvalid, "invalid row")} left out`}. The import is listed below and can be reverted there.
+          </Notice>
+          <div className="flex flex-wrap gap-3">
+            <ButtonLink to={`${paths.study(studyId)}/table`}>Open the trait table</ButtonLink>
+            <Button variant="secondary" onClick={() => setStage({ step: "upload" })}>
+              Import another file
+            </Button>
+          </div>
+        </div>
+      )}
+    </Card>
+  );
+}

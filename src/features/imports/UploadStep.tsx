@@ -1,0 +1,91 @@
+import { useState, type FormEvent } from "react";
+import { IMPORT_MAX_BYTES, IMPORT_MAX_LABEL, type ImportUpload } from "@shared/schemas/imports";
+import { Button } from "../../components/Button";
+import { FieldShell, controlClasses } from "../../components/Field";
+import { cx } from "../../components/focus";
+import { FormError } from "../../components/Notice";
+import { textLinkClasses } from "../../components/TextLink";
+import { ApiError, errorMessage } from "../../lib/api";
+import { useUploadImport, templateCsvUrl } from "./api";
+import { ProgressBar } from "./ProgressBar";
+import type { UploadProgress } from "./uploadWithProgress";
+
+const megabytes = (bytes: number) => `${(bytes / (1024 * 1024)).toFixed(bytes < 10 * 1024 * 1024 ? 1 : 0)} MB`;
+
+/** Step 0: choose a CSV file and send it, with the upload's progress shown. */
+export function UploadStep({ studyId, onUploaded }: { studyId: string; onUploaded: (upload: ImportUpload) => void }) {
+  const upload = useUploadImport(studyId);
+  const [file, setFile] = useState<File | null>(null);
+  const [fileError, setFileError] = useState<string | undefined>();
+  const [progress, setProgress] = useState<UploadProgress | null>(null);
+
+  function submit(event: FormEvent<HTMLFormElement>) {
+    event.preventDefault();
+    if (!file) {
+      setFileError("Choose a CSV file to import");
+      return;
+    }
+    if (file.size > IMPORT_MAX_BYTES) {
+      setFileError(`This file is ${megabytes(file.size)}; the limit is ${IMPORT_MAX_LABEL}. Split it into smaller files.`);
+      return;
+    }
+    if (file.size === 0) {
+      setFileError("This file is empty");
+      return;
+    }
+    setProgress({ loaded: 0, total: file.size });
+    upload.mutate({ file, onProgress: setProgress }, { onSuccess: onUploaded, onSettled: () => setProgress(null) });
+  }
+
+  const sent = progress && progress.total > 0 ? progress.loaded / progress.total : 0;
+
+  return (
+    <form noValidate onSubmit={submit} className="space-y-5" aria-label="Upload a CSV file">
+      <FormError message={upload.error ? errorMessage(upload.error) : null} />
+      <FieldShell
+        label="CSV file"
+        hint={`Comma, semicolon or tab separated, with a header row; UTF-8 (with or without BOM), UTF-16 or Windows-1252. Up to ${IMPORT_MAX_LABEL}.`}
+        error={fileError ?? (upload.error instanceof ApiError ? upload.error.fields.file : undefined)}
+      >
+        {({ id, describedBy, invalid }) => (
+          <input
+            id={id}
+            type="file"
+            accept=".csv,.tsv,.txt,text/csv,text/tab-separated-values"
+            aria-describedby={describedBy}
+            aria-invalid={invalid || undefined}
+            disabled={upload.isPending}
+            onChange={(e) => {
+              setFile(e.target.files?.[0] ?? null);
+              setFileError(undefined);
+              upload.reset();
+            }}
+            className={cx(
+              controlClasses(invalid),
+              "h-auto py-2 file:mr-3 file:rounded-md file:border-0 file:bg-accent-50 file:px-3 file:py-1.5 file:text-sm file:font-medium file:text-accent-900 hover:file:bg-accent-100",
+            )}
+          />
+        )}
+      </FieldShell>
+      {upload.isPending && (
+        <ProgressBar
+          label={`Uploading ${file?.name ?? "the file"}`}
+          value={sent < 1 ? sent : null}
+          detail={sent < 1 ? `${megabytes(progress?.loaded ?? 0)} of ${megabytes(progress?.total ?? 0)}` : "Reading the file…"}
+        />
+      )}
+      <div className="flex flex-col gap-3 sm:flex-row sm:items-center sm:justify-between">
+        <p className="text-sm text-stone-600">
+          Starting from scratch?{" "}
+          <a className={textLinkClasses} href={templateCsvUrl(studyId)} download>
+            Download a CSV template
+          </a>{" "}
+          with a column for every trait of the codebook.
+        </p>
+        <Button type="submit" busy={upload.isPending}>
+          Upload and read the file
+        </Button>
+      </div>
+    </form>
+  );
+}

@@ -1,0 +1,453 @@
+import { useCallback, useEffect, useLayoutEffect, useMemo, useRef, useState, type KeyboardEvent, type ReactNode } from "react";
+import {
+  columnPinningFeature,
+  columnSizingFeature,
+  columnVisibilityFeature,
+  createColumnHelper,
+  metaHelper,
+  rowPaginationFeature,
+  rowSelectionFeature,
+  rowSortingFeature,
+  tableFeatures,
+  useTable,
+  type ColumnVisibilityState,
+  type RowSelectionState,
+  type SortingState,
+  type Updater,
+} from "@tanstack/react-table";
+import { useVirtualizer } from "@tanstack/react-virtual";
+import type { TaxonRow } from "@shared/schemas/taxa";
+import { timescaleUnits } from "@shared/timescale/units";
+import { cx } from "../../components/focus";
+import { CellEditor, INTERVAL_LIST_ID, stateListId } from "./CellEditor";
+import { cellValue, displayText, editText, isEmptyValue, type CellChange, type GridColumn } from "./cellValues";
+
+const ROW_HEIGHT = 36;
+const SELECT_COLUMN = "select";
+
+interface ColumnMeta {
+  grid?: GridColumn;
+}
+
+const features = tableFeatures({
+  rowSortingFeature,
+  rowPaginationFeature,
+  rowSelectionFeature,
+  columnVisibilityFeature,
+  columnSizingFeature,
+  columnPinningFeature,
+  columnMeta: metaHelper<ColumnMeta>(),
+});
+const helper = createColumnHelper<typeof features, TaxonRow>();
+
+const WIDTHS: Record<string, number> = { name: 230, higherTaxon: 170, fad: 190, lad: 190, notes: 260 };
+const widthOf = (c: GridColumn) => WIDTHS[c.id] ?? (c.kind === "trait" && c.trait.kind === "numeric" ? 130 : 150);
+
+/** Where the keyboard is: a row of the page and a column. */
+export interface ActiveCell {
+  rowIndex: number;
+  columnId: string;
+}
+
+export interface TaxaGridProps {
+  columns: GridColumn[];
+  rows: TaxonRow[];
+  /** Rows before this page, for aria-rowindex. */
+  rowOffset: number;
+  total: number;
+  sort: { columnId: string; desc: boolean };
+  onSortChange: (columnId: string, desc: boolean) => void;
+  columnVisibility: ColumnVisibilityState;
+  rowSelection: RowSelectionState;
+  onRowSelectionChange: (updater: Updater<RowSelectionState>) => void;
+  canEdit: boolean;
+  /** Cells being saved, as `${rowId}:${columnId}`. */
+  savingCells: ReadonlySet<string>;
+  /** Grey the rows while a new page loads (the previous one stays visible). */
+  stale: boolean;
+  onCommit: (row: TaxonRow, column: GridColumn, change: CellChange) => void;
+  onShowHistory: (row: TaxonRow, column: GridColumn) => void;
+}
+
+function MissingMark() {
+  return (
+    <span className="text-stone-400" title="No value recorded">
+      <span aria-hidden="true">—</span>
+      <span className="sr-only">missing</span>
+    </span>
+  );
+}
+
+function ThreadDot({ label }: { label: string }) {
+  return <span className="ml-1.5 inline-block size-2 shrink-0 rounded-full bg-caution-700" role="img" aria-label={label} title={label} />;
+}
+
+function CellContent({ column, row }: { column: GridColumn; row: TaxonRow }) {
+  const value = cellValue(column, row);
+  const text = displayText(column, row);
+  const threadOnValue = column.kind === "trait" && row.openThreads.traitIds.includes(column.id);
+  const threadOnTaxon = column.id === "name" && row.openThreads.count > 0;
+  const outsideCodebook =
+    column.kind === "trait" && column.trait.kind !== "numeric" && !isEmptyValue(value) && !column.trait.states.some((s) => s.code === value);
+  return (
+    <span className="flex min-w-0 items-center">
+      {isEmptyValue(value) ? (
+        <MissingMark />
+      ) : (
+        <span className={cx("truncate", column.id === "name" && "font-medium italic text-stone-900", outsideCodebook && "text-red-700")} title={text}>
+          {text}
+        </span>
+      )}
+      {threadOnValue && <ThreadDot label="Open thread about this value" />}
+      {threadOnTaxon && <ThreadDot label={`${row.openThreads.count} open thread${row.openThreads.count === 1 ? "" : "s"} about this taxon`} />}
+    </span>
+  );
+}
+
+/**
+ * The trait table grid: a TanStack Table over one server page, its rows virtualised, its name
+ * column frozen, usable from the keyboard (arrows move, Enter edits, Esc cancels).
+ */
+export function TaxaGrid(props: TaxaGridProps) {
+  const { columns, rows, rowOffset, total, sort, onSortChange, columnVisibility, rowSelection, onRowSelectionChange, canEdit, savingCells, stale } = props;
+  const { onCommit, onShowHistory } = props;
+  const scrollRef = useRef<HTMLDivElement>(null);
+  const [active, setActive] = useState<ActiveCell>({ rowIndex: 0, columnId: "name" });
+  const [editing, setEditing] = useState<{ initialText: string } | null>(null);
+  const focusPending = useRef(false);
+
+  const columnDefs = useMemo(
+    () =>
+      helper.columns([
+        helper.display({
+          id: SELECT_COLUMN,
+          size: 44,
+          enableSorting: false,
+          enableHiding: false,
+          header: ({ table }) => (
+            <input
+              type="checkbox"
+              aria-label="Select every taxon on this page"
+              className="size-4 accent-accent-600"
+              checked={table.getIsAllPageRowsSelected()}
+              ref={(el) => {
+                if (el) el.indeterminate = !table.getIsAllPageRowsSelected() && table.getIsSomePageRowsSelected();
+              }}
+              onChange={table.getToggleAllPageRowsSelectedHandler()}
+            />
+          ),
+          cell: ({ row }) => (
+            <input
+              type="checkbox"
+              tabIndex={-1}
+              aria-label={`Select ${row.original.name}`}
+              className="size-4 accent-accent-600"
+              checked={row.getIsSelected()}
+              onChange={() => undefined}
+              onClick={row.getToggleSelectedHandler()}
+            />
+          ),
+        }),
+        ...columns.map((gridColumn) =>
+          helper.accessor((row: TaxonRow) => cellValue(gridColumn, row), {
+            id: gridColumn.id,
+            header: gridColumn.label,
+            size: widthOf(gridColumn),
+            enableHiding: gridColumn.id !== "name",
+            meta: { grid: gridColumn },
+            cell: ({ row }) => <CellContent column={gridColumn} row={row.original} />,
+          }),
+        ),
+      ]),
+    [columns],
+  );
+
+  const sorting: SortingState = useMemo(() => [{ id: sort.columnId, desc: sort.desc }], [sort.columnId, sort.desc]);
+  const table = useTable({
+    features,
+    columns: columnDefs,
+    data: rows,
+    getRowId: (row) => row.id,
+    manualSorting: true,
+    manualPagination: true,
+    enableMultiSort: false,
+    enableSortingRemoval: false,
+    rowCount: total,
+    state: { sorting, columnVisibility, rowSelection, columnPinning: { start: [SELECT_COLUMN, "name"], end: [] } },
+    onSortingChange: (updater) => {
+      const next = typeof updater === "function" ? updater(sorting) : updater;
+      if (next[0]) onSortChange(next[0].id, next[0].desc);
+    },
+    onRowSelectionChange,
+  });
+
+  const visibleColumns = table.getVisibleLeafColumns();
+  const columnIds = visibleColumns.map((c) => c.id);
+  const tableRows = table.getRowModel().rows;
+  const totalWidth = table.getTotalSize();
+
+  const virtualizer = useVirtualizer({
+    count: tableRows.length,
+    getScrollElement: () => scrollRef.current,
+    estimateSize: () => ROW_HEIGHT,
+    overscan: 12,
+    scrollPaddingStart: ROW_HEIGHT,
+    getItemKey: (index) => tableRows[index]?.id ?? index,
+  });
+
+  // A new page, sort or filter starts at the top; a smaller page keeps the active row inside it.
+  const firstRowId = rows[0]?.id;
+  useLayoutEffect(() => {
+    scrollRef.current?.scrollTo({ top: 0 });
+  }, [firstRowId, rowOffset]);
+  const rowIndex = Math.min(active.rowIndex, Math.max(0, rows.length - 1));
+  const columnId = columnIds.includes(active.columnId) ? active.columnId : "name";
+  const activeRow = rows[rowIndex];
+  const activeGridColumn = columns.find((c) => c.id === columnId) ?? null;
+
+  const cellDomId = (rowId: string, colId: string) => `taxa-cell-${rowId}-${colId}`;
+
+  // After a keyboard move, the new active cell takes focus once the virtualiser has rendered it.
+  useEffect(() => {
+    if (!focusPending.current || editing || !activeRow) return;
+    const id = cellDomId(activeRow.id, columnId);
+    let attempts = 0;
+    let frame = 0;
+    const tryFocus = () => {
+      const el = document.getElementById(id);
+      if (el) {
+        el.focus();
+        focusPending.current = false;
+      } else if (attempts++ < 5) frame = requestAnimationFrame(tryFocus);
+    };
+    tryFocus();
+    return () => cancelAnimationFrame(frame);
+  });
+
+  const moveTo = useCallback(
+    (nextRow: number, nextColumnIndex: number) => {
+      const r = Math.max(0, Math.min(rows.length - 1, nextRow));
+      const c = Math.max(0, Math.min(columnIds.length - 1, nextColumnIndex));
+      virtualizer.scrollToIndex(r, { align: "auto" });
+      focusPending.current = true;
+      setActive({ rowIndex: r, columnId: columnIds[c] });
+    },
+    [rows.length, columnIds, virtualizer],
+  );
+
+  const isEditable = (gc: GridColumn | null) => canEdit && gc !== null;
+
+  function startEdit(initialText?: string) {
+    if (!activeRow || !isEditable(activeGridColumn) || !activeGridColumn) return;
+    setEditing({ initialText: initialText ?? editText(activeGridColumn, activeRow) });
+  }
+
+  function onGridKeyDown(event: KeyboardEvent<HTMLDivElement>) {
+    if (editing || !activeRow) return;
+    const target = event.target as HTMLElement;
+    // The header's own controls keep their keys.
+    if (target.closest("[role=columnheader]")) return;
+    const c = columnIds.indexOf(columnId);
+    const page = Math.max(1, Math.floor((scrollRef.current?.clientHeight ?? 400) / ROW_HEIGHT) - 2);
+    const key = event.key;
+    let handled = true;
+    if (key === "ArrowDown") moveTo(rowIndex + 1, c);
+    else if (key === "ArrowUp") moveTo(rowIndex - 1, c);
+    else if (key === "ArrowRight") moveTo(rowIndex, c + 1);
+    else if (key === "ArrowLeft") moveTo(rowIndex, c - 1);
+    else if (key === "PageDown") moveTo(rowIndex + page, c);
+    else if (key === "PageUp") moveTo(rowIndex - page, c);
+    else if (key === "Home") moveTo(event.ctrlKey ? 0 : rowIndex, 0);
+    else if (key === "End") moveTo(event.ctrlKey ? rows.length - 1 : rowIndex, columnIds.length - 1);
+    else if (key === " " && (columnId === SELECT_COLUMN || event.shiftKey)) table.getRow(activeRow.id).toggleSelected();
+    else if ((key === "Enter" || key === "F2") && columnId === SELECT_COLUMN) table.getRow(activeRow.id).toggleSelected();
+    else if (key === "Enter" || key === "F2") startEdit();
+    else if ((key === "h" || key === "H") && event.altKey && activeGridColumn) onShowHistory(activeRow, activeGridColumn);
+    else if ((key === "Delete" || key === "Backspace") && activeGridColumn && canEdit && activeGridColumn.id !== "name") startEdit("");
+    else if (key.length === 1 && !event.ctrlKey && !event.metaKey && !event.altKey && key !== " " && isEditable(activeGridColumn)) startEdit(key);
+    else handled = false;
+    if (handled) event.preventDefault();
+  }
+
+  function finishEdit(change: CellChange | null, move: "stay" | "down" | "right" | "left") {
+    setEditing(null);
+    const c = columnIds.indexOf(columnId);
+    if (change && activeRow && activeGridColumn) onCommit(activeRow, activeGridColumn, change);
+    if (move === "down") moveTo(rowIndex + 1, c);
+    else if (move === "right") moveTo(rowIndex, c + 1);
+    else if (move === "left") moveTo(rowIndex, c - 1);
+    else moveTo(rowIndex, c);
+  }
+
+  const pinnedStyle = (colId: string, isHeader: boolean) => {
+    const column = table.getColumn(colId);
+    const pinned = column?.getIsPinned();
+    return {
+      width: column?.getSize(),
+      minWidth: column?.getSize(),
+      position: pinned ? ("sticky" as const) : undefined,
+      left: pinned === "start" ? column?.getStart("start") : undefined,
+      zIndex: pinned ? (isHeader ? 3 : 1) : undefined,
+    };
+  };
+
+  const traitLists = columns.filter((c): c is Extract<GridColumn, { kind: "trait" }> => c.kind === "trait" && c.trait.kind !== "numeric");
+  const headerGroup = table.getHeaderGroups()[0];
+
+  return (
+    <>
+      <div
+        ref={scrollRef}
+        role="grid"
+        aria-label="Trait table"
+        aria-rowcount={total + 1}
+        aria-colcount={visibleColumns.length}
+        aria-multiselectable="true"
+        aria-busy={stale || undefined}
+        onKeyDown={onGridKeyDown}
+        className="relative h-[max(24rem,calc(100vh-22rem))] overflow-auto rounded-xl border border-stone-200 bg-white text-sm shadow-[0_1px_2px_rgb(28_25_23/0.04)]"
+      >
+        <div role="rowgroup" className="sticky top-0 z-20" style={{ width: totalWidth }}>
+          <div role="row" aria-rowindex={1} className="flex border-b border-stone-200 bg-stone-100">
+            {headerGroup.headers.map((header, index) => {
+              const gc = header.column.columnDef.meta?.grid;
+              const sorted = header.column.getIsSorted();
+              const isPinned = Boolean(header.column.getIsPinned());
+              return (
+                <div
+                  key={header.id}
+                  role="columnheader"
+                  aria-colindex={index + 1}
+                  aria-sort={sorted ? (sorted === "asc" ? "ascending" : "descending") : undefined}
+                  style={pinnedStyle(header.column.id, true)}
+                  className={cx(
+                    "flex h-10 shrink-0 items-center border-r border-stone-200 bg-stone-100 px-2 font-semibold text-stone-700",
+                    isPinned && header.column.id === "name" && "shadow-[2px_0_0_rgb(214_211_209)]",
+                  )}
+                >
+                  {header.column.id === SELECT_COLUMN ? (
+                    <table.FlexRender header={header} />
+                  ) : (
+                    <button
+                      type="button"
+                      onClick={header.column.getToggleSortingHandler()}
+                      title={gc?.kind === "trait" && gc.trait.codingRule ? `${gc.label}: ${gc.trait.codingRule}` : `Sort by ${gc?.label ?? header.column.id}`}
+                      className="flex min-w-0 flex-1 items-center gap-1 rounded text-left hover:text-stone-950 focus-visible:ring-2 focus-visible:ring-accent-500 focus-visible:outline-none"
+                    >
+                      <span className="truncate">{gc?.label}</span>
+                      {gc?.kind === "trait" && gc.trait.kind === "numeric" && gc.trait.unit && <span className="font-normal text-stone-500">({gc.trait.unit})</span>}
+                      <span aria-hidden="true" className={cx("ml-auto text-xs", sorted ? "text-accent-700" : "text-stone-300")}>
+                        {sorted === "desc" ? "▼" : "▲"}
+                      </span>
+                    </button>
+                  )}
+                </div>
+              );
+            })}
+          </div>
+        </div>
+
+        <div role="rowgroup" className={cx("relative transition-opacity", stale && "opacity-60")} style={{ height: virtualizer.getTotalSize(), width: totalWidth }}>
+          {virtualizer.getVirtualItems().map((item) => {
+            const row = tableRows[item.index];
+            if (!row) return null;
+            const selected = row.getIsSelected();
+            return (
+              <div
+                key={row.id}
+                role="row"
+                aria-rowindex={rowOffset + item.index + 2}
+                aria-selected={selected}
+                data-taxon={row.original.name}
+                className={cx("group absolute top-0 left-0 flex border-b border-stone-100", selected ? "bg-accent-50" : "bg-white hover:bg-stone-50")}
+                style={{ height: ROW_HEIGHT, transform: `translateY(${item.start}px)`, width: totalWidth }}
+              >
+                {row.getVisibleCells().map((cell, index) => {
+                  const colId = cell.column.id;
+                  const gc = cell.column.columnDef.meta?.grid ?? null;
+                  const isActive = item.index === rowIndex && colId === columnId;
+                  const isEditing = isActive && editing !== null && gc !== null;
+                  const saving = savingCells.has(`${row.id}:${colId}`);
+                  let content: ReactNode = <table.FlexRender cell={cell} />;
+                  if (isEditing && gc) {
+                    content = (
+                      <CellEditor
+                        column={gc}
+                        row={row.original}
+                        initialText={editing.initialText}
+                        onCommit={finishEdit}
+                        onCancel={() => finishEdit(null, "stay")}
+                      />
+                    );
+                  }
+                  return (
+                    <div
+                      key={cell.id}
+                      id={cellDomId(row.id, colId)}
+                      role="gridcell"
+                      aria-colindex={index + 1}
+                      aria-readonly={!canEdit || colId === SELECT_COLUMN || undefined}
+                      aria-busy={saving || undefined}
+                      data-column={gc?.label ?? colId}
+                      tabIndex={isActive && !isEditing ? 0 : -1}
+                      onClick={() => setActive({ rowIndex: item.index, columnId: colId })}
+                      onFocus={() => {
+                        if (!isActive) setActive({ rowIndex: item.index, columnId: colId });
+                      }}
+                      onDoubleClick={() => {
+                        if (gc && canEdit) setEditing({ initialText: editText(gc, row.original) });
+                      }}
+                      style={pinnedStyle(colId, false)}
+                      className={cx(
+                        "relative flex shrink-0 items-center border-r border-stone-100 outline-none",
+                        isEditing ? "p-0" : "px-2",
+                        cell.column.getIsPinned() && (selected ? "bg-accent-50" : "bg-white group-hover:bg-stone-50"),
+                        colId === "name" && "shadow-[2px_0_0_rgb(231_229_228)]",
+                        colId === SELECT_COLUMN && "justify-center",
+                        isActive && !isEditing && "z-[2] ring-2 ring-accent-600 ring-inset",
+                        saving && "animate-pulse text-stone-400",
+                      )}
+                    >
+                      {content}
+                      {isActive && !isEditing && gc && (
+                        <button
+                          type="button"
+                          tabIndex={-1}
+                          onClick={(e) => {
+                            e.stopPropagation();
+                            onShowHistory(row.original, gc);
+                          }}
+                          className="absolute top-1/2 right-1 -translate-y-1/2 rounded bg-white/90 px-1 text-xs font-medium text-accent-700 shadow-sm ring-1 ring-stone-200 hover:bg-accent-50"
+                          aria-label={`History of ${gc.label} for ${row.original.name}`}
+                          title="History of this cell (Alt+H)"
+                        >
+                          History
+                        </button>
+                      )}
+                    </div>
+                  );
+                })}
+              </div>
+            );
+          })}
+        </div>
+      </div>
+
+      {/* Suggestions for the cell editor: states by code and label, interval names of the time scale. */}
+      {traitLists.map((c) => (
+        <datalist key={c.id} id={stateListId(c.id)}>
+          {c.trait.states.map((s) => (
+            <option key={s.code} value={s.code}>
+              {s.label}
+            </option>
+          ))}
+        </datalist>
+      ))}
+      <datalist id={INTERVAL_LIST_ID}>
+        {timescaleUnits.map((u) => (
+          <option key={u.name} value={u.label} />
+        ))}
+      </datalist>
+    </>
+  );
+}
