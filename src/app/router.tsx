@@ -1,5 +1,6 @@
 import { createBrowserRouter } from "react-router-dom";
 import { AccountPage } from "../features/account/AccountPage";
+import { BoundaryPage } from "../features/boundary/BoundaryPage";
 import { CodebookPage } from "../features/codebook/CodebookPage";
 import { ImportsPage } from "../features/imports/ImportsPage";
 import { TraitTablePage } from "../features/trait-table/TraitTablePage";
@@ -48,6 +49,7 @@ export const router = createBrowserRouter([
               { path: "table", element: <TraitTablePage /> },
               { path: "codebook", element: <CodebookPage /> },
               { path: "imports", element: <ImportsPage /> },
+              { path: "boundary", element: <BoundaryPage /> },
               { path: "members", element: <MembersPage /> },
             ],
           },

@@ -15,6 +15,7 @@ export const STUDY_NAV: readonly StudyNavItem[] = [
   { label: "Trait table", path: "table" },
   { label: "Codebook", path: "codebook" },
   { label: "Imports", path: "imports" },
+  { label: "Boundary", path: "boundary" },
   // Boundary, Selectivity, Runs, Modern comparison and Threads go here, in that order.
   { label: "Members", path: "members" },
 ];

@@ -1,0 +1,247 @@
+import { useId, useState } from "react";
+import { z } from "zod";
+import { boundaryMaSchema, outcomesQuerySchema } from "@shared/schemas/outcomes";
+import type { Timescale, TimescaleUnitDto } from "@shared/schemas/timescale";
+import { Button } from "../../components/Button";
+import { Card } from "../../components/Card";
+import { cx } from "../../components/focus";
+import { Select } from "../../components/Select";
+import { TextField } from "../../components/TextField";
+import { useZodForm } from "../../lib/forms";
+import type { BoundaryChoice } from "./boundaryParams";
+import { BoundaryStrip } from "./BoundaryStrip";
+import type { ScaleIndex } from "./scaleIndex";
+import { formatAgeNumber, formatMa, formatMyr, RANK_WORD } from "./words";
+
+// Form schemas built from the shared ones the server applies: a custom boundary is the form's
+// boundary age, the window is the outcomes query's own window field.
+const blankToUndefined = (value: unknown) => (typeof value === "string" && value.trim() === "" ? undefined : typeof value === "string" ? Number(value.trim()) : value);
+const customAgeFormSchema = z.object({ boundary: z.preprocess(blankToUndefined, boundaryMaSchema) });
+const windowFormSchema = z.object({ window: outcomesQuerySchema.shape.window });
+
+export interface BoundaryPickerProps {
+  timescale: Timescale;
+  scale: ScaleIndex;
+  choice: BoundaryChoice | null;
+  /** The chosen unit, when the boundary is the base of one. */
+  chosenUnit: TimescaleUnitDto | undefined;
+  /** The boundary age in Ma, once known. */
+  boundary: number | null;
+  /** The window given in the address (undefined: the default). */
+  windowParam: number | undefined;
+  /** The window in effect, as the server applied it (null while loading). */
+  windowInEffect: number | null;
+  onChoose: (choice: BoundaryChoice) => void;
+  onWindow: (window: number | undefined) => void;
+}
+
+type Mode = "unit" | "age";
+
+export function BoundaryPicker(props: BoundaryPickerProps) {
+  const { timescale, scale, choice, chosenUnit, boundary, windowParam, windowInEffect, onChoose, onWindow } = props;
+  const [modeChoice, setModeChoice] = useState<Mode | null>(null);
+  const mode: Mode = modeChoice ?? choice?.kind ?? "unit";
+
+  const choose = (next: BoundaryChoice) => {
+    setModeChoice(null);
+    onChoose(next);
+  };
+  const defaultStage = boundary === null ? undefined : scale.stageBelow(boundary);
+
+  return (
+    <Card
+      title="Boundary and window"
+      description="Place the boundary on the International Chronostratigraphic Chart, by period, epoch and stage, or type an age. The window is the stretch of time below the boundary in which a last appearance counts as a loss."
+    >
+      <ModeSwitch mode={mode} onChange={setModeChoice} />
+      <div className="mt-5">
+        {mode === "unit" ? (
+          <UnitSelects scale={scale} chosenUnit={chosenUnit} onChoose={(unit) => choose({ kind: "unit", name: unit.name })} />
+        ) : (
+          <CustomAgeForm key={choice?.kind === "age" ? choice.age : "none"} initialAge={choice?.kind === "age" ? choice.age : undefined} onApply={(age) => choose({ kind: "age", age })} />
+        )}
+      </div>
+
+      {boundary !== null && <BoundaryHeadline scale={scale} boundary={boundary} chosenUnit={chosenUnit} />}
+      {boundary !== null && (
+        <BoundaryStrip scale={scale} boundary={boundary} window={windowInEffect} chosenUnit={chosenUnit} onPick={(unit) => choose({ kind: "unit", name: unit.name })} />
+      )}
+
+      <WindowForm
+        key={windowParam ?? "default"}
+        windowParam={windowParam}
+        defaultStage={defaultStage}
+        disabled={choice === null}
+        onApply={onWindow}
+      />
+
+      <p className="mt-6 border-t border-stone-100 pt-4 text-sm text-stone-500">
+        Time scale: {timescale.citation}. Chart version {timescale.version}; ages in Ma (millions of years before present), older ages are larger.
+      </p>
+    </Card>
+  );
+}
+
+function ModeSwitch({ mode, onChange }: { mode: Mode; onChange: (mode: Mode) => void }) {
+  const name = useId();
+  const options: Array<{ value: Mode; label: string }> = [
+    { value: "unit", label: "Unit of the chart" },
+    { value: "age", label: "Custom age" },
+  ];
+  return (
+    <fieldset>
+      <legend className="sr-only">Choose the boundary by</legend>
+      <div className="inline-flex rounded-lg border border-stone-300 bg-stone-100 p-0.5">
+        {options.map((option) => (
+          <label
+            key={option.value}
+            className={cx(
+              "cursor-pointer rounded-md px-3 py-1.5 text-sm font-medium transition-colors has-[:focus-visible]:ring-2 has-[:focus-visible]:ring-accent-500",
+              mode === option.value ? "bg-white text-stone-900 shadow-sm" : "text-stone-600 hover:text-stone-900",
+            )}
+          >
+            <input type="radio" name={name} value={option.value} checked={mode === option.value} onChange={() => onChange(option.value)} className="sr-only" />
+            {option.label}
+          </label>
+        ))}
+      </div>
+    </fieldset>
+  );
+}
+
+function unitOption(unit: TimescaleUnitDto) {
+  return { value: unit.name, label: `${unit.label} · base ${formatMa(unit.base)}` };
+}
+
+/** Period, then epoch, then stage: the boundary is the base of the narrowest unit chosen. */
+function UnitSelects({ scale, chosenUnit, onChoose }: { scale: ScaleIndex; chosenUnit: TimescaleUnitDto | undefined; onChoose: (unit: TimescaleUnitDto) => void }) {
+  const period = chosenUnit ? scale.ancestor(chosenUnit, "Period") : undefined;
+  const epoch = chosenUnit ? scale.ancestor(chosenUnit, "Epoch") : undefined;
+  const stage = chosenUnit?.rank === "Age" ? chosenUnit : undefined;
+  const epochs = period ? scale.inside(period, "Epoch") : [];
+  const stages = epoch ? scale.inside(epoch, "Age") : [];
+
+  const pick = (units: readonly TimescaleUnitDto[], name: string, fallback: TimescaleUnitDto | undefined) => {
+    const unit = units.find((u) => u.name === name) ?? fallback;
+    if (unit) onChoose(unit);
+  };
+
+  return (
+    <div>
+      <div className="grid gap-4 sm:grid-cols-3">
+        <Select
+          label="Period"
+          value={period?.name ?? ""}
+          onChange={(event) => pick(scale.periods, event.target.value, undefined)}
+          options={[{ value: "", label: "Choose a period", disabled: true }, ...scale.periods.map(unitOption)]}
+        />
+        <Select
+          label="Epoch"
+          value={epoch?.name ?? ""}
+          disabled={!period}
+          onChange={(event) => pick(epochs, event.target.value, period)}
+          options={[{ value: "", label: period ? `None: the ${period.label}’s base` : "Choose a period first" }, ...epochs.map(unitOption)]}
+        />
+        <Select
+          label="Stage"
+          value={stage?.name ?? ""}
+          disabled={!epoch}
+          onChange={(event) => pick(stages, event.target.value, epoch)}
+          options={[{ value: "", label: epoch ? `None: the ${epoch.label}’s base` : "Choose an epoch first" }, ...stages.map(unitOption)]}
+        />
+      </div>
+      <p className="mt-2 text-sm text-stone-500">The boundary is the base of the narrowest unit chosen. Listed youngest first, as on the chart.</p>
+    </div>
+  );
+}
+
+function CustomAgeForm({ initialAge, onApply }: { initialAge: number | undefined; onApply: (age: number) => void }) {
+  const form = useZodForm(customAgeFormSchema, { boundary: initialAge === undefined ? "" : String(initialAge) });
+  return (
+    <form noValidate onSubmit={form.handleSubmit((data) => onApply(data.boundary))} className="flex flex-wrap items-start gap-3">
+      <TextField
+        label="Boundary age (Ma)"
+        inputMode="decimal"
+        autoComplete="off"
+        hint="Any age older than the present, e.g. 94.2. Use a point for decimals."
+        className="w-64"
+        {...form.field("boundary")}
+      />
+      <Button type="submit" variant="secondary" className="mt-7">
+        Use this age
+      </Button>
+    </form>
+  );
+}
+
+function WindowForm({
+  windowParam,
+  defaultStage,
+  disabled,
+  onApply,
+}: {
+  windowParam: number | undefined;
+  defaultStage: TimescaleUnitDto | undefined;
+  disabled: boolean;
+  onApply: (window: number | undefined) => void;
+}) {
+  const form = useZodForm(windowFormSchema, { window: windowParam === undefined ? "" : String(windowParam) });
+  const defaultWords = defaultStage
+    ? `the ${defaultStage.label}’s duration, ${formatMyr(defaultStage.duration)}`
+    : "the duration of the stage just below the boundary";
+  return (
+    <form noValidate onSubmit={form.handleSubmit((data) => onApply(data.window))} className="mt-6 flex flex-wrap items-start gap-3">
+      <TextField
+        label="Window below the boundary (Myr)"
+        inputMode="decimal"
+        autoComplete="off"
+        disabled={disabled}
+        placeholder={defaultStage ? formatAgeNumber(defaultStage.duration) : undefined}
+        hint={windowParam === undefined ? `Empty: the default, ${defaultWords}.` : `Default: ${defaultWords}. Any length is allowed.`}
+        className="w-72"
+        {...form.field("window")}
+      />
+      <div className="mt-7 flex flex-wrap gap-2">
+        <Button type="submit" variant="secondary" disabled={disabled}>
+          Apply window
+        </Button>
+        {windowParam !== undefined && (
+          <Button variant="ghost" onClick={() => onApply(undefined)}>
+            Use the default
+          </Button>
+        )}
+      </div>
+    </form>
+  );
+}
+
+function BoundaryHeadline({ scale, boundary, chosenUnit }: { scale: ScaleIndex; boundary: number; chosenUnit: TimescaleUnitDto | undefined }) {
+  const sharing = scale.withBase(boundary);
+  const inside = chosenUnit ? undefined : scale.stageBelow(boundary);
+  const named = chosenUnit ?? sharing[sharing.length - 1];
+  const others = sharing.filter((u) => u !== named);
+  const uncertainty = named?.uncertainty;
+  return (
+    <div className="mt-6 rounded-lg bg-stone-50 px-4 py-3" data-testid="boundary-headline">
+      <p className="text-[15px] text-stone-900">
+        <span className="font-semibold">Boundary: </span>
+        {named ? (
+          <>
+            base of the {named.label} {RANK_WORD[named.rank]}, {formatMa(boundary)}
+            {uncertainty != null && <span className="text-stone-600"> (± {formatMyr(uncertainty)} on the chart)</span>}
+          </>
+        ) : (
+          <>
+            {formatMa(boundary)}, a custom age{inside ? `, inside the ${inside.label}` : ""}
+          </>
+        )}
+      </p>
+      {others.length > 0 && (
+        <p className="mt-1 text-sm text-stone-600">
+          Also the base of the {others.map((u) => `${u.label} ${RANK_WORD[u.rank]}`).join(", the ")}.
+        </p>
+      )}
+    </div>
+  );
+}
+

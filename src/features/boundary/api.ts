@@ -1,0 +1,109 @@
+// TanStack Query hooks of the Boundary screen: one per endpoint.
+import { keepPreviousData, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
+import type { z } from "zod";
+import type {
+  BoundaryOutcomeName,
+  OutcomeOverride,
+  OutcomeOverrideCreateInput,
+  outcomeOverrideListSchema,
+  OutcomesResult,
+  RatesResult,
+} from "@shared/schemas/outcomes";
+import type { Timescale } from "@shared/schemas/timescale";
+import { api } from "../../lib/api";
+import { queryKeys } from "../../lib/queryKeys";
+
+export type OverrideList = z.infer<typeof outcomeOverrideListSchema>;
+export type OverrideStatus = "active" | "revoked" | "all";
+
+/** What the screen asks the outcomes endpoint: a chart unit or a custom age, and an optional window. */
+export interface OutcomesRequest {
+  boundaryUnit?: string;
+  boundary?: number;
+  window?: number;
+  group?: BoundaryOutcomeName;
+  page?: number;
+  pageSize: number;
+}
+
+const studyPath = (studyId: string) => `/studies/${encodeURIComponent(studyId)}`;
+
+function toSearch(params: Record<string, string | number | undefined>): string {
+  const search = new URLSearchParams();
+  for (const [key, value] of Object.entries(params)) if (value !== undefined) search.set(key, String(value));
+  return search.toString();
+}
+
+/** GET /api/timescale: the ICS chart's units with their bases (reference data that never changes while the app runs). */
+export function useTimescale() {
+  return useQuery({
+    queryKey: queryKeys.timescale,
+    queryFn: ({ signal }) => api.get<Timescale>("/timescale", signal),
+    staleTime: Infinity,
+  });
+}
+
+/**
+ * GET /api/studies/:studyId/outcomes: counts, proportional extinction, warnings and one page of each
+ * group (or of `group` only). `request` null means no boundary is chosen yet (nothing is fetched).
+ */
+export function useOutcomes(studyId: string, request: OutcomesRequest | null) {
+  const params = { ...request };
+  return useQuery({
+    queryKey: queryKeys.boundary.outcomes(studyId, params),
+    queryFn: ({ signal }) => api.get<OutcomesResult>(`${studyPath(studyId)}/outcomes?${toSearch(params)}`, signal),
+    enabled: request !== null,
+    // Ranges are edited on other screens; a visit to this one should show the current outcomes.
+    staleTime: 0,
+    placeholderData: keepPreviousData,
+  });
+}
+
+/** GET /api/studies/:studyId/outcome-overrides: outcomes set by hand, newest first. */
+export function useOverrides(studyId: string, status: OverrideStatus, page: number, pageSize: number) {
+  const params = { status, page, pageSize };
+  return useQuery({
+    queryKey: queryKeys.boundary.overrides(studyId, params),
+    queryFn: ({ signal }) => api.get<OverrideList>(`${studyPath(studyId)}/outcome-overrides?${toSearch(params)}`, signal),
+    staleTime: 0,
+    placeholderData: keepPreviousData,
+  });
+}
+
+/** GET /api/studies/:studyId/rates: extinction per stage over the stages the study's taxa span. */
+export function useRates(studyId: string) {
+  return useQuery({
+    queryKey: queryKeys.boundary.rates(studyId),
+    queryFn: ({ signal }) => api.get<RatesResult>(`${studyPath(studyId)}/rates`, signal),
+    staleTime: 0,
+  });
+}
+
+function useRefreshOutcomes(studyId: string) {
+  const queryClient = useQueryClient();
+  return () =>
+    Promise.all([
+      queryClient.invalidateQueries({ queryKey: queryKeys.boundary.outcomesAll(studyId) }),
+      queryClient.invalidateQueries({ queryKey: queryKeys.boundary.overridesAll(studyId) }),
+    ]);
+}
+
+/** POST /api/studies/:studyId/outcome-overrides: set a taxon's outcome by hand (replaces its active override for the same boundary). */
+export function useCreateOverride(studyId: string) {
+  const refresh = useRefreshOutcomes(studyId);
+  return useMutation({
+    mutationFn: (input: OutcomeOverrideCreateInput) =>
+      api.post<{ override: OutcomeOverride; replacedOverrideId: string | null }>(`${studyPath(studyId)}/outcome-overrides`, input),
+    onSuccess: refresh,
+  });
+}
+
+/** POST /api/studies/:studyId/outcome-overrides/:overrideId/revoke: the computed outcome applies again. */
+export function useRevokeOverride(studyId: string) {
+  const refresh = useRefreshOutcomes(studyId);
+  return useMutation({
+    mutationFn: ({ overrideId, reason }: { overrideId: string; reason: string }) =>
+      api.post<OutcomeOverride>(`${studyPath(studyId)}/outcome-overrides/${encodeURIComponent(overrideId)}/revoke`, { reason }),
+    onSuccess: refresh,
+  });
+}
