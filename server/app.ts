@@ -19,6 +19,11 @@ import { timescaleRouter } from "./routes/timescale";
 import { outcomesRouter } from "./routes/outcomes";
 import { overridesRouter } from "./routes/overrides";
 import { ratesRouter } from "./routes/rates";
+import { traitsRouter } from "./routes/traits";
+import { taxaRouter } from "./routes/taxa";
+import { decisionsRouter } from "./routes/decisions";
+import { importsRouter } from "./routes/imports";
+import { exportsRouter } from "./routes/exports";
 
 export interface BuiltApp {
   app: Express;
@@ -26,7 +31,7 @@ export interface BuiltApp {
   routes: RegisteredRoute[];
 }
 
-const RESOURCE_ROUTERS = [healthRouter, authRouter, studiesRouter, membersRouter, invitationsRouter, outboxRouter, timescaleRouter, outcomesRouter, overridesRouter, ratesRouter];
+const RESOURCE_ROUTERS = [healthRouter, authRouter, studiesRouter, membersRouter, invitationsRouter, outboxRouter, timescaleRouter, outcomesRouter, overridesRouter, ratesRouter, traitsRouter, taxaRouter, decisionsRouter, importsRouter, exportsRouter];
 
 export function buildOpenApi(registry: OpenAPIRegistry) {
   registry.registerComponent("securitySchemes", "session", { type: "apiKey", in: "cookie", name: "ss_session" });

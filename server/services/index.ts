@@ -8,6 +8,11 @@ import { createStudyService } from "./studies";
 import { createUserService } from "./users";
 import { createTimescaleService } from "./timescale";
 import { createOutcomeService } from "./outcomes";
+import { createTraitService } from "./traits";
+import { createTaxonService } from "./taxa";
+import { createDecisionService } from "./decisions";
+import { createImportService } from "./imports";
+import { createExportService } from "./exports";
 
 /** What services need besides the database and mail: the job queue and the worker threads. */
 export interface Runtime {
@@ -24,6 +29,11 @@ export function createServices(db: Database, mailer: Mailer, appUrl: string, run
     outbox: createOutboxService(db),
     timescale: createTimescaleService(db),
     outcomes: createOutcomeService(db),
+    traits: createTraitService(db),
+    taxa: createTaxonService(db),
+    decisions: createDecisionService(db),
+    imports: createImportService(db),
+    exports: createExportService(db),
   };
 }
 export type Services = ReturnType<typeof createServices>;

@@ -12,7 +12,7 @@ export interface LogisticTerm {
 }
 
 export interface LogisticRegressionOptions {
-  /** Names of the columns of X; default "x1", "x2", ... */
+  /** Names of the columns of X; default the `names` of a design matrix from buildDesignMatrix, else "x1", "x2", ... */
   names?: string[];
   /**
    * true: always fit Firth's penalized likelihood; false: never; absent (default): only when the
@@ -113,11 +113,16 @@ const FIRTH_TOLERANCE = 1e-10;
  * // => coefficients: (Intercept) 15.0429 (se 7.3786), temperature -0.23216 (se 0.10824);
  * //    deviance 20.3152, nullDeviance 28.2672, aic 24.3152
  */
-export function logisticRegression(X: number[][] | FlatMatrix, y: number[], opts: LogisticRegressionOptions = {}): LogisticRegressionResult {
+export function logisticRegression(
+  X: number[][] | (FlatMatrix & { names?: string[] }),
+  y: number[],
+  opts: LogisticRegressionOptions = {},
+): LogisticRegressionResult {
   const { design, predictorCount } = buildDesign(X);
   const { n, p } = design;
   assertBinaryLabels(FN, "y", y, n);
-  const names = opts.names ?? Array.from({ length: predictorCount }, (_, j) => `x${j + 1}`);
+  const designNames = Array.isArray(X) ? undefined : X.names;
+  const names = opts.names ?? designNames ?? Array.from({ length: predictorCount }, (_, j) => `x${j + 1}`);
   if (!Array.isArray(names) || names.length !== predictorCount || names.some((name) => typeof name !== "string")) {
     throw new Error(`${FN}: names has ${Array.isArray(names) ? names.length : "no"} entries but X has ${predictorCount} columns`);
   }

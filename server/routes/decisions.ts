@@ -1,0 +1,58 @@
+import type { OpenAPIRegistry } from "@asteasolutions/zod-to-openapi";
+import { studyParamsSchema } from "../../shared/schemas/common";
+import {
+  batchParamsSchema,
+  decisionListQuerySchema,
+  decisionListSchema,
+  decisionParamsSchema,
+  decisionRevertSchema,
+  revertConflictSchema,
+  revertResultSchema,
+} from "../../shared/schemas/decisions";
+import type { AppContext } from "../context";
+import { answeringDetails, documentErrorBody } from "../http/detailed";
+import { ApiRouter } from "../http/route";
+
+export function decisionsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRouter {
+  const api = new ApiRouter(registry, ctx);
+  const { decisions } = ctx.services;
+  documentErrorBody(registry, revertConflictSchema);
+
+  api.add({
+    method: "get",
+    path: "/studies/:studyId/decisions",
+    summary: "The coding decisions of a study, newest first, filtered by taxon, trait, import, person or batch",
+    tags: ["decisions"],
+    access: "study.read",
+    params: studyParamsSchema,
+    query: decisionListQuerySchema,
+    response: { status: 200, schema: decisionListSchema },
+    handler: ({ params, query }) => decisions.list(params.studyId, query),
+  });
+
+  api.add({
+    method: "post",
+    path: "/studies/:studyId/decisions/:decisionId/revert",
+    summary: "Put back the value a decision replaced (the revert is itself a decision)",
+    tags: ["decisions"],
+    access: "taxa.edit",
+    params: decisionParamsSchema,
+    body: decisionRevertSchema,
+    response: { status: 200, schema: revertResultSchema, description: "Reverted. 409 RevertConflict: the value changed since, naming the current value" },
+    handler: ({ params, body, user, res }) => answeringDetails(res, () => decisions.revert(params.studyId, params.decisionId, user!, body.reason)),
+  });
+
+  api.add({
+    method: "post",
+    path: "/studies/:studyId/decisions/batches/:batchId/revert",
+    summary: "Revert every decision of one edit (a bulk edit, a codebook remap) at once",
+    tags: ["decisions"],
+    access: "taxa.edit",
+    params: batchParamsSchema,
+    body: decisionRevertSchema,
+    response: { status: 200, schema: revertResultSchema, description: "Reverted. 409 RevertConflict: values changed since; nothing was reverted" },
+    handler: ({ params, body, user, res }) => answeringDetails(res, () => decisions.revertBatch(params.studyId, params.batchId, user!, body.reason)),
+  });
+
+  return api;
+}

@@ -1,0 +1,123 @@
+import type { OpenAPIRegistry } from "@asteasolutions/zod-to-openapi";
+import multer from "multer";
+import { studyParamsSchema } from "../../shared/schemas/common";
+import {
+  IMPORT_MAX_BYTES,
+  importCommitSchema,
+  importListQuerySchema,
+  importListSchema,
+  importParamsSchema,
+  importPreviewRequestSchema,
+  importPreviewSchema,
+  importProblemsErrorSchema,
+  importRevertResultSchema,
+  importRevertSchema,
+  importSummarySchema,
+  importUploadFormSchema,
+  importUploadSchema,
+} from "../../shared/schemas/imports";
+import { revertConflictSchema } from "../../shared/schemas/decisions";
+import type { AppContext } from "../context";
+import { answeringDetails, documentErrorBody } from "../http/detailed";
+import { badRequest } from "../http/errors";
+import { ApiRouter } from "../http/route";
+
+// Held in memory until the role check has passed; only then is it written to the upload folder,
+// so a refused upload leaves nothing behind.
+const upload = multer({ storage: multer.memoryStorage(), limits: { fileSize: IMPORT_MAX_BYTES, files: 1, fields: 10 } }).single("file");
+
+export function importsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRouter {
+  const api = new ApiRouter(registry, ctx);
+  const { imports } = ctx.services;
+  documentErrorBody(registry, importProblemsErrorSchema);
+  documentErrorBody(registry, revertConflictSchema);
+
+  api.add({
+    method: "post",
+    path: "/studies/:studyId/imports",
+    summary: "Upload a CSV file (at most 50 MB): columns, a suggested mapping and sample rows",
+    tags: ["imports"],
+    access: "imports.run",
+    params: studyParamsSchema,
+    before: [upload],
+    multipart: importUploadFormSchema,
+    response: { status: 201, schema: importUploadSchema, description: "Uploaded and read. 413: larger than 50 MB" },
+    handler: ({ params, user, req }) => {
+      const file = req.file;
+      if (!file) throw badRequest('Attach the CSV file as the form field "file".', { file: "A CSV file is required" });
+      return imports.upload(params.studyId, user!, file, ctx.config.uploadDir);
+    },
+  });
+
+  api.add({
+    method: "get",
+    path: "/studies/:studyId/imports",
+    summary: "Import history: who imported what and when, with counts",
+    tags: ["imports"],
+    access: "study.read",
+    params: studyParamsSchema,
+    query: importListQuerySchema,
+    response: { status: 200, schema: importListSchema },
+    handler: ({ params, query }) => imports.list(params.studyId, query),
+  });
+
+  api.add({
+    method: "get",
+    path: "/studies/:studyId/imports/:importId",
+    summary: "One import, with the progress of a running commit (poll it)",
+    tags: ["imports"],
+    access: "study.read",
+    params: importParamsSchema,
+    response: { status: 200, schema: importSummarySchema },
+    handler: ({ params }) => imports.get(params.studyId, params.importId),
+  });
+
+  api.add({
+    method: "post",
+    path: "/studies/:studyId/imports/:importId/preview",
+    summary: "Read the file through a mapping: every problem by row and column, and what a commit would change",
+    tags: ["imports"],
+    access: "imports.run",
+    params: importParamsSchema,
+    body: importPreviewRequestSchema,
+    response: { status: 200, schema: importPreviewSchema },
+    handler: ({ params, body }) => imports.preview(params.studyId, params.importId, body.mapping),
+  });
+
+  api.add({
+    method: "post",
+    path: "/studies/:studyId/imports/:importId/commit",
+    summary: "Write the valid rows in one transaction, or nothing; skipping invalid rows must be asked for",
+    tags: ["imports"],
+    access: "imports.run",
+    params: importParamsSchema,
+    body: importCommitSchema,
+    response: { status: 200, schema: importSummarySchema, description: "Committed. 400 ImportProblemsError: rows have problems and skipInvalid is false; nothing was written" },
+    handler: ({ params, body, user, res }) => answeringDetails(res, () => imports.commit(params.studyId, params.importId, user!, body)),
+  });
+
+  api.add({
+    method: "post",
+    path: "/studies/:studyId/imports/:importId/revert",
+    summary: "Put back the values an import replaced and remove the taxa it added",
+    tags: ["imports"],
+    access: "imports.run",
+    params: importParamsSchema,
+    body: importRevertSchema,
+    response: { status: 200, schema: importRevertResultSchema, description: "Reverted. 409 RevertConflict: values changed since the import (send skipChanged to leave those)" },
+    handler: ({ params, body, user, res }) => answeringDetails(res, () => imports.revert(params.studyId, params.importId, user!, body)),
+  });
+
+  api.add({
+    method: "delete",
+    path: "/studies/:studyId/imports/:importId",
+    summary: "Discard an upload that was not committed, and its stored file",
+    tags: ["imports"],
+    access: "imports.run",
+    params: importParamsSchema,
+    response: { status: 204 },
+    handler: ({ params }) => imports.discard(params.studyId, params.importId),
+  });
+
+  return api;
+}
