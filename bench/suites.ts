@@ -1,0 +1,11 @@
+// The benchmark suites `npm run bench` runs, in order. Each returns figures to print.
+export interface BenchFigure {
+  name: string;
+  value: number;
+  unit: string;
+  note?: string;
+}
+
+export const BENCHMARKS: Record<string, () => Promise<BenchFigure[]>> = {
+  stats: async () => (await import("./stats")).benchStats(),
+};
