@@ -7,6 +7,7 @@
 
 import { LogSumAccumulator, logFactorialTable } from "./distributions";
 import { createUniformSource, type UniformSource } from "./random";
+import { countAtMost } from "./sortedSearch";
 
 /** Two tables count as equally likely when their probabilities differ by less than this factor. */
 const LOG_RELATIVE_TOLERANCE = Math.log1p(1e-7);
@@ -159,18 +160,6 @@ function swap(keys: Float64Array, values: Float64Array, a: number, b: number): v
   const value = values[a];
   values[a] = values[b];
   values[b] = value;
-}
-
-/** Number of entries of the ascending array `sorted` that are <= x. */
-function countAtMost(sorted: Float64Array, x: number): number {
-  let low = 0;
-  let high = sorted.length;
-  while (low < high) {
-    const mid = (low + high) >> 1;
-    if (sorted[mid] <= x) low = mid + 1;
-    else high = mid;
-  }
-  return low;
 }
 
 /**

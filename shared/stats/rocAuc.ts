@@ -1,5 +1,6 @@
 import { twoSidedCriticalValue } from "./distributions";
 import { averageRanks } from "./ranks";
+import { countAtMost, countBelow } from "./sortedSearch";
 import { assertBinaryLabels, assertFiniteArray, assertLevel } from "./validate";
 
 export interface RocAucResult {
@@ -66,30 +67,6 @@ export function rocAuc(scores: number[], labels: number[], opts: { level?: numbe
   const se = Math.sqrt(sampleVariance(v10) / cases + sampleVariance(v01) / controls);
   const z = twoSidedCriticalValue(level);
   return { auc, se, ci: [Math.max(0, auc - z * se), Math.min(1, auc + z * se)], level, mannWhitneyU, cases, controls };
-}
-
-/** Number of entries of the ascending array strictly below x. */
-function countBelow(sorted: number[], x: number): number {
-  let low = 0;
-  let high = sorted.length;
-  while (low < high) {
-    const mid = (low + high) >> 1;
-    if (sorted[mid] < x) low = mid + 1;
-    else high = mid;
-  }
-  return low;
-}
-
-/** Number of entries of the ascending array at most x. */
-function countAtMost(sorted: number[], x: number): number {
-  let low = 0;
-  let high = sorted.length;
-  while (low < high) {
-    const mid = (low + high) >> 1;
-    if (sorted[mid] <= x) low = mid + 1;
-    else high = mid;
-  }
-  return low;
 }
 
 function sampleVariance(values: number[]): number {
