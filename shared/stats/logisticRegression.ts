@@ -133,6 +133,7 @@ export function logisticRegression(
   const tolerance = opts.tolerance ?? 1e-8;
   if (!Number.isInteger(maxIterations) || maxIterations < 1) throw new Error(`${FN}: maxIterations is ${maxIterations}; it must be a positive integer`);
   if (!(tolerance > 0)) throw new Error(`${FN}: tolerance is ${tolerance}; it must be positive`);
+  if (opts.firth !== undefined && typeof opts.firth !== "boolean") throw new Error(`${FN}: firth must be true, false or left out`);
   const firthIntervals = opts.firthIntervals ?? "auto";
   if (!["auto", "profile", "wald"].includes(firthIntervals)) {
     throw new Error(`${FN}: firthIntervals is "${String(firthIntervals)}"; use "auto", "profile" or "wald"`);

@@ -197,5 +197,6 @@ describe("rejects impossible input", () => {
     expect(() => logisticRegression(X, [0, 1, 0, 1], { names: ["a", "b"] })).toThrow("names has 2 entries but X has 1 columns");
     expect(() => logisticRegression(X, [0, 1, 0, 1], { terms: [{ name: "t", columns: [3] }] })).toThrow('term "t" names column 3');
     expect(() => logisticRegression(X, [0, 1, 0, 1], { level: -1 })).toThrow("level is -1");
+    expect(() => logisticRegression(X, [0, 1, 0, 1], { firth: "yes" as unknown as boolean })).toThrow("firth must be true, false or left out");
   });
 });
