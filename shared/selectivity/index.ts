@@ -14,6 +14,7 @@ export { countCladeStates, stateContrasts, type CladeStateCounts } from "./state
 export { scaleNumericTrait, numericStep, numericPredictorLabel, type NumericScaling } from "./scaleNumericTrait";
 export { testNumericTrait, plainMessage, type NumericTraitTest } from "./testNumericTrait";
 export { cladeAdjustedSlope } from "./cladeAdjustedSlope";
+export { fitStratifiedSlope, type StratifiedSlopeFit } from "./stratifiedSlope";
 export { fitSelectivityModel, type ModelTraitInput, type SelectivityModelFit } from "./fitSelectivityModel";
 export { confoundingCheck, relativeChange, type ConfoundingContext } from "./confoundingCheck";
 export { formatNumber } from "./formatNumber";

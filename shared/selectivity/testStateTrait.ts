@@ -1,4 +1,5 @@
 import { fisherExact } from "../stats";
+import { formatNumber } from "./formatNumber";
 import type { StateCounts } from "./stateTable";
 import type { SelectivityTraitSpec } from "./types";
 
@@ -38,8 +39,14 @@ export function testStateTrait(spec: SelectivityTraitSpec, counts: StateCounts):
   if (result.method === "exact-2x2") return { method: `Fisher exact test, ${shape}, two-sided`, pValue: result.pValue };
   if (result.method === "exact-rxc") return { method: `Fisher-Freeman-Halton exact test, ${shape}, two-sided`, pValue: result.pValue };
   const mc = result.monteCarlo;
-  const detail = mc ? ` from ${mc.replicates.toLocaleString("en-US")} random tables with the observed margins (seed ${mc.seed}, standard error ${mc.standardError.toPrecision(2)})` : "";
-  return { method: `Fisher-Freeman-Halton test, ${shape}, two-sided; p-value estimated${detail} because exact enumeration would take too long`, pValue: result.pValue };
+  const replicates = mc ? mc.replicates : 0;
+  const tables = `${replicates.toLocaleString("en-US")} random tables with the observed margins (seed ${mc?.seed ?? ""})`;
+  // (1 + hits) / (1 + B) = 1 / (1 + B) means no random table was as extreme: p is only bounded.
+  const floor = mc !== undefined && Math.abs(result.pValue * (1 + replicates) - 1) < 1e-9;
+  const detail = floor
+    ? `none of ${tables} was as extreme as the observed one, so p is at most ${formatNumber(result.pValue)}, reported as that bound`
+    : `p estimated from ${tables}, standard error ${formatNumber(mc?.standardError ?? NaN)}`;
+  return { method: `Fisher-Freeman-Halton test, ${shape}, two-sided, by Monte Carlo because exact enumeration would take too long: ${detail}`, pValue: result.pValue };
 }
 
 /** Why no test is possible, or null when it is. */
