@@ -16,3 +16,17 @@ export function formatNumber(value: number): string {
   if (magnitude >= 1) return value.toFixed(2);
   return value.toPrecision(3);
 }
+
+/**
+ * A number for a short label, three significant figures without trailing zeros: 2 -> "2",
+ * 13.04 -> "13", 0.4529 -> "0.453", 1234.5 -> "1230".
+ *
+ * @example
+ * formatCompact(2.0) // => "2"
+ */
+export function formatCompact(value: number): string {
+  if (!Number.isFinite(value)) return String(value);
+  const rounded = Number(value.toPrecision(3));
+  const magnitude = Math.abs(rounded);
+  return magnitude !== 0 && (magnitude >= 1e6 || magnitude < 1e-4) ? rounded.toPrecision(3) : String(rounded);
+}

@@ -17,4 +17,4 @@ export { cladeAdjustedSlope } from "./cladeAdjustedSlope";
 export { fitStratifiedSlope, type StratifiedSlopeFit } from "./stratifiedSlope";
 export { fitSelectivityModel, type ModelTraitInput, type SelectivityModelFit } from "./fitSelectivityModel";
 export { confoundingCheck, relativeChange, type ConfoundingContext } from "./confoundingCheck";
-export { formatNumber } from "./formatNumber";
+export { formatCompact, formatNumber } from "./formatNumber";

@@ -1,4 +1,4 @@
-import { formatNumber } from "./formatNumber";
+import { formatCompact } from "./formatNumber";
 import { proportionRow } from "./stateTable";
 import type { StateRow } from "./types";
 
@@ -11,7 +11,7 @@ import type { StateRow } from "./types";
  *
  * @example
  * quartileBins(Float64Array.of(1, 2, 3, 4, 5, 6, 7, 8), Uint8Array.of(1, 1, 0, 1, 0, 0, 1, 0), 0.95, "mm")
- * // => Q1 "1.00–2.00 mm" (2 victims, 0 survivors), Q2 "3.00–4.00 mm" (1, 1), Q3 "5.00–6.00 mm" (0, 2), Q4 "7.00–8.00 mm" (1, 1)
+ * // => Q1 "1–2 mm" (2 victims, 0 survivors), Q2 "3–4 mm" (1, 1), Q3 "5–6 mm" (0, 2), Q4 "7–8 mm" (1, 1)
  */
 export function quartileBins(raw: Float64Array, outcome: Uint8Array, level: number, unit?: string | null): StateRow[] {
   let m = 0;
@@ -41,7 +41,7 @@ export function quartileBins(raw: Float64Array, outcome: Uint8Array, level: numb
   const rows: StateRow[] = [];
   for (let bin = 0; bin < 4; bin++) {
     if (victims[bin] + survivors[bin] === 0) continue;
-    const range = lows[bin] === highs[bin] ? formatNumber(lows[bin]) : `${formatNumber(lows[bin])}–${formatNumber(highs[bin])}`;
+    const range = lows[bin] === highs[bin] ? formatCompact(lows[bin]) : `${formatCompact(lows[bin])}–${formatCompact(highs[bin])}`;
     rows.push(proportionRow(`Q${bin + 1}`, `${range}${suffix}`, victims[bin], survivors[bin], level));
   }
   return rows;
