@@ -19,6 +19,7 @@ import { timescaleRouter } from "./routes/timescale";
 import { outcomesRouter } from "./routes/outcomes";
 import { overridesRouter } from "./routes/overrides";
 import { ratesRouter } from "./routes/rates";
+import { runsRouter } from "./routes/runs";
 import { traitsRouter } from "./routes/traits";
 import { taxaRouter } from "./routes/taxa";
 import { decisionsRouter } from "./routes/decisions";
@@ -31,7 +32,7 @@ export interface BuiltApp {
   routes: RegisteredRoute[];
 }
 
-const RESOURCE_ROUTERS = [healthRouter, authRouter, studiesRouter, membersRouter, invitationsRouter, outboxRouter, timescaleRouter, outcomesRouter, overridesRouter, ratesRouter, traitsRouter, taxaRouter, decisionsRouter, importsRouter, exportsRouter];
+const RESOURCE_ROUTERS = [healthRouter, authRouter, studiesRouter, membersRouter, invitationsRouter, outboxRouter, timescaleRouter, outcomesRouter, overridesRouter, ratesRouter, runsRouter, traitsRouter, taxaRouter, decisionsRouter, importsRouter, exportsRouter];
 
 export function buildOpenApi(registry: OpenAPIRegistry) {
   registry.registerComponent("securitySchemes", "session", { type: "apiKey", in: "cookie", name: "ss_session" });

@@ -28,6 +28,7 @@ export async function createContext(config: AppConfig): Promise<RunningContext> 
   const services = createServices(database.db, mailer, config.appUrl, { jobs, workers });
   // Every app process works the shared queue; the services registered their job kinds above.
   await jobs.start();
+  services.runs.startSweeping();
   return {
     config,
     db: database.db,
@@ -38,6 +39,7 @@ export async function createContext(config: AppConfig): Promise<RunningContext> 
     workers,
     fakeSmtp,
     async close() {
+      await services.runs.stopSweeping();
       await jobs.stop();
       await workers.close();
       mailer.close();

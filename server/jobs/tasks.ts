@@ -1,5 +1,8 @@
 // Computations that run off the request thread. Each is a pure function of plain data (the
 // statistics never touch the database); `progress` reports a fraction in [0, 1] and a note.
+import { analyzeSelectivity } from "../../shared/selectivity/index";
+import type { SelectivityTaskInput, SelectivityTaskOutput } from "../services/runs";
+
 export type ProgressReporter = (fraction: number, note?: string) => void;
 export type WorkerTask = (input: any, progress: ProgressReporter) => unknown | Promise<unknown>;
 
@@ -12,5 +15,16 @@ export const WORKER_TASKS: Record<string, WorkerTask> = {
       progress((i + 1) / input.values.length, `added ${i + 1} of ${input.values.length}`);
     });
     return total;
+  },
+
+  /** A run's selectivity analyses, one per boundary, reporting progress as each starts and ends. */
+  selectivity: (input: SelectivityTaskInput, progress): SelectivityTaskOutput => {
+    const n = input.analyses.length;
+    return input.analyses.map(({ label, input: analysis }, i) => {
+      progress(i / n, `Testing selectivity across ${label} (${i + 1} of ${n})`);
+      const result = analyzeSelectivity(analysis);
+      progress((i + 1) / n, `Tested selectivity across ${label} (${i + 1} of ${n})`);
+      return result;
+    });
   },
 };

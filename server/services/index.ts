@@ -8,6 +8,7 @@ import { createStudyService } from "./studies";
 import { createUserService } from "./users";
 import { createTimescaleService } from "./timescale";
 import { createOutcomeService } from "./outcomes";
+import { createRunService } from "./runs";
 import { createTraitService } from "./traits";
 import { createTaxonService } from "./taxa";
 import { createDecisionService } from "./decisions";
@@ -21,7 +22,6 @@ export interface Runtime {
 }
 
 export function createServices(db: Database, mailer: Mailer, appUrl: string, runtime: Runtime) {
-  void runtime; // handed to the services that queue jobs (runs, comparisons)
   return {
     users: createUserService(db),
     studies: createStudyService(db),
@@ -29,6 +29,7 @@ export function createServices(db: Database, mailer: Mailer, appUrl: string, run
     outbox: createOutboxService(db),
     timescale: createTimescaleService(db),
     outcomes: createOutcomeService(db),
+    runs: createRunService(db, runtime, { outcomes: createOutcomeService(db), traits: createTraitService(db) }),
     traits: createTraitService(db),
     taxa: createTaxonService(db),
     decisions: createDecisionService(db),

@@ -212,6 +212,7 @@ export const contrastResultSchema = z
     changeOnCladeAdjustment: z.number().nullable(),
     changeOnModelAdjustment: z.number().nullable(),
     flagged: z.boolean().meta({ description: "The confounding check: the odds ratio moves by more than the threshold on adjustment" }),
+    notes: z.array(z.string()).meta({ description: "Why an adjusted odds ratio is missing, or what limits it" }),
   })
   .meta({ id: "SelectivityContrast" });
 
@@ -223,9 +224,14 @@ export const traitResultSchema = z
     used: z.number().int(),
     droppedMissing: z.number().int(),
     table: z.array(stateRowSchema),
-    test: z.object({ method: z.string(), pValue: z.number(), adjustedPValue: z.number(), statistic: z.number().optional(), df: z.number().optional() }),
+    test: z
+      .object({ method: z.string(), pValue: z.number().nullable(), adjustedPValue: z.number().nullable(), statistic: z.number().optional(), df: z.number().optional() })
+      .meta({ description: "p-values are null when no test was possible; the method says why" }),
     contrasts: z.array(contrastResultSchema),
     confoundingNote: z.string().nullable(),
+    reference: z.string().nullable().meta({ description: "Reference state of the odds ratios (null for numeric traits, or when no state has taxa)" }),
+    droppedInvalid: z.number().int().meta({ description: "Taxa left out for a value that cannot be used" }),
+    notes: z.array(z.string()).meta({ description: "What was left out and why, the reference chosen, how numbers were scaled" }),
   })
   .meta({ id: "SelectivityTraitResult" });
 
@@ -237,10 +243,23 @@ const encodingColumnSchema = z.union([
 export const modelResultSchema = z
   .object({
     n: z.number().int(),
+    victims: z.number().int(),
+    droppedIncomplete: z.number().int().meta({ description: "Taxa left out because a chosen trait had no usable value" }),
+    method: z.string(),
     coefficients: z.array(
-      z.object({ name: z.string(), estimate: z.number(), se: z.number(), z: z.number(), pValue: z.number(), ci: ciSchema, oddsRatio: z.number() }),
+      z.object({
+        name: z.string(),
+        estimate: z.number(),
+        se: z.number(),
+        z: z.number(),
+        pValue: z.number(),
+        ci: ciSchema,
+        oddsRatio: z.number(),
+        oddsRatioCi: ciSchema,
+        label: z.string(),
+      }),
     ),
-    terms: z.array(z.object({ name: z.string(), df: z.number(), chiSquare: z.number(), pValue: z.number() })),
+    terms: z.array(z.object({ name: z.string(), df: z.number(), chiSquare: z.number(), pValue: z.number(), label: z.string() })).meta({ description: "Likelihood ratio test per trait; name is the trait key" }),
     deviance: z.number(),
     nullDeviance: z.number(),
     aic: z.number(),
@@ -248,8 +267,17 @@ export const modelResultSchema = z
     firth: z.boolean(),
     firthReason: z.enum(["separation", "requested"]).nullable(),
     separatedPredictors: z.array(z.string()),
-    encoding: z.object({ columns: z.array(encodingColumnSchema) }),
+    encoding: z.object({
+      traits: z.array(
+        z.union([
+          z.object({ key: z.string(), label: z.string(), kind: z.literal("states"), reference: z.string(), states: z.array(z.string()) }),
+          z.object({ key: z.string(), label: z.string(), kind: z.literal("numeric"), transform: numericTransformSchema, center: z.number(), scale: z.number() }),
+        ]),
+      ),
+      columns: z.array(encodingColumnSchema),
+    }),
     covariance: z.array(z.array(z.number())),
+    notes: z.array(z.string()),
   })
   .meta({ id: "SelectivityModel" });
 

@@ -3,9 +3,10 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { randomUUID } from "node:crypto";
 import request, { type Response } from "supertest";
+import { and, eq } from "drizzle-orm";
 import { STUDY_ROLES } from "../../shared/roles";
 import { createTestApp, PASSWORD, signedInAgent, uniqueEmail, type TestApp } from "../support/server";
-import { memberships, outcomeOverrides, taxa } from "../../db/schema/index";
+import { memberships, outcomeOverrides, runs, taxa, traits } from "../../db/schema/index";
 import { castOfRoles, EVERYONE, type Cast, type Who } from "./fixtures";
 
 type Agent = Cast["anonymous"];
@@ -20,6 +21,40 @@ interface Row {
 const SIGNED_IN: Who[] = ["stranger", ...STUDY_ROLES];
 const MEMBERS: Who[] = [...STUDY_ROLES];
 const OUTCOME_EDITORS: Who[] = ["owner", "coder", "analyst"];
+const RUN_CREATORS: Who[] = ["owner", "analyst"];
+
+/** A binary trait and a few invented taxa across 66 Ma, and run parameters that test the trait. */
+async function matrixRunStudy(studyId: string) {
+  const [existing] = await app.ctx.db.select().from(traits).where(and(eq(traits.studyId, studyId), eq(traits.key, "environment")));
+  if (existing) return { name: "Matrix run", boundaries: [{ boundaryMa: 66 }], traits: [{ traitId: existing.id }] };
+  const [trait] = await app.ctx.db
+    .insert(traits)
+    .values({ studyId, key: "environment", label: "Environment", kind: "binary", states: [{ code: "marine", label: "Marine", order: 0 }, { code: "nonmarine", label: "Non-marine", order: 1 }] })
+    .returning();
+  await app.ctx.db.insert(taxa).values(
+    Array.from({ length: 8 }, (_, i) => ({ studyId, name: `Matrixella ${i} ${randomUUID().slice(0, 4)}`, fadMa: 70, ladMa: i % 2 ? 67 : 60, traitValues: { [trait.id]: i % 3 ? "marine" : "nonmarine" } })),
+  );
+  return { name: "Matrix run", boundaries: [{ boundaryMa: 66 }], traits: [{ traitId: trait.id }] };
+}
+
+/** A stored run of the study, as a finished job would leave it. */
+async function matrixRun(studyId: string, status: "succeeded" | "failed" = "succeeded") {
+  const params = await matrixRunStudy(studyId);
+  const [run] = await app.ctx.db
+    .insert(runs)
+    .values({
+      studyId,
+      name: "Matrix run",
+      status,
+      params: { ...params, stratifyBy: "higherTaxon", correction: "bh", forceFirth: false, level: 0.95, confoundingThreshold: 0.1 },
+      appVersion: "0.0.0",
+      results: status === "succeeded" ? { boundaries: [], traits: [], cautions: [] } : null,
+      error: status === "failed" ? "Matrix failure" : null,
+    })
+    .returning();
+  return run;
+}
+
 
 /** A new invented taxon in the study, for rows that need one to act on. */
 async function matrixTaxon(studyId: string) {
@@ -111,6 +146,45 @@ const MATRIX: Record<string, Row> = {
       const [override] = await app.ctx.db.insert(outcomeOverrides).values({ studyId, taxonId: taxon.id, outcome: "victim", reason: "Matrix" }).returning();
       return a.post(`/api/studies/${studyId}/outcome-overrides/${override.id}/revoke`).send({ reason: "Matrix" });
     },
+  },
+  "POST /api/studies/{studyId}/runs/preview": {
+    allowed: MEMBERS,
+    freshStudy: true,
+    call: async (a, { studyId }) => a.post(`/api/studies/${studyId}/runs/preview`).send(await matrixRunStudy(studyId)),
+  },
+  "POST /api/studies/{studyId}/runs": {
+    allowed: RUN_CREATORS,
+    freshStudy: true,
+    call: async (a, { studyId }) => a.post(`/api/studies/${studyId}/runs`).send(await matrixRunStudy(studyId)),
+  },
+  "GET /api/studies/{studyId}/runs": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/runs`) },
+  "GET /api/studies/{studyId}/runs/{runId}": {
+    allowed: MEMBERS,
+    freshStudy: true,
+    call: async (a, { studyId }) => a.get(`/api/studies/${studyId}/runs/${(await matrixRun(studyId)).id}`),
+  },
+  "POST /api/studies/{studyId}/runs/{runId}/retry": {
+    allowed: RUN_CREATORS,
+    freshStudy: true,
+    call: async (a, { studyId }) => a.post(`/api/studies/${studyId}/runs/${(await matrixRun(studyId, "failed")).id}/retry`),
+  },
+  "POST /api/studies/{studyId}/runs/{runId}/rerun": {
+    allowed: RUN_CREATORS,
+    freshStudy: true,
+    call: async (a, { studyId }) => a.post(`/api/studies/${studyId}/runs/${(await matrixRun(studyId)).id}/rerun`).send({}),
+  },
+  "GET /api/studies/{studyId}/runs/{runId}/diff": {
+    allowed: MEMBERS,
+    freshStudy: true,
+    call: async (a, { studyId }) => {
+      const [base, run] = [await matrixRun(studyId), await matrixRun(studyId)];
+      return a.get(`/api/studies/${studyId}/runs/${run.id}/diff?against=${base.id}`);
+    },
+  },
+  "GET /api/studies/{studyId}/runs/{runId}/export": {
+    allowed: MEMBERS,
+    freshStudy: true,
+    call: async (a, { studyId }) => a.get(`/api/studies/${studyId}/runs/${(await matrixRun(studyId)).id}/export?format=csv`),
   },
   // The fake mailbox is for study leads. Earlier rows made everyone create a study of their own,
   // so the non-owner cells use a newcomer who holds only that role (or, as stranger, none).
