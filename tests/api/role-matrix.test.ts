@@ -8,6 +8,7 @@ import { STUDY_ROLES } from "../../shared/roles";
 import { createTestApp, PASSWORD, signedInAgent, uniqueEmail, type TestApp } from "../support/server";
 import { memberships, outcomeOverrides, runs, taxa, traits } from "../../db/schema/index";
 import { castOfRoles, EVERYONE, type Cast, type Who } from "./fixtures";
+import { codedImport, codedTaxon, codedTrait, uploadCsv } from "../support/traitTables";
 
 type Agent = Cast["anonymous"];
 interface Row {
@@ -186,6 +187,87 @@ const MATRIX: Record<string, Row> = {
     freshStudy: true,
     call: async (a, { studyId }) => a.get(`/api/studies/${studyId}/runs/${(await matrixRun(studyId)).id}/export?format=csv`),
   },
+  // Trait tables: codebook, taxa, coding decisions, imports, exports. What a call needs (a trait, a
+  // taxon with a decision, an upload) is written directly or by the owner, so only the call is judged.
+  // Reads use a fresh study: an earlier row lets the stranger accept an invitation to the shared one.
+  "GET /api/studies/{studyId}/traits": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/traits`) },
+  "POST /api/studies/{studyId}/traits": {
+    allowed: ["owner", "coder"],
+    call: (a, { studyId }) => a.post(`/api/studies/${studyId}/traits`).send({ key: `matrix_${randomUUID().slice(0, 8)}`, label: "Matrix trait", kind: "numeric" }),
+  },
+  "PATCH /api/studies/{studyId}/traits/{traitId}": {
+    allowed: ["owner", "coder"],
+    call: async (a, { studyId }) => a.patch(`/api/studies/${studyId}/traits/${await codedTrait(app, studyId)}`).send({ label: "Renamed trait" }),
+  },
+  "POST /api/studies/{studyId}/traits/reorder": {
+    allowed: ["owner", "coder"],
+    freshStudy: true,
+    call: async (a, { studyId }) => a.post(`/api/studies/${studyId}/traits/reorder`).send({ traitIds: [await codedTrait(app, studyId)] }),
+  },
+  "GET /api/studies/{studyId}/traits/{traitId}/usage": {
+    allowed: MEMBERS,
+    freshStudy: true,
+    call: async (a, { studyId }) => a.get(`/api/studies/${studyId}/traits/${await codedTrait(app, studyId)}/usage`),
+  },
+  "GET /api/studies/{studyId}/taxa": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/taxa?pageSize=5`) },
+  "POST /api/studies/{studyId}/taxa": { allowed: ["owner", "coder"], call: (a, { studyId }) => a.post(`/api/studies/${studyId}/taxa`).send({ name: `Matrix ${randomUUID()}` }) },
+  "POST /api/studies/{studyId}/taxa/bulk": {
+    allowed: ["owner", "coder"],
+    call: async (a, { studyId }) =>
+      a.post(`/api/studies/${studyId}/taxa/bulk`).send({ taxonIds: [(await codedTaxon(app, studyId)).taxonId], field: "notes", value: "b", reason: "Matrix" }),
+  },
+  "GET /api/studies/{studyId}/taxa/{taxonId}": { allowed: MEMBERS, freshStudy: true, call: async (a, { studyId }) => a.get(`/api/studies/${studyId}/taxa/${(await codedTaxon(app, studyId)).taxonId}`) },
+  "PATCH /api/studies/{studyId}/taxa/{taxonId}": {
+    allowed: ["owner", "coder"],
+    call: async (a, { studyId }) =>
+      a.patch(`/api/studies/${studyId}/taxa/${(await codedTaxon(app, studyId)).taxonId}`).send({ version: 1, changes: { notes: "b" }, reason: "Matrix" }),
+  },
+  "DELETE /api/studies/{studyId}/taxa/{taxonId}": {
+    allowed: ["owner", "coder"],
+    call: async (a, { studyId }) => a.delete(`/api/studies/${studyId}/taxa/${(await codedTaxon(app, studyId)).taxonId}?version=1&reason=Matrix`),
+  },
+  "GET /api/studies/{studyId}/taxa/{taxonId}/history": {
+    allowed: MEMBERS,
+    freshStudy: true,
+    call: async (a, { studyId }) => a.get(`/api/studies/${studyId}/taxa/${(await codedTaxon(app, studyId)).taxonId}/history`),
+  },
+  "GET /api/studies/{studyId}/decisions": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/decisions`) },
+  "POST /api/studies/{studyId}/decisions/{decisionId}/revert": {
+    allowed: ["owner", "coder"],
+    call: async (a, { studyId }) => a.post(`/api/studies/${studyId}/decisions/${(await codedTaxon(app, studyId)).decisionId}/revert`).send({ reason: "Matrix" }),
+  },
+  "POST /api/studies/{studyId}/decisions/batches/{batchId}/revert": {
+    allowed: ["owner", "coder"],
+    call: async (a, { studyId }) => a.post(`/api/studies/${studyId}/decisions/batches/${(await codedTaxon(app, studyId)).batchId}/revert`).send({ reason: "Matrix" }),
+  },
+  "POST /api/studies/{studyId}/imports": { allowed: ["owner", "coder"], call: (a, { studyId }) => uploadCsv(a, studyId, "name\nMatrixella\n") },
+  "GET /api/studies/{studyId}/imports": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/imports`) },
+  "GET /api/studies/{studyId}/imports/{importId}": {
+    allowed: MEMBERS,
+    freshStudy: true,
+    call: async (a, { studyId, cast }) => a.get(`/api/studies/${studyId}/imports/${await codedImport(cast.people.owner.agent, studyId, false)}`),
+  },
+  "POST /api/studies/{studyId}/imports/{importId}/preview": {
+    allowed: ["owner", "coder"],
+    call: async (a, { studyId, cast }) =>
+      a.post(`/api/studies/${studyId}/imports/${await codedImport(cast.people.owner.agent, studyId, false)}/preview`).send({ mapping: { name: "name" } }),
+  },
+  "POST /api/studies/{studyId}/imports/{importId}/commit": {
+    allowed: ["owner", "coder"],
+    call: async (a, { studyId, cast }) =>
+      a.post(`/api/studies/${studyId}/imports/${await codedImport(cast.people.owner.agent, studyId, false)}/commit`).send({ mapping: { name: "name" }, skipInvalid: false }),
+  },
+  "POST /api/studies/{studyId}/imports/{importId}/revert": {
+    allowed: ["owner", "coder"],
+    call: async (a, { studyId, cast }) => a.post(`/api/studies/${studyId}/imports/${await codedImport(cast.people.owner.agent, studyId, true)}/revert`).send({}),
+  },
+  "DELETE /api/studies/{studyId}/imports/{importId}": {
+    allowed: ["owner", "coder"],
+    call: async (a, { studyId, cast }) => a.delete(`/api/studies/${studyId}/imports/${await codedImport(cast.people.owner.agent, studyId, false)}`),
+  },
+  "GET /api/studies/{studyId}/exports/template.csv": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/exports/template.csv`) },
+  "GET /api/studies/{studyId}/exports/taxa.csv": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/exports/taxa.csv?form=long`) },
+  "GET /api/studies/{studyId}/exports/codebook.csv": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/exports/codebook.csv`) },
   // The fake mailbox is for study leads. Earlier rows made everyone create a study of their own,
   // so the non-owner cells use a newcomer who holds only that role (or, as stranger, none).
   "GET /api/outbox": {
