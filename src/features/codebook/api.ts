@@ -57,12 +57,12 @@ export function useUpdateTrait(studyId: string) {
   });
 }
 
-/** PUT /api/studies/:studyId/traits/order: the new order of every trait; shown at once, undone if refused. */
+/** POST /api/studies/:studyId/traits/reorder: the new order of every trait; shown at once, undone if refused. */
 export function useReorderTraits(studyId: string) {
   const queryClient = useQueryClient();
   const key = queryKeys.traits.list(studyId);
   return useMutation({
-    mutationFn: (input: TraitReorderInput) => api.put<TraitList>(`${traitsPath(studyId)}/order`, input),
+    mutationFn: (input: TraitReorderInput) => api.post<TraitList>(`${traitsPath(studyId)}/reorder`, input),
     onMutate: async (input) => {
       await queryClient.cancelQueries({ queryKey: key });
       const before = queryClient.getQueryData<TraitList>(key);

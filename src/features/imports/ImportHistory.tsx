@@ -13,7 +13,7 @@ import { TextField } from "../../components/TextField";
 import { useToast } from "../../components/Toast";
 import { ApiError, errorMessage } from "../../lib/api";
 import { formatCount, formatDateTime, pluralize } from "../../lib/format";
-import { useImportDecisions, useImports, useRevertImport } from "./api";
+import { useDiscardImport, useImportDecisions, useImports, useRevertImport } from "./api";
 import { fieldLabel, formatImportValue } from "./formatValue";
 
 const STATUS: Record<ImportSummary["status"], { label: string; tone: string }> = {
@@ -36,6 +36,8 @@ export function ImportHistory({ studyId, traits, canRevert }: ImportHistoryProps
   const imports = useImports(studyId, page);
   const [open, setOpen] = useState<string | null>(null);
   const [reverting, setReverting] = useState<ImportSummary | null>(null);
+  // An upload never committed keeps its file on the server until it is discarded.
+  const discard = useDiscardImport(studyId);
 
   const total = imports.data?.total ?? 0;
   const pages = Math.max(1, Math.ceil(total / (imports.data?.pageSize ?? 20)));
@@ -47,6 +49,7 @@ export function ImportHistory({ studyId, traits, canRevert }: ImportHistoryProps
       {imports.isSuccess && total === 0 && (
         <EmptyState headingLevel={3} title="Nothing imported yet" description="Imported files are listed here with their counts, and can be reverted." className="py-8" />
       )}
+      {discard.isError && <p className="mb-3 text-sm font-medium text-red-700" role="alert">The upload was not discarded: {errorMessage(discard.error)}</p>}
       {imports.isSuccess && total > 0 && (
         <>
           <ul className="-my-3 divide-y divide-stone-100">
@@ -78,6 +81,11 @@ export function ImportHistory({ studyId, traits, canRevert }: ImportHistoryProps
                     )}
                     {item.failureReason && <p className="text-sm text-red-700">Last attempt failed, nothing was written: {item.failureReason}</p>}
                   </div>
+                  {item.status === "previewed" && canRevert && (
+                    <Button variant="ghost" size="sm" className="shrink-0" busy={discard.isPending && discard.variables === item.id} onClick={() => discard.mutate(item.id)}>
+                      Discard upload<span className="sr-only"> {item.fileName}</span>
+                    </Button>
+                  )}
                   {(item.status === "committed" || item.status === "reverted") && (
                     <div className="flex shrink-0 gap-2">
                       <Button variant="ghost" size="sm" aria-expanded={open === item.id} onClick={() => setOpen(open === item.id ? null : item.id)}>

@@ -40,7 +40,6 @@ export function PreviewStep({ studyId, mapping, preview, traits, onBack, onCommi
       ? ((commit.error.body as { problems?: ImportPreview["problems"] })?.problems ?? null)
       : null;
   const problems = refusedProblems ?? preview.problems;
-  const canCommit = counts.valid > 0 && (counts.invalid === 0 || skipInvalid);
 
   function submit(event: FormEvent<HTMLFormElement>) {
     event.preventDefault();
@@ -193,7 +192,7 @@ export function PreviewStep({ studyId, mapping, preview, traits, onBack, onCommi
           <Button variant="ghost" onClick={onBack} disabled={commit.isPending}>
             Back to the mapping
           </Button>
-          <Button type="submit" busy={commit.isPending} aria-disabled={!canCommit || undefined}>
+          <Button type="submit" busy={commit.isPending}>
             Import {pluralize(counts.valid, "row")}
           </Button>
         </div>

@@ -104,15 +104,16 @@ export function FilterBar(props: FilterBarProps) {
 
   return (
     <section aria-label="Filters" className="rounded-xl border border-stone-200 bg-white px-4 py-3 shadow-[0_1px_2px_rgb(28_25_23/0.04)]">
-      <div className="flex flex-wrap items-end gap-x-4 gap-y-3">
+      <div className="flex flex-wrap items-end gap-x-3 gap-y-3">
         <TextField
           label="Search names"
           type="search"
           placeholder="e.g. Vessir"
           value={nameSearch}
           onChange={(e) => props.onNameSearch(e.target.value)}
-          className="w-56"
+          className="w-44"
         />
+        <div className="mx-1 hidden h-10 w-px self-end bg-stone-200 sm:block" aria-hidden="true" />
         <form noValidate onSubmit={add} className="flex flex-wrap items-end gap-2" aria-label="Add a filter">
           <Select
             label="Filter column"
@@ -125,7 +126,7 @@ export function FilterBar(props: FilterBarProps) {
               setValue("");
               setError(undefined);
             }}
-            className="w-44"
+            className="w-36"
           />
           <Select
             label="Condition"
@@ -135,7 +136,7 @@ export function FilterBar(props: FilterBarProps) {
               setConditionValue(e.target.value);
               setError(undefined);
             }}
-            className="w-44"
+            className="w-36"
           />
           {condition?.op !== "missing" &&
             (stateColumn ? (
@@ -148,7 +149,7 @@ export function FilterBar(props: FilterBarProps) {
                   setValue(e.target.value);
                   setError(undefined);
                 }}
-                className="w-44"
+                className="w-36"
               />
             ) : (
               <TextField
@@ -160,18 +161,19 @@ export function FilterBar(props: FilterBarProps) {
                   setValue(e.target.value);
                   setError(undefined);
                 }}
-                className="w-40"
+                className="w-32"
               />
             ))}
           <Button type="submit" variant="secondary" className={error ? "mb-7" : undefined}>
             Add filter
           </Button>
         </form>
-        <label className="flex h-10 items-center gap-2 text-sm font-medium text-stone-800">
-          <input type="checkbox" className="size-4 accent-accent-600" checked={hasOpenThread} onChange={(e) => props.onOpenThreadChange(e.target.checked)} />
-          Only taxa with an open thread
-        </label>
       </div>
+      <label className="mt-3 flex w-fit items-center gap-2 text-sm font-medium text-stone-800">
+        <input type="checkbox" className="size-4 accent-accent-600" checked={hasOpenThread} onChange={(e) => props.onOpenThreadChange(e.target.checked)} />
+        Only taxa with an open thread
+        <span className="inline-block size-2 rounded-full bg-caution-700" aria-hidden="true" />
+      </label>
       {chips > 0 && (
         <ul className="mt-3 flex flex-wrap items-center gap-2" aria-label="Active filters">
           {filters.map((f, i) => (

@@ -90,7 +90,7 @@ function CellContent({ column, row }: { column: GridColumn; row: TaxonRow }) {
   const outsideCodebook =
     column.kind === "trait" && column.trait.kind !== "numeric" && !isEmptyValue(value) && !column.trait.states.some((s) => s.code === value);
   return (
-    <span className="flex min-w-0 items-center">
+    <span className="flex min-w-0 items-center" data-cell-value>
       {isEmptyValue(value) ? (
         <MissingMark />
       ) : (
@@ -305,7 +305,7 @@ export function TaxaGrid(props: TaxaGridProps) {
         aria-multiselectable="true"
         aria-busy={stale || undefined}
         onKeyDown={onGridKeyDown}
-        className="relative h-[max(24rem,calc(100vh-22rem))] overflow-auto rounded-xl border border-stone-200 bg-white text-sm shadow-[0_1px_2px_rgb(28_25_23/0.04)]"
+        className="relative max-h-[max(24rem,calc(100vh-20rem))] overflow-auto rounded-xl border border-stone-200 bg-white text-sm shadow-[0_1px_2px_rgb(28_25_23/0.04)]"
       >
         <div role="rowgroup" className="sticky top-0 z-20" style={{ width: totalWidth }}>
           <div role="row" aria-rowindex={1} className="flex border-b border-stone-200 bg-stone-100">
@@ -417,11 +417,17 @@ export function TaxaGrid(props: TaxaGridProps) {
                             e.stopPropagation();
                             onShowHistory(row.original, gc);
                           }}
-                          className="absolute top-1/2 right-1 -translate-y-1/2 rounded bg-white/90 px-1 text-xs font-medium text-accent-700 shadow-sm ring-1 ring-stone-200 hover:bg-accent-50"
+                          className="absolute top-1/2 right-1 -translate-y-1/2 rounded bg-white p-0.5 text-accent-700 shadow-sm ring-1 ring-stone-200 hover:bg-accent-50"
                           aria-label={`History of ${gc.label} for ${row.original.name}`}
                           title="History of this cell (Alt+H)"
                         >
-                          History
+                          <svg className="size-4" viewBox="0 0 20 20" fill="currentColor" aria-hidden="true">
+                            <path
+                              fillRule="evenodd"
+                              d="M10 18a8 8 0 1 0 0-16 8 8 0 0 0 0 16Zm.75-13a.75.75 0 0 0-1.5 0v5c0 .2.08.39.22.53l3 3a.75.75 0 1 0 1.06-1.06l-2.78-2.78V5Z"
+                              clipRule="evenodd"
+                            />
+                          </svg>
                         </button>
                       )}
                     </div>
