@@ -117,7 +117,7 @@ export function fitSelectivityModel(traits: ModelTraitInput[], outcome: Uint8Arr
     (fit.terms ?? []).every((t) => finite(t.chiSquare) && finite(t.pValue));
   if (!allFinite) {
     return noModel(
-      "The multiple logistic regression gave estimates that are not finite numbers (the data carry too little information for this many terms); try fewer traits or Firth's regression.",
+      "The multiple logistic regression gave estimates or intervals that are not finite numbers: the data carry too little information for this many terms; choose fewer traits.",
     );
   }
 
