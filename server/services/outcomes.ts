@@ -23,8 +23,6 @@ import { badRequest, conflict, HttpError } from "../http/errors";
 const SAME_BOUNDARY_TOLERANCE = 1e-9;
 /** Names listed beside each warning's count. */
 const WARNING_SAMPLE_SIZE = 20;
-/** Rows per insert in bulk writes, well below PostgreSQL's limit of 65,535 parameters per statement. */
-const INSERT_CHUNK = 2000;
 /** Unknown names reported one by one in `fields` when a bulk request is refused. */
 const MAX_REPORTED_ROWS = 1000;
 
@@ -89,12 +87,6 @@ const boundarySql = (boundaryMa: number | null): SQL =>
     ? isNull(outcomeOverrides.boundaryMa)
     : sql`abs(${outcomeOverrides.boundaryMa} - ${boundaryMa}) <= ${SAME_BOUNDARY_TOLERANCE}`;
 
-function chunks<T>(items: T[], size: number): T[][] {
-  const out: T[][] = [];
-  for (let i = 0; i < items.length; i += size) out.push(items.slice(i, i + size));
-  return out;
-}
-
 export function createOutcomeService(db: Database) {
   const creator = alias(users, "override_creator");
   const revoker = alias(users, "override_revoker");
@@ -118,14 +110,23 @@ export function createOutcomeService(db: Database) {
       .where(where)
       .orderBy(desc(outcomeOverrides.createdAt), desc(outcomeOverrides.id));
     const rows = page ? await base.limit(page.limit).offset(page.offset) : await base;
-    const revokedIds = rows.filter((r) => r.o.revokedAt).map((r) => r.o.id);
+    const revoked = rows.filter((r) => r.o.revokedAt);
+    const revokedIds = revoked.map((r) => r.o.id);
     const revokeReasons = new Map<string, string>();
     if (revokedIds.length) {
+      // Narrowed by taxon first (indexed), then matched on the override id kept in the decision's old value.
       const overrideIdSql = sql<string>`${codingDecisions.oldValue}->>'overrideId'`;
       const decisions = await tx
         .select({ overrideId: overrideIdSql, reason: codingDecisions.reason })
         .from(codingDecisions)
-        .where(and(eq(codingDecisions.field, "outcome"), eq(codingDecisions.action, "revert"), inArray(overrideIdSql, revokedIds)));
+        .where(
+          and(
+            inArray(codingDecisions.taxonId, [...new Set(revoked.map((r) => r.o.taxonId))]),
+            eq(codingDecisions.field, "outcome"),
+            eq(codingDecisions.action, "revert"),
+            inArray(overrideIdSql, revokedIds),
+          ),
+        );
       for (const d of decisions) revokeReasons.set(d.overrideId, d.reason);
     }
     return rows.map(({ o, taxonName, creatorName, revokerName }) => ({
@@ -151,34 +152,39 @@ export function createOutcomeService(db: Database) {
     await tx.execute(sql`SELECT pg_advisory_xact_lock(hashtext(${"outcome_overrides:" + studyId}))`);
   }
 
-  /** Revokes the given active overrides, each with a 'revert' coding decision pointing at the decision that set it. */
+  /**
+   * Revokes the given active overrides, each with a 'revert' coding decision pointing at the decision
+   * that set it. A few statements however many rows (the rows travel as one JSON parameter), so that a
+   * large imported column is replaced quickly; no statement joins on a JSON field.
+   */
   async function revokeRows(tx: Transaction, studyId: string, rows: ActiveOverride[], user: SessionPerson, reason: string, batchId: string): Promise<void> {
     if (!rows.length) return;
-    const now = new Date();
-    for (const part of chunks(rows, INSERT_CHUNK)) {
-      const ids = part.map((r) => r.id);
-      await tx.update(outcomeOverrides).set({ revokedAt: now, revokedBy: user.id }).where(inArray(outcomeOverrides.id, ids));
-      const setIdSql = sql<string>`${codingDecisions.newValue}->>'overrideId'`;
-      const setDecisions = await tx
-        .select({ id: codingDecisions.id, overrideId: setIdSql })
-        .from(codingDecisions)
-        .where(and(eq(codingDecisions.studyId, studyId), eq(codingDecisions.field, "outcome"), eq(codingDecisions.action, "override"), inArray(setIdSql, ids)));
-      const setDecisionOf = new Map(setDecisions.map((d) => [d.overrideId, d.id]));
-      await tx.insert(codingDecisions).values(
-        part.map((r) => ({
-          studyId,
-          taxonId: r.taxonId,
-          field: "outcome",
-          action: "revert",
-          oldValue: { overrideId: r.id, outcome: r.outcome, boundaryMa: r.boundaryMa, source: r.source },
-          newValue: null,
-          reason,
-          userId: user.id,
-          revertsId: setDecisionOf.get(r.id) ?? null,
-          batchId,
-        })),
-      );
-    }
+    const ids = JSON.stringify(rows.map((r) => r.id));
+    // The decisions that set these overrides. Matching them by the JSON field in SQL can turn into a
+    // nested loop (rows x decisions) on a large column, so they are read by taxon (few rows) or all at
+    // once for the study (many rows) and matched here.
+    const fewRows = rows.length <= 100;
+    const taxonIds = `{${[...new Set(rows.map((r) => r.taxonId))].join(",")}}`;
+    const setDecisions = await tx.execute<{ id: string; overrideId: string }>(sql`
+      SELECT id, new_value->>'overrideId' AS "overrideId" FROM coding_decisions
+      WHERE study_id = ${studyId}::uuid AND field = 'outcome' AND action = 'override'
+        ${fewRows ? sql`AND taxon_id = ANY(${taxonIds}::uuid[])` : sql``}
+    `);
+    const setDecisionOf = new Map(setDecisions.rows.map((d) => [d.overrideId, d.id]));
+    const decisions = rows.map((r) => ({
+      taxonId: r.taxonId,
+      revertsId: setDecisionOf.get(r.id) ?? null,
+      oldValue: { overrideId: r.id, outcome: r.outcome, boundaryMa: r.boundaryMa, source: r.source },
+    }));
+    await tx.execute(sql`
+      UPDATE outcome_overrides SET revoked_at = now(), revoked_by = ${user.id}::uuid
+      WHERE study_id = ${studyId}::uuid AND id IN (SELECT jsonb_array_elements_text(${ids}::jsonb)::uuid)
+    `);
+    await tx.execute(sql`
+      INSERT INTO coding_decisions (study_id, taxon_id, field, action, old_value, new_value, reason, user_id, reverts_id, batch_id)
+      SELECT ${studyId}::uuid, d."taxonId", 'outcome', 'revert', d."oldValue", NULL, ${reason}::text, ${user.id}::uuid, d."revertsId", ${batchId}::uuid
+      FROM jsonb_to_recordset(${JSON.stringify(decisions)}::jsonb) AS d("taxonId" uuid, "revertsId" uuid, "oldValue" jsonb)
+    `);
   }
 
   /** Active overrides of these taxa set for exactly this boundary (or, for null, for any boundary). */
@@ -208,30 +214,30 @@ export function createOutcomeService(db: Database) {
     const replaced = await activeMatching(tx, studyId, new Set(input.items.map((i) => i.taxonId)), input.boundaryMa);
     await revokeRows(tx, studyId, replaced, user, `Replaced by a newer override: ${input.reason}`, batchId);
     const replacedByTaxon = new Map(replaced.map((r) => [r.taxonId, r]));
-    const created: Array<{ id: string; taxonId: string }> = [];
-    for (const part of chunks(input.items, INSERT_CHUNK)) {
-      const rows = await tx
-        .insert(outcomeOverrides)
-        .values(part.map((i) => ({ studyId, taxonId: i.taxonId, boundaryMa: input.boundaryMa, outcome: i.outcome, reason: input.reason, source: input.source, createdBy: user.id })))
-        .returning({ id: outcomeOverrides.id, taxonId: outcomeOverrides.taxonId, outcome: outcomeOverrides.outcome });
-      await tx.insert(codingDecisions).values(
-        rows.map((r) => {
-          const previous = replacedByTaxon.get(r.taxonId);
-          return {
-            studyId,
-            taxonId: r.taxonId,
-            field: "outcome",
-            action: "override",
-            oldValue: previous ? { overrideId: previous.id, outcome: previous.outcome, boundaryMa: previous.boundaryMa, source: previous.source } : null,
-            newValue: { overrideId: r.id, outcome: r.outcome, boundaryMa: input.boundaryMa, source: input.source },
-            reason: input.reason,
-            userId: user.id,
-            batchId,
-          };
-        }),
-      );
-      created.push(...rows.map((r) => ({ id: r.id, taxonId: r.taxonId })));
-    }
+    // Ids are made here so that the overrides and their decisions are written from the same rows, with no join.
+    const items = input.items.map((i) => {
+      const previous = replacedByTaxon.get(i.taxonId);
+      return {
+        id: randomUUID(),
+        taxonId: i.taxonId,
+        outcome: i.outcome,
+        previous: previous ? { overrideId: previous.id, outcome: previous.outcome, boundaryMa: previous.boundaryMa, source: previous.source } : null,
+      };
+    });
+    const itemsJson = JSON.stringify(items);
+    await tx.execute(sql`
+      INSERT INTO outcome_overrides (id, study_id, taxon_id, boundary_ma, outcome, reason, source, created_by)
+      SELECT i.id, ${studyId}::uuid, i."taxonId", ${input.boundaryMa}::double precision, i.outcome, ${input.reason}::text, ${input.source}::text, ${user.id}::uuid
+      FROM jsonb_to_recordset(${itemsJson}::jsonb) AS i(id uuid, "taxonId" uuid, outcome text)
+    `);
+    await tx.execute(sql`
+      INSERT INTO coding_decisions (study_id, taxon_id, field, action, old_value, new_value, reason, user_id, batch_id)
+      SELECT ${studyId}::uuid, i."taxonId", 'outcome', 'override', i.previous,
+        jsonb_build_object('overrideId', i.id, 'outcome', i.outcome, 'boundaryMa', ${input.boundaryMa}::double precision, 'source', ${input.source}::text),
+        ${input.reason}::text, ${user.id}::uuid, ${batchId}::uuid
+      FROM jsonb_to_recordset(${itemsJson}::jsonb) AS i(id uuid, "taxonId" uuid, outcome text, previous jsonb)
+    `);
+    const created = items.map((i) => ({ id: i.id, taxonId: i.taxonId }));
     return { created, replaced, batchId };
   }
 

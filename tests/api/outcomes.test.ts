@@ -352,6 +352,17 @@ describe("imported outcome column (bulk overrides)", () => {
 
     const again = await cast.people.coder.agent.post(`/api/studies/${studyId}/outcome-overrides/bulk`).send(column);
     expect(again.body).toMatchObject({ created: 2, replaced: 2 });
+    // The replacement is on record: each earlier override is reverted (pointing at the decision that set it),
+    // and each new decision names the override it replaced as its old value.
+    const replacing = await app.ctx.db.select().from(codingDecisions).where(eq(codingDecisions.batchId, again.body.batchId));
+    const firstIds = new Set(decisions.map((d) => d.id));
+    const reverts = replacing.filter((d) => d.action === "revert");
+    expect(reverts).toHaveLength(2);
+    expect(reverts.every((d) => firstIds.has(d.revertsId!))).toBe(true);
+    const firstOverrideIds = new Set(decisions.map((d) => (d.newValue as { overrideId: string }).overrideId));
+    const overrides = replacing.filter((d) => d.action === "override");
+    expect(overrides.every((d) => firstOverrideIds.has((d.oldValue as { overrideId: string }).overrideId))).toBe(true);
+    expect(decisions.every((d) => d.oldValue === null)).toBe(true);
     const active = await cast.people.viewer.agent.get(`/api/studies/${studyId}/outcome-overrides?status=active`);
     expect(active.body.total).toBe(2);
   });
