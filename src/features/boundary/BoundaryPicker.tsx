@@ -76,7 +76,9 @@ export function BoundaryPicker(props: BoundaryPickerProps) {
       />
 
       <p className="mt-6 border-t border-stone-100 pt-4 text-sm text-stone-500">
-        Time scale: {timescale.citation}. Chart version {timescale.version}; ages in Ma (millions of years before present), older ages are larger.
+        Time scale: {timescale.citation}
+        {timescale.citation.includes(timescale.version) ? "" : `, version ${timescale.version}`}. Ages in Ma (millions of years before present): older
+        ages are larger.
       </p>
     </Card>
   );
@@ -198,7 +200,7 @@ function WindowForm({
         disabled={disabled}
         placeholder={defaultStage ? formatAgeNumber(defaultStage.duration) : undefined}
         hint={windowParam === undefined ? `Empty: the default, ${defaultWords}.` : `Default: ${defaultWords}. Any length is allowed.`}
-        className="w-72"
+        className="w-full sm:w-[26rem]"
         {...form.field("window")}
       />
       <div className="mt-7 flex flex-wrap gap-2">

@@ -77,7 +77,7 @@ export function OutcomeLists({ studyId, result, request, list, page, onList, can
       </div>
 
       <div id={`${tabsId}-panel`} role="tabpanel" aria-labelledby={`${tabsId}-tab-${list}`} className="pt-4">
-        {page > 1 && laterPage.isPending && <LoadingState label={`Loading page ${page}`} lines={4} />}
+        {page > 1 && !current && !laterPage.isError && <LoadingState label={`Loading page ${page}`} lines={4} />}
         {page > 1 && laterPage.isError && <ErrorState error={laterPage.error} title="This page could not be loaded" onRetry={() => void laterPage.refetch()} />}
         {current && current.total === 0 && (
           <p className="rounded-lg border border-dashed border-stone-300 px-4 py-6 text-center text-[15px] text-stone-500">

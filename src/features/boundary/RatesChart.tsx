@@ -7,12 +7,12 @@ import { cx } from "../../components/focus";
 import { LoadingState } from "../../components/LoadingState";
 import { formatCount, pluralize } from "../../lib/format";
 import { useRates } from "./api";
-import { formatAgeNumber, formatMa, formatPercent, formatRate } from "./words";
+import { formatAgeNumber, formatMa, formatPercent, formatRate, formatWholePercent } from "./words";
 
 type Measure = "proportionalExtinction" | "q" | "qPerMyr";
 
 const MEASURES: ReadonlyArray<{ value: Measure; label: string; axis: string }> = [
-  { value: "proportionalExtinction", label: "Proportional extinction", axis: "Share of taxa last seen in the stage" },
+  { value: "proportionalExtinction", label: "Proportional extinction", axis: "Last seen in the stage" },
   { value: "q", label: "Per-capita rate, per stage", axis: "q per stage" },
   { value: "qPerMyr", label: "Per-capita rate, per Myr", axis: "q per Myr" },
 ];
@@ -151,7 +151,7 @@ function RatesBody({ data, boundary, measure, onMeasure }: { data: RatesResult; 
           {measure === "proportionalExtinction" && (
             <span className="inline-flex items-center gap-2">
               <span className="inline-block w-5 border-t-2 border-dashed" style={{ borderColor: COLOR.threshold }} aria-hidden="true" />
-              {formatPercent(data.threshold.proportion)} line
+              {formatWholePercent(data.threshold.proportion)} line
             </span>
           )}
         </p>
@@ -162,7 +162,8 @@ function RatesBody({ data, boundary, measure, onMeasure }: { data: RatesResult; 
           </p>
         )}
         <p>
-          <span className="font-medium text-stone-800">Reading the bars.</span> {data.threshold.note}
+          <span className="font-medium text-stone-800">Reading the bars.</span> {data.threshold.note} The oldest and youngest stages of the span
+          show edge effects: there every taxon is first or last seen within the study’s own range of ages.
         </p>
         <p>
           {data.method} Chart v{data.timescaleVersion}. {pluralize(data.taxaUsed, "taxon", "taxa")} with a usable range.
@@ -210,8 +211,16 @@ function ThresholdMark({ layer, proportion }: { layer: BarCustomLayerProps<Stage
   return (
     <g aria-hidden="true">
       <line x1={0} x2={layer.innerWidth} y1={y} y2={y} stroke={COLOR.threshold} strokeWidth={1.5} strokeDasharray="6 4" />
-      <text x={layer.innerWidth} y={y - 5} textAnchor="end" fill={COLOR.threshold} style={{ fontFamily: FONT, fontSize: 12, fontWeight: 500 }}>
-        {formatPercent(proportion)}: a convention, see below
+      <text
+        x={4}
+        y={y - 5}
+        fill={COLOR.threshold}
+        stroke="white"
+        strokeWidth={3}
+        paintOrder="stroke"
+        style={{ fontFamily: FONT, fontSize: 12, fontWeight: 500 }}
+      >
+        {formatWholePercent(proportion)}: a convention, see below
       </text>
     </g>
   );

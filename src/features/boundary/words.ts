@@ -50,6 +50,11 @@ export function formatPercent(value: number): string {
   return percentFormat.format(value);
 }
 
+/** "30%" */
+export function formatWholePercent(value: number): string {
+  return `${Math.round(value * 1000) / 10}%`;
+}
+
 /** "0.847" */
 export function formatRate(value: number): string {
   return rateFormat.format(value);
