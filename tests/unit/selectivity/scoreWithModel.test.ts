@@ -30,7 +30,7 @@ const coefficient = (name: string) => model.coefficients.find((c) => c.name === 
 function byHand(habitColumn: string | null, size: number, z = 1.959964) {
   const sizeEncoding = model.encoding.traits.find((t) => t.key === "size")!;
   if (sizeEncoding.kind !== "numeric") throw new Error("size is numeric");
-  const x = model.coefficients.map((c) => (c.name === "(Intercept)" ? 1 : c.name === habitColumn ? 1 : 0));
+  const x: number[] = model.coefficients.map((c) => (c.name === "(Intercept)" || c.name === habitColumn ? 1 : 0));
   x[model.coefficients.findIndex((c) => c.name === "size")] = (Math.log10(size) - sizeEncoding.center) / sizeEncoding.scale;
   const eta = x.reduce((sum, xj, j) => sum + xj * model.coefficients[j].estimate, 0);
   let variance = 0;
