@@ -184,6 +184,10 @@ describe("trait tables", () => {
       expect(entries[0]).toMatch(/120 mm\s*→\s*to\s*12 mm|120 mm\s*→\s*12 mm/);
       expect(entries[1]).toContain("Recorded · Invented Study Lead");
       expect(entries[1]).toContain("From the import of vessiran-taxa.csv");
+      // Only the value's own change is reverted from a cell; adding the taxon is undone with its import.
+      expect(entries[0]).toContain("Revert this change…");
+      expect(entries[1]).toContain("Recorded when the taxon was added.");
+      expect(entries[1]).not.toContain("Revert this change…");
       await screenshot(page, "trait-table-history");
     });
   });

@@ -24,8 +24,8 @@ const KIND_LABELS: Record<TraitKind, string> = {
 };
 const KIND_OPTIONS = TRAIT_KINDS.map((kind) => ({ value: kind, label: KIND_LABELS[kind] }));
 const ASPECT_OPTIONS: Array<{ value: TraitAspect; label: string }> = [
-  { value: "ecology", label: "Ecology (habitat, feeding, life habit, size, range, environment)" },
-  { value: "other", label: "Something else (preservation, sampling, taxonomy…)" },
+  { value: "ecology", label: "Ecology" },
+  { value: "other", label: "Something else" },
 ];
 const TRANSFORM_OPTIONS: Array<{ value: NumericTransform; label: string }> = [
   { value: "none", label: "Use the value as given" },
@@ -212,6 +212,7 @@ export function TraitEditor({ studyId, trait, onDone }: TraitEditorProps) {
           <Select label="Kind" options={KIND_OPTIONS} value={draft.kind} error={errors.kind} onChange={(e) => patch({ kind: e.target.value as TraitKind })} />
           <Select
             label="What it describes"
+            hint="Ecology: habitat, feeding, life habit, size, range or environment."
             options={ASPECT_OPTIONS}
             value={draft.aspect}
             error={errors.aspect}

@@ -43,7 +43,7 @@ export function ImportHistory({ studyId, traits, canRevert }: ImportHistoryProps
   const pages = Math.max(1, Math.ceil(total / (imports.data?.pageSize ?? 20)));
 
   return (
-    <Card title="Import history" description="Every committed file, who imported it and what it changed.">
+    <Card title="Import history" description="Every uploaded file: who imported it, when, and what it changed.">
       {imports.isPending && <LoadingState label="Loading the imports" />}
       {imports.isError && <ErrorState error={imports.error} title="The imports could not be loaded" onRetry={() => void imports.refetch()} />}
       {imports.isSuccess && total === 0 && (

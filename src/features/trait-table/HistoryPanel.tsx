@@ -23,6 +23,13 @@ const ACTION_WORDS: Record<string, string> = {
   override: "Overridden",
 };
 
+const TAXON_LEVEL_NOTES: Record<string, string> = {
+  create: "Recorded when the taxon was added.",
+  delete: "Recorded when the taxon was removed.",
+  restore: "Recorded when the taxon was restored.",
+  revert: "Recorded when a revert added or removed the taxon.",
+};
+
 export function historyCellOf(column: GridColumn): HistoryCell {
   return column.kind === "trait" ? { traitId: column.id } : { field: column.field as "name" | "higherTaxon" | "notes" | "fad" | "lad" };
 }
@@ -111,7 +118,9 @@ export function HistoryPanel({ studyId, row, column, traits, canRevert, onClose 
                 </p>
                 {entry.reason && <p className="mt-1 rounded-md bg-stone-50 px-2.5 py-1.5 text-sm text-stone-700">“{entry.reason}”</p>}
                 {entry.importFileName && <p className="mt-1 text-sm text-stone-500">From the import of {entry.importFileName}</p>}
-                {canRevert && (
+                {entry.field === "taxon" && <p className="mt-1 text-sm text-stone-500">{TAXON_LEVEL_NOTES[entry.action] ?? "Recorded for the whole taxon."}</p>}
+                {/* A taxon-level entry is undone with the taxon, not from one cell. */}
+                {canRevert && entry.field !== "taxon" && (
                   <Button
                     variant="ghost"
                     size="sm"

@@ -360,7 +360,8 @@ export function TaxaGrid(props: TaxaGridProps) {
                 aria-selected={selected}
                 data-taxon={row.original.name}
                 className={cx("group absolute top-0 left-0 flex border-b border-stone-100", selected ? "bg-accent-50" : "bg-white hover:bg-stone-50")}
-                style={{ height: ROW_HEIGHT, transform: `translateY(${item.start}px)`, width: totalWidth }}
+                // The row being edited stays above the next rows, so the editor's message is not covered.
+                style={{ height: ROW_HEIGHT, transform: `translateY(${item.start}px)`, width: totalWidth, zIndex: editing && item.index === rowIndex ? 5 : undefined }}
               >
                 {row.getVisibleCells().map((cell, index) => {
                   const colId = cell.column.id;

@@ -271,18 +271,22 @@ export function TraitTablePage() {
                   />
                   <Button size="sm" variant="secondary" disabled={query.page <= 1} onClick={() => setQuery((q) => ({ ...q, page: 1 }))}>
                     First
+                    <span className="sr-only"> page</span>
                   </Button>
                   <Button size="sm" variant="secondary" disabled={query.page <= 1} onClick={() => setQuery((q) => ({ ...q, page: q.page - 1 }))}>
                     Previous
+                    <span className="sr-only"> page</span>
                   </Button>
                   <span className="px-1 text-sm text-stone-700 tabular-nums">
                     Page {formatCount(query.page)} of {formatCount(pageCount)}
                   </span>
                   <Button size="sm" variant="secondary" disabled={query.page >= pageCount} onClick={() => setQuery((q) => ({ ...q, page: q.page + 1 }))}>
                     Next
+                    <span className="sr-only"> page</span>
                   </Button>
                   <Button size="sm" variant="secondary" disabled={query.page >= pageCount} onClick={() => setQuery((q) => ({ ...q, page: pageCount }))}>
                     Last
+                    <span className="sr-only"> page</span>
                   </Button>
                 </nav>
               </div>
