@@ -11,8 +11,5 @@ export * from "./decisions";
 export * from "./imports";
 export * from "./exports";
 export * from "./runs";
-export * from "./threads";
-export * from "./notifications";
-export * from "./activity";
 export * from "./modernLists";
 export * from "./comparisons";
