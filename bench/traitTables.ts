@@ -1,0 +1,196 @@
+// Trait-table figures: a CSV of 100,000 invented taxa with 10 traits imported through the real
+// import service (upload, then commit in one transaction), and grid pages of 100 rows with a
+// filter and a sort on that study. Needs DATABASE_URL (bench/run.ts starts a throwaway cluster);
+// runs alone as `DATABASE_URL=... npx tsx bench/traitTables.ts`.
+import { randomUUID } from "node:crypto";
+import { mkdtemp, rm } from "node:fs/promises";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
+import { pathToFileURL } from "node:url";
+import { eq } from "drizzle-orm";
+import { connectDatabase } from "../server/db";
+import { memberships, studies, traits, users } from "../db/schema/index";
+import { SUGGESTED_CODEBOOK } from "../shared/codebook";
+import { createImportService } from "../server/services/imports";
+import { createTaxonService } from "../server/services/taxa";
+import { loadCodebook } from "../server/services/taxonState";
+import { taxaListQuerySchema } from "../shared/schemas/taxa";
+import type { ImportMapping } from "../shared/schemas/imports";
+
+export interface TraitTableFigure {
+  name: string;
+  value: number;
+  unit: string;
+  note?: string;
+}
+
+const TAXA = 100_000;
+const GRID_REQUESTS = 50;
+const WARM_UP = 5;
+
+/** Five traits besides the suggested five, so the file has ten trait columns. */
+const EXTRA_TRAITS = [
+  { key: "mineralogy", label: "Shell mineralogy", kind: "categorical" as const, states: ["calcite", "aragonite", "bimineralic"] },
+  { key: "larval_mode", label: "Larval mode", kind: "binary" as const, states: ["planktotrophic", "lecithotrophic"] },
+  { key: "motility", label: "Motility", kind: "ordinal" as const, states: ["sessile", "facultative", "mobile"] },
+  { key: "abundance", label: "Occurrences", kind: "numeric" as const, states: [] },
+  { key: "depth", label: "Water depth", kind: "numeric" as const, states: [] },
+];
+
+/** A small deterministic generator (mulberry32) so every run imports the same invented file. */
+function generator(seed: number) {
+  let a = seed >>> 0;
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let t = a;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
+
+function quantile(sorted: number[], q: number): number {
+  const pos = (sorted.length - 1) * q;
+  const lo = Math.floor(pos);
+  const hi = Math.ceil(pos);
+  return sorted[lo] + (sorted[hi] - sorted[lo]) * (pos - lo);
+}
+
+/** The invented file: one row per taxon, ranges as ages or stage names, every trait filled or left empty. */
+function inventedCsv(): string {
+  const rand = generator(20260);
+  const pick = <T>(list: readonly T[]) => list[Math.floor(rand() * list.length)];
+  const stages = ["Campanian", "Maastrichtian", "Santonian", "Coniacian", "Turonian"];
+  const header = [
+    "name",
+    "higher_taxon",
+    "first_appearance",
+    "last_appearance",
+    ...SUGGESTED_CODEBOOK.map((t) => t.key),
+    ...EXTRA_TRAITS.map((t) => t.key),
+  ];
+  const lines = [header.join(",")];
+  for (let i = 0; i < TAXA; i++) {
+    const useStages = rand() < 0.3;
+    const fad = 70 + rand() * 30;
+    const lad = fad - rand() * 10;
+    const cells = [
+      `Benchella ${String(i).padStart(6, "0")}`,
+      `Invented clade ${Math.floor(rand() * 40)}`,
+      useStages ? "Santonian" : fad.toFixed(2),
+      useStages ? pick(stages.slice(0, 2)) : lad.toFixed(2),
+      ...SUGGESTED_CODEBOOK.map((t) => {
+        if (rand() < 0.05) return "";
+        if (t.kind === "numeric") return (1 + rand() * 300).toFixed(1);
+        return pick(t.states).code;
+      }),
+      ...EXTRA_TRAITS.map((t) => {
+        if (rand() < 0.05) return "";
+        if (t.kind === "numeric") return (rand() * 1000).toFixed(0);
+        return pick(t.states);
+      }),
+    ];
+    lines.push(cells.join(","));
+  }
+  return lines.join("\n") + "\n";
+}
+
+export async function benchTraitTables(): Promise<TraitTableFigure[]> {
+  const url = process.env.DATABASE_URL;
+  if (!url) throw new Error("DATABASE_URL is not set: the trait-table bench needs a PostgreSQL database.");
+  const database = connectDatabase(url);
+  const db = database.db;
+  const uploadDir = await mkdtemp(join(tmpdir(), "stratasieve-bench-uploads-"));
+  const figures: TraitTableFigure[] = [];
+  let studyId: string | null = null;
+  let userId: string | null = null;
+  try {
+    const [user] = await db
+      .insert(users)
+      .values({ email: `bench-${randomUUID()}@example.test`, name: "Bench coder (invented)", passwordHash: "not-a-login" })
+      .returning({ id: users.id });
+    userId = user.id;
+    const [study] = await db.insert(studies).values({ name: "Invented bench study", createdBy: user.id }).returning({ id: studies.id });
+    studyId = study.id;
+    await db.insert(memberships).values({ studyId, userId: user.id, role: "coder" });
+    await db.insert(traits).values([
+      ...SUGGESTED_CODEBOOK.map((t, i) => ({ ...t, studyId: study.id, sortOrder: i })),
+      ...EXTRA_TRAITS.map((t, i) => ({
+        studyId: study.id,
+        key: t.key,
+        label: t.label,
+        kind: t.kind,
+        states: t.states.map((code, order) => ({ code, label: code, order })),
+        sortOrder: SUGGESTED_CODEBOOK.length + i,
+      })),
+    ]);
+    const codebook = await loadCodebook(db, study.id);
+    const mapping: ImportMapping = {
+      name: "name",
+      higherTaxon: "higher_taxon",
+      firstAppearance: "first_appearance",
+      lastAppearance: "last_appearance",
+      notes: null,
+      traits: Object.fromEntries(codebook.map((t) => [t.id, t.key])),
+    };
+
+    const csv = Buffer.from(inventedCsv(), "utf8");
+    const imports = createImportService(db);
+    const started = performance.now();
+    const uploaded = await imports.upload(study.id, user, { originalname: "invented-bench.csv", buffer: csv, size: csv.length }, uploadDir);
+    const afterUpload = performance.now();
+    const committed = await imports.commit(study.id, uploaded.import.id, user, { mapping, skipInvalid: false, reason: "" });
+    const done = performance.now();
+    if (committed.createdCount !== TAXA) throw new Error(`bench: expected ${TAXA} taxa, the import created ${committed.createdCount}`);
+    const mb = (csv.length / 1024 / 1024).toFixed(1);
+    figures.push({ name: "import 100k taxa x 10 traits: total", value: (done - started) / 1000, unit: "s", note: `upload (parse, store) + commit of a ${mb} MB CSV; target < 15 s` });
+    figures.push({ name: "import 100k: upload (parse, store)", value: (afterUpload - started) / 1000, unit: "s" });
+    figures.push({ name: "import 100k: commit (validate, write)", value: (done - afterUpload) / 1000, unit: "s", note: "one transaction: taxa and one coding decision each" });
+
+    // Let the planner see the new rows, as autovacuum would shortly after a large import.
+    await db.execute("ANALYZE taxa");
+    const taxa = createTaxonService(db);
+    const habit = codebook.find((t) => t.key === "life_habit")!;
+    const size = codebook.find((t) => t.key === "body_size")!;
+    const range = codebook.find((t) => t.key === "geographic_range")!;
+    const queries = [
+      { filter: `${habit.id}:eq:infaunal`, sort: size.id, dir: "desc" },
+      { filter: `higherTaxon:contains:clade 1`, sort: "fadMa", dir: "asc" },
+      { filter: `${range.id}:min:150`, sort: habit.id, dir: "asc" },
+    ];
+    const times: number[] = [];
+    for (let i = 0; i < WARM_UP + GRID_REQUESTS; i++) {
+      const q = queries[i % queries.length];
+      const query = taxaListQuerySchema.parse({ page: String(1 + (i % 20)), pageSize: "100", sort: q.sort, dir: q.dir, filter: q.filter });
+      const t0 = performance.now();
+      const page = await taxa.list(study.id, query);
+      JSON.stringify(page);
+      const elapsed = performance.now() - t0;
+      if (page.rows.length !== 100) throw new Error(`bench: a grid page held ${page.rows.length} rows`);
+      if (i >= WARM_UP) times.push(elapsed);
+    }
+    times.sort((a, b) => a - b);
+    const note = `${GRID_REQUESTS} pages of 100 (pages 1-20) on ${TAXA.toLocaleString("en-US")} taxa: state filter + numeric sort, text filter + age sort, numeric filter + state sort; service time incl. count and JSON`;
+    figures.push({ name: "grid page 100 rows, filter + sort: median", value: quantile(times, 0.5), unit: "ms", note });
+    figures.push({ name: "grid page 100 rows, filter + sort: p95", value: quantile(times, 0.95), unit: "ms", note: "target < 50 ms" });
+    return figures;
+  } finally {
+    if (studyId) await db.delete(studies).where(eq(studies.id, studyId));
+    if (userId) await db.delete(users).where(eq(users.id, userId));
+    await rm(uploadDir, { recursive: true, force: true });
+    await database.close();
+  }
+}
+
+if (import.meta.url === pathToFileURL(process.argv[1] ?? "").href) {
+  benchTraitTables().then(
+    (figures) => {
+      for (const f of figures) console.log(`${f.name.padEnd(44)} ${f.value.toFixed(f.unit === "s" ? 2 : 1).padStart(9)} ${f.unit}  ${f.note ?? ""}`);
+      process.exit(0);
+    },
+    (err) => {
+      console.error(err);
+      process.exit(1);
+    },
+  );
+}
