@@ -88,7 +88,12 @@ export function draftToInput(draft: TraitDraft): Required<Omit<TraitCreateInput,
 export function checkDraft(draft: TraitDraft): { ok: true; input: ReturnType<typeof draftToInput> } | { ok: false; errors: FieldErrors } {
   const input = draftToInput(draft);
   const result = traitCreateSchema.safeParse(input);
-  if (!result.success) return { ok: false, errors: issuesToFieldErrors(result.error) };
+  if (!result.success) {
+    const errors = issuesToFieldErrors(result.error);
+    // Two empty rows "share" the empty code; their own "required" messages already say it.
+    for (const [path, message] of Object.entries(errors)) if (/^states\.\d+$/.test(path) && message.startsWith('"" already')) delete errors[path];
+    return { ok: false, errors };
+  }
   return { ok: true, input };
 }
 

@@ -123,7 +123,7 @@ export function PreviewStep({ studyId, mapping, preview, traits, onBack, onCommi
 
       {preview.sample.length > 0 && (
         <details className="rounded-lg border border-stone-200">
-          <summary className="cursor-pointer px-4 py-2 text-sm font-medium text-stone-700">What the first {formatCount(preview.sample.length)} valid rows change</summary>
+          <summary className="cursor-pointer px-4 py-2 text-sm font-medium text-stone-700">{preview.sample.length === 1 ? "What the valid row changes" : `What the first ${formatCount(preview.sample.length)} valid rows change`}</summary>
           <div className="max-h-80 overflow-auto border-t border-stone-100">
             <table className="min-w-full text-left text-sm">
               <thead className="sticky top-0 bg-stone-50 text-stone-600">

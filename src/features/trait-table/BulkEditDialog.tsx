@@ -12,6 +12,7 @@ import { formatCount, pluralize } from "../../lib/format";
 import { ApiError } from "../../lib/api";
 import { useBulkEditTaxa } from "./api";
 import { INTERVAL_LIST_ID } from "./CellEditor";
+import { decimalCommaProblem } from "./cellValues";
 import { ModalDialog } from "./ModalDialog";
 
 const CLEAR = "__clear__";
@@ -55,6 +56,8 @@ function BulkEditForm({ studyId, taxonIds, traits, onClose, onDone }: Omit<BulkE
     if (trait) {
       if (trait.kind !== "numeric" && value === "") return { ok: false, message: "Choose a state, or choose to clear the value" };
       if (value === CLEAR || value.trim() === "") return { ok: true, value: null };
+      const comma = trait.kind === "numeric" ? decimalCommaProblem(value) : null;
+      if (comma) return { ok: false, message: comma };
       const read = readTraitCell(trait, value, { decimalComma: false });
       if (!read.ok) return read;
       if (read.value === null) return { ok: true, value: null };
@@ -62,6 +65,8 @@ function BulkEditForm({ studyId, taxonIds, traits, onClose, onDone }: Omit<BulkE
       return checked.ok ? { ok: true, value: checked.value } : checked;
     }
     if (field === "fad" || field === "lad") {
+      const comma = decimalCommaProblem(value);
+      if (comma) return { ok: false, message: comma };
       const read = readRangeCell(value, field, { decimalComma: false });
       if (!read.ok) return read;
       if (read.value === null) return { ok: true, value: null };

@@ -40,6 +40,36 @@ const features = tableFeatures({
 });
 const helper = createColumnHelper<typeof features, TaxonRow>();
 
+const selectColumn = helper.display({
+  id: SELECT_COLUMN,
+  size: 44,
+  enableSorting: false,
+  enableHiding: false,
+  header: ({ table }) => (
+    <input
+      type="checkbox"
+      aria-label="Select every taxon on this page"
+      className="size-4 accent-accent-600"
+      checked={table.getIsAllPageRowsSelected()}
+      ref={(el) => {
+        if (el) el.indeterminate = !table.getIsAllPageRowsSelected() && table.getIsSomePageRowsSelected();
+      }}
+      onChange={table.getToggleAllPageRowsSelectedHandler()}
+    />
+  ),
+  cell: ({ row }) => (
+    <input
+      type="checkbox"
+      tabIndex={-1}
+      aria-label={`Select ${row.original.name}`}
+      className="size-4 accent-accent-600"
+      checked={row.getIsSelected()}
+      onChange={() => undefined}
+      onClick={row.getToggleSelectedHandler()}
+    />
+  ),
+});
+
 const WIDTHS: Record<string, number> = { name: 230, higherTaxon: 170, fad: 190, lad: 190, notes: 260 };
 const widthOf = (c: GridColumn) => WIDTHS[c.id] ?? (c.kind === "trait" && c.trait.kind === "numeric" ? 130 : 150);
 
@@ -116,38 +146,11 @@ export function TaxaGrid(props: TaxaGridProps) {
   const [editing, setEditing] = useState<{ initialText: string } | null>(null);
   const focusPending = useRef(false);
 
+  // Selecting rows only serves a bulk edit: people who cannot edit get no checkboxes.
   const columnDefs = useMemo(
     () =>
       helper.columns([
-        helper.display({
-          id: SELECT_COLUMN,
-          size: 44,
-          enableSorting: false,
-          enableHiding: false,
-          header: ({ table }) => (
-            <input
-              type="checkbox"
-              aria-label="Select every taxon on this page"
-              className="size-4 accent-accent-600"
-              checked={table.getIsAllPageRowsSelected()}
-              ref={(el) => {
-                if (el) el.indeterminate = !table.getIsAllPageRowsSelected() && table.getIsSomePageRowsSelected();
-              }}
-              onChange={table.getToggleAllPageRowsSelectedHandler()}
-            />
-          ),
-          cell: ({ row }) => (
-            <input
-              type="checkbox"
-              tabIndex={-1}
-              aria-label={`Select ${row.original.name}`}
-              className="size-4 accent-accent-600"
-              checked={row.getIsSelected()}
-              onChange={() => undefined}
-              onClick={row.getToggleSelectedHandler()}
-            />
-          ),
-        }),
+        ...(canEdit ? [selectColumn] : []),
         ...columns.map((gridColumn) =>
           helper.accessor((row: TaxonRow) => cellValue(gridColumn, row), {
             id: gridColumn.id,
@@ -159,7 +162,7 @@ export function TaxaGrid(props: TaxaGridProps) {
           }),
         ),
       ]),
-    [columns],
+    [columns, canEdit],
   );
 
   const sorting: SortingState = useMemo(() => [{ id: sort.columnId, desc: sort.desc }], [sort.columnId, sort.desc]);
@@ -173,7 +176,7 @@ export function TaxaGrid(props: TaxaGridProps) {
     enableMultiSort: false,
     enableSortingRemoval: false,
     rowCount: total,
-    state: { sorting, columnVisibility, rowSelection, columnPinning: { start: [SELECT_COLUMN, "name"], end: [] } },
+    state: { sorting, columnVisibility, rowSelection, columnPinning: { start: canEdit ? [SELECT_COLUMN, "name"] : ["name"], end: [] } },
     onSortingChange: (updater) => {
       const next = typeof updater === "function" ? updater(sorting) : updater;
       if (next[0]) onSortChange(next[0].id, next[0].desc);

@@ -102,6 +102,14 @@ export interface CellChange {
   newText: string;
 }
 
+/**
+ * The grid is not a CSV file, but it reads numbers the same way: "12,5" could be 12.5 or a typo
+ * of 125, so a comma is refused with a message that fits a typed cell.
+ */
+export function decimalCommaProblem(text: string): string | null {
+  return /\d,\d/.test(text) ? `"${text.trim()}" is not a number: write it with a decimal point (e.g. 12.5)` : null;
+}
+
 function toRangeInput(end: RangeEnd): RangeEndInput {
   if (end === null) return null;
   return end.interval ? { interval: end.interval } : { ma: end.ma };
@@ -114,6 +122,8 @@ function toRangeInput(end: RangeEnd): RangeEndInput {
 export function readCellEdit(column: GridColumn, row: TaxonRow, text: string): Checked<CellChange | null> {
   const oldValue = cellValue(column, row);
   if (column.kind === "trait") {
+    const comma = column.trait.kind === "numeric" ? decimalCommaProblem(text) : null;
+    if (comma) return { ok: false, message: `${column.label}: ${comma}` };
     const read = readTraitCell(column.trait, text, { decimalComma: false });
     if (!read.ok) return read;
     if (read.value !== null) {
@@ -127,6 +137,8 @@ export function readCellEdit(column: GridColumn, row: TaxonRow, text: string): C
     };
   }
   if (column.kind === "range") {
+    const comma = decimalCommaProblem(text);
+    if (comma) return { ok: false, message: comma };
     const read = readRangeCell(text, column.field, { decimalComma: false });
     if (!read.ok) return read;
     const other = column.field === "fad" ? cellValue({ ...column, id: "lad", field: "lad" }, row) : cellValue({ ...column, id: "fad", field: "fad" }, row);
