@@ -63,6 +63,8 @@ export const taxa = pgTable(
     uniqueIndex("taxa_study_live_name_idx").on(t.studyId, t.name).where(sql`deleted_at IS NULL`),
     index("taxa_study_higher_idx").on(t.studyId, t.higherTaxon),
     index("taxa_study_lad_idx").on(t.studyId, t.ladMa),
+    // Serves the grid's state filters (trait_values @> {"<trait id>": "<code>"}) without reading every row.
+    index("taxa_values_gin").using("gin", t.traitValues.op("jsonb_path_ops")),
   ],
 );
 

@@ -1,0 +1,1 @@
+CREATE INDEX "taxa_values_gin" ON "taxa" USING gin ("trait_values" jsonb_path_ops);
