@@ -39,7 +39,8 @@ function conditionsFor(c: GridColumn): Condition[] {
     { value: "contains", label: "contains", op: "contains", column: same },
     { value: "eq", label: "is exactly", op: "eq", column: same },
   ];
-  return c.id === "name" ? text : [...text, missing];
+  // Names are searched in the box beside; here a name can only be matched exactly.
+  return c.id === "name" ? [text[1]] : [...text, missing];
 }
 
 interface FilterBarProps {

@@ -265,7 +265,8 @@ export function TaxaGrid(props: TaxaGridProps) {
     else if (key === " " && (columnId === SELECT_COLUMN || event.shiftKey)) table.getRow(activeRow.id).toggleSelected();
     else if ((key === "Enter" || key === "F2") && columnId === SELECT_COLUMN) table.getRow(activeRow.id).toggleSelected();
     else if (key === "Enter" || key === "F2") startEdit();
-    else if ((key === "h" || key === "H") && event.altKey && activeGridColumn) onShowHistory(activeRow, activeGridColumn);
+    // By the physical key: Option+H types another character on some keyboards.
+    else if (event.code === "KeyH" && event.altKey && activeGridColumn) onShowHistory(activeRow, activeGridColumn);
     else if ((key === "Delete" || key === "Backspace") && activeGridColumn && canEdit && activeGridColumn.id !== "name") startEdit("");
     else if (key.length === 1 && !event.ctrlKey && !event.metaKey && !event.altKey && key !== " " && isEditable(activeGridColumn)) startEdit(key);
     else handled = false;
@@ -305,7 +306,7 @@ export function TaxaGrid(props: TaxaGridProps) {
         aria-label="Trait table"
         aria-rowcount={total + 1}
         aria-colcount={visibleColumns.length}
-        aria-multiselectable="true"
+        aria-multiselectable={canEdit || undefined}
         aria-busy={stale || undefined}
         onKeyDown={onGridKeyDown}
         className="relative max-h-[max(24rem,calc(100vh-20rem))] overflow-auto rounded-xl border border-stone-200 bg-white text-sm shadow-[0_1px_2px_rgb(28_25_23/0.04)]"

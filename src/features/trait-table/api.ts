@@ -29,19 +29,17 @@ export function useTaxaPage(studyId: string, query: string) {
   });
 }
 
-/** Puts a saved row into every cached page that shows it, without reloading (and reordering) the grid. */
-function useReplaceRow(studyId: string) {
+/**
+ * Puts a row as the server holds it into every cached page that shows it, without reloading (and
+ * reordering) the grid: after a save, or when "take the current value" settles a conflict.
+ */
+export function useReplaceRow(studyId: string) {
   const queryClient = useQueryClient();
   return (row: TaxonRow) => {
     queryClient.setQueriesData<TaxaPage>({ queryKey: [...queryKeys.taxa.all(studyId), "page"] }, (page) =>
       page && page.rows.some((r) => r.id === row.id) ? { ...page, rows: page.rows.map((r) => (r.id === row.id ? row : r)) } : page,
     );
   };
-}
-
-/** The grid's way to take "the current value" after a conflict. */
-export function useTakeCurrentRow(studyId: string) {
-  return useReplaceRow(studyId);
 }
 
 /**

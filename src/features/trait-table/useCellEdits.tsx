@@ -3,7 +3,7 @@ import { taxonConflictSchema, taxonUpdateSchema, type TaxonConflict, type TaxonR
 import type { Trait } from "@shared/schemas/traits";
 import { useToast } from "../../components/Toast";
 import { ApiError, errorMessage } from "../../lib/api";
-import { useTakeCurrentRow, useUpdateTaxon } from "./api";
+import { useReplaceRow, useUpdateTaxon } from "./api";
 import { isEmptyValue, type CellChange, type GridColumn } from "./cellValues";
 import { ConflictDialog } from "./ConflictDialog";
 import { ReasonDialog } from "./ReasonDialog";
@@ -26,7 +26,7 @@ const fieldOf = (column: GridColumn) => (column.kind === "trait" ? column.id : c
  */
 export function useCellEdits(studyId: string, traits: Map<string, Trait>) {
   const update = useUpdateTaxon(studyId);
-  const takeCurrent = useTakeCurrentRow(studyId);
+  const takeCurrent = useReplaceRow(studyId);
   const toast = useToast();
   const [askReason, setAskReason] = useState<PendingEdit | null>(null);
   const [conflict, setConflict] = useState<{ edit: PendingEdit; body: TaxonConflict } | null>(null);
