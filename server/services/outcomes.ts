@@ -58,6 +58,14 @@ interface TaxonRange {
   ladMa: number | null;
 }
 
+/** A taxon's final outcome across a boundary (overrides applied), for analyses that read every taxon. */
+export interface ClassifiedTaxon {
+  taxonId: string;
+  name: string;
+  higherTaxon: string;
+  outcome: BoundaryOutcome;
+}
+
 type ActiveOverride = Pick<typeof outcomeOverrides.$inferSelect, "id" | "taxonId" | "boundaryMa" | "outcome" | "reason" | "source">;
 
 function sameBoundary(a: number | null, b: number | null): boolean {
@@ -246,6 +254,7 @@ export function createOutcomeService(db: Database) {
     async outcomes(
       studyId: string,
       query: { boundary?: number; boundaryUnit?: string; window?: number; group?: BoundaryOutcome; page: number; pageSize: number },
+      everyTaxon?: (taxa: ClassifiedTaxon[]) => void,
     ): Promise<OutcomesResult> {
       let boundary: number;
       if (query.boundaryUnit !== undefined) {
@@ -316,6 +325,7 @@ export function createOutcomeService(db: Database) {
         members[final].push(i);
         return final;
       });
+      everyTaxon?.(rows.map((r, i) => ({ taxonId: r.id, name: r.name, higherTaxon: r.higherTaxon, outcome: finalOutcome[i] })));
 
       const toItem = (i: number): OutcomeTaxon => {
         const o = overrideOf.get(rows[i].id);
@@ -373,6 +383,13 @@ export function createOutcomeService(db: Database) {
         },
         lists,
       };
+    },
+
+    /** The summary of `outcomes` (one taxon per list) and every taxon's final outcome, sorted by name. */
+    async finalOutcomes(studyId: string, query: { boundary: number; window?: number }): Promise<{ summary: OutcomesResult; taxa: ClassifiedTaxon[] }> {
+      let taxa: ClassifiedTaxon[] = [];
+      const summary = await this.outcomes(studyId, { ...query, page: 1, pageSize: 1 }, (all) => (taxa = all));
+      return { summary, taxa };
     },
 
     /** Per-stage boundary-crosser counts and rates over the stages the study's ranges reach, oldest first. */

@@ -24,6 +24,7 @@ import {
   type RunSummary,
 } from "../../shared/schemas/runs";
 import type { OutcomesResult } from "../../shared/schemas/outcomes";
+import type { ClassifiedTaxon } from "./outcomes";
 import type { Trait } from "../../shared/schemas/traits";
 import { badRequest, conflict, HttpError, notFound } from "../http/errors";
 import type { JobQueue } from "../jobs/queue";
@@ -52,7 +53,7 @@ interface Person {
 
 /** What the run service needs from the services that own the data. */
 export interface RunDataSources {
-  outcomes: { outcomes(studyId: string, query: { boundary: number; window?: number; page: number; pageSize: number }): Promise<OutcomesResult> };
+  outcomes: { finalOutcomes(studyId: string, query: { boundary: number; window?: number }): Promise<{ summary: OutcomesResult; taxa: ClassifiedTaxon[] }> };
   /** The study's codebook, retired traits included. */
   traits: { list(studyId: string): Promise<{ traits: Trait[] }> };
 }
@@ -247,8 +248,9 @@ export function createRunService(db: Database, runtime: RunRuntime, sources: Run
     const boundaries: BoundaryData[] = [];
     for (const [i, b] of params.boundaries.entries()) {
       let result: OutcomesResult;
+      let classified: ClassifiedTaxon[];
       try {
-        result = await sources.outcomes.outcomes(studyId, { boundary: b.boundaryMa, window: b.windowMyr, page: 1, pageSize: Number.MAX_SAFE_INTEGER });
+        ({ summary: result, taxa: classified } = await sources.outcomes.finalOutcomes(studyId, { boundary: b.boundaryMa, window: b.windowMyr }));
       } catch (err) {
         // Name the boundary of the run that the outcomes service refused.
         if (err instanceof HttpError && err.status === 400) {
@@ -259,8 +261,8 @@ export function createRunService(db: Database, runtime: RunRuntime, sources: Run
       }
       const label = boundaryLabel(b.label, result);
       await onBoundary?.(i, label);
-      const atRisk = [...(result.lists.victim?.items ?? []), ...(result.lists.survivor?.items ?? [])];
-      const list: SelectivityTaxon[] = atRisk
+      const list: SelectivityTaxon[] = classified
+        .filter((t) => t.outcome !== "excluded")
         .map((t) => {
           const stored = valuesOf.get(t.taxonId) ?? {};
           return {
