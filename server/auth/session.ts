@@ -43,7 +43,8 @@ export function clearSessionCookie(ctx: AppContext, res: Response): void {
 export function loadSession(ctx: AppContext): RequestHandler {
   return async (req: Request, res: Response, next: NextFunction) => {
     const token = (req.cookies as Record<string, string> | undefined)?.[SESSION_COOKIE];
-    if (!token) return next();
+    // The health check answers for the database itself, signed in or not.
+    if (!token || req.path === "/health") return next();
     try {
       const { payload } = await jwtVerify(token, ctx.config.sessionSecret, { algorithms: ["HS256"] });
       const sessionId = typeof payload.sid === "string" ? payload.sid : null;

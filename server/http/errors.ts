@@ -40,11 +40,14 @@ export function validationError(error: ZodError, where: string): HttpError {
 
 const CONNECTION_ERRORS = new Set(["ECONNREFUSED", "ECONNRESET", "57P01", "57P03", "08006", "08001", "08003"]);
 
+/** Drizzle wraps driver errors (DrizzleQueryError.cause), so the whole cause chain is checked. */
 function isDatabaseDown(err: unknown): boolean {
-  const e = err as { code?: string; message?: string } | null;
-  if (!e) return false;
-  if (e.code && CONNECTION_ERRORS.has(e.code)) return true;
-  return /timeout exceeded when trying to connect|Connection terminated/i.test(e.message ?? "");
+  for (let e = err as { code?: string; message?: string; cause?: unknown } | null, depth = 0; e && depth < 5; depth++) {
+    if (e.code && CONNECTION_ERRORS.has(e.code)) return true;
+    if (/timeout exceeded when trying to connect|Connection terminated|the database system is (shutting down|starting up)/i.test(e.message ?? "")) return true;
+    e = e.cause as typeof e;
+  }
+  return false;
 }
 
 export const errorHandler: ErrorRequestHandler = (err, _req, res, _next) => {
