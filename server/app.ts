@@ -25,6 +25,8 @@ import { taxaRouter } from "./routes/taxa";
 import { decisionsRouter } from "./routes/decisions";
 import { importsRouter } from "./routes/imports";
 import { exportsRouter } from "./routes/exports";
+import { modernListsRouter } from "./routes/modernLists";
+import { comparisonsRouter } from "./routes/comparisons";
 
 export interface BuiltApp {
   app: Express;
@@ -32,7 +34,7 @@ export interface BuiltApp {
   routes: RegisteredRoute[];
 }
 
-const RESOURCE_ROUTERS = [healthRouter, authRouter, studiesRouter, membersRouter, invitationsRouter, outboxRouter, timescaleRouter, outcomesRouter, overridesRouter, ratesRouter, runsRouter, traitsRouter, taxaRouter, decisionsRouter, importsRouter, exportsRouter];
+const RESOURCE_ROUTERS = [healthRouter, authRouter, studiesRouter, membersRouter, invitationsRouter, outboxRouter, timescaleRouter, outcomesRouter, overridesRouter, ratesRouter, runsRouter, traitsRouter, taxaRouter, decisionsRouter, importsRouter, exportsRouter, modernListsRouter, comparisonsRouter];
 
 export function buildOpenApi(registry: OpenAPIRegistry) {
   registry.registerComponent("securitySchemes", "session", { type: "apiKey", in: "cookie", name: "ss_session" });

@@ -14,6 +14,8 @@ import { createTaxonService } from "./taxa";
 import { createDecisionService } from "./decisions";
 import { createImportService } from "./imports";
 import { createExportService } from "./exports";
+import { createModernListService } from "./modernLists";
+import { createComparisonService } from "./comparisons";
 
 /** What services need besides the database and mail: the job queue and the worker threads. */
 export interface Runtime {
@@ -35,6 +37,8 @@ export function createServices(db: Database, mailer: Mailer, appUrl: string, run
     decisions: createDecisionService(db),
     imports: createImportService(db),
     exports: createExportService(db),
+    modernLists: createModernListService(db),
+    comparisons: createComparisonService(db),
   };
 }
 export type Services = ReturnType<typeof createServices>;

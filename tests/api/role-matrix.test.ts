@@ -9,6 +9,7 @@ import { createTestApp, PASSWORD, signedInAgent, uniqueEmail, type TestApp } fro
 import { memberships, outcomeOverrides, runs, taxa, traits } from "../../db/schema/index";
 import { castOfRoles, EVERYONE, type Cast, type Who } from "./fixtures";
 import { codedImport, codedTaxon, codedTrait, uploadCsv } from "../support/traitTables";
+import { MATRIX_LIST_MAPPING, matrixComparison, matrixModernSetup, matrixModernUpload } from "../support/modernComparison";
 
 type Agent = Cast["anonymous"];
 interface Row {
@@ -23,6 +24,7 @@ const SIGNED_IN: Who[] = ["stranger", ...STUDY_ROLES];
 const MEMBERS: Who[] = [...STUDY_ROLES];
 const OUTCOME_EDITORS: Who[] = ["owner", "coder", "analyst"];
 const RUN_CREATORS: Who[] = ["owner", "analyst"];
+const COMPARERS: Who[] = ["owner", "analyst"];
 
 /** A binary trait and a few invented taxa across 66 Ma, and run parameters that test the trait. */
 async function matrixRunStudy(studyId: string) {
@@ -268,6 +270,64 @@ const MATRIX: Record<string, Row> = {
   "GET /api/studies/{studyId}/exports/template.csv": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/exports/template.csv`) },
   "GET /api/studies/{studyId}/exports/taxa.csv": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/exports/taxa.csv?form=long`) },
   "GET /api/studies/{studyId}/exports/codebook.csv": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/exports/codebook.csv`) },
+  // Modern comparison: lists, their uploads and crosswalks, and comparisons. What a call needs (a
+  // list with a run whose model scores it, an upload, a saved comparison) is written directly or by the owner.
+  "POST /api/studies/{studyId}/modern-lists/uploads": {
+    allowed: COMPARERS,
+    call: (a, { studyId }) => a.post(`/api/studies/${studyId}/modern-lists/uploads`).attach("file", Buffer.from("species,status\nMatrixia (invented),LC\n", "utf8"), "matrix-list.csv"),
+  },
+  "POST /api/studies/{studyId}/modern-lists/uploads/{uploadId}/preview": {
+    allowed: COMPARERS,
+    call: async (a, { studyId, cast }) => a.post(`/api/studies/${studyId}/modern-lists/uploads/${await matrixModernUpload(cast.people.owner.agent, studyId)}/preview`).send({ mapping: MATRIX_LIST_MAPPING }),
+  },
+  "POST /api/studies/{studyId}/modern-lists/uploads/{uploadId}/commit": {
+    allowed: COMPARERS,
+    call: async (a, { studyId, cast }) =>
+      a.post(`/api/studies/${studyId}/modern-lists/uploads/${await matrixModernUpload(cast.people.owner.agent, studyId)}/commit`).send({ mapping: MATRIX_LIST_MAPPING, name: "Matrix list", skipInvalid: false }),
+  },
+  "DELETE /api/studies/{studyId}/modern-lists/uploads/{uploadId}": {
+    allowed: COMPARERS,
+    call: async (a, { studyId, cast }) => a.delete(`/api/studies/${studyId}/modern-lists/uploads/${await matrixModernUpload(cast.people.owner.agent, studyId)}`),
+  },
+  "GET /api/studies/{studyId}/modern-lists": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/modern-lists`) },
+  "GET /api/studies/{studyId}/modern-lists/{listId}": {
+    allowed: MEMBERS,
+    freshStudy: true,
+    call: async (a, { studyId }) => a.get(`/api/studies/${studyId}/modern-lists/${(await matrixModernSetup(app, studyId)).listId}`),
+  },
+  "PUT /api/studies/{studyId}/modern-lists/{listId}/crosswalk": {
+    allowed: COMPARERS,
+    call: async (a, { studyId }) => {
+      const { listId, traitId } = await matrixModernSetup(app, studyId, { crosswalk: false });
+      return a.put(`/api/studies/${studyId}/modern-lists/${listId}/crosswalk`).send({ pairs: [{ traitId, column: "water", states: { sea: "sea" } }] });
+    },
+  },
+  "DELETE /api/studies/{studyId}/modern-lists/{listId}": {
+    allowed: COMPARERS,
+    call: async (a, { studyId }) => a.delete(`/api/studies/${studyId}/modern-lists/${(await matrixModernSetup(app, studyId)).listId}`),
+  },
+  "POST /api/studies/{studyId}/comparisons": {
+    allowed: COMPARERS,
+    call: async (a, { studyId }) => {
+      const { listId, runId } = await matrixModernSetup(app, studyId);
+      return a.post(`/api/studies/${studyId}/comparisons`).send({ name: "Matrix comparison", listId, runId });
+    },
+  },
+  "GET /api/studies/{studyId}/comparisons": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/comparisons`) },
+  "GET /api/studies/{studyId}/comparisons/{comparisonId}": {
+    allowed: MEMBERS,
+    freshStudy: true,
+    call: async (a, { studyId }) => a.get(`/api/studies/${studyId}/comparisons/${await matrixComparison(app, studyId)}`),
+  },
+  "GET /api/studies/{studyId}/comparisons/{comparisonId}/export": {
+    allowed: MEMBERS,
+    freshStudy: true,
+    call: async (a, { studyId }) => a.get(`/api/studies/${studyId}/comparisons/${await matrixComparison(app, studyId)}/export?format=csv`),
+  },
+  "DELETE /api/studies/{studyId}/comparisons/{comparisonId}": {
+    allowed: COMPARERS,
+    call: async (a, { studyId }) => a.delete(`/api/studies/${studyId}/comparisons/${await matrixComparison(app, studyId)}`),
+  },
   // The fake mailbox is for study leads. Earlier rows made everyone create a study of their own,
   // so the non-owner cells use a newcomer who holds only that role (or, as stranger, none).
   "GET /api/outbox": {
