@@ -27,6 +27,9 @@ import { importsRouter } from "./routes/imports";
 import { exportsRouter } from "./routes/exports";
 import { modernListsRouter } from "./routes/modernLists";
 import { comparisonsRouter } from "./routes/comparisons";
+import { threadsRouter } from "./routes/threads";
+import { notificationsRouter } from "./routes/notifications";
+import { activityRouter } from "./routes/activity";
 
 export interface BuiltApp {
   app: Express;
@@ -34,7 +37,7 @@ export interface BuiltApp {
   routes: RegisteredRoute[];
 }
 
-const RESOURCE_ROUTERS = [healthRouter, authRouter, studiesRouter, membersRouter, invitationsRouter, outboxRouter, timescaleRouter, outcomesRouter, overridesRouter, ratesRouter, runsRouter, traitsRouter, taxaRouter, decisionsRouter, importsRouter, exportsRouter, modernListsRouter, comparisonsRouter];
+const RESOURCE_ROUTERS = [healthRouter, authRouter, studiesRouter, membersRouter, invitationsRouter, outboxRouter, timescaleRouter, outcomesRouter, overridesRouter, ratesRouter, runsRouter, traitsRouter, taxaRouter, decisionsRouter, importsRouter, exportsRouter, threadsRouter, notificationsRouter, activityRouter, modernListsRouter, comparisonsRouter];
 
 export function buildOpenApi(registry: OpenAPIRegistry) {
   registry.registerComponent("securitySchemes", "session", { type: "apiKey", in: "cookie", name: "ss_session" });

@@ -29,6 +29,7 @@ export async function createContext(config: AppConfig): Promise<RunningContext> 
   // Every app process works the shared queue; the services registered their job kinds above.
   await jobs.start();
   services.runs.startSweeping();
+  services.notifications.startDigestClock();
   return {
     config,
     db: database.db,
@@ -40,6 +41,7 @@ export async function createContext(config: AppConfig): Promise<RunningContext> 
     fakeSmtp,
     async close() {
       await services.runs.stopSweeping();
+      services.notifications.stopDigestClock();
       await jobs.stop();
       await workers.close();
       mailer.close();

@@ -26,3 +26,47 @@ export function passwordResetMail(args: { link: string }) {
     ].join("\n"),
   };
 }
+
+/** One mention, sent at once to a member whose preference for the study is "immediate". */
+export function mentionMail(args: { author: string; studyName: string; threadTitle: string; targetLabel: string; excerpt: string; link: string; settingsLink: string }) {
+  return {
+    subject: `${args.author} mentioned you in "${args.threadTitle}" (${args.studyName})`,
+    text: [
+      `${args.author} mentioned you in the thread "${args.threadTitle}" about ${args.targetLabel}, in the study "${args.studyName}":`,
+      "",
+      `> ${args.excerpt}`,
+      "",
+      `Open the thread: ${args.link}`,
+      "",
+      `You get an e-mail for each mention in this study. To get one daily digest or none, change it on the study's overview: ${args.settingsLink}`,
+    ].join("\n"),
+  };
+}
+
+export interface DigestItem {
+  studyName: string;
+  threadTitle: string;
+  author: string;
+  excerpt: string;
+  link: string;
+  at: Date;
+}
+
+/** The daily digest: every mention since the last one, grouped by study. */
+export function mentionDigestMail(args: { items: DigestItem[]; settingsLink: string }) {
+  const byStudy = new Map<string, DigestItem[]>();
+  for (const item of args.items) byStudy.set(item.studyName, [...(byStudy.get(item.studyName) ?? []), item]);
+  const count = args.items.length;
+  const lines: string[] = [`You were mentioned ${count === 1 ? "once" : `${count} times`} since the last digest.`, ""];
+  for (const [studyName, items] of byStudy) {
+    lines.push(`Study "${studyName}"`, "");
+    for (const item of items) {
+      lines.push(`- ${item.author} in "${item.threadTitle}" (${item.at.toUTCString()}):`, `  > ${item.excerpt}`, `  ${item.link}`, "");
+    }
+  }
+  lines.push(`You get this digest once a day for studies set to "daily digest". Change it on each study's overview, for example: ${args.settingsLink}`);
+  return {
+    subject: `Stratasieve: ${count === 1 ? "1 mention" : `${count} mentions`} since the last digest`,
+    text: lines.join("\n"),
+  };
+}

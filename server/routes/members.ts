@@ -41,7 +41,7 @@ export function membersRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
     params: memberParamsSchema,
     body: memberUpdateSchema,
     response: { status: 204 },
-    handler: ({ params, body }) => studies.changeMembership(params.studyId, params.userId, body.role),
+    handler: ({ params, body, user }) => studies.changeMembership(params.studyId, params.userId, body.role, user!),
   });
 
   api.add({
@@ -52,7 +52,7 @@ export function membersRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
     access: "members.manage",
     params: memberParamsSchema,
     response: { status: 204 },
-    handler: ({ params }) => studies.changeMembership(params.studyId, params.userId, null),
+    handler: ({ params, user }) => studies.changeMembership(params.studyId, params.userId, null, user!),
   });
 
   return api;

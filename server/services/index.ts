@@ -16,6 +16,9 @@ import { createImportService } from "./imports";
 import { createExportService } from "./exports";
 import { createModernListService } from "./modernLists";
 import { createComparisonService } from "./comparisons";
+import { createNotificationService } from "./notifications";
+import { createThreadService } from "./threads";
+import { createActivityService } from "./activity";
 
 /** What services need besides the database and mail: the job queue and the worker threads. */
 export interface Runtime {
@@ -24,6 +27,7 @@ export interface Runtime {
 }
 
 export function createServices(db: Database, mailer: Mailer, appUrl: string, runtime: Runtime) {
+  const notifications = createNotificationService(db, mailer, appUrl, runtime.jobs);
   return {
     users: createUserService(db),
     studies: createStudyService(db),
@@ -39,6 +43,9 @@ export function createServices(db: Database, mailer: Mailer, appUrl: string, run
     exports: createExportService(db),
     modernLists: createModernListService(db),
     comparisons: createComparisonService(db),
+    notifications,
+    threads: createThreadService(db, notifications),
+    activity: createActivityService(db),
   };
 }
 export type Services = ReturnType<typeof createServices>;

@@ -1,12 +1,13 @@
 import { and, eq, gt, isNull } from "drizzle-orm";
 import type { Database } from "../db";
 import { invitations, memberships, studies, users } from "../../db/schema/index";
-import type { StudyRole } from "../../shared/roles";
+import { ROLE_LABELS, type StudyRole } from "../../shared/roles";
 import type { InvitationPreview } from "../../shared/schemas/studies";
 import { HttpError } from "../http/errors";
 import type { Mailer } from "../mail/mailer";
 import { invitationMail } from "../mail/templates";
 import { hashToken, newToken } from "./tokens";
+import { addActivity } from "./activity";
 
 const INVITATION_TTL_MS = 7 * 24 * 3600 * 1000;
 
@@ -67,6 +68,15 @@ export function createInvitationService(db: Database, mailer: Mailer, appUrl: st
         });
         if (existing) return { studyId: invitation.studyId, role: existing.role };
         await tx.insert(memberships).values({ studyId: invitation.studyId, userId, role: invitation.role });
+        const [joiner] = await tx.select({ name: users.name }).from(users).where(eq(users.id, userId));
+        await addActivity(tx, {
+          studyId: invitation.studyId,
+          userId,
+          kind: "member.joined",
+          summary: `${joiner.name} joined as ${ROLE_LABELS[invitation.role]}`,
+          refType: "membership",
+          refId: userId,
+        });
         return { studyId: invitation.studyId, role: invitation.role };
       });
     },

@@ -2,9 +2,10 @@ import { and, count, desc, eq, gt, isNull, sql } from "drizzle-orm";
 import type { Database } from "../db";
 import { invitations, memberships, studies, traits, users } from "../../db/schema/index";
 import { SUGGESTED_CODEBOOK } from "../../shared/codebook";
-import type { StudyRole } from "../../shared/roles";
+import { ROLE_LABELS, type StudyRole } from "../../shared/roles";
 import type { Member, Study, StudyUpdateInput } from "../../shared/schemas/studies";
 import { HttpError, notFound } from "../http/errors";
+import { addActivity } from "./activity";
 
 type StudyRow = typeof studies.$inferSelect;
 
@@ -89,8 +90,9 @@ export function createStudyService(db: Database) {
     /**
      * Changes a member's role or removes the member. A study always keeps at least one owner:
      * the owner rows are locked first so two concurrent demotions cannot both pass the check.
+     * The change is written to the study's activity feed, naming who made it.
      */
-    async changeMembership(studyId: string, userId: string, newRole: StudyRole | null): Promise<void> {
+    async changeMembership(studyId: string, userId: string, newRole: StudyRole | null, actor: { id: string; name: string }): Promise<void> {
       await db.transaction(async (tx) => {
         await tx.execute(sql`SELECT 1 FROM memberships WHERE study_id = ${studyId} AND role = 'owner' FOR UPDATE`);
         const current = await tx.query.memberships.findFirst({ where: and(eq(memberships.studyId, studyId), eq(memberships.userId, userId)) });
@@ -106,6 +108,18 @@ export function createStudyService(db: Database) {
         }
         if (newRole) await tx.update(memberships).set({ role: newRole }).where(and(eq(memberships.studyId, studyId), eq(memberships.userId, userId)));
         else await tx.delete(memberships).where(and(eq(memberships.studyId, studyId), eq(memberships.userId, userId)));
+        if (newRole === current.role) return;
+        const [member] = await tx.select({ name: users.name }).from(users).where(eq(users.id, userId));
+        await addActivity(tx, {
+          studyId,
+          userId: actor.id,
+          kind: newRole ? "member.role_changed" : "member.removed",
+          summary: newRole
+            ? `${actor.name} changed the role of ${member.name} from ${ROLE_LABELS[current.role]} to ${ROLE_LABELS[newRole]}`
+            : `${actor.name} removed ${member.name} (${ROLE_LABELS[current.role]}) from the study`,
+          refType: "membership",
+          refId: userId,
+        });
       });
     },
   };

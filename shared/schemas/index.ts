@@ -11,5 +11,8 @@ export * from "./decisions";
 export * from "./imports";
 export * from "./exports";
 export * from "./runs";
+export * from "./threads";
+export * from "./notifications";
+export * from "./activity";
 export * from "./modernLists";
 export * from "./comparisons";

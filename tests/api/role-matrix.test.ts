@@ -6,7 +6,7 @@ import request, { type Response } from "supertest";
 import { and, eq } from "drizzle-orm";
 import { STUDY_ROLES } from "../../shared/roles";
 import { createTestApp, PASSWORD, signedInAgent, uniqueEmail, type TestApp } from "../support/server";
-import { memberships, outcomeOverrides, runs, taxa, traits } from "../../db/schema/index";
+import { memberships, notifications, outcomeOverrides, runs, taxa, threadPosts, threads, traits } from "../../db/schema/index";
 import { castOfRoles, EVERYONE, type Cast, type Who } from "./fixtures";
 import { codedImport, codedTaxon, codedTrait, uploadCsv } from "../support/traitTables";
 import { MATRIX_LIST_MAPPING, matrixComparison, matrixModernSetup, matrixModernUpload } from "../support/modernComparison";
@@ -24,6 +24,7 @@ const SIGNED_IN: Who[] = ["stranger", ...STUDY_ROLES];
 const MEMBERS: Who[] = [...STUDY_ROLES];
 const OUTCOME_EDITORS: Who[] = ["owner", "coder", "analyst"];
 const RUN_CREATORS: Who[] = ["owner", "analyst"];
+const POSTERS: Who[] = ["owner", "coder", "analyst", "reviewer"];
 const COMPARERS: Who[] = ["owner", "analyst"];
 
 /** A binary trait and a few invented taxa across 66 Ma, and run parameters that test the trait. */
@@ -63,6 +64,18 @@ async function matrixRun(studyId: string, status: "succeeded" | "failed" = "succ
 async function matrixTaxon(studyId: string) {
   const [taxon] = await app.ctx.db.insert(taxa).values({ studyId, name: `Matrixella ${randomUUID().slice(0, 8)}`, fadMa: 70, ladMa: 67 }).returning();
   return taxon;
+}
+
+/** A thread opened by the study lead on a new trait, with one post. */
+async function matrixThread(studyId: string, cast: Cast, status: "open" | "resolved" = "open") {
+  const traitId = await codedTrait(app, studyId);
+  const owner = cast.people.owner.user.id;
+  const [thread] = await app.ctx.db
+    .insert(threads)
+    .values({ studyId, targetType: "trait", targetId: traitId, title: "Matrix thread", status, createdBy: owner, resolvedBy: status === "resolved" ? owner : null, resolvedAt: status === "resolved" ? new Date() : null })
+    .returning();
+  await app.ctx.db.insert(threadPosts).values({ threadId: thread.id, authorId: owner, body: "Matrix post" });
+  return thread;
 }
 
 const MATRIX: Record<string, Row> = {
@@ -327,6 +340,52 @@ const MATRIX: Record<string, Row> = {
   "DELETE /api/studies/{studyId}/comparisons/{comparisonId}": {
     allowed: COMPARERS,
     call: async (a, { studyId }) => a.delete(`/api/studies/${studyId}/comparisons/${await matrixComparison(app, studyId)}`),
+  },
+  // Threads: members read, every role but guests posts; resolving and reopening is for coders and
+  // study leads (and the thread's author, here the study lead).
+  "GET /api/studies/{studyId}/threads": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/threads?status=open`) },
+  "POST /api/studies/{studyId}/threads": {
+    allowed: POSTERS,
+    freshStudy: true,
+    call: async (a, { studyId }) => a.post(`/api/studies/${studyId}/threads`).send({ target: { type: "trait", id: await codedTrait(app, studyId) }, body: "Matrix question" }),
+  },
+  "GET /api/studies/{studyId}/threads/{threadId}": {
+    allowed: MEMBERS,
+    freshStudy: true,
+    call: async (a, { studyId, cast }) => a.get(`/api/studies/${studyId}/threads/${(await matrixThread(studyId, cast)).id}`),
+  },
+  "POST /api/studies/{studyId}/threads/{threadId}/posts": {
+    allowed: POSTERS,
+    freshStudy: true,
+    call: async (a, { studyId, cast }) => a.post(`/api/studies/${studyId}/threads/${(await matrixThread(studyId, cast)).id}/posts`).send({ body: "Matrix reply" }),
+  },
+  "POST /api/studies/{studyId}/threads/{threadId}/resolve": {
+    allowed: ["owner", "coder"],
+    freshStudy: true,
+    call: async (a, { studyId, cast }) => a.post(`/api/studies/${studyId}/threads/${(await matrixThread(studyId, cast)).id}/resolve`).send({}),
+  },
+  "POST /api/studies/{studyId}/threads/{threadId}/reopen": {
+    allowed: ["owner", "coder"],
+    freshStudy: true,
+    call: async (a, { studyId, cast }) => a.post(`/api/studies/${studyId}/threads/${(await matrixThread(studyId, cast, "resolved")).id}/reopen`),
+  },
+  "GET /api/studies/{studyId}/activity": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/activity`) },
+  // Notifications are the caller's own; the preference of a study is for its members.
+  "GET /api/notifications": { allowed: SIGNED_IN, call: (a) => a.get("/api/notifications") },
+  "POST /api/notifications/{notificationId}/read": {
+    allowed: SIGNED_IN,
+    call: async (a, { studyId, cast, who }) => {
+      if (who === "anonymous") return a.post(`/api/notifications/${randomUUID()}/read`);
+      const [n] = await app.ctx.db.insert(notifications).values({ userId: cast.people[who].user.id, studyId, kind: "mention", summary: "Matrix mention" }).returning();
+      return a.post(`/api/notifications/${n.id}/read`);
+    },
+  },
+  "POST /api/notifications/read-all": { allowed: SIGNED_IN, call: (a) => a.post("/api/notifications/read-all").send({}) },
+  "GET /api/notifications/preferences": { allowed: SIGNED_IN, call: (a) => a.get("/api/notifications/preferences") },
+  "PUT /api/notifications/preferences/{studyId}": {
+    allowed: MEMBERS,
+    freshStudy: true,
+    call: (a, { studyId }) => a.put(`/api/notifications/preferences/${studyId}`).send({ mode: "digest" }),
   },
   // The fake mailbox is for study leads. Earlier rows made everyone create a study of their own,
   // so the non-owner cells use a newcomer who holds only that role (or, as stranger, none).
