@@ -22,7 +22,7 @@ import { OutcomeWarnings } from "./OutcomeWarnings";
 import { OverridesCard } from "./OverridesCard";
 import { RevokeOverrideDialog, SetOutcomeDialog, type RevokeTarget } from "./OverrideDialogs";
 import { RatesChart } from "./RatesChart";
-import { indexScale } from "./scaleIndex";
+import { indexScale } from "../../components/timescale/scaleIndex";
 
 function requestOf(view: BoundaryView): OutcomesRequest | null {
   if (!view.choice) return null;

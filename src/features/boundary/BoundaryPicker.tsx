@@ -1,17 +1,17 @@
-import { useId, useState } from "react";
+import { useState } from "react";
 import { z } from "zod";
 import { boundaryMaSchema, outcomesQuerySchema } from "@shared/schemas/outcomes";
 import type { Timescale, TimescaleUnitDto } from "@shared/schemas/timescale";
 import { Button } from "../../components/Button";
 import { Card } from "../../components/Card";
-import { cx } from "../../components/focus";
-import { Select } from "../../components/Select";
 import { TextField } from "../../components/TextField";
+import { formatAgeNumber, formatMa, formatMyr, RANK_WORD } from "../../components/timescale/ages";
+import { PickModeSwitch, type BoundaryPickMode } from "../../components/timescale/PickModeSwitch";
+import type { ScaleIndex } from "../../components/timescale/scaleIndex";
+import { UnitSelects } from "../../components/timescale/UnitSelects";
 import { useZodForm } from "../../lib/forms";
 import type { BoundaryChoice } from "./boundaryParams";
 import { BoundaryStrip } from "./BoundaryStrip";
-import type { ScaleIndex } from "./scaleIndex";
-import { formatAgeNumber, formatMa, formatMyr, RANK_WORD } from "./words";
 
 // Form schemas built from the shared ones the server applies: a custom boundary is the form's
 // boundary age, the window is the outcomes query's own window field.
@@ -35,12 +35,10 @@ export interface BoundaryPickerProps {
   onWindow: (window: number | undefined) => void;
 }
 
-type Mode = "unit" | "age";
-
 export function BoundaryPicker(props: BoundaryPickerProps) {
   const { timescale, scale, choice, chosenUnit, boundary, windowParam, windowInEffect, onChoose, onWindow } = props;
-  const [modeChoice, setModeChoice] = useState<Mode | null>(null);
-  const mode: Mode = modeChoice ?? choice?.kind ?? "unit";
+  const [modeChoice, setModeChoice] = useState<BoundaryPickMode | null>(null);
+  const mode: BoundaryPickMode = modeChoice ?? choice?.kind ?? "unit";
 
   const choose = (next: BoundaryChoice) => {
     setModeChoice(null);
@@ -53,7 +51,7 @@ export function BoundaryPicker(props: BoundaryPickerProps) {
       title="Boundary and window"
       description="Place the boundary on the International Chronostratigraphic Chart, by period, epoch and stage, or type an age. The window is the stretch of time below the boundary in which a last appearance counts as a loss."
     >
-      <ModeSwitch mode={mode} onChange={setModeChoice} />
+      <PickModeSwitch mode={mode} onChange={setModeChoice} />
       <div className="mt-5">
         {mode === "unit" ? (
           <UnitSelects scale={scale} chosenUnit={chosenUnit} onChoose={(unit) => choose({ kind: "unit", name: unit.name })} />
@@ -81,79 +79,6 @@ export function BoundaryPicker(props: BoundaryPickerProps) {
         ages are larger.
       </p>
     </Card>
-  );
-}
-
-function ModeSwitch({ mode, onChange }: { mode: Mode; onChange: (mode: Mode) => void }) {
-  const name = useId();
-  const options: Array<{ value: Mode; label: string }> = [
-    { value: "unit", label: "Unit of the chart" },
-    { value: "age", label: "Custom age" },
-  ];
-  return (
-    <fieldset>
-      <legend className="sr-only">Choose the boundary by</legend>
-      <div className="inline-flex rounded-lg border border-stone-300 bg-stone-100 p-0.5">
-        {options.map((option) => (
-          <label
-            key={option.value}
-            className={cx(
-              "cursor-pointer rounded-md px-3 py-1.5 text-sm font-medium transition-colors has-[:focus-visible]:ring-2 has-[:focus-visible]:ring-accent-500",
-              mode === option.value ? "bg-white text-stone-900 shadow-sm" : "text-stone-600 hover:text-stone-900",
-            )}
-          >
-            <input type="radio" name={name} value={option.value} checked={mode === option.value} onChange={() => onChange(option.value)} className="sr-only" />
-            {option.label}
-          </label>
-        ))}
-      </div>
-    </fieldset>
-  );
-}
-
-function unitOption(unit: TimescaleUnitDto) {
-  return { value: unit.name, label: `${unit.label} · base ${formatMa(unit.base)}` };
-}
-
-/** Period, then epoch, then stage: the boundary is the base of the narrowest unit chosen. */
-function UnitSelects({ scale, chosenUnit, onChoose }: { scale: ScaleIndex; chosenUnit: TimescaleUnitDto | undefined; onChoose: (unit: TimescaleUnitDto) => void }) {
-  const period = chosenUnit ? scale.ancestor(chosenUnit, "Period") : undefined;
-  const epoch = chosenUnit ? scale.ancestor(chosenUnit, "Epoch") : undefined;
-  const stage = chosenUnit?.rank === "Age" ? chosenUnit : undefined;
-  const epochs = period ? scale.inside(period, "Epoch") : [];
-  const stages = epoch ? scale.inside(epoch, "Age") : [];
-
-  const pick = (units: readonly TimescaleUnitDto[], name: string, fallback: TimescaleUnitDto | undefined) => {
-    const unit = units.find((u) => u.name === name) ?? fallback;
-    if (unit) onChoose(unit);
-  };
-
-  return (
-    <div>
-      <div className="grid gap-4 sm:grid-cols-3">
-        <Select
-          label="Period"
-          value={period?.name ?? ""}
-          onChange={(event) => pick(scale.periods, event.target.value, undefined)}
-          options={[{ value: "", label: "Choose a period", disabled: true }, ...scale.periods.map(unitOption)]}
-        />
-        <Select
-          label="Epoch"
-          value={epoch?.name ?? ""}
-          disabled={!period}
-          onChange={(event) => pick(epochs, event.target.value, period)}
-          options={[{ value: "", label: period ? `None: the ${period.label}’s base` : "Choose a period first" }, ...epochs.map(unitOption)]}
-        />
-        <Select
-          label="Stage"
-          value={stage?.name ?? ""}
-          disabled={!epoch}
-          onChange={(event) => pick(stages, event.target.value, epoch)}
-          options={[{ value: "", label: epoch ? `None: the ${epoch.label}’s base` : "Choose an epoch first" }, ...stages.map(unitOption)]}
-        />
-      </div>
-      <p className="mt-2 text-sm text-stone-500">The boundary is the base of the narrowest unit chosen. Listed youngest first, as on the chart.</p>
-    </div>
   );
 }
 

@@ -1,7 +1,7 @@
 import type { TimescaleRankName, TimescaleUnitDto } from "@shared/schemas/timescale";
 import { cx, focusRing } from "../../components/focus";
-import type { ScaleIndex } from "./scaleIndex";
-import { formatAgeNumber, formatMa, formatMyr, RANK_WORD, windowEdge } from "./words";
+import type { ScaleIndex } from "../../components/timescale/scaleIndex";
+import { formatAgeNumber, formatMa, formatMyr, RANK_WORD, windowEdge } from "../../components/timescale/ages";
 
 const ROWS: ReadonlyArray<{ rank: TimescaleRankName; label: string }> = [
   { rank: "Period", label: "Period" },

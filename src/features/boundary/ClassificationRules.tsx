@@ -1,5 +1,5 @@
 import { Card } from "../../components/Card";
-import { formatMa, windowEdge } from "./words";
+import { formatMa, windowEdge } from "../../components/timescale/ages";
 
 /** The rules that sort each taxon, written out with this boundary's numbers so a reviewer can check any row by hand. */
 export function ClassificationRules({ boundary, window }: { boundary: number; window: number }) {

@@ -8,7 +8,8 @@ import { LoadingState } from "../../components/LoadingState";
 import { formatCount } from "../../lib/format";
 import { useOutcomes, type OutcomesRequest } from "./api";
 import { OutcomeBadge } from "./OutcomeBadge";
-import { formatAgeNumber, formatMa, GROUP_ORDER, OUTCOME_GROUP_LABEL, OUTCOME_LABEL } from "./words";
+import { formatAgeNumber, formatMa } from "../../components/timescale/ages";
+import { GROUP_ORDER, OUTCOME_GROUP_LABEL, OUTCOME_LABEL } from "./words";
 
 export const LIST_PAGE_SIZE = 50;
 

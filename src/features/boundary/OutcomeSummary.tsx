@@ -2,7 +2,8 @@ import type { BoundaryOutcomeName, OutcomesResult } from "@shared/schemas/outcom
 import { Card } from "../../components/Card";
 import { cx } from "../../components/focus";
 import { formatCount, pluralize } from "../../lib/format";
-import { formatMa, formatMyr, formatPercent, GROUP_ORDER, OUTCOME_GROUP_LABEL, windowEdge } from "./words";
+import { formatMa, formatMyr, windowEdge } from "../../components/timescale/ages";
+import { formatPercent, GROUP_ORDER, OUTCOME_GROUP_LABEL } from "./words";
 
 const TILE_TONE: Record<BoundaryOutcomeName, string> = {
   survivor: "border-accent-200 bg-accent-50 text-accent-900",

@@ -12,7 +12,8 @@ import { useToast } from "../../components/Toast";
 import { ApiError } from "../../lib/api";
 import { formLevelMessage, issuesToFieldErrors, type FieldErrors } from "../../lib/forms";
 import { useCreateOverride, useRevokeOverride } from "./api";
-import { formatMa, OUTCOME_LABEL } from "./words";
+import { formatMa } from "../../components/timescale/ages";
+import { OUTCOME_LABEL } from "./words";
 
 const OUTCOME_HELP: Record<BoundaryOutcomeName, string> = {
   survivor: "It lived on past the boundary.",

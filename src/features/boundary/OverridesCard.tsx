@@ -10,7 +10,7 @@ import { formatCount, formatDateTime } from "../../lib/format";
 import { useOverrides, type OverrideStatus } from "./api";
 import { OutcomeBadge } from "./OutcomeBadge";
 import type { RevokeTarget } from "./OverrideDialogs";
-import { formatMa } from "./words";
+import { formatMa } from "../../components/timescale/ages";
 
 const PAGE_SIZE = 20;
 

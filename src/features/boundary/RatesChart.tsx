@@ -7,7 +7,8 @@ import { cx } from "../../components/focus";
 import { LoadingState } from "../../components/LoadingState";
 import { formatCount, pluralize } from "../../lib/format";
 import { useRates } from "./api";
-import { formatAgeNumber, formatMa, formatPercent, formatRate, formatWholePercent } from "./words";
+import { formatAgeNumber, formatMa } from "../../components/timescale/ages";
+import { formatPercent, formatRate, formatWholePercent } from "./words";
 
 type Measure = "proportionalExtinction" | "q" | "qPerMyr";
 
