@@ -25,8 +25,8 @@ export interface TraitTableFigure {
 }
 
 const TAXA = 100_000;
-const GRID_REQUESTS = 50;
-const WARM_UP = 5;
+const GRID_REQUESTS = 60;
+const WARM_UP = 6;
 
 /** Five traits besides the suggested five, so the file has ten trait columns. */
 const EXTRA_TRAITS = [
@@ -153,26 +153,35 @@ export async function benchTraitTables(): Promise<TraitTableFigure[]> {
     const habit = codebook.find((t) => t.key === "life_habit")!;
     const size = codebook.find((t) => t.key === "body_size")!;
     const range = codebook.find((t) => t.key === "geographic_range")!;
-    const queries = [
-      { filter: `${habit.id}:eq:infaunal`, sort: size.id, dir: "desc" },
-      { filter: `higherTaxon:contains:clade 1`, sort: "fadMa", dir: "asc" },
-      { filter: `${range.id}:min:150`, sort: habit.id, dir: "asc" },
+    // Three kinds of grid request, each with a filter and a sort, pages spread over the first 20.
+    const scenarios = [
+      { name: "state filter + numeric sort", make: (i: number) => ({ filter: `${habit.id}:eq:infaunal`, sort: size.id, dir: "desc", page: String(1 + (i % 20)) }) },
+      // A search for a name fragment (100 taxa match each), sorted by last appearance.
+      { name: "name search + age sort", make: (i: number) => ({ filter: `name:contains:Benchella 0${String(100 + i * 37).slice(-3)}`, sort: "ladMa", dir: "asc", page: "1" }) },
+      { name: "numeric range filter + state sort", make: (i: number) => ({ filter: `${range.id}:min:150`, sort: habit.id, dir: "asc", page: String(1 + (i % 20)) }) },
     ];
-    const times: number[] = [];
+    const all: number[] = [];
+    const byScenario = new Map<string, number[]>();
     for (let i = 0; i < WARM_UP + GRID_REQUESTS; i++) {
-      const q = queries[i % queries.length];
-      const query = taxaListQuerySchema.parse({ page: String(1 + (i % 20)), pageSize: "100", sort: q.sort, dir: q.dir, filter: q.filter });
+      const scenario = scenarios[i % scenarios.length];
+      const query = taxaListQuerySchema.parse({ pageSize: "100", ...scenario.make(Math.floor(i / scenarios.length)) });
       const t0 = performance.now();
       const page = await taxa.list(study.id, query);
       JSON.stringify(page);
       const elapsed = performance.now() - t0;
-      if (page.rows.length !== 100) throw new Error(`bench: a grid page held ${page.rows.length} rows`);
-      if (i >= WARM_UP) times.push(elapsed);
+      if (page.rows.length !== 100) throw new Error(`bench: a grid page (${scenario.name}) held ${page.rows.length} rows`);
+      if (i < WARM_UP) continue;
+      all.push(elapsed);
+      byScenario.set(scenario.name, [...(byScenario.get(scenario.name) ?? []), elapsed]);
     }
-    times.sort((a, b) => a - b);
-    const note = `${GRID_REQUESTS} pages of 100 (pages 1-20) on ${TAXA.toLocaleString("en-US")} taxa: state filter + numeric sort, text filter + age sort, numeric filter + state sort; service time incl. count and JSON`;
-    figures.push({ name: "grid page 100 rows, filter + sort: median", value: quantile(times, 0.5), unit: "ms", note });
-    figures.push({ name: "grid page 100 rows, filter + sort: p95", value: quantile(times, 0.95), unit: "ms", note: "target < 50 ms" });
+    all.sort((a, b) => a - b);
+    const note = `${all.length} requests of 100 rows on ${TAXA.toLocaleString("en-US")} taxa, three kinds in turn; service time with the count and JSON`;
+    figures.push({ name: "grid page 100 rows, filter + sort: median", value: quantile(all, 0.5), unit: "ms", note });
+    figures.push({ name: "grid page 100 rows, filter + sort: p95", value: quantile(all, 0.95), unit: "ms", note: "target < 50 ms" });
+    for (const [name, times] of byScenario) {
+      times.sort((a, b) => a - b);
+      figures.push({ name: `  p95, ${name}`, value: quantile(times, 0.95), unit: "ms", note: `median ${quantile(times, 0.5).toFixed(1)} ms` });
+    }
     return figures;
   } finally {
     if (studyId) await db.delete(studies).where(eq(studies.id, studyId));

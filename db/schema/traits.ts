@@ -65,6 +65,9 @@ export const taxa = pgTable(
     index("taxa_study_lad_idx").on(t.studyId, t.ladMa),
     // Serves the grid's state filters (trait_values @> {"<trait id>": "<code>"}) without reading every row.
     index("taxa_values_gin").using("gin", t.traitValues.op("jsonb_path_ops")),
+    // Serve "contains" filters (ILIKE '%...%') on names and higher taxa; pg_trgm is created by migration 0006.
+    index("taxa_name_trgm").using("gin", t.name.op("gin_trgm_ops")),
+    index("taxa_higher_trgm").using("gin", t.higherTaxon.op("gin_trgm_ops")),
   ],
 );
 

@@ -5,7 +5,7 @@ import { and, count, desc, eq, sql, type SQL } from "drizzle-orm";
 import { alias } from "drizzle-orm/pg-core";
 import type { Database, DbOrTx, Transaction } from "../db";
 import { codingDecisions, imports, taxa, traits, users } from "../../db/schema/index";
-import { rangeProblem, sameValue } from "../../shared/csv/values";
+import { checkTraitValue, rangeProblem, sameValue } from "../../shared/csv/values";
 import type { Decision, DecisionList, DecisionListQuery, RevertResult } from "../../shared/schemas/decisions";
 import type { HistoryEntry, RangeEnd, TaxonHistory } from "../../shared/schemas/taxa";
 import { notFound } from "../http/errors";
@@ -15,6 +15,7 @@ import {
   fieldValue,
   insertDecisions,
   lastSetters,
+  loadCodebook,
   lockTaxaById,
   newBatchId,
   recordActivity,
@@ -32,7 +33,10 @@ type DecisionRow = typeof codingDecisions.$inferSelect;
 /** Conflicts listed in a refused revert; the count is always complete. */
 const MAX_LISTED_CONFLICTS = 200;
 
+type ConflictKind = "changed_since" | "already_reverted" | "not_revertible";
+
 export interface RevertConflictEntry {
+  kind: ConflictKind;
   decisionId: string;
   taxonId: string | null;
   taxonName: string | null;
@@ -64,6 +68,16 @@ export async function revertDecisions(tx: Transaction, studyId: string, decision
   const ordered = [...decisions].sort((a, b) => b.createdAt.getTime() - a.createdAt.getTime());
   const taxonIds = [...new Set(ordered.map((d) => d.taxonId).filter((id): id is string => id !== null))];
   const states = new Map((await lockTaxaById(tx, studyId, taxonIds)).map((s) => [s.id, s]));
+  const codebook = new Map((await loadCodebook(tx, studyId)).map((t) => [t.id, t]));
+  /** Why a value can no longer be put back (its state was removed, the trait changed kind), or null. */
+  const codebookRefuses = (traitId: string, value: unknown): string | null => {
+    if (value === null || value === undefined) return null;
+    const trait = codebook.get(traitId);
+    if (!trait) return "The trait of this value no longer exists.";
+    // Retired traits keep their values, so a revert may put one back.
+    const check = checkTraitValue({ ...trait, retired: false }, value);
+    return check.ok ? null : `The codebook no longer allows this value: ${check.message}.`;
+  };
   const conflicts: RevertConflictEntry[] = [];
   const undone: DecisionRow[] = [];
   const planned: NewDecision[] = [];
@@ -82,8 +96,9 @@ export async function revertDecisions(tx: Transaction, studyId: string, decision
 
   for (const d of ordered) {
     const state = d.taxonId ? states.get(d.taxonId) : undefined;
-    const conflict = (message: string, currentValue: unknown) =>
+    const conflict = (message: string, currentValue: unknown, kind: ConflictKind = "changed_since") =>
       conflicts.push({
+        kind,
         decisionId: d.id,
         taxonId: d.taxonId,
         taxonName: state?.name ?? null,
@@ -94,11 +109,11 @@ export async function revertDecisions(tx: Transaction, studyId: string, decision
         message,
       });
     if (!state) {
-      conflict("This decision is not about a taxon of the trait table; it cannot be reverted here.", null);
+      conflict("This decision is not about a taxon of the trait table; it cannot be reverted here.", null, "not_revertible");
       continue;
     }
     if (d.field === "outcome") {
-      conflict("Outcome overrides are revoked on the Boundary screen, not reverted here.", null);
+      conflict("Outcome overrides are revoked on the Boundary screen, not reverted here.", null, "not_revertible");
       continue;
     }
     if (d.field === "taxon") {
@@ -106,7 +121,7 @@ export async function revertDecisions(tx: Transaction, studyId: string, decision
       if (broughtIn) {
         if (state.deletedAt !== null) {
           if (opts.skipUndone) undone.push(d);
-          else conflict(`${state.name} is already removed.`, null);
+          else conflict(`${state.name} is already removed.`, null, "already_reverted");
           continue;
         }
         const now = snapshotOf(state);
@@ -119,10 +134,17 @@ export async function revertDecisions(tx: Transaction, studyId: string, decision
       } else {
         if (state.deletedAt === null) {
           if (opts.skipUndone) undone.push(d);
-          else conflict(`${state.name} is not removed.`, snapshotOf(state));
+          else conflict(`${state.name} is not removed.`, snapshotOf(state), "already_reverted");
           continue;
         }
         const snap = d.oldValue as TaxonSnapshot;
+        const refused = Object.entries(snap.values ?? {})
+          .map(([traitId, v]) => codebookRefuses(traitId, v))
+          .find((m) => m !== null);
+        if (refused) {
+          conflict(`${snap.name} cannot come back as it was. ${refused}`, null, "not_revertible");
+          continue;
+        }
         if (takenNames.has(snap.name)) {
           conflict(`Another taxon named "${snap.name}" exists now; rename it before restoring this one.`, null);
           continue;
@@ -142,8 +164,13 @@ export async function revertDecisions(tx: Transaction, studyId: string, decision
     const current = fieldValue(state, d.field);
     if (!sameValue(current, d.newValue)) {
       if (sameValue(current, d.oldValue) && opts.skipUndone) undone.push(d);
-      else if (sameValue(current, d.oldValue)) conflict("The value is already what it was before this decision.", current);
+      else if (sameValue(current, d.oldValue)) conflict("The value is already what it was before this decision.", current, "already_reverted");
       else conflict("The value was changed after this decision.", current);
+      continue;
+    }
+    const refused = d.traitId ? codebookRefuses(d.traitId, d.oldValue) : null;
+    if (refused) {
+      conflict(refused, current, "not_revertible");
       continue;
     }
     setField(state, d.field, d.oldValue);
@@ -176,11 +203,12 @@ export async function revertDecisions(tx: Transaction, studyId: string, decision
       tx,
       listed.filter((c) => c.taxonId).map((c) => ({ taxonId: c.taxonId!, field: c.field })),
     );
-    const code = conflicts.every((c) => c.message.startsWith("The value is already") || c.message.endsWith("already removed.") || c.message.endsWith("is not removed."))
-      ? "already_reverted"
-      : conflicts.some((c) => c.message.includes("Boundary screen") || c.message.includes("not about a taxon"))
+    // The answer's code: the most telling kind among the conflicts.
+    const code: ConflictKind = conflicts.some((c) => c.kind === "changed_since")
+      ? "changed_since"
+      : conflicts.some((c) => c.kind === "not_revertible")
         ? "not_revertible"
-        : "changed_since";
+        : "already_reverted";
     throw new DetailedHttpError(
       409,
       code,
@@ -188,7 +216,7 @@ export async function revertDecisions(tx: Transaction, studyId: string, decision
         ? `Nothing was reverted: ${conflicts[0].taxonName ? `${conflicts[0].taxonName}: ` : ""}${conflicts[0].message}`
         : `Nothing was reverted: ${conflicts.length} values changed since or cannot be reverted. Revert them one by one, or skip the changed ones.`,
       {
-        conflicts: listed.map((c) => {
+        conflicts: listed.map(({ kind: _kind, ...c }) => {
           const setter = c.taxonId ? setters.get(`${c.taxonId}|${c.field}`) : undefined;
           return { ...c, setBy: setter?.user ?? null, setAt: setter?.at ?? null };
         }),

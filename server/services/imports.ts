@@ -32,12 +32,11 @@ import { revertDecisions } from "./decisions";
 import {
   fieldValue,
   insertDecisions,
-  insertTaxa,
+  insertTaxaWithDecisions,
   isUniqueViolation,
   loadCodebook,
   recordActivity,
   setField,
-  snapshotOf,
   taxaByName,
   writeTaxa,
   type NewDecision,
@@ -332,7 +331,6 @@ export function createImportService(db: Database) {
               };
               for (const c of p.changes) setField(s, c.field, c.to);
               created.push(s);
-              decisions.push({ taxonId: s.id, field: "taxon", action: "create", oldValue: null, newValue: snapshotOf(s), reason, importId, batchId: importId });
             } else if (p.changes.length) {
               for (const c of p.changes) {
                 setField(p.existing, c.field, c.to);
@@ -341,14 +339,14 @@ export function createImportService(db: Database) {
               updated.push(p.existing);
             }
           }
-          // Progress counts written rows: taxa first, then decisions.
-          const total = created.length + updated.length + decisions.length || 1;
+          // Progress counts written rows: new taxa with their decisions, changed taxa, their decisions.
+          const total = 2 * created.length + updated.length + decisions.length || 1;
           let done = 0;
           const step = async (n: number) => {
             done += n;
             await reportProgress(done / total);
           };
-          await insertTaxa(tx, studyId, created, user.id, step);
+          await insertTaxaWithDecisions(tx, studyId, created, user.id, { reason, importId, batchId: importId }, step);
           await writeTaxa(tx, updated, user.id, step);
           await insertDecisions(tx, studyId, user.id, decisions, step);
           await tx

@@ -288,6 +288,42 @@ export async function insertTaxa(tx: DbOrTx, studyId: string, states: TaxonState
   for (const s of states) s.version = 1;
 }
 
+/**
+ * Inserts new taxa and, in the same statement, their "create" coding decisions, whose snapshot
+ * PostgreSQL builds from the inserted rows (sending each snapshot again would double the data a
+ * large import moves). Same snapshot shape as snapshotOf.
+ */
+export async function insertTaxaWithDecisions(
+  tx: DbOrTx,
+  studyId: string,
+  states: TaxonState[],
+  userId: string | null,
+  decision: { reason: string; importId: string | null; batchId: string | null },
+  onChunk?: (done: number) => Promise<void>,
+): Promise<void> {
+  for (let i = 0; i < states.length; i += WRITE_CHUNK) {
+    const chunk = states.slice(i, i + WRITE_CHUNK);
+    await tx.execute(sql`
+      WITH added AS (
+        INSERT INTO taxa (id, study_id, name, higher_taxon, fad_ma, fad_interval, lad_ma, lad_interval, notes, trait_values, version, updated_by)
+        SELECT u.id, ${studyId}, u.name, u.higher_taxon, u.fad_ma, u.fad_interval, u.lad_ma, u.lad_interval, u.notes, u.trait_values, 1, ${userId}
+        FROM jsonb_to_recordset(${JSON.stringify(recordsOf(chunk))}::jsonb) AS u${RECORD_TYPE}
+        RETURNING id, name, higher_taxon, fad_ma, fad_interval, lad_ma, lad_interval, notes, trait_values
+      )
+      INSERT INTO coding_decisions (study_id, taxon_id, field, action, old_value, new_value, reason, user_id, import_id, batch_id, created_at)
+      SELECT ${studyId}, a.id, 'taxon', 'create', NULL,
+        jsonb_build_object(
+          'name', a.name, 'higherTaxon', a.higher_taxon,
+          'fad', CASE WHEN a.fad_ma IS NULL THEN NULL ELSE jsonb_build_object('ma', a.fad_ma, 'interval', a.fad_interval) END,
+          'lad', CASE WHEN a.lad_ma IS NULL THEN NULL ELSE jsonb_build_object('ma', a.lad_ma, 'interval', a.lad_interval) END,
+          'notes', a.notes, 'values', a.trait_values),
+        ${decision.reason}, ${userId}, ${decision.importId}, ${decision.batchId}, clock_timestamp()
+      FROM added a`);
+    await onChunk?.(chunk.length * 2);
+  }
+  for (const s of states) s.version = 1;
+}
+
 /** Writes whole rows back, each one version up. */
 export async function writeTaxa(tx: DbOrTx, states: TaxonState[], userId: string | null, onChunk?: (done: number) => Promise<void>): Promise<void> {
   for (let i = 0; i < states.length; i += WRITE_CHUNK) {

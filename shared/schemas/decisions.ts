@@ -78,6 +78,7 @@ export const revertConflictSchema = z
           traitId: z.uuid().nullable(),
           expectedValue: z.unknown().meta({ description: "The value the decision wrote" }),
           currentValue: z.unknown().meta({ description: "The value held now" }),
+          message: z.string().meta({ description: "Why this decision cannot be reverted now" }),
           setBy: decisionUserSchema,
           setAt: isoDateSchema.nullable(),
         }),

@@ -114,6 +114,20 @@ describe("reverting a decision", () => {
     expect((await cast.people.viewer.agent.get(`/api/studies/${study.studyId}/taxa/${t.id}`)).body).toMatchObject({ version: 3, values: { [study.trait.feeding.id]: "predator" } });
   });
 
+  it("refuses to put back a value the codebook no longer allows", async () => {
+    const study = await studyWithCodebook(app, cast);
+    const t = await taxonWithFeeding(study, "suspension");
+    await edit(study, t.id, 1, "deposit");
+    const [change] = (await cast.people.viewer.agent.get(`/api/studies/${study.studyId}/decisions?taxonId=${t.id}`)).body.rows;
+    // Nobody holds "suspension" now, so the codebook may drop it without a remap.
+    const states = study.trait.feeding.states.filter((s) => s.code !== "suspension").map(({ code, label }) => ({ code, label }));
+    expect((await cast.people.coder.agent.patch(`/api/studies/${study.studyId}/traits/${study.trait.feeding.id}`).send({ states })).status).toBe(200);
+    const res = await cast.people.coder.agent.post(`/api/studies/${study.studyId}/decisions/${change.id}/revert`).send({ reason: "Back to suspension" });
+    expect(res.status).toBe(409);
+    expect(res.body.error.code).toBe("not_revertible");
+    expect(res.body.conflicts[0].message).toMatch(/codebook no longer allows/);
+  });
+
   it("needs a reason, and a reviewer cannot revert", async () => {
     const study = await studyWithCodebook(app, cast);
     const t = await taxonWithFeeding(study, "suspension");
