@@ -10,6 +10,10 @@ import { SignInPage } from "../features/auth/SignInPage";
 import { SignUpPage } from "../features/auth/SignUpPage";
 import { InvitationPage } from "../features/invitations/InvitationPage";
 import { MembersPage } from "../features/members/MembersPage";
+import { ComparisonPage } from "../features/modern-comparison/ComparisonPage";
+import { ComparisonReportPage } from "../features/modern-comparison/ComparisonReportPage";
+import { CrosswalkPage } from "../features/modern-comparison/CrosswalkPage";
+import { ModernComparisonPage } from "../features/modern-comparison/ModernComparisonPage";
 import { OutboxPage } from "../features/outbox/OutboxPage";
 import { NewStudyPage } from "../features/studies/NewStudyPage";
 import { StudiesPage } from "../features/studies/StudiesPage";
@@ -36,6 +40,8 @@ export const router = createBrowserRouter([
           { path: "*", element: <NotFoundPage /> },
         ],
       },
+      // A printable report stands on a page of its own, without the app's frame.
+      { path: "studies/:studyId/modern-comparison/comparisons/:comparisonId/report", element: <ComparisonReportPage /> },
       {
         element: <AppShell />,
         children: [
@@ -50,6 +56,9 @@ export const router = createBrowserRouter([
               { path: "codebook", element: <CodebookPage /> },
               { path: "imports", element: <ImportsPage /> },
               { path: "boundary", element: <BoundaryPage /> },
+              { path: "modern-comparison", element: <ModernComparisonPage /> },
+              { path: "modern-comparison/lists/:listId", element: <CrosswalkPage /> },
+              { path: "modern-comparison/comparisons/:comparisonId", element: <ComparisonPage /> },
               { path: "members", element: <MembersPage /> },
             ],
           },

@@ -17,5 +17,6 @@ export const STUDY_NAV: readonly StudyNavItem[] = [
   { label: "Imports", path: "imports" },
   { label: "Boundary", path: "boundary" },
   // Boundary, Selectivity, Runs, Modern comparison and Threads go here, in that order.
+  { label: "Modern comparison", path: "modern-comparison" },
   { label: "Members", path: "members" },
 ];

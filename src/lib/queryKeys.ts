@@ -27,6 +27,15 @@ export const queryKeys = {
     list: (studyId: string, page: number) => ["studies", "detail", studyId, "imports", "list", page] as const,
     detail: (studyId: string, importId: string) => ["studies", "detail", studyId, "imports", "detail", importId] as const,
   },
+  // Modern comparison: lists, comparisons, and the runs a comparison can score with.
+  modernComparison: {
+    lists: (studyId: string) => ["studies", "detail", studyId, "modern-lists"] as const,
+    list: (studyId: string, listId: string) => ["studies", "detail", studyId, "modern-lists", listId] as const,
+    comparisons: (studyId: string) => ["studies", "detail", studyId, "comparisons"] as const,
+    comparison: (studyId: string, comparisonId: string) => ["studies", "detail", studyId, "comparisons", comparisonId] as const,
+    runs: (studyId: string) => ["studies", "detail", studyId, "runs", "for-comparison"] as const,
+    run: (studyId: string, runId: string) => ["studies", "detail", studyId, "runs", "detail", runId] as const,
+  },
   invitation: (token: string) => ["invitations", token] as const,
   outbox: ["outbox"] as const,
   timescale: ["timescale"] as const,
