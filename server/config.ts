@@ -17,6 +17,8 @@ export interface AppConfig {
   mailFrom: string;
   loginLimit: { windowMs: number; perIp: number; perAccount: number };
   uploadDir: string;
+  /** Whether this process takes jobs from the shared queue (JOB_WORKERS=0 makes a web-only process). */
+  jobWorkers: boolean;
 }
 
 export const DATA_DIR = join(process.cwd(), ".data");
@@ -57,6 +59,7 @@ export function loadConfig(overrides: Partial<AppConfig> = {}): AppConfig {
       perAccount: Number(env.LOGIN_LIMIT_PER_ACCOUNT ?? 10),
     },
     uploadDir: env.UPLOAD_DIR ?? join(DATA_DIR, "uploads"),
+    jobWorkers: env.JOB_WORKERS !== "0",
     ...overrides,
   };
 }

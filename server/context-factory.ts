@@ -27,7 +27,7 @@ export async function createContext(config: AppConfig): Promise<RunningContext> 
   const workers = new WorkerPool();
   const services = createServices(database.db, mailer, config.appUrl, { jobs, workers });
   // Every app process works the shared queue; the services registered their job kinds above.
-  await jobs.start();
+  await jobs.start({ work: config.jobWorkers });
   services.runs.startSweeping();
   services.notifications.startDigestClock();
   return {

@@ -28,11 +28,13 @@ export class JobQueue {
     this.handlers.set(name, handler);
   }
 
-  async start(): Promise<void> {
+  /** Starts the queue; with `work: false` this process only sends jobs and leaves them to others. */
+  async start(opts: { work: boolean } = { work: true }): Promise<void> {
     if (this.started) return;
     await this.boss.start();
     for (const [name, handler] of this.handlers) {
       await this.boss.createQueue(name);
+      if (!opts.work) continue;
       await this.boss.work<object>(name, { pollingIntervalSeconds: 0.5, batchSize: 1 }, async ([job]) => handler(job.data, job.id));
     }
     this.started = true;
