@@ -187,7 +187,7 @@ export interface ComparisonResult {
   traits: TraitComparison[];
   /** Listed LC or DD and predicted at least worthALookMin: highest first. */
   worthALook: Array<ScoredSpecies & { rank: number }>;
-  /** Every species of the list, in list order. */
+  /** Every species of the list, in the order given (the service gives them by name). */
   species: ScoredSpecies[];
   /** Plain-language notes on how to read the numbers. */
   notes: string[];

@@ -149,6 +149,7 @@ describe("modern comparison", () => {
       await page.getByRole("link", { name: "Back to modern comparison" }).click();
       const form = page.getByRole("form", { name: "Compare a list with a run" });
       await form.waitFor();
+      await screenshot(page, "modern-comparison-lists");
       await expect.poll(() => form.getByLabel("Boundary of the run").locator("option").first().innerText()).toContain("66 Ma");
       await form.getByLabel("Name of the comparison").fill("Life habit today");
       await form.getByRole("button", { name: "Compare and save" }).click();
@@ -179,6 +180,11 @@ describe("modern comparison", () => {
       await page.getByRole("note").filter({ hasText: "does not replace a formal threat assessment" }).waitFor();
       expect(await page.getByRole("navigation", { name: "Study" }).count()).toBe(0);
       await page.getByTestId("roc-chart").locator("svg").waitFor();
+      // On paper the print button goes; the results stay.
+      await page.emulateMedia({ media: "print" });
+      expect(await page.getByRole("button", { name: "Print or save as PDF" }).isVisible()).toBe(false);
+      expect(await page.getByRole("table", { name: "Worth a look" }).isVisible()).toBe(true);
+      await screenshot(page, "modern-comparison-report");
     });
   });
 });
