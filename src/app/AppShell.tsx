@@ -4,6 +4,7 @@ import type { Me } from "@shared/schemas/auth";
 import { ErrorState } from "../components/ErrorState";
 import { cx, focusRing } from "../components/focus";
 import { LoadingState } from "../components/LoadingState";
+import { NotificationBell } from "../features/notifications/NotificationBell";
 import { useStudies } from "../features/studies/api";
 import { ApiError } from "../lib/api";
 import { paths } from "../lib/paths";
@@ -94,13 +95,16 @@ function TopBar({ me, showOutbox, signingOut, onSignOut }: TopBarProps) {
             </NavLink>
           )}
         </nav>
+        <div className="ml-auto md:ml-0">
+          <NotificationBell />
+        </div>
         <div className="hidden md:block">
           <AccountMenu user={me.user} showOutbox={showOutbox} signingOut={signingOut} onSignOut={onSignOut} />
         </div>
 
         <button
           type="button"
-          className={cx("ml-auto inline-flex items-center gap-2 rounded-md px-3 py-1.5 text-[15px] font-medium text-stone-700 hover:bg-stone-100 md:hidden", focusRing)}
+          className={cx("inline-flex items-center gap-2 rounded-md px-3 py-1.5 text-[15px] font-medium text-stone-700 hover:bg-stone-100 md:hidden", focusRing)}
           aria-expanded={menuOpen}
           aria-controls={menuId}
           onClick={() => setMenuOpenAt(menuOpen ? null : location.key)}

@@ -4,6 +4,8 @@ import { BoundaryPage } from "../features/boundary/BoundaryPage";
 import { CodebookPage } from "../features/codebook/CodebookPage";
 import { ImportsPage } from "../features/imports/ImportsPage";
 import { TraitTablePage } from "../features/trait-table/TraitTablePage";
+import { ThreadPage } from "../features/threads/ThreadPage";
+import { ThreadsPage } from "../features/threads/ThreadsPage";
 import { ForgotPasswordPage } from "../features/auth/ForgotPasswordPage";
 import { ResetPasswordPage } from "../features/auth/ResetPasswordPage";
 import { SignInPage } from "../features/auth/SignInPage";
@@ -59,6 +61,8 @@ export const router = createBrowserRouter([
               { path: "modern-comparison", element: <ModernComparisonPage /> },
               { path: "modern-comparison/lists/:listId", element: <CrosswalkPage /> },
               { path: "modern-comparison/comparisons/:comparisonId", element: <ComparisonPage /> },
+              { path: "threads", element: <ThreadsPage /> },
+              { path: "threads/:threadId", element: <ThreadPage /> },
               { path: "members", element: <MembersPage /> },
             ],
           },

@@ -18,5 +18,6 @@ export const STUDY_NAV: readonly StudyNavItem[] = [
   { label: "Boundary", path: "boundary" },
   // Boundary, Selectivity, Runs, Modern comparison and Threads go here, in that order.
   { label: "Modern comparison", path: "modern-comparison" },
+  { label: "Threads", path: "threads" },
   { label: "Members", path: "members" },
 ];

@@ -9,6 +9,8 @@ export const paths = {
   newStudy: "/studies/new",
   study: (studyId: string) => `/studies/${studyId}`,
   studyMembers: (studyId: string) => `/studies/${studyId}/members`,
+  studyThreads: (studyId: string) => `/studies/${studyId}/threads`,
+  thread: (studyId: string, threadId: string) => `/studies/${studyId}/threads/${threadId}`,
   account: "/account",
   outbox: "/outbox",
   invitation: (token: string) => `/invitations/${token}`,

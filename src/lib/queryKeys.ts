@@ -46,4 +46,19 @@ export const queryKeys = {
     overrides: (studyId: string, query: Record<string, string | number>) => ["studies", "detail", studyId, "boundary", "overrides", query] as const,
     rates: (studyId: string) => ["studies", "detail", studyId, "boundary", "rates"] as const,
   },
+  // Threads below the study (taxa marks and the activity feed change with them); notifications are the person's own.
+  threads: {
+    all: (studyId: string) => ["studies", "detail", studyId, "threads"] as const,
+    list: (studyId: string, query: string) => ["studies", "detail", studyId, "threads", "list", query] as const,
+    detail: (studyId: string, threadId: string) => ["studies", "detail", studyId, "threads", "detail", threadId] as const,
+  },
+  activity: {
+    all: (studyId: string) => ["studies", "detail", studyId, "activity"] as const,
+    page: (studyId: string, page: number) => ["studies", "detail", studyId, "activity", page] as const,
+  },
+  notifications: {
+    all: ["notifications"] as const,
+    list: (query: string) => ["notifications", "list", query] as const,
+    preferences: ["notifications", "preferences"] as const,
+  },
 };

@@ -17,7 +17,9 @@ import { formatDate, pluralize } from "../../lib/format";
 import { formLevelMessage, useZodForm } from "../../lib/forms";
 import { paths } from "../../lib/paths";
 import { useDocumentTitle } from "../../lib/useDocumentTitle";
+import { ActivityFeed } from "./ActivityFeed";
 import { useDeleteStudy, useUpdateStudy } from "./api";
+import { MentionEmailsCard } from "./MentionEmailsCard";
 
 export function StudyOverviewPage() {
   const study = useCurrentStudy();
@@ -39,11 +41,15 @@ export function StudyOverviewPage() {
               </p>
             )}
           </Card>
+          <ActivityFeed studyId={study.id} />
           {canEdit && <EditStudyCard key={study.id} study={study} />}
           {canDelete && <DeleteStudyCard study={study} />}
           {!canEdit && <p className="text-sm text-stone-500">Only the study lead can change the name and description.</p>}
         </div>
-        <StudyFacts study={study} />
+        <div className="min-w-0 space-y-6 self-start">
+          <StudyFacts study={study} />
+          <MentionEmailsCard studyId={study.id} />
+        </div>
       </div>
     </>
   );
@@ -51,7 +57,7 @@ export function StudyOverviewPage() {
 
 function StudyFacts({ study }: { study: Study }) {
   return (
-    <Card title="At a glance" className="self-start">
+    <Card title="At a glance">
       <dl className="space-y-4 text-[15px]">
         <div>
           <dt className="text-sm text-stone-500">Your role</dt>

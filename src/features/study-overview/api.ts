@@ -1,4 +1,6 @@
-import { useMutation, useQueryClient } from "@tanstack/react-query";
+import { keepPreviousData, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
+import type { ActivityList } from "@shared/schemas/activity";
+import type { NotificationPreference, NotificationPreferenceList, NotificationPreferenceUpdateInput } from "@shared/schemas/notifications";
 import type { Study, StudyUpdateInput } from "@shared/schemas/studies";
 import { api } from "../../lib/api";
 import { queryKeys } from "../../lib/queryKeys";
@@ -27,5 +29,34 @@ export function useDeleteStudy(studyId: string) {
         queryClient.invalidateQueries({ queryKey: queryKeys.studies.detail(studyId), refetchType: "none" }),
         queryClient.invalidateQueries({ queryKey: queryKeys.studies.list() }),
       ]),
+  });
+}
+
+/** GET /api/studies/:studyId/activity?page&pageSize: the feed, newest first. */
+export function useActivity(studyId: string, page: number, pageSize: number) {
+  return useQuery({
+    queryKey: queryKeys.activity.page(studyId, page),
+    queryFn: ({ signal }) => api.get<ActivityList>(`/studies/${encodeURIComponent(studyId)}/activity?page=${page}&pageSize=${pageSize}`, signal),
+    placeholderData: keepPreviousData,
+  });
+}
+
+/** GET /api/notifications/preferences: the caller's e-mail choice for mentions, per study. */
+export function useMentionPreferences() {
+  return useQuery({
+    queryKey: queryKeys.notifications.preferences,
+    queryFn: ({ signal }) => api.get<NotificationPreferenceList>("/notifications/preferences", signal),
+  });
+}
+
+/** PUT /api/notifications/preferences/:studyId */
+export function useSetMentionPreference(studyId: string) {
+  const queryClient = useQueryClient();
+  return useMutation({
+    mutationFn: (input: NotificationPreferenceUpdateInput) => api.put<NotificationPreference>(`/notifications/preferences/${encodeURIComponent(studyId)}`, input),
+    onSuccess: (saved) =>
+      queryClient.setQueryData<NotificationPreferenceList>(queryKeys.notifications.preferences, (list) =>
+        list ? { preferences: list.preferences.map((p) => (p.studyId === saved.studyId ? saved : p)) } : list,
+      ),
   });
 }
