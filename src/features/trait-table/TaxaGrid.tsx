@@ -97,6 +97,8 @@ export interface TaxaGridProps {
   stale: boolean;
   onCommit: (row: TaxonRow, column: GridColumn, change: CellChange) => void;
   onShowHistory: (row: TaxonRow, column: GridColumn) => void;
+  /** Traits with an open thread about the trait itself (its coding rule): their headers are marked. */
+  openTraitThreads?: ReadonlySet<string>;
 }
 
 function MissingMark() {
@@ -140,7 +142,7 @@ function CellContent({ column, row }: { column: GridColumn; row: TaxonRow }) {
  */
 export function TaxaGrid(props: TaxaGridProps) {
   const { columns, rows, rowOffset, total, sort, onSortChange, columnVisibility, rowSelection, onRowSelectionChange, canEdit, savingCells, stale } = props;
-  const { onCommit, onShowHistory } = props;
+  const { onCommit, onShowHistory, openTraitThreads } = props;
   const scrollRef = useRef<HTMLDivElement>(null);
   const [active, setActive] = useState<ActiveCell>({ rowIndex: 0, columnId: "name" });
   const [editing, setEditing] = useState<{ initialText: string } | null>(null);
@@ -340,6 +342,7 @@ export function TaxaGrid(props: TaxaGridProps) {
                     >
                       <span className="truncate">{gc?.label}</span>
                       {gc?.kind === "trait" && gc.trait.kind === "numeric" && gc.trait.unit && <span className="font-normal text-stone-500">({gc.trait.unit})</span>}
+                      {gc?.kind === "trait" && openTraitThreads?.has(gc.id) && <ThreadDot label={`Open thread about the trait ${gc.label}`} />}
                       <span aria-hidden="true" className={cx("ml-auto text-xs", sorted ? "text-accent-700" : "text-stone-300")}>
                         {sorted === "desc" ? "▼" : "▲"}
                       </span>

@@ -14,6 +14,7 @@ import { useCurrentStudy } from "../../lib/currentStudy";
 import { formatCount, pluralize } from "../../lib/format";
 import { paths } from "../../lib/paths";
 import { useDocumentTitle } from "../../lib/useDocumentTitle";
+import { useThreads } from "../../components/threads/api";
 import { codebookCsvUrl, taxaCsvUrl, useTaxaPage, useTraits } from "./api";
 import { BulkEditDialog } from "./BulkEditDialog";
 import { gridColumns, type GridColumn } from "./cellValues";
@@ -77,6 +78,8 @@ export function TraitTablePage() {
   const [history, setHistory] = useState<{ row: TaxonRow; column: GridColumn } | null>(null);
   const [bulkOpen, setBulkOpen] = useState(false);
   const edits = useCellEdits(study.id, traitsById);
+  const traitThreads = useThreads(study.id, { targetType: "trait", status: "open", pageSize: 100 });
+  const openTraitThreads = useMemo(() => new Set((traitThreads.data?.rows ?? []).map((t) => t.target.id)), [traitThreads.data]);
 
   const rows = page.data?.rows;
   const total = page.data?.total ?? 0;
@@ -253,6 +256,7 @@ export function TraitTablePage() {
                 stale={page.isPlaceholderData}
                 onCommit={edits.commit}
                 onShowHistory={(row, column) => setHistory({ row, column })}
+                openTraitThreads={openTraitThreads}
               />
               <div className="flex flex-wrap items-center justify-between gap-3">
                 <p className="text-sm text-stone-500">
