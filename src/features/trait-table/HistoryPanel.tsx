@@ -7,6 +7,7 @@ import { ErrorState } from "../../components/ErrorState";
 import { cx, focusRing } from "../../components/focus";
 import { LoadingState } from "../../components/LoadingState";
 import { useToast } from "../../components/Toast";
+import { ThreadPanel } from "../../components/threads/ThreadPanel";
 import { ApiError, errorMessage } from "../../lib/api";
 import { formatDateTime } from "../../lib/format";
 import { useRevertDecision, useTaxonHistory, type HistoryCell } from "./api";
@@ -43,8 +44,23 @@ interface HistoryPanelProps {
   onClose: () => void;
 }
 
-/** Who changed one cell, when, from what, to what and why; any change can be reverted from here. */
+/**
+ * The thread target of a cell: a trait's value, or (for the taxon's own columns) the taxon. `open`
+ * marks the tab when the value has an open thread (the row's marks do not single out the taxon's own).
+ */
+function threadTargetOf(row: TaxonRow, column: GridColumn) {
+  return column.kind === "trait"
+    ? { target: { type: "value" as const, id: row.id, traitId: column.id }, label: `${column.label} of ${row.name}`, open: row.openThreads.traitIds.includes(column.id) ? 1 : 0 }
+    : { target: { type: "taxon" as const, id: row.id }, label: row.name, open: 0 };
+}
+
+/**
+ * Who changed one cell, when, from what, to what and why (any change can be reverted from here),
+ * and the discussion about the value (or the taxon) beside it.
+ */
 export function HistoryPanel({ studyId, row, column, traits, canRevert, onClose }: HistoryPanelProps) {
+  const [tab, setTab] = useState<"history" | "discussion">("history");
+  const discussion = threadTargetOf(row, column);
   const history = useTaxonHistory(studyId, row.id, historyCellOf(column));
   const revert = useRevertDecision(studyId);
   const toast = useToast();
@@ -84,7 +100,7 @@ export function HistoryPanel({ studyId, row, column, traits, canRevert, onClose 
     >
       <header className="flex items-start justify-between gap-3 border-b border-stone-100 px-5 py-4">
         <div className="min-w-0">
-          <p className="text-sm font-medium text-accent-700">History</p>
+          <p className="text-sm font-medium text-accent-700">{tab === "history" ? "History" : "Discussion"}</p>
           <h2 id="cell-history-title" ref={headingRef} tabIndex={-1} className={cx("rounded text-lg font-semibold tracking-tight text-stone-900", focusRing)}>
             {column.label} of <span className="italic">{row.name}</span>
           </h2>
@@ -96,7 +112,33 @@ export function HistoryPanel({ studyId, row, column, traits, canRevert, onClose 
           Close<span className="sr-only"> history</span>
         </Button>
       </header>
-      <div className="min-h-0 flex-1 overflow-y-auto px-5 py-4">
+      <div role="tablist" aria-label="History or discussion" className="flex gap-1 border-b border-stone-100 px-5">
+        {(["history", "discussion"] as const).map((name) => (
+          <button
+            key={name}
+            type="button"
+            role="tab"
+            aria-selected={tab === name}
+            onClick={() => setTab(name)}
+            className={cx(
+              "-mb-px border-b-2 px-3 py-2 text-sm font-medium",
+              tab === name ? "border-accent-600 text-accent-900" : "border-transparent text-stone-600 hover:text-stone-900",
+              focusRing,
+            )}
+          >
+            {name === "history" ? "History" : "Discuss"}
+            {name === "discussion" && discussion.open > 0 && (
+              <span className="ml-1.5 inline-block size-2 rounded-full bg-caution-700" role="img" aria-label="has an open thread" />
+            )}
+          </button>
+        ))}
+      </div>
+      {tab === "discussion" && (
+        <div role="tabpanel" aria-label="Discuss" className="min-h-0 flex-1 overflow-y-auto px-5 py-4">
+          <ThreadPanel studyId={studyId} target={discussion.target} targetLabel={discussion.label} />
+        </div>
+      )}
+      <div role="tabpanel" aria-label="History" hidden={tab !== "history"} className="min-h-0 flex-1 overflow-y-auto px-5 py-4">
         {history.isPending && <LoadingState label="Loading the history" lines={4} />}
         {history.isError && <ErrorState error={history.error} title="The history could not be loaded" onRetry={() => void history.refetch()} />}
         {history.isSuccess && history.data.entries.length === 0 && <p className="text-[15px] text-stone-500">No change of this cell has been recorded yet.</p>}
