@@ -1,4 +1,4 @@
-import { useState } from "react";
+import { useMemo, useState } from "react";
 import { can, ROLE_LABELS } from "@shared/roles";
 import type { Trait } from "@shared/schemas/traits";
 import { Button, buttonClasses } from "../../components/Button";
@@ -10,6 +10,8 @@ import { LoadingState } from "../../components/LoadingState";
 import { Notice } from "../../components/Notice";
 import { PageHeader } from "../../components/PageHeader";
 import { useToast } from "../../components/Toast";
+import { useThreads } from "../../components/threads/api";
+import { ThreadDrawer } from "../../components/threads/ThreadDrawer";
 import { errorMessage } from "../../lib/api";
 import { useCurrentStudy } from "../../lib/currentStudy";
 import { formatDate, pluralize } from "../../lib/format";
@@ -27,6 +29,9 @@ export function CodebookPage() {
   const canEdit = can(study.role, "codebook.edit");
   const [editing, setEditing] = useState<Editing>(null);
   const [retiring, setRetiring] = useState<Trait | null>(null);
+  const [discussing, setDiscussing] = useState<Trait | null>(null);
+  const openThreads = useThreads(study.id, { targetType: "trait", status: "open", pageSize: 100 });
+  const traitsWithOpenThreads = useMemo(() => new Set((openThreads.data?.rows ?? []).map((t) => t.target.id)), [openThreads.data]);
   const reorder = useReorderTraits(study.id);
   const update = useUpdateTrait(study.id);
   const toast = useToast();
@@ -123,36 +128,42 @@ export function CodebookPage() {
                   <TraitSummary
                     trait={trait}
                     actions={
-                      canEdit && (
-                        <>
-                          <Button variant="ghost" size="sm" disabled={index === 0 || reorder.isPending} onClick={() => move(index, -1)} aria-label={`Move ${trait.label} up`}>
-                            ↑
-                          </Button>
-                          <Button
-                            variant="ghost"
-                            size="sm"
-                            disabled={index === active.length - 1 || reorder.isPending}
-                            onClick={() => move(index, 1)}
-                            aria-label={`Move ${trait.label} down`}
-                          >
-                            ↓
-                          </Button>
-                          <Button variant="secondary" size="sm" onClick={() => setEditing({ mode: "edit", traitId: trait.id })}>
-                            Edit<span className="sr-only"> {trait.label}</span>
-                          </Button>
-                          <Button
-                            variant="ghost"
-                            size="sm"
-                            className="text-stone-600"
-                            onClick={() => {
-                              update.reset();
-                              setRetiring(trait);
-                            }}
-                          >
-                            Retire<span className="sr-only"> {trait.label}</span>
-                          </Button>
-                        </>
-                      )
+                      <>
+                        <Button variant="ghost" size="sm" onClick={() => setDiscussing(trait)}>
+                          Discuss<span className="sr-only"> {trait.label}</span>
+                          {traitsWithOpenThreads.has(trait.id) && <span className="size-2 rounded-full bg-caution-700" role="img" aria-label="has an open thread" />}
+                        </Button>
+                        {canEdit && (
+                          <>
+                            <Button variant="ghost" size="sm" disabled={index === 0 || reorder.isPending} onClick={() => move(index, -1)} aria-label={`Move ${trait.label} up`}>
+                              ↑
+                            </Button>
+                            <Button
+                              variant="ghost"
+                              size="sm"
+                              disabled={index === active.length - 1 || reorder.isPending}
+                              onClick={() => move(index, 1)}
+                              aria-label={`Move ${trait.label} down`}
+                            >
+                              ↓
+                            </Button>
+                            <Button variant="secondary" size="sm" onClick={() => setEditing({ mode: "edit", traitId: trait.id })}>
+                              Edit<span className="sr-only"> {trait.label}</span>
+                            </Button>
+                            <Button
+                              variant="ghost"
+                              size="sm"
+                              className="text-stone-600"
+                              onClick={() => {
+                                update.reset();
+                                setRetiring(trait);
+                              }}
+                            >
+                              Retire<span className="sr-only"> {trait.label}</span>
+                            </Button>
+                          </>
+                        )}
+                      </>
                     }
                   />
                 </li>
@@ -184,6 +195,15 @@ export function CodebookPage() {
             ))}
           </ul>
         </Card>
+      )}
+
+      {discussing && (
+        <ThreadDrawer
+          studyId={study.id}
+          target={{ type: "trait", id: discussing.id }}
+          targetLabel={`${discussing.label} and its coding rule`}
+          onClose={() => setDiscussing(null)}
+        />
       )}
 
       <ConfirmDialog
