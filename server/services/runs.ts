@@ -8,7 +8,7 @@ import { readFileSync } from "node:fs";
 import { and, count, desc, eq, getTableColumns, isNull, sql } from "drizzle-orm";
 import type { Database } from "../db";
 import { activity, runs, taxa, users } from "../../db/schema/index";
-import { chooseReference, countStates, encodeTrait, type EncodedTrait } from "../../shared/selectivity/index";
+import { analyzeSelectivity, chooseReference, countStates, encodeTrait, type EncodedTrait } from "../../shared/selectivity/index";
 import type { SelectivityInput, SelectivityResult, SelectivityTaxon, SelectivityTraitSpec } from "../../shared/selectivity/types";
 import { stageBelow } from "../../shared/timescale/index";
 import {
@@ -34,8 +34,11 @@ import type { WorkerPool } from "../jobs/workerPool";
 export const SELECTIVITY_RUN_JOB = "selectivity-run";
 /** How often the computing process renews a running run's heartbeat. */
 export const HEARTBEAT_EVERY_MS = 5_000;
-/** A running run whose heartbeat is older than this is taken for interrupted (twelve missed beats). */
-export const STALE_AFTER_SECONDS = 60;
+/**
+ * A running run whose heartbeat is older than this is taken for interrupted (twelve missed beats).
+ * RUN_STALE_SECONDS shortens it where a test kills a process on purpose.
+ */
+export const STALE_AFTER_SECONDS = Number(process.env.RUN_STALE_SECONDS) > 0 ? Number(process.env.RUN_STALE_SECONDS) : 60;
 /** How often each process looks for interrupted runs. */
 export const SWEEP_EVERY_MS = 30_000;
 /** Fewest milliseconds between two progress writes of one run. */
@@ -232,74 +235,139 @@ function interruptedMessage(heartbeat: Date | null, started: Date | null): strin
 /** The reason stored with a failed run: the message a person can act on (HttpErrors name the parameter at fault). */
 const errorText = (err: unknown): string => (err instanceof Error ? err.message : String(err));
 
+// ---------------------------------------------------------------- reading and computing (shared by run jobs and computeRunNow)
+
+/** Reads the codebook, the trait values and each boundary's victims and survivors. */
+async function readStudyData(
+  db: Database,
+  sources: RunDataSources,
+  studyId: string,
+  params: RunParams,
+  onBoundary?: (index: number, label: string) => Promise<void>,
+): Promise<StudyData> {
+  checkWindows(params);
+  const specs = traitSpecs(params, (await sources.traits.list(studyId)).traits);
+  const valueRows = await db
+    .select({ id: taxa.id, values: taxa.traitValues })
+    .from(taxa)
+    .where(and(eq(taxa.studyId, studyId), isNull(taxa.deletedAt)));
+  const valuesOf = new Map(valueRows.map((r) => [r.id, r.values]));
+
+  const boundaries: BoundaryData[] = [];
+  for (const [i, b] of params.boundaries.entries()) {
+    let result: OutcomesResult;
+    let classified: ClassifiedTaxon[];
+    try {
+      ({ summary: result, taxa: classified } = await sources.outcomes.finalOutcomes(studyId, { boundary: b.boundaryMa, window: b.windowMyr }));
+    } catch (err) {
+      // Name the boundary of the run that the outcomes service refused.
+      if (err instanceof HttpError && err.status === 400) {
+        const fields = Object.fromEntries(Object.entries(err.fields ?? {}).map(([k, v]) => [`boundaries.${i}.${k === "window" ? "windowMyr" : "boundaryMa"}`, v]));
+        throw badRequest(`Boundary ${i + 1}: ${err.message}`, fields);
+      }
+      throw err;
+    }
+    const label = boundaryLabel(b.label, result);
+    await onBoundary?.(i, label);
+    const list: SelectivityTaxon[] = classified
+      .filter((t) => t.outcome !== "excluded")
+      .map((t) => {
+        const stored = valuesOf.get(t.taxonId) ?? {};
+        return {
+          id: t.taxonId,
+          name: t.name,
+          clade: t.higherTaxon,
+          outcome: t.outcome === "victim" ? (1 as const) : (0 as const),
+          values: Object.fromEntries(specs.map((s) => [s.key, stored[s.traitId] ?? null])),
+        };
+      })
+      .sort((x, y) => (x.id < y.id ? -1 : x.id > y.id ? 1 : 0));
+    boundaries.push({
+      design: {
+        boundaryMa: result.boundary,
+        windowMyr: result.window,
+        windowDefaultFrom: result.windowDefaultFrom ? { name: result.windowDefaultFrom.name, label: result.windowDefaultFrom.label } : null,
+        label,
+        victims: result.counts.victim,
+        survivors: result.counts.survivor,
+        notAtRisk: result.counts.excluded,
+        overridesApplied: result.overridesApplied,
+      },
+      taxa: list,
+      warnings: warningCautions(label, result),
+    });
+  }
+  return { specs, boundaries, dataHash: hashData(specs, boundaries), rowCount: boundaries.reduce((n, b) => n + b.taxa.length, 0) };
+}
+
+/** One boundary's analysis as the "selectivity" worker task takes it. */
+function analysisInput(data: StudyData, b: BoundaryData, params: RunParams): SelectivityInput {
+  return {
+    taxa: b.taxa,
+    traits: data.specs.map(({ traitId: _traitId, ...spec }) => spec),
+    options: { correction: params.correction, forceFirth: params.forceFirth, level: params.level, confoundingThreshold: params.confoundingThreshold },
+  };
+}
+
+/** What a run stores once its analyses are computed (one result per boundary, in order). */
+function runResults(read: StudyData, computed: SelectivityTaskOutput): RunResults {
+  return {
+    boundaries: read.boundaries.map((b, i) => ({ ...b.design, completeCases: computed[i].design.completeCases, result: computed[i] })),
+    traits: read.specs.map((s) => ({ traitId: s.traitId, key: s.key, label: s.label })),
+    cautions: [SELECTIVITY_CAUTION, ...read.boundaries.flatMap((b) => b.warnings)],
+  };
+}
+
+/**
+ * Computes a run in this process, without the job queue, and stores it as succeeded with its
+ * "started" and "finished" activity. It reads, hashes, analyses and stores exactly as a run job does;
+ * it is for the demo seed, which runs before any app process works jobs. `at` dates the run
+ * (default: now); the analysis runs on this thread, so keep it to small studies.
+ */
+export async function computeRunNow(
+  db: Database,
+  sources: RunDataSources,
+  studyId: string,
+  user: Person,
+  params: RunParams,
+  options: { at?: Date } = {},
+): Promise<{ id: string; dataHash: string; results: RunResults }> {
+  const read = await readStudyData(db, sources, studyId, params);
+  const computed: SelectivityTaskOutput = read.boundaries.map((b) => analyzeSelectivity(analysisInput(read, b, params)));
+  const results = runResults(read, computed);
+  const at = options.at ?? new Date();
+  return db.transaction(async (tx) => {
+    const [row] = await tx
+      .insert(runs)
+      .values({
+        studyId,
+        name: params.name,
+        params: params as unknown as Record<string, unknown>,
+        status: "succeeded",
+        progress: 1,
+        progressNote: "Done",
+        dataHash: read.dataHash,
+        rowCount: read.rowCount,
+        results: results as unknown as Record<string, unknown>,
+        appVersion: APP_VERSION,
+        createdBy: user.id,
+        createdAt: at,
+        startedAt: at,
+        finishedAt: at,
+        heartbeatAt: at,
+      })
+      .returning({ id: runs.id });
+    await tx.insert(activity).values([
+      { studyId, userId: user.id, kind: "run.started", summary: `Started the run "${params.name}"`, refType: "run", refId: row.id, createdAt: at },
+      { studyId, userId: user.id, kind: "run.succeeded", summary: `The run "${params.name}" finished`, refType: "run", refId: row.id, createdAt: at },
+    ]);
+    return { id: row.id, dataHash: read.dataHash, results };
+  });
+}
+
 // ---------------------------------------------------------------- the service
 
 export function createRunService(db: Database, runtime: RunRuntime, sources: RunDataSources) {
-  /** Reads the codebook, the trait values and each boundary's victims and survivors. */
-  async function readStudyData(studyId: string, params: RunParams, onBoundary?: (index: number, label: string) => Promise<void>): Promise<StudyData> {
-    checkWindows(params);
-    const specs = traitSpecs(params, (await sources.traits.list(studyId)).traits);
-    const valueRows = await db
-      .select({ id: taxa.id, values: taxa.traitValues })
-      .from(taxa)
-      .where(and(eq(taxa.studyId, studyId), isNull(taxa.deletedAt)));
-    const valuesOf = new Map(valueRows.map((r) => [r.id, r.values]));
-
-    const boundaries: BoundaryData[] = [];
-    for (const [i, b] of params.boundaries.entries()) {
-      let result: OutcomesResult;
-      let classified: ClassifiedTaxon[];
-      try {
-        ({ summary: result, taxa: classified } = await sources.outcomes.finalOutcomes(studyId, { boundary: b.boundaryMa, window: b.windowMyr }));
-      } catch (err) {
-        // Name the boundary of the run that the outcomes service refused.
-        if (err instanceof HttpError && err.status === 400) {
-          const fields = Object.fromEntries(Object.entries(err.fields ?? {}).map(([k, v]) => [`boundaries.${i}.${k === "window" ? "windowMyr" : "boundaryMa"}`, v]));
-          throw badRequest(`Boundary ${i + 1}: ${err.message}`, fields);
-        }
-        throw err;
-      }
-      const label = boundaryLabel(b.label, result);
-      await onBoundary?.(i, label);
-      const list: SelectivityTaxon[] = classified
-        .filter((t) => t.outcome !== "excluded")
-        .map((t) => {
-          const stored = valuesOf.get(t.taxonId) ?? {};
-          return {
-            id: t.taxonId,
-            name: t.name,
-            clade: t.higherTaxon,
-            outcome: t.outcome === "victim" ? (1 as const) : (0 as const),
-            values: Object.fromEntries(specs.map((s) => [s.key, stored[s.traitId] ?? null])),
-          };
-        })
-        .sort((x, y) => (x.id < y.id ? -1 : x.id > y.id ? 1 : 0));
-      boundaries.push({
-        design: {
-          boundaryMa: result.boundary,
-          windowMyr: result.window,
-          windowDefaultFrom: result.windowDefaultFrom ? { name: result.windowDefaultFrom.name, label: result.windowDefaultFrom.label } : null,
-          label,
-          victims: result.counts.victim,
-          survivors: result.counts.survivor,
-          notAtRisk: result.counts.excluded,
-          overridesApplied: result.overridesApplied,
-        },
-        taxa: list,
-        warnings: warningCautions(label, result),
-      });
-    }
-    return { specs, boundaries, dataHash: hashData(specs, boundaries), rowCount: boundaries.reduce((n, b) => n + b.taxa.length, 0) };
-  }
-
-  function analysisInput(data: StudyData, b: BoundaryData, params: RunParams): SelectivityInput {
-    return {
-      taxa: b.taxa,
-      traits: data.specs.map(({ traitId: _traitId, ...spec }) => spec),
-      options: { correction: params.correction, forceFirth: params.forceFirth, level: params.level, confoundingThreshold: params.confoundingThreshold },
-    };
-  }
-
   async function runRow(studyId: string, runId: string): Promise<{ row: RunRow; creatorName: string | null }> {
     const [found] = await db
       .select({ row: runs, creatorName: users.name })
@@ -403,17 +471,13 @@ export function createRunService(db: Database, runtime: RunRuntime, sources: Run
     try {
       const params = runParamsSchema.parse(row.params);
       const count = params.boundaries.length;
-      const read = await readStudyData(row.studyId, params, async (i, label) => report((0.1 * i) / count, `Reading the outcomes across ${label} (${i + 1} of ${count})`));
+      const read = await readStudyData(db, sources, row.studyId, params, async (i, label) => report((0.1 * i) / count, `Reading the outcomes across ${label} (${i + 1} of ${count})`));
       report(0.1, `Read ${plural(read.rowCount, "taxon row")}; testing selectivity`);
       const analyses = read.boundaries.map((b) => ({ label: b.design.label, input: analysisInput(read, b, params) }));
       const computed = await runtime.workers.run<SelectivityTaskOutput>("selectivity", { analyses } satisfies SelectivityTaskInput, (fraction, note) =>
         report(0.1 + 0.85 * fraction, note ?? "Testing selectivity"),
       );
-      const results: RunResults = {
-        boundaries: read.boundaries.map((b, i) => ({ ...b.design, completeCases: computed[i].design.completeCases, result: computed[i] })),
-        traits: read.specs.map((s) => ({ traitId: s.traitId, key: s.key, label: s.label })),
-        cautions: [SELECTIVITY_CAUTION, ...read.boundaries.flatMap((b) => b.warnings)],
-      };
+      const results = runResults(read, computed);
       await writing;
       const [stored] = await db
         .update(runs)
@@ -491,7 +555,7 @@ export function createRunService(db: Database, runtime: RunRuntime, sources: Run
   return {
     /** Counts of what would enter the analysis, per boundary and trait, without testing anything. */
     async preview(studyId: string, params: RunParams): Promise<RunPreview> {
-      const data = await readStudyData(studyId, params);
+      const data = await readStudyData(db, sources, studyId, params);
       return {
         boundaries: data.boundaries.map((b) => {
           const outcome = outcomeArray(b.taxa);
