@@ -6,6 +6,7 @@ import { ErrorState } from "../../components/ErrorState";
 import { cx } from "../../components/focus";
 import { LoadingState } from "../../components/LoadingState";
 import { Select } from "../../components/Select";
+import { ThreadDrawer } from "../../components/threads/ThreadDrawer";
 import { formatCount, formatDateTime } from "../../lib/format";
 import { useOverrides, type OverrideStatus } from "./api";
 import { OutcomeBadge } from "./OutcomeBadge";
@@ -24,6 +25,7 @@ const STATUS_OPTIONS: ReadonlyArray<{ value: OverrideStatus; label: string }> = 
 export function OverridesCard({ studyId, canOverride, onRevoke }: { studyId: string; canOverride: boolean; onRevoke: (target: RevokeTarget) => void }) {
   const [status, setStatus] = useState<OverrideStatus>("active");
   const [page, setPage] = useState(1);
+  const [discussing, setDiscussing] = useState<OutcomeOverride | null>(null);
   const overrides = useOverrides(studyId, status, page, PAGE_SIZE);
   const data = overrides.data;
   const pages = data ? Math.max(1, Math.ceil(data.total / PAGE_SIZE)) : 1;
@@ -61,7 +63,7 @@ export function OverridesCard({ studyId, canOverride, onRevoke }: { studyId: str
         <>
           <ul className={cx("-my-3 divide-y divide-stone-100", overrides.isPlaceholderData && "opacity-60")}>
             {data.overrides.map((o) => (
-              <OverrideItem key={o.id} override={o} canOverride={canOverride} onRevoke={onRevoke} />
+              <OverrideItem key={o.id} override={o} canOverride={canOverride} onRevoke={onRevoke} onDiscuss={setDiscussing} />
             ))}
           </ul>
           {pages > 1 && (
@@ -81,11 +83,26 @@ export function OverridesCard({ studyId, canOverride, onRevoke }: { studyId: str
           )}
         </>
       )}
+      {discussing && (
+        <ThreadDrawer
+          studyId={studyId}
+          target={{ type: "override", id: discussing.id }}
+          targetLabel={`Outcome of ${discussing.taxonName} set by hand`}
+          onClose={() => setDiscussing(null)}
+        />
+      )}
     </Card>
   );
 }
 
-function OverrideItem({ override: o, canOverride, onRevoke }: { override: OutcomeOverride; canOverride: boolean; onRevoke: (target: RevokeTarget) => void }) {
+interface OverrideItemProps {
+  override: OutcomeOverride;
+  canOverride: boolean;
+  onRevoke: (target: RevokeTarget) => void;
+  onDiscuss: (override: OutcomeOverride) => void;
+}
+
+function OverrideItem({ override: o, canOverride, onRevoke, onDiscuss }: OverrideItemProps) {
   return (
     <li className="flex flex-col gap-2 py-3 sm:flex-row sm:items-start sm:justify-between" data-override-taxon={o.taxonName}>
       <div className="min-w-0">
@@ -107,17 +124,21 @@ function OverrideItem({ override: o, canOverride, onRevoke }: { override: Outcom
           </p>
         )}
       </div>
-      {canOverride && o.active && (
-        <Button
-          variant="ghost"
-          size="sm"
-          className="self-start"
-          aria-label={`Revoke the outcome set by hand for ${o.taxonName}`}
-          onClick={() => onRevoke({ overrideId: o.id, taxonName: o.taxonName, outcome: o.outcome, boundaryMa: o.boundaryMa })}
-        >
-          Revoke…
+      <div className="flex shrink-0 gap-1 self-start">
+        <Button variant="ghost" size="sm" aria-label={`Discuss the outcome set by hand for ${o.taxonName}`} onClick={() => onDiscuss(o)}>
+          Discuss
         </Button>
-      )}
+        {canOverride && o.active && (
+          <Button
+            variant="ghost"
+            size="sm"
+            aria-label={`Revoke the outcome set by hand for ${o.taxonName}`}
+            onClick={() => onRevoke({ overrideId: o.id, taxonName: o.taxonName, outcome: o.outcome, boundaryMa: o.boundaryMa })}
+          >
+            Revoke…
+          </Button>
+        )}
+      </div>
     </li>
   );
 }
