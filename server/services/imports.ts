@@ -2,11 +2,14 @@
 // Preview: every problem by row and column. Commit: the valid rows in one transaction, or nothing;
 // leaving invalid rows out must be asked for. Progress is written outside that transaction so the
 // client can poll it. Revert: the exact previous values come back, created taxa are removed, and
-// every step is itself a coding decision.
+// every step is itself a coding decision. A commit holds an advisory lock for its whole
+// transaction; PostgreSQL releases it when the transaction ends however it ends (a killed process
+// included), so a "committing" import whose lock is free was interrupted: the sweep says so and
+// the import can be committed again.
 import { randomUUID } from "node:crypto";
 import { mkdir, readFile, rm, writeFile } from "node:fs/promises";
 import { join } from "node:path";
-import { and, count, desc, eq, inArray, sql } from "drizzle-orm";
+import { and, count, desc, eq, inArray, lt, sql } from "drizzle-orm";
 import { alias } from "drizzle-orm/pg-core";
 import type { Database } from "../db";
 import { codingDecisions, imports, studies, users } from "../../db/schema/index";
@@ -52,7 +55,17 @@ interface StoredImportInfo {
   mapping?: ImportMapping;
 }
 
+/** How often each process looks for interrupted commits. */
+export const IMPORT_SWEEP_EVERY_MS = 30_000;
+/** First half of the commit lock's key (the second is a hash of the import id), so it meets no other advisory lock. */
+const COMMIT_LOCK_SPACE = 0x1a9c0e;
+const commitLockKey = (importId: string) => sql`${COMMIT_LOCK_SPACE}::int4, hashtext(${importId}::text)`;
+export const INTERRUPTED_COMMIT =
+  "Interrupted: the process writing this import stopped before it finished, and nothing was written. Commit again to import the file.";
+
 const SAMPLE_ROWS = 10;
+/** An upload neither committed nor discarded within this time is discarded and its file deleted. */
+export const STALE_UPLOAD_MS = 24 * 3600 * 1000;
 const PREVIEW_SAMPLE = 50;
 
 const creatorAlias = alias(users, "import_creator");
@@ -179,12 +192,62 @@ export function createImportService(db: Database) {
       WHERE id = ${studyId}`);
   }
 
+  /**
+   * Puts back imports left "committing" by a process that stopped mid-commit (their commit lock is
+   * free), with the reason, so they can be committed again; returns their ids. Their transaction
+   * was rolled back by PostgreSQL, so nothing of them was written.
+   */
+  async function sweepInterrupted(): Promise<string[]> {
+    const committing = await db.select({ id: imports.id }).from(imports).where(eq(imports.status, "committing"));
+    const swept: string[] = [];
+    for (const { id } of committing) {
+      const put = await db.transaction(async (tx) => {
+        const lock = await tx.execute(sql`SELECT pg_try_advisory_xact_lock(${commitLockKey(id)}) AS free`);
+        if (!(lock.rows[0] as { free: boolean }).free) return false; // still being committed
+        const back = await tx
+          .update(imports)
+          .set({ status: "previewed", progress: 0, failureReason: INTERRUPTED_COMMIT })
+          .where(and(eq(imports.id, id), eq(imports.status, "committing")))
+          .returning({ id: imports.id });
+        return back.length > 0;
+      });
+      if (put) swept.push(id);
+    }
+    return swept;
+  }
+
+  let sweeper: NodeJS.Timeout | null = null;
+  let sweeping: Promise<unknown> | null = null;
+  const sweepOnce = () => {
+    if (sweeping) return;
+    sweeping = sweepInterrupted()
+      .catch((err: Error) => console.error(`import sweep: ${err.message}`))
+      .finally(() => (sweeping = null));
+  };
+
+  /** Discards uploads left uncommitted for a day, so stored files do not pile up. */
+  async function sweepStaleUploads(): Promise<void> {
+    const stale = await db
+      .select({ id: imports.id, storedPath: imports.storedPath })
+      .from(imports)
+      .where(and(eq(imports.status, "previewed"), lt(imports.createdAt, new Date(Date.now() - STALE_UPLOAD_MS))));
+    for (const row of stale) {
+      const [discarded] = await db
+        .update(imports)
+        .set({ status: "discarded", storedPath: null, failureReason: "Not committed within a day; the upload was discarded." })
+        .where(and(eq(imports.id, row.id), eq(imports.status, "previewed")))
+        .returning({ id: imports.id });
+      if (discarded && row.storedPath) await rm(row.storedPath, { force: true });
+    }
+  }
+
   return {
     async upload(studyId: string, user: { id: string }, file: { originalname: string; buffer: Buffer; size: number }, uploadDir: string): Promise<ImportUpload> {
       if (file.size > IMPORT_MAX_BYTES) throw new HttpError(413, "too_large", "The file is larger than the upload limit of 50 MB.");
       const parsed = parseCsv(new Uint8Array(file.buffer.buffer, file.buffer.byteOffset, file.buffer.byteLength));
       if (parsed.header.length === 0) throw badRequest("The file is empty: it needs a header row and at least one row of data.", { file: "The file is empty" });
       if (parsed.rows.length === 0) throw badRequest("The file has a header row but no data rows.", { file: "No data rows" });
+      await sweepStaleUploads();
       const codebook = await loadCodebook(db, studyId);
       const [study] = await db.select({ settings: studies.settings }).from(studies).where(eq(studies.id, studyId));
       const remembered = ((study?.settings as { importMapping?: RememberedMapping } | undefined)?.importMapping ?? {}) as RememberedMapping;
@@ -276,14 +339,8 @@ export function createImportService(db: Database) {
      * outside the transaction, for the client to poll.
      */
     async commit(studyId: string, importId: string, user: { id: string }, input: ImportCommitInput & { mapping: ImportMapping }): Promise<ImportSummary> {
-      // Claim the import first, so two commits of one import cannot both run.
-      const claimed = await db
-        .update(imports)
-        .set({ status: "committing", progress: 0, failureReason: null })
-        .where(and(eq(imports.id, importId), eq(imports.studyId, studyId), eq(imports.target, "taxa"), eq(imports.status, "previewed")))
-        .returning();
-      if (claimed.length === 0) throw notPreviewable(await importRow(studyId, importId));
-      const row = claimed[0];
+      // Set by the claim below: only a claimed import is put back when the commit fails.
+      const claim: { row?: ImportRow } = {};
       let lastReported = 0;
       const reportProgress = async (fraction: number) => {
         if (fraction - lastReported < 0.01 && fraction < 1) return;
@@ -291,12 +348,22 @@ export function createImportService(db: Database) {
         await db.update(imports).set({ progress: Math.min(0.99, fraction) }).where(eq(imports.id, importId));
       };
       try {
-        const parsed = await readStored(row);
-        const codebook = await loadCodebook(db, studyId);
-        checkMapping(input.mapping, parsed, codebook);
-        const names = namesIn(parsed, input.mapping);
-        const reason = input.reason || `Imported from ${row.fileName}`;
-        await db.transaction(async (tx) => {
+        const claimed = await db.transaction(async (tx) => {
+          // The lock comes before the claim, so a claimed import's lock is held until this transaction ends.
+          await tx.execute(sql`SELECT pg_advisory_xact_lock(${commitLockKey(importId)})`);
+          // Claim the import (outside this transaction, so pollers see it), so two commits of one import cannot both run.
+          const [row] = await db
+            .update(imports)
+            .set({ status: "committing", progress: 0, failureReason: null })
+            .where(and(eq(imports.id, importId), eq(imports.studyId, studyId), eq(imports.target, "taxa"), eq(imports.status, "previewed")))
+            .returning();
+          if (!row) throw notPreviewable(await importRow(studyId, importId));
+          claim.row = row;
+          const parsed = await readStored(row);
+          const codebook = await loadCodebook(db, studyId);
+          checkMapping(input.mapping, parsed, codebook);
+          const names = namesIn(parsed, input.mapping);
+          const reason = input.reason || `Imported from ${row.fileName}`;
           // The taxa this file names, locked: an edit in the grid meanwhile waits for the commit.
           const existing = new Map((await taxaByName(tx, studyId, names, true)).map((s) => [s.name, s]));
           const checked = validate(parsed, input.mapping, codebook, existing);
@@ -373,11 +440,13 @@ export function createImportService(db: Database) {
             refType: "import",
             refId: importId,
           });
+          return row;
         });
         await remember(studyId, input.mapping);
-        await rm(row.storedPath!, { force: true });
+        await rm(claimed.storedPath!, { force: true });
         return summary(studyId, importId);
       } catch (err) {
+        if (!claim.row) throw err;
         const message =
           err instanceof HttpError ? err.message : isUniqueViolation(err) ? "A taxon of the same name was added meanwhile; preview again." : "The commit failed; nothing was written.";
         await db.update(imports).set({ status: "previewed", progress: 0, failureReason: message }).where(eq(imports.id, importId));
@@ -411,6 +480,20 @@ export function createImportService(db: Database) {
         return result;
       });
       return { import: await summary(studyId, importId), ...outcome };
+    },
+
+    sweepInterrupted,
+    /** Sweeps now and every IMPORT_SWEEP_EVERY_MS until stopSweeping. */
+    startSweeping(): void {
+      if (sweeper) return;
+      sweepOnce();
+      sweeper = setInterval(sweepOnce, IMPORT_SWEEP_EVERY_MS);
+      sweeper.unref();
+    },
+    async stopSweeping(): Promise<void> {
+      if (sweeper) clearInterval(sweeper);
+      sweeper = null;
+      await sweeping;
     },
 
     /** Drops an upload that was never committed, and its stored file. */

@@ -3,9 +3,10 @@
 // Interval ages: ICS International Chronostratigraphic Chart v2024/12 (Cohen, Harper, Gibbard &
 // Car 2025, Episodes 48: 105-115): Campanian base 83.6 Ma, Maastrichtian base 72.2 and top 66.0 Ma.
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { existsSync } from "node:fs";
 import { readdir } from "node:fs/promises";
 import { and, eq } from "drizzle-orm";
-import { activity, codingDecisions, taxa } from "../../db/schema/index";
+import { activity, codingDecisions, imports, taxa } from "../../db/schema/index";
 import { IMPORT_MAX_BYTES } from "../../shared/schemas/imports";
 import { createTestApp, type TestApp } from "../support/server";
 import { importCsv, studyWithCodebook, templateMapping, uploadCsv, type CodebookStudy } from "../support/traitTables";
@@ -269,6 +270,19 @@ describe("progress and discarding", () => {
     expect((await cast.people.coder.agent.get(`/api/studies/${study.studyId}/imports/${id}`)).body.status).toBe("discarded");
     const preview = await cast.people.coder.agent.post(`/api/studies/${study.studyId}/imports/${id}/preview`).send({ mapping: { name: "name" } });
     expect(preview.status).toBe(409);
+  });
+});
+
+describe("stale uploads", () => {
+  it("an upload left uncommitted for a day is discarded, and its file deleted, at the next upload", async () => {
+    const study = await studyWithCodebook(app, cast);
+    const old = await uploadCsv(cast.people.coder.agent, study.studyId, "name\nAlphella\n");
+    const [row] = await app.ctx.db.select().from(imports).where(eq(imports.id, old.body.import.id));
+    expect(existsSync(row.storedPath!)).toBe(true);
+    await app.ctx.db.update(imports).set({ createdAt: new Date(Date.now() - 25 * 3600 * 1000) }).where(eq(imports.id, row.id));
+    await uploadCsv(cast.people.coder.agent, study.studyId, "name\nBetella\n");
+    expect((await cast.people.coder.agent.get(`/api/studies/${study.studyId}/imports/${row.id}`)).body).toMatchObject({ status: "discarded", failureReason: expect.stringMatching(/within a day/) });
+    expect(existsSync(row.storedPath!)).toBe(false);
   });
 });
 
