@@ -70,7 +70,8 @@ export async function seedIfEmpty(databaseUrl: string, env: { NODE_ENV?: string 
       const seeded = await seedDemo(db, { data, env });
       lines.push(
         `Seeded the demo study "${data.study.name}": ${seeded.counts.taxa.toLocaleString("en-US")} invented genera, ` +
-          `${seeded.counts.modernSpecies} invented modern species, ${seeded.counts.threads} threads.`,
+          `${seeded.counts.modernSpecies} invented modern species, ${seeded.counts.threads} threads, ` +
+          `${seeded.counts.runs} saved runs and ${seeded.counts.comparisons} modern comparison.`,
       );
     }
     const inUse = await demoAccountsInUse(db);

@@ -1,7 +1,8 @@
 // Writes the invented demo study (db/demo/generator.ts) into a database, in one transaction:
 // demo accounts (one per role), the study and its memberships, the suggested codebook, the trait
 // table as one committed import with one coding decision per taxon, a few later edits with
-// reasons, threads about coding decisions, the modern species list, and the activity feed.
+// reasons, threads about coding decisions, the modern species list, the activity feed, and the
+// saved analyses (two runs, the list's crosswalk and a modern comparison; db/demo/analyses.ts).
 // For local use only: it refuses to run when NODE_ENV=production.
 import { inArray } from "drizzle-orm";
 import type { NodePgDatabase } from "drizzle-orm/node-postgres";
@@ -23,6 +24,7 @@ import {
 import { hashPassword } from "../../server/auth/password";
 import { ROLE_LABELS, STUDY_ROLES, type StudyRole } from "../../shared/roles";
 import { generateDemoStudy, INVENTED_NOTE, type DemoStudy, type DemoTaxon, type TraitValues } from "./generator";
+import { seedDemoAnalyses, type DemoAnalyses } from "./analyses";
 
 type Db = NodePgDatabase<typeof schema>;
 
@@ -57,7 +59,10 @@ export interface DemoSeedResult {
   userIds: Record<StudyRole, string>;
   /** Accounts made by this call; accounts that already existed are reused with their own password. */
   createdAccounts: DemoAccount[];
-  counts: { taxa: number; decisions: number; threads: number; posts: number; modernSpecies: number };
+  counts: { taxa: number; decisions: number; threads: number; posts: number; modernSpecies: number; runs: number; comparisons: number };
+  listId: string;
+  /** The two saved runs and the modern comparison. */
+  analyses: DemoAnalyses;
 }
 
 export interface DemoSeedOptions {
@@ -485,13 +490,25 @@ export async function seedDemo(db: Db, options: DemoSeedOptions = {}): Promise<D
       {
         studyId,
         userId: userIds.analyst,
-        kind: "modern_list.created",
+        kind: "modern_list.added",
         summary: `${memberName("analyst")} uploaded the modern list "${data.modernList.name}" (${species.length} species)`,
         refType: "modern_list",
         refId: list.id,
         createdAt: at(7),
       },
     ]);
+
+    // The services read and write through this transaction as through a database, so a failure
+    // anywhere leaves nothing behind.
+    const analyses = await seedDemoAnalyses(tx as unknown as Db, {
+      data,
+      studyId,
+      listId: list.id,
+      analystId: userIds.analyst,
+      traitIdByKey: traitId,
+      listColumns: columns,
+      at,
+    });
 
     return {
       studyId,
@@ -503,7 +520,11 @@ export async function seedDemo(db: Db, options: DemoSeedOptions = {}): Promise<D
         threads: threadRows.length,
         posts: posts.length,
         modernSpecies: species.length,
+        runs: 2,
+        comparisons: 1,
       },
+      listId: list.id,
+      analyses,
     };
   });
 }
