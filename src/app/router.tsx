@@ -17,6 +17,10 @@ import { ComparisonReportPage } from "../features/modern-comparison/ComparisonRe
 import { CrosswalkPage } from "../features/modern-comparison/CrosswalkPage";
 import { ModernComparisonPage } from "../features/modern-comparison/ModernComparisonPage";
 import { OutboxPage } from "../features/outbox/OutboxPage";
+import { RunComparePage } from "../features/runs/RunComparePage";
+import { RunsPage } from "../features/runs/RunsPage";
+import { RunReportPage } from "../features/selectivity/RunReportPage";
+import { SelectivityPage } from "../features/selectivity/SelectivityPage";
 import { NewStudyPage } from "../features/studies/NewStudyPage";
 import { StudiesPage } from "../features/studies/StudiesPage";
 import { StudyOverviewPage } from "../features/study-overview/StudyOverviewPage";
@@ -44,6 +48,7 @@ export const router = createBrowserRouter([
       },
       // A printable report stands on a page of its own, without the app's frame.
       { path: "studies/:studyId/modern-comparison/comparisons/:comparisonId/report", element: <ComparisonReportPage /> },
+      { path: "studies/:studyId/runs/:runId/report", element: <RunReportPage /> },
       {
         element: <AppShell />,
         children: [
@@ -58,6 +63,9 @@ export const router = createBrowserRouter([
               { path: "codebook", element: <CodebookPage /> },
               { path: "imports", element: <ImportsPage /> },
               { path: "boundary", element: <BoundaryPage /> },
+              { path: "selectivity", element: <SelectivityPage /> },
+              { path: "runs", element: <RunsPage /> },
+              { path: "runs/compare", element: <RunComparePage /> },
               { path: "modern-comparison", element: <ModernComparisonPage /> },
               { path: "modern-comparison/lists/:listId", element: <CrosswalkPage /> },
               { path: "modern-comparison/comparisons/:comparisonId", element: <ComparisonPage /> },

@@ -17,6 +17,8 @@ export const STUDY_NAV: readonly StudyNavItem[] = [
   { label: "Imports", path: "imports" },
   { label: "Boundary", path: "boundary" },
   // Boundary, Selectivity, Runs, Modern comparison and Threads go here, in that order.
+  { label: "Selectivity", path: "selectivity" },
+  { label: "Runs", path: "runs" },
   { label: "Modern comparison", path: "modern-comparison" },
   { label: "Threads", path: "threads" },
   { label: "Members", path: "members" },

@@ -36,6 +36,14 @@ export const queryKeys = {
     runs: (studyId: string) => ["studies", "detail", studyId, "runs", "for-comparison"] as const,
     run: (studyId: string, runId: string) => ["studies", "detail", studyId, "runs", "detail", runId] as const,
   },
+  // Selectivity runs: the list, one run (polled while it computes), a design preview and a comparison of two.
+  runs: {
+    all: (studyId: string) => ["studies", "detail", studyId, "runs"] as const,
+    list: (studyId: string, page: number) => ["studies", "detail", studyId, "runs", "list", page] as const,
+    detail: (studyId: string, runId: string) => ["studies", "detail", studyId, "runs", "detail", runId] as const,
+    preview: (studyId: string, params: string) => ["studies", "detail", studyId, "runs", "preview", params] as const,
+    diff: (studyId: string, runId: string, against: string) => ["studies", "detail", studyId, "runs", "diff", runId, against] as const,
+  },
   invitation: (token: string) => ["invitations", token] as const,
   outbox: ["outbox"] as const,
   timescale: ["timescale"] as const,

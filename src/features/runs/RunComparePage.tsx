@@ -1,0 +1,288 @@
+import { useId, useState, type ReactNode } from "react";
+import { Link, useSearchParams } from "react-router-dom";
+import type { RunDiff, RunSummary } from "@shared/schemas/runs";
+import { formatNumber } from "@shared/selectivity/formatNumber";
+import { Button, ButtonLink } from "../../components/Button";
+import { Card } from "../../components/Card";
+import { EmptyState } from "../../components/EmptyState";
+import { ErrorState } from "../../components/ErrorState";
+import { cx, focusRing } from "../../components/focus";
+import { LoadingState } from "../../components/LoadingState";
+import { PageHeader } from "../../components/PageHeader";
+import { TextLink } from "../../components/TextLink";
+import { useCurrentStudy } from "../../lib/currentStudy";
+import { formatCount, formatDateTime } from "../../lib/format";
+import { paths } from "../../lib/paths";
+import { useDocumentTitle } from "../../lib/useDocumentTitle";
+import { useRunDiff } from "./api";
+import { selectivityLink } from "./RunsPage";
+
+type Pair = { base: number | null; run: number | null };
+
+const number = (v: number | null) => (v === null ? "—" : v === Infinity ? "∞" : formatNumber(v));
+const pValue = (v: number | null) => (v === null ? "—" : v < 1e-15 ? "< 1e-15" : v >= 0.001 ? v.toFixed(v >= 0.1 ? 2 : 3) : v.toPrecision(2));
+
+/** Two runs side by side: whether the data and the parameters changed, and every number that moved. */
+export function RunComparePage() {
+  const study = useCurrentStudy();
+  useDocumentTitle(`Compare runs · ${study.name}`);
+  const [search, setSearch] = useSearchParams();
+  const baseId = search.get("base");
+  const runId = search.get("run");
+  const diff = useRunDiff(study.id, runId, baseId);
+  const runsPath = `${paths.study(study.id)}/runs`;
+
+  return (
+    <>
+      <PageHeader
+        eyebrow={study.name}
+        title="Compare runs"
+        description="The earlier run on the left, the later one on the right. Changed numbers are marked; a different data fingerprint means the trait table or the outcomes changed between the two."
+        actions={
+          <>
+            {baseId && runId && (
+              <Button variant="ghost" onClick={() => setSearch({ base: runId, run: baseId })}>
+                Swap sides
+              </Button>
+            )}
+            <ButtonLink to={runsPath} variant="secondary">
+              All runs
+            </ButtonLink>
+          </>
+        }
+      />
+      {!baseId || !runId ? (
+        <EmptyState
+          title="Choose two runs to compare"
+          description="Tick two finished runs in the list of runs, then choose Compare side by side."
+          action={
+            <ButtonLink to={runsPath} variant="primary">
+              Go to the runs
+            </ButtonLink>
+          }
+        />
+      ) : diff.isPending ? (
+        <LoadingState label="Setting the two runs side by side" lines={6} />
+      ) : diff.isError ? (
+        <ErrorState error={diff.error} title="These two runs could not be compared" onRetry={() => void diff.refetch()} actions={<TextLink to={runsPath}>Back to the runs</TextLink>} />
+      ) : (
+        <Comparison studyId={study.id} diff={diff.data} />
+      )}
+    </>
+  );
+}
+
+function Comparison({ studyId, diff }: { studyId: string; diff: RunDiff }) {
+  const [onlyChanged, setOnlyChanged] = useState(false);
+  const onlyId = useId();
+  const anyChange = diff.boundaries.some((b) => b.traits.some((t) => t.changed));
+  return (
+    <div className="space-y-6" data-testid="run-comparison">
+      <div className="grid gap-4 md:grid-cols-2">
+        <RunSide side="Earlier (base)" studyId={studyId} run={diff.base} />
+        <RunSide side="Later" studyId={studyId} run={diff.run} />
+      </div>
+
+      <Card title="Data and parameters">
+        <div className="space-y-3 text-[15px]">
+          <p className={cx("rounded-lg px-4 py-3", diff.hashChanged ? "border border-caution-200 bg-caution-50 text-stone-800" : "bg-stone-50 text-stone-700")} data-testid="data-change">
+            {diff.hashChanged ? (
+              <>
+                <span className="font-semibold">The data differ:</span> the two runs read different trait values, outcomes or taxa (fingerprint{" "}
+                <code className="font-mono text-sm">{diff.base.dataHashShort}</code> → <code className="font-mono text-sm">{diff.run.dataHashShort}</code>)
+                {diff.rowCount.change !== null && diff.rowCount.change !== 0 && (
+                  <>
+                    ; taxon rows {formatCount(diff.rowCount.base ?? 0)} → {formatCount(diff.rowCount.run ?? 0)}
+                  </>
+                )}
+                .
+              </>
+            ) : (
+              <>
+                <span className="font-semibold">Same data:</span> both runs read exactly the same values (fingerprint <code className="font-mono text-sm">{diff.run.dataHashShort}</code>).
+              </>
+            )}
+          </p>
+          {diff.paramsChanged.length === 0 ? (
+            <p className="text-stone-700">Same parameters.</p>
+          ) : (
+            <div>
+              <p className="font-medium text-stone-900">Parameters that differ</p>
+              <ul className="mt-1 list-disc pl-5 text-stone-700">
+                {diff.paramsChanged.map((change) => (
+                  <li key={change}>{change}</li>
+                ))}
+              </ul>
+            </div>
+          )}
+          {!anyChange && <p className="text-stone-700">No test result or odds ratio differs between the two runs.</p>}
+        </div>
+      </Card>
+
+      <div className="flex items-center gap-2">
+        <input id={onlyId} type="checkbox" checked={onlyChanged} onChange={(e) => setOnlyChanged(e.target.checked)} className="size-4 rounded border-stone-300 accent-accent-600" />
+        <label htmlFor={onlyId} className="text-[15px] text-stone-800">
+          Show only what changed
+        </label>
+      </div>
+
+      {diff.boundaries.map((b) => (
+        <BoundaryComparison key={`${b.boundaryMa}-${b.windowMyr.base}-${b.windowMyr.run}`} boundary={b} onlyChanged={onlyChanged} />
+      ))}
+    </div>
+  );
+}
+
+function RunSide({ side, studyId, run }: { side: string; studyId: string; run: RunSummary }) {
+  return (
+    <div className="rounded-xl border border-stone-200 bg-white px-5 py-4">
+      <p className="text-xs font-semibold tracking-wide text-stone-500 uppercase">{side}</p>
+      <p className="mt-1 font-semibold text-stone-900">
+        <Link to={selectivityLink(studyId, run.id)} className={cx("rounded hover:underline", focusRing)}>
+          {run.name}
+        </Link>
+      </p>
+      <p className="text-sm text-stone-600">
+        {formatDateTime(run.createdAt)} · {run.createdBy?.name ?? "a former member"}
+      </p>
+      <p className="mt-1 text-sm text-stone-600">
+        Data <code className="font-mono text-xs">{run.dataHashShort ?? "—"}</code>
+        {run.rowCount !== null && ` · ${formatCount(run.rowCount)} taxon rows`}
+      </p>
+    </div>
+  );
+}
+
+function Moved({ pair, format }: { pair: Pair; format: (v: number | null) => string }) {
+  const changed = pair.base !== pair.run;
+  return (
+    <td className={cx("px-3 py-2 text-right whitespace-nowrap tabular-nums", changed ? "font-medium text-stone-900" : "text-stone-600")}>
+      {changed ? (
+        <>
+          <span className="text-stone-500">{format(pair.base)}</span> <span aria-label="changed to">→</span> <mark className="rounded bg-caution-50 px-1 text-stone-900">{format(pair.run)}</mark>
+        </>
+      ) : (
+        format(pair.run)
+      )}
+    </td>
+  );
+}
+
+const PRESENCE: Record<"both" | "baseOnly" | "runOnly", string | null> = {
+  both: null,
+  baseOnly: "only in the earlier run",
+  runOnly: "only in the later run",
+};
+
+function BoundaryComparison({ boundary, onlyChanged }: { boundary: RunDiff["boundaries"][number]; onlyChanged: boolean }) {
+  const traits = onlyChanged ? boundary.traits.filter((t) => t.changed || t.presence !== "both") : boundary.traits;
+  const th = "px-3 py-2 text-right text-xs font-semibold tracking-wide text-stone-500 uppercase";
+  const counts: Array<[string, Pair]> = [
+    ["Victims", boundary.victims],
+    ["Survivors", boundary.survivors],
+    ["In the regression", boundary.completeCases],
+  ];
+  return (
+    <Card
+      title={boundary.label}
+      description={
+        <>
+          {PRESENCE[boundary.presence] ? `This boundary is ${PRESENCE[boundary.presence]}.` : null} Window{" "}
+          {boundary.windowMyr.base === boundary.windowMyr.run ? `${number(boundary.windowMyr.run)} Myr` : `${number(boundary.windowMyr.base)} → ${number(boundary.windowMyr.run)} Myr`}.
+        </>
+      }
+    >
+      <dl className="mb-4 grid grid-cols-3 gap-4 text-sm">
+        {counts.map(([label, pair]) => (
+          <div key={label}>
+            <dt className="text-xs font-semibold tracking-wide text-stone-500 uppercase">{label}</dt>
+            <dd className={cx("tabular-nums", pair.base !== pair.run ? "font-semibold text-stone-900" : "text-stone-700")}>
+              {pair.base === pair.run ? formatCount(pair.run ?? 0) : `${pair.base === null ? "—" : formatCount(pair.base)} → ${pair.run === null ? "—" : formatCount(pair.run)}`}
+            </dd>
+          </div>
+        ))}
+      </dl>
+      {traits.length === 0 ? (
+        <p className="text-[15px] text-stone-600">Nothing changed at this boundary.</p>
+      ) : (
+        <div className="overflow-x-auto rounded-lg border border-stone-200">
+          <table className="w-full min-w-[56rem] text-sm">
+            <caption className="sr-only">Tests and odds ratios of each trait at {boundary.label}, earlier run then later run</caption>
+            <thead className="border-b border-stone-200 bg-stone-50">
+              <tr>
+                <th scope="col" className="px-3 py-2 text-left text-xs font-semibold tracking-wide text-stone-500 uppercase">
+                  Trait and contrast
+                </th>
+                <th scope="col" className={th}>
+                  Taxa
+                </th>
+                <th scope="col" className={th}>
+                  p
+                </th>
+                <th scope="col" className={th}>
+                  Adjusted p
+                </th>
+                <th scope="col" className={th}>
+                  Crude OR
+                </th>
+                <th scope="col" className={th}>
+                  For clade
+                </th>
+                <th scope="col" className={th}>
+                  For other traits
+                </th>
+                <th scope="col" className={th}>
+                  Flag
+                </th>
+              </tr>
+            </thead>
+            <tbody className="divide-y divide-stone-100">
+              {traits.map((t) => (
+                <TraitComparison key={t.key} trait={t} onlyChanged={onlyChanged} />
+              ))}
+            </tbody>
+          </table>
+        </div>
+      )}
+    </Card>
+  );
+}
+
+function TraitComparison({ trait, onlyChanged }: { trait: RunDiff["boundaries"][number]["traits"][number]; onlyChanged: boolean }) {
+  const contrasts = onlyChanged ? trait.contrasts.filter((c) => c.changed) : trait.contrasts;
+  const rows: ReactNode[] = [
+    <tr key="trait" data-compare-trait={trait.key} data-changed={trait.changed ? "true" : "false"} className={trait.changed ? "bg-caution-50/40" : undefined}>
+      <th scope="row" className="px-3 py-2 text-left font-semibold text-stone-900">
+        {trait.label}
+        {PRESENCE[trait.presence] && <span className="ml-1.5 text-xs font-normal text-stone-500">{PRESENCE[trait.presence]}</span>}
+      </th>
+      <Moved pair={trait.used} format={(v) => (v === null ? "—" : formatCount(v))} />
+      <Moved pair={trait.pValue} format={pValue} />
+      <Moved pair={trait.adjustedPValue} format={pValue} />
+      <td colSpan={4} />
+    </tr>,
+    ...contrasts.map((c) => (
+      <tr key={c.contrast} data-compare-contrast={`${trait.key}:${c.contrast}`}>
+        <th scope="row" className="py-2 pr-3 pl-7 text-left font-normal text-stone-700">
+          {c.contrast}
+        </th>
+        <td colSpan={3} />
+        <Moved pair={c.crudeOddsRatio} format={number} />
+        <Moved pair={c.cladeAdjustedOddsRatio} format={number} />
+        <Moved pair={c.modelAdjustedOddsRatio} format={number} />
+        <td className="px-3 py-2 text-right text-xs whitespace-nowrap">
+          {c.flagged.base === c.flagged.run ? (
+            c.flagged.run ? (
+              <span className="font-semibold text-caution-700">Flagged</span>
+            ) : (
+              <span className="text-stone-500">—</span>
+            )
+          ) : (
+            <mark className="rounded bg-caution-50 px-1 font-semibold text-caution-700">{c.flagged.run ? "Now flagged" : "No longer flagged"}</mark>
+          )}
+        </td>
+      </tr>
+    )),
+  ];
+  return <>{rows}</>;
+}

@@ -1,0 +1,105 @@
+import { Card } from "../../components/Card";
+import { cx } from "../../components/focus";
+import { contrastWords, type ContrastData, type SelectivityResultData } from "./resultRows";
+import { Body, HeadRow, ResultTable, td, tdNum, th, thNum } from "./ResultTable";
+import { formatChange, formatEstimate, formatInterval, formatP, formatWholePercent, levelWords } from "./words";
+
+function OddsCell({ value, ci }: { value: number | undefined; ci: [number, number] | undefined }) {
+  if (value === undefined || !ci) return <td className={cx(tdNum, "text-stone-400")}>—</td>;
+  return (
+    <td className={tdNum}>
+      <span className="font-medium">{formatEstimate(value)}</span>
+      <span className="block text-xs text-stone-500">{formatInterval(ci)}</span>
+    </td>
+  );
+}
+
+function moveWords(contrast: ContrastData): string {
+  const parts = [
+    contrast.changeOnCladeAdjustment !== null ? `clade ${formatChange(contrast.changeOnCladeAdjustment)}` : null,
+    contrast.changeOnModelAdjustment !== null ? `traits ${formatChange(contrast.changeOnModelAdjustment)}` : null,
+  ].filter(Boolean);
+  return parts.length ? parts.join(" · ") : "—";
+}
+
+/**
+ * The confounding check: each contrast's crude odds ratio beside the same odds ratio adjusted for
+ * clade (Mantel-Haenszel, with Breslow-Day's test of one common odds ratio across clades) and for
+ * the other traits (the multiple regression), flagged when it moves by more than the threshold.
+ */
+export function ConfoundingCard({ result, level, threshold }: { result: SelectivityResultData; level: number; threshold: number }) {
+  const percent = levelWords(level);
+  const rows = result.traits.flatMap((trait) => trait.contrasts.map((contrast) => ({ trait, contrast })));
+  const flagged = rows.filter((r) => r.contrast.flagged);
+  const notes = rows.flatMap((r) => r.contrast.notes.map((note) => `${r.trait.label}, ${contrastWords(r.trait, r.contrast)}: ${note}`));
+
+  return (
+    <Card
+      title="Confounding check"
+      description={`Does each odds ratio hold once clade and the other traits are allowed for? A contrast is flagged when its odds ratio moves by more than ${formatWholePercent(threshold)} on either adjustment.`}
+      className="break-inside-avoid"
+    >
+      <div className="space-y-4" data-testid="confounding-check">
+        <p className={cx("rounded-lg px-4 py-3 text-[15px]", flagged.length ? "border border-caution-200 bg-caution-50 text-stone-800" : "bg-stone-50 text-stone-700")}>
+          {flagged.length === 0
+            ? "No odds ratio moves by more than the threshold on adjustment."
+            : `${flagged.length === 1 ? "One contrast moves" : `${flagged.length} contrasts move`} on adjustment: ${flagged.map((r) => `${r.trait.label} (${contrastWords(r.trait, r.contrast)})`).join("; ")}.`}{" "}
+          A trait can track extinction only because both share a cause, for instance when the trait is concentrated in clades that were hit hard for
+          other reasons; the adjusted odds ratios show how much of the association remains within clades and beside the other traits.
+        </p>
+        <ResultTable caption={`Crude and adjusted odds ratios with ${percent} intervals, and how far each moves on adjustment`} minWidth="44rem">
+          <HeadRow>
+            <th scope="col" className={th}>
+              Trait and contrast
+            </th>
+            <th scope="col" className={thNum}>
+              Crude
+            </th>
+            <th scope="col" className={thNum}>
+              For clade
+            </th>
+            <th scope="col" className={thNum} title="Breslow-Day test (with Tarone's correction) of one common odds ratio across clades">
+              Breslow-Day p
+            </th>
+            <th scope="col" className={thNum}>
+              For other traits
+            </th>
+            <th scope="col" className={thNum}>
+              Moves by
+            </th>
+          </HeadRow>
+          <Body>
+            {rows.map(({ trait, contrast }) => (
+              <tr key={`${trait.key}:${contrast.contrast}`} data-confounding={trait.key} data-flagged={contrast.flagged ? "true" : "false"} className={contrast.flagged ? "bg-caution-50/60" : undefined}>
+                <th scope="row" className={cx(td, "font-medium")}>
+                  {trait.label}
+                  {contrast.flagged && " "}
+                  {contrast.flagged && (
+                    <span className="ml-1.5 inline-flex items-center rounded-full bg-caution-200/70 px-2 py-0.5 align-middle text-xs font-semibold text-caution-700">Flagged</span>
+                  )}
+                  <span className="block text-xs font-normal text-stone-500">{contrastWords(trait, contrast)}</span>
+                </th>
+                <OddsCell value={contrast.crude.estimate} ci={contrast.crude.ci} />
+                <OddsCell value={contrast.cladeAdjusted?.estimate} ci={contrast.cladeAdjusted?.ci} />
+                <td className={tdNum}>{contrast.cladeAdjusted?.breslowDay ? formatP(contrast.cladeAdjusted.breslowDay.pValue) : "—"}</td>
+                <OddsCell value={contrast.modelAdjusted?.estimate} ci={contrast.modelAdjusted?.ci} />
+                <td className={cx(tdNum, "text-xs", contrast.flagged && "font-semibold text-caution-700")}>{moveWords(contrast)}</td>
+              </tr>
+            ))}
+          </Body>
+        </ResultTable>
+        <p className="text-sm text-stone-600">
+          The {formatWholePercent(threshold)} change-in-estimate rule is a rule of thumb of common practice, not a statistical test. Moves by: |adjusted ÷ crude − 1| for clade and for
+          the other traits. A small Breslow-Day p says the odds ratio differs between clades, so one common figure summarises them poorly.
+        </p>
+        {notes.length > 0 && (
+          <ul className="list-disc space-y-1 pl-5 text-sm text-stone-600">
+            {notes.map((note) => (
+              <li key={note}>{note}</li>
+            ))}
+          </ul>
+        )}
+      </div>
+    </Card>
+  );
+}

@@ -1,0 +1,85 @@
+import { useId, useState } from "react";
+import { Card } from "../../components/Card";
+import { cx } from "../../components/focus";
+import { ChartFigure } from "./ChartFigure";
+import { ESTIMATE_KINDS, ESTIMATE_STYLE } from "./ForestPlot";
+import { LogOddsHeatMap } from "./LogOddsHeatMap";
+import { boundaryColumns, heatRows, type BoundaryResult, type HeatMeasure } from "./resultRows";
+import { Body, HeadRow, ResultTable, td, tdNum, th, thNum } from "./ResultTable";
+import { formatEstimate } from "./words";
+
+/** Traits by boundary: does a trait's odds ratio at the crisis stand out against the background intervals? */
+export function HeatMapCard({ boundaries, filePrefix, printable = false }: { boundaries: readonly BoundaryResult[]; filePrefix: string; printable?: boolean }) {
+  const [measure, setMeasure] = useState<HeatMeasure>("crude");
+  const name = useId();
+  const rows = heatRows(boundaries, measure);
+  const columns = boundaryColumns(boundaries);
+  const measureLabel = ESTIMATE_STYLE[measure].label.toLowerCase();
+
+  return (
+    <Card
+      title="Traits across boundaries"
+      description="Log odds ratios of extinction, traits by boundary, so a crisis can be set against background intervals. Red: the state raised the odds of extinction; teal: it lowered them; pale: about even."
+      className="break-inside-avoid"
+    >
+      <fieldset className="print:hidden">
+        <legend className="mb-2 text-sm font-medium text-stone-800">Odds ratio shown</legend>
+        <div className="inline-flex flex-wrap rounded-lg border border-stone-300 bg-stone-100 p-0.5">
+          {ESTIMATE_KINDS.map((kind) => (
+            <label
+              key={kind}
+              className={cx(
+                "cursor-pointer rounded-md px-3 py-1.5 text-sm font-medium transition-colors has-[:focus-visible]:ring-2 has-[:focus-visible]:ring-accent-500",
+                measure === kind ? "bg-white text-stone-900 shadow-sm" : "text-stone-600 hover:text-stone-900",
+              )}
+            >
+              <input type="radio" name={name} value={kind} checked={measure === kind} onChange={() => setMeasure(kind)} className="sr-only" />
+              {ESTIMATE_STYLE[kind].label}
+            </label>
+          ))}
+        </div>
+      </fieldset>
+      <div className="mt-4 overflow-x-auto">
+        <ChartFigure
+          fileName={`${filePrefix}_heat-map_${measure}`}
+          numbersOpen={printable}
+          chart={<LogOddsHeatMap rows={rows} title={`Heat map of natural log odds ratios (${measureLabel}), traits by boundary`} />}
+          caption={
+            <>
+              Heat map of natural log odds ratios ({measureLabel}) against each trait’s reference state, one column per boundary. The colour scale is centred on 0
+              (an odds ratio of 1) and symmetric; grey cells could not be estimated. Numbers in the cells are ln odds ratios.
+            </>
+          }
+          numbers={
+            <ResultTable caption={`Odds ratios (${measureLabel}) by trait and boundary`} minWidth={`${16 + columns.length * 10}rem`}>
+              <HeadRow>
+                <th scope="col" className={th}>
+                  Contrast
+                </th>
+                {columns.map((column) => (
+                  <th key={column} scope="col" className={thNum}>
+                    {column}
+                  </th>
+                ))}
+              </HeadRow>
+              <Body>
+                {rows.map((row) => (
+                  <tr key={row.id}>
+                    <th scope="row" className={cx(td, "font-medium")}>
+                      {row.label}
+                    </th>
+                    {row.cells.map((cell) => (
+                      <td key={cell.boundary} className={tdNum}>
+                        {cell.oddsRatio === null ? "—" : `OR ${formatEstimate(cell.oddsRatio)} (ln ${formatEstimate(cell.logOdds)})`}
+                      </td>
+                    ))}
+                  </tr>
+                ))}
+              </Body>
+            </ResultTable>
+          }
+        />
+      </div>
+    </Card>
+  );
+}

@@ -1,0 +1,75 @@
+import { ResponsiveHeatMap, type HeatMapSvgProps } from "@nivo/heatmap";
+import type { HeatRow } from "./resultRows";
+import { formatEstimate } from "./words";
+
+const FONT = '"Inter Tight", system-ui, sans-serif';
+/** Lower odds of extinction (teal), none (paper), higher odds (clay red): centred on a log odds ratio of 0. */
+const DIVERGING: [string, string, string] = ["#17695e", "#f7f5f2", "#b4441c"];
+const ROW_HEIGHT = 38;
+const MAX_LABEL_CHARS = 40;
+
+type Cell = { x: string; y: number | null };
+
+const THEME: NonNullable<HeatMapSvgProps<Cell, object>["theme"]> = {
+  text: { fontFamily: FONT, fontSize: 12, fill: "#44403c" },
+  axis: { ticks: { text: { fontFamily: FONT, fontSize: 12, fill: "#44403c" } }, legend: { text: { fontFamily: FONT, fontSize: 12, fill: "#44403c" } } },
+  legends: { text: { fontFamily: FONT, fontSize: 11, fill: "#57534e" }, title: { text: { fontFamily: FONT, fontSize: 11, fill: "#57534e" } } },
+  labels: { text: { fontFamily: FONT, fontSize: 12, fontWeight: 600 } },
+  tooltip: { container: { fontFamily: FONT, fontSize: 13, borderRadius: 8 } },
+};
+
+const truncate = (text: string) => (text.length > MAX_LABEL_CHARS ? `${text.slice(0, MAX_LABEL_CHARS - 1)}…` : text);
+
+/** The symmetric colour span: the largest |log odds ratio| shown, at least ln 2 so near-zero maps stay pale. */
+export function colourSpan(rows: readonly HeatRow[]): number {
+  const largest = Math.max(0, ...rows.flatMap((r) => r.cells.map((c) => (c.logOdds === null ? 0 : Math.abs(c.logOdds)))));
+  return Math.max(Math.log(2), Math.min(largest, Math.log(1000)));
+}
+
+/** Log odds ratios, traits by boundary, on a diverging colour scale centred on 0 (no selectivity). */
+export function LogOddsHeatMap({ rows, title }: { rows: readonly HeatRow[]; title: string }) {
+  const span = colourSpan(rows);
+  const data = rows.map((row) => ({ id: truncate(row.label), data: row.cells.map((c) => ({ x: c.boundary, y: c.logOdds })) }));
+  const columns = rows[0]?.cells.length ?? 0;
+  const height = Math.max(180, rows.length * ROW_HEIGHT + 150);
+
+  return (
+    <div style={{ height }} className="min-w-[36rem]" data-testid="log-odds-heat-map">
+      <ResponsiveHeatMap<Cell, object>
+        data={data}
+        margin={{ top: 96, right: 24, bottom: 54, left: 290 }}
+        valueFormat={(v: number) => (v > 0 ? `+${v.toFixed(2)}` : v.toFixed(2).replace("-", "−"))}
+        axisTop={{ tickSize: 4, tickPadding: 6, tickRotation: columns > 3 ? -25 : 0, format: (v: string) => (v.length > 30 ? `${v.slice(0, 29)}…` : v) }}
+        axisLeft={{ tickSize: 4, tickPadding: 6 }}
+        colors={{ type: "diverging", colors: DIVERGING, minValue: -span, maxValue: span, divergeAt: 0.5 }}
+        emptyColor="#e7e5e4"
+        borderWidth={1}
+        borderColor="#ffffff"
+        labelTextColor={(cell) => (cell.value !== null && Math.abs(cell.value) > span * 0.55 ? "#ffffff" : "#1c1917")}
+        theme={THEME}
+        animate={false}
+        isInteractive={false}
+        legends={[
+          {
+            anchor: "bottom",
+            translateX: 0,
+            translateY: 34,
+            length: 260,
+            thickness: 9,
+            direction: "row",
+            tickPosition: "after",
+            tickSize: 3,
+            tickSpacing: 4,
+            tickOverlap: false,
+            tickFormat: (v: number) => `OR ${formatEstimate(Math.exp(v))}`,
+            title: "ln odds ratio →",
+            titleAlign: "start",
+            titleOffset: 4,
+          },
+        ]}
+        role="img"
+        ariaLabel={title}
+      />
+    </div>
+  );
+}

@@ -1,0 +1,31 @@
+import type { ReactNode } from "react";
+import { cx } from "../../components/focus";
+
+export const th = "px-3 py-2 text-left text-xs font-semibold tracking-wide text-stone-500 uppercase";
+export const thNum = "px-3 py-2 text-right text-xs font-semibold tracking-wide text-stone-500 uppercase";
+export const td = "px-3 py-2 text-left text-stone-800";
+export const tdNum = "px-3 py-2 text-right tabular-nums text-stone-800 whitespace-nowrap";
+
+/** A results table that scrolls sideways on a narrow screen and keeps its caption for screen readers. */
+export function ResultTable({ caption, children, className, minWidth = "36rem" }: { caption: string; children: ReactNode; className?: string; minWidth?: string }) {
+  return (
+    <div className={cx("overflow-x-auto rounded-lg border border-stone-200", className)}>
+      <table className="w-full text-sm" style={{ minWidth }}>
+        <caption className="sr-only">{caption}</caption>
+        {children}
+      </table>
+    </div>
+  );
+}
+
+export function HeadRow({ children }: { children: ReactNode }) {
+  return (
+    <thead className="border-b border-stone-200 bg-stone-50">
+      <tr>{children}</tr>
+    </thead>
+  );
+}
+
+export function Body({ children }: { children: ReactNode }) {
+  return <tbody className="divide-y divide-stone-100">{children}</tbody>;
+}

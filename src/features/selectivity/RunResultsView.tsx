@@ -1,0 +1,146 @@
+import { useId, useState, type ReactNode } from "react";
+import type { Run, RunResults } from "@shared/schemas/runs";
+import { Caution } from "../../components/Caution";
+import { cx, focusRing } from "../../components/focus";
+import { formatMa, formatMyr } from "../../components/timescale/ages";
+import { formatCount, formatDateTime } from "../../lib/format";
+import { BoundaryResults } from "./BoundaryResults";
+import { HeatMapCard } from "./HeatMapCard";
+import { boundaryColumns } from "./resultRows";
+import { CORRECTION_LABELS, fileSlug, formatWholePercent, levelWords } from "./words";
+
+/** The file names of a run's charts start with its name and the day it was started. */
+export function runFilePrefix(run: Run): string {
+  return `${fileSlug(run.name)}_${run.createdAt.slice(0, 10)}`;
+}
+
+/** The run's cautions: the standing one first, then the warnings about the outcomes it read. */
+export function RunCautions({ results }: { results: RunResults }) {
+  const [first, ...rest] = results.cautions;
+  return (
+    <div className="space-y-3 break-inside-avoid" data-testid="run-cautions">
+      <Caution title="Association, not mechanism">{first}</Caution>
+      {rest.length > 0 && (
+        <Caution title="What the outcomes rest on">
+          <ul className="list-disc space-y-1 pl-5">
+            {rest.map((caution) => (
+              <li key={caution}>{caution}</li>
+            ))}
+          </ul>
+        </Caution>
+      )}
+    </div>
+  );
+}
+
+/** What was run, on which data, by whom: everything needed to reproduce or cite it. */
+export function RunParameters({ run }: { run: Run }) {
+  const p = run.params;
+  const traitName = new Map((run.results?.traits ?? []).map((t) => [t.traitId, t.label]));
+  const used = run.results?.boundaries ?? [];
+  return (
+    <dl className="grid gap-x-8 gap-y-4 text-[15px] sm:grid-cols-2" data-testid="run-parameters">
+      <Item label={p.boundaries.length === 1 ? "Boundary" : "Boundaries"}>
+        <ul className="space-y-0.5">
+          {p.boundaries.map((b, i) => {
+            const u = used[i];
+            return (
+              <li key={`${b.boundaryMa}-${b.windowMyr ?? "default"}`}>
+                {u?.label ?? b.label ?? formatMa(b.boundaryMa)}; window {u ? formatMyr(u.windowMyr) : b.windowMyr !== undefined ? formatMyr(b.windowMyr) : "the stage below"}
+                {u?.windowDefaultFrom && ` (the ${u.windowDefaultFrom.label})`}
+              </li>
+            );
+          })}
+        </ul>
+      </Item>
+      <Item label="Traits tested">
+        <ul className="space-y-0.5">
+          {p.traits.map((t) => (
+            <li key={t.traitId}>
+              {traitName.get(t.traitId) ?? "A trait no longer in the codebook"}
+              <span className="text-stone-600">
+                {[t.reference ? `reference ${t.reference}` : null, t.transform ? (t.transform === "log10" ? "log10" : "as given") : null, t.standardise ? "per SD" : null]
+                  .filter(Boolean)
+                  .map((w) => `, ${w}`)
+                  .join("")}
+              </span>
+            </li>
+          ))}
+        </ul>
+      </Item>
+      <Item label="Multiple testing">{CORRECTION_LABELS[p.correction]}</Item>
+      <Item label="Intervals">{levelWords(p.level)}</Item>
+      <Item label="Clade-adjusted odds ratios">Stratified by higher taxon (Mantel-Haenszel)</Item>
+      <Item label="Firth’s regression">{p.forceFirth ? "Forced" : "Only when the data separate"}</Item>
+      <Item label="Confounding flag">Odds ratio moves by more than {formatWholePercent(p.confoundingThreshold)}</Item>
+      <Item label="Data read">
+        {run.rowCount === null ? "—" : `${formatCount(run.rowCount)} taxon rows`}
+        {run.dataHash && (
+          <span className="mt-0.5 block font-mono text-xs break-all text-stone-600" title="SHA-256 of exactly the data the run read">
+            SHA-256 {run.dataHash}
+          </span>
+        )}
+      </Item>
+      <Item label="Run by">
+        {run.createdBy?.name ?? "A former member"}, {formatDateTime(run.createdAt)}
+        {run.finishedAt && <span className="text-stone-600">; finished {formatDateTime(run.finishedAt)}</span>}
+      </Item>
+      <Item label="Stratasieve version">
+        {run.appVersion}
+        {run.attempt > 1 && <span className="text-stone-600">, attempt {run.attempt}</span>}
+      </Item>
+    </dl>
+  );
+}
+
+function Item({ label, children }: { label: string; children: ReactNode }) {
+  return (
+    <div className="min-w-0">
+      <dt className="text-xs font-semibold tracking-wide text-stone-500 uppercase">{label}</dt>
+      <dd className="mt-0.5 text-stone-900">{children}</dd>
+    </div>
+  );
+}
+
+/** A finished run's results: cautions, the heat map over boundaries, then one boundary at a time. */
+export function RunResultsView({ run }: { run: Run & { results: RunResults } }) {
+  const { results } = run;
+  const [selected, setSelected] = useState(0);
+  const tabsId = useId();
+  const prefix = runFilePrefix(run);
+  const columns = boundaryColumns(results.boundaries);
+  const boundary = results.boundaries[Math.min(selected, results.boundaries.length - 1)];
+
+  return (
+    <div className="space-y-6" data-testid="run-results">
+      <RunCautions results={results} />
+      {results.boundaries.length > 1 && <HeatMapCard boundaries={results.boundaries} filePrefix={prefix} />}
+
+      {results.boundaries.length > 1 && (
+        <div role="tablist" aria-label="Boundary shown" className="flex flex-wrap gap-1 border-b border-stone-200">
+          {results.boundaries.map((b, i) => (
+            <button
+              key={`${b.boundaryMa}-${b.windowMyr}`}
+              type="button"
+              role="tab"
+              id={`${tabsId}-${i}`}
+              aria-selected={i === selected}
+              aria-controls={`${tabsId}-panel`}
+              onClick={() => setSelected(i)}
+              className={cx(
+                "-mb-px rounded-t-md border-b-2 px-3 py-2 text-sm font-medium transition-colors",
+                i === selected ? "border-accent-600 text-accent-900" : "border-transparent text-stone-600 hover:text-stone-900",
+                focusRing,
+              )}
+            >
+              {columns[i]}
+            </button>
+          ))}
+        </div>
+      )}
+      <div id={`${tabsId}-panel`} role={results.boundaries.length > 1 ? "tabpanel" : undefined} aria-labelledby={results.boundaries.length > 1 ? `${tabsId}-${selected}` : undefined}>
+        <BoundaryResults key={`${boundary.boundaryMa}-${boundary.windowMyr}`} boundary={boundary} params={run.params} filePrefix={prefix} />
+      </div>
+    </div>
+  );
+}

@@ -1,0 +1,82 @@
+// How the numbers of a selectivity run read on screen, in the report and in chart labels.
+import { formatNumber } from "@shared/selectivity/formatNumber";
+import { CORRECTION_LABELS, type RunParams } from "@shared/schemas/runs";
+import type { TraitKind } from "@shared/codebook";
+
+export const KIND_LABEL: Record<TraitKind, string> = {
+  binary: "Two states",
+  categorical: "Unordered states",
+  ordinal: "Ordered states",
+  numeric: "Number",
+};
+
+export const CORRECTION_SHORT: Record<RunParams["correction"], string> = {
+  bh: "Benjamini-Hochberg",
+  holm: "Holm",
+  bonferroni: "Bonferroni",
+};
+
+export { CORRECTION_LABELS };
+
+/** Below this a p-value is shown as a bound: the tail computations are not exact further out. */
+const SMALLEST_P = 1e-15;
+
+/** "0.0213", "3.2e-7", "< 1e-15"; "—" when no test was possible. */
+export function formatP(p: number | null | undefined): string {
+  if (p === null || p === undefined || !Number.isFinite(p)) return "—";
+  if (p < SMALLEST_P) return "< 1e-15";
+  if (p >= 0.9995) return "1.00";
+  if (p >= 0.001) return p.toFixed(p >= 0.1 ? 2 : 3);
+  return p.toPrecision(2);
+}
+
+/** An odds ratio, an estimate or a statistic: three significant figures ("2.67", "0.412", "Infinity" as "∞"). */
+export function formatEstimate(value: number | null | undefined): string {
+  if (value === null || value === undefined || Number.isNaN(value)) return "—";
+  if (value === Infinity) return "∞";
+  if (value === -Infinity) return "−∞";
+  return formatNumber(value).replace(/^-/, "−");
+}
+
+/** "1.85 to 3.90" */
+export function formatInterval(ci: readonly [number, number] | null | undefined): string {
+  if (!ci) return "—";
+  return `${formatEstimate(ci[0])} to ${formatEstimate(ci[1])}`;
+}
+
+const percentFormat = new Intl.NumberFormat("en-GB", { style: "percent", minimumFractionDigits: 1, maximumFractionDigits: 1 });
+const wholePercentFormat = new Intl.NumberFormat("en-GB", { style: "percent", maximumFractionDigits: 0 });
+
+/** "42.9%" */
+export function formatPercent(value: number | null | undefined): string {
+  return value === null || value === undefined || !Number.isFinite(value) ? "—" : percentFormat.format(value);
+}
+
+/** "10%" */
+export function formatWholePercent(value: number): string {
+  return wholePercentFormat.format(value);
+}
+
+/** How far an odds ratio moves on adjustment, |adjusted / crude − 1| as a percentage: "61%". */
+export function formatChange(value: number | null | undefined): string {
+  if (value === null || value === undefined || !Number.isFinite(value)) return "—";
+  return `${Math.round(value * 100)}%`;
+}
+
+/** "95%" from 0.95 */
+export function levelWords(level: number): string {
+  return `${Math.round(level * 1000) / 10}%`;
+}
+
+/** A trait key or label as part of a file name: "feeding-mode". */
+export function fileSlug(text: string): string {
+  const slug = text
+    .normalize("NFKD")
+    .replace(/[^\w\s-]/g, "")
+    .trim()
+    .toLowerCase()
+    .replace(/[\s_]+/g, "-")
+    .replace(/-+/g, "-")
+    .slice(0, 60);
+  return slug || "chart";
+}
