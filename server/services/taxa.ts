@@ -203,18 +203,35 @@ export function createTaxonService(db: Database) {
       // Empty texts sort with the missing values, after everything else in both directions.
       const sortExpr = query.sort === "higherTaxon" || query.sort === "notes" ? sql`NULLIF(${sortKey}, '')` : sortKey;
       const dir = query.dir === "desc" ? sql`DESC` : sql`ASC`;
-      const order = query.sort === "name" ? sql`t.name ${dir}, t.id` : sql`${sortExpr} ${dir} NULLS LAST, t.name, t.id`;
       const offset = (query.page - 1) * query.pageSize;
-      // The page and the count run side by side on two connections.
-      const [page, count] = await Promise.all([
-        db.execute(
-          sql`SELECT t.id, t.name, t.higher_taxon, t.fad_ma, t.fad_interval, t.lad_ma, t.lad_interval, t.notes, t.trait_values, t.version, t.updated_at, t.deleted_at
-              FROM taxa t WHERE ${where} ORDER BY ${order} LIMIT ${query.pageSize} OFFSET ${offset}`,
-        ),
-        db.execute(sql`SELECT count(*)::int AS n FROM taxa t WHERE ${where}`),
-      ]);
-      const total = (count.rows[0] as { n: number }).n;
-      const states = page.rows.map(stateFromRow);
+      const columns = sql`t.id, t.name, t.higher_taxon, t.fad_ma, t.fad_interval, t.lad_ma, t.lad_interval, t.notes, t.trait_values, t.version, t.updated_at, t.deleted_at`;
+      const filtered = query.filter.length > 0 || query.missing.length > 0 || query.hasOpenThread !== undefined;
+      let rows: Array<Record<string, unknown>>;
+      let total: number;
+      if (filtered) {
+        // One pass over the matching rows keeps their ids and sort keys; the count and the page both
+        // come from that narrow list, then only the page's rows are read whole. About half the work
+        // of running the filter twice (once for the page, once for the count).
+        const res = await db.execute(sql`
+          WITH f AS MATERIALIZED (SELECT t.id, t.name, ${sortExpr} AS k FROM taxa t WHERE ${where}),
+               p AS (SELECT f.id, f.k, f.name FROM f ORDER BY f.k ${dir} NULLS LAST, f.name, f.id LIMIT ${query.pageSize} OFFSET ${offset})
+          SELECT (SELECT count(*) FROM f)::int AS total, ${columns}
+          FROM (SELECT 1) AS one LEFT JOIN p ON true LEFT JOIN taxa t ON t.id = p.id
+          ORDER BY p.k ${dir} NULLS LAST, p.name, p.id`);
+        total = (res.rows[0] as { total: number }).total;
+        rows = (res.rows as Array<Record<string, unknown>>).filter((r) => r.id !== null);
+      } else {
+        // Without a filter the name order comes from an index and the count from an index-only
+        // scan; both run side by side on two connections.
+        const order = query.sort === "name" ? sql`t.name ${dir}, t.id` : sql`${sortExpr} ${dir} NULLS LAST, t.name, t.id`;
+        const [page, count] = await Promise.all([
+          db.execute(sql`SELECT ${columns} FROM taxa t WHERE ${where} ORDER BY ${order} LIMIT ${query.pageSize} OFFSET ${offset}`),
+          db.execute(sql`SELECT count(*)::int AS n FROM taxa t WHERE ${where}`),
+        ]);
+        rows = page.rows as Array<Record<string, unknown>>;
+        total = (count.rows[0] as { n: number }).n;
+      }
+      const states = rows.map(stateFromRow);
       const threads = await openThreadsFor(
         db,
         studyId,
