@@ -29,6 +29,7 @@ export async function createContext(config: AppConfig): Promise<RunningContext> 
   // Every app process works the shared queue; the services registered their job kinds above.
   await jobs.start({ work: config.jobWorkers });
   services.runs.startSweeping();
+  services.imports.startSweeping();
   services.notifications.startDigestClock();
   return {
     config,
@@ -41,6 +42,7 @@ export async function createContext(config: AppConfig): Promise<RunningContext> 
     fakeSmtp,
     async close() {
       await services.runs.stopSweeping();
+      await services.imports.stopSweeping();
       services.notifications.stopDigestClock();
       await jobs.stop();
       await workers.close();
