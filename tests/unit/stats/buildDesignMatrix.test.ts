@@ -14,8 +14,14 @@ describe("a three-level trait tested as one term (Agresti 2007, Table 2.5)", () 
     const party: string[] = [];
     const female: number[] = [];
     for (const [level, [women, men]] of Object.entries(counts)) {
-      for (let k = 0; k < women; k++) (party.push(level), female.push(1));
-      for (let k = 0; k < men; k++) (party.push(level), female.push(0));
+      for (let k = 0; k < women; k++) {
+        party.push(level);
+        female.push(1);
+      }
+      for (let k = 0; k < men; k++) {
+        party.push(level);
+        female.push(0);
+      }
     }
     const design = buildDesignMatrix([{ name: "party", kind: "categorical", values: party, reference: "Republican" }]);
     expect(design.names).toEqual(["party=Democrat", "party=Independent"]);

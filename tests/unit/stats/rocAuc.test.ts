@@ -15,10 +15,16 @@ function ratings(): { scores: number[]; labels: number[] } {
   const scores: number[] = [];
   const labels: number[] = [];
   NORMAL_COUNTS.forEach((count, r) => {
-    for (let k = 0; k < count; k++) (scores.push(r + 1), labels.push(0));
+    for (let k = 0; k < count; k++) {
+        scores.push(r + 1);
+        labels.push(0);
+      }
   });
   ABNORMAL_COUNTS.forEach((count, r) => {
-    for (let k = 0; k < count; k++) (scores.push(r + 1), labels.push(1));
+    for (let k = 0; k < count; k++) {
+        scores.push(r + 1);
+        labels.push(1);
+      }
   });
   return { scores, labels };
 }
