@@ -7,7 +7,7 @@ import { randomUUID } from "node:crypto";
 import { readFileSync } from "node:fs";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Download, Page } from "playwright-core";
-import { taxa } from "../../db/schema/index";
+import { runs, taxa } from "../../db/schema/index";
 import { launchBrowser, screenshot, withScreenshotOnFailure } from "../support/browser";
 import { PASSWORD, startTestServer, uniqueEmail } from "../support/server";
 
@@ -81,11 +81,12 @@ const AT_RISK = 410;
 const VICTIMS = 163;
 const SURVIVORS = 247;
 
-async function buildStudy(page: Page): Promise<string> {
+async function buildStudy(page: Page): Promise<{ studyId: string; userId: string }> {
   const signup = await page.request.post(`${server.url}/api/auth/signup`, {
     data: { email: uniqueEmail("selectivity-lead"), password: PASSWORD, name: "Invented Selectivity Lead" },
   });
   expect(signup.status()).toBe(201);
+  const userId = ((await signup.json()) as { id: string }).id;
   const created = await page.request.post(`${server.url}/api/studies`, {
     data: { name: `Invented Orrent Basin crisis ${randomUUID().slice(0, 6)}`, description: "Invented example data with planted effects." },
   });
@@ -117,7 +118,7 @@ async function buildStudy(page: Page): Promise<string> {
       traitValues: { [feeding.id]: "deposit", [habit.id]: "epifaunal" },
     })),
   ]);
-  return studyId;
+  return { studyId, userId };
 }
 
 const cellTexts = async (page: Page, selector: string) =>
@@ -132,7 +133,7 @@ describe("selectivity screen", () => {
   it("configures a run, shows the design, runs it, shows the forest plot with the flagged trait, exports it, and re-runs it", async () => {
     const page = await browser.context.newPage();
     await withScreenshotOnFailure(browser.context, "selectivity", async () => {
-      const studyId = await buildStudy(page);
+      const { studyId, userId } = await buildStudy(page);
       await page.goto(`${server.url}/studies/${studyId}`);
       await page.getByRole("navigation", { name: "Study" }).getByRole("link", { name: "Selectivity" }).click();
       await page.getByRole("heading", { level: 1, name: "Selectivity" }).waitFor();
@@ -154,6 +155,15 @@ describe("selectivity screen", () => {
       // Default window: the Maastrichtian, 72.2 - 66 = 6.2 Myr (ICS chart v2024/12).
       expect(await chosen.innerText()).toContain("Base of the Danian");
       expect(await chosen.innerText()).toContain("the default, the Maastrichtian, 6.2 Myr");
+      // The same boundary with a narrower window, to read the traits across two columns of the heat map.
+      await addForm.getByLabel("Period", { exact: true }).selectOption("Paleogene");
+      await addForm.getByLabel("Epoch", { exact: true }).selectOption("Paleocene");
+      await addForm.getByLabel("Stage", { exact: true }).selectOption("Danian");
+      await addForm.getByLabel(/^Window below the boundary/).fill("3");
+      await addForm.getByLabel(/^Name in tables and figures/).fill("Danian, 3 Myr window");
+      await addForm.getByRole("button", { name: "Add boundary" }).click();
+      expect(await chosen.locator("li").count()).toBe(2);
+      expect(await chosen.innerText()).toContain("Window: 3 Myr");
 
       // Both traits, each against the reference the planted effects were built on.
       await page.getByRole("checkbox", { name: /^Feeding mode/ }).check();
@@ -163,10 +173,12 @@ describe("selectivity screen", () => {
 
       // The design in words and numbers before running: 10 taxa without a life habit are dropped from its test.
       const design = page.getByTestId("design-summary");
-      await design.getByText(`${AT_RISK} taxa at risk enter, ${VICTIMS} victims and ${SURVIVORS} survivors; ${NOT_AT_RISK} taxa not at risk stay out.`).waitFor();
+      // Victims were last seen at 67 Ma, inside both windows (66-72.2 and 66-69 Ma), so both boundaries hold the same taxa.
+      await design.getByText(`${AT_RISK} taxa at risk enter, ${VICTIMS} victims and ${SURVIVORS} survivors; ${NOT_AT_RISK} taxa not at risk stay out.`).first().waitFor();
+      expect(await design.locator("[data-design-boundary]").count()).toBe(2);
       expect(await design.innerText()).toContain(`Life habit: ${AT_RISK - NO_HABIT} taxa (${VICTIMS - 3} victims, ${SURVIVORS - 7} survivors), ${NO_HABIT} taxa dropped for missing values.`);
       // Columns: trait, enter, victims, survivors, missing, unusable, reference.
-      expect(await cellTexts(page, 'tr[data-design-trait="life_habit"]')).toEqual(["Life habit Unordered states", "400", "160", "240", "10", "0", "Epifaunal"]);
+      expect(await cellTexts(page, '[data-design-boundary] >> nth=0 >> tr[data-design-trait="life_habit"]')).toEqual(["Life habit Categorical", "400", "160", "240", "10", "0", "Epifaunal"]);
 
       // Run it under a name of its own.
       await page.getByLabel("Name of the run").fill("Planted effects (invented)");
@@ -211,6 +223,13 @@ describe("selectivity screen", () => {
       expect((await cellTexts(page, 'tr[data-confounding="feeding"]'))[2]).toMatch(/^2\.67 /);
       expect(await page.getByTestId("confounding-note-life_habit").innerText()).toContain("share a cause");
 
+      // Two boundaries: the heat map of log odds ratios, traits by boundary. ln 2.2685 = 0.819 in both columns.
+      const heat = page.locator("figure").filter({ has: page.getByTestId("log-odds-heat-map") });
+      await heat.getByRole("img", { name: /Heat map of natural log odds ratios \(crude\), traits by boundary/ }).waitFor();
+      await heat.getByText("Numbers behind the chart").click();
+      const heatRow = heat.locator("tr").filter({ hasText: "Life habit: Infaunal vs Epifaunal" });
+      expect((await heatRow.locator("td").allInnerTexts()).map((t) => t.trim())).toEqual(["OR 2.27 (ln 0.819)", "OR 2.27 (ln 0.819)"]);
+
       // The multiple regression is there with its numbers.
       const model = page.getByTestId("model");
       expect(await model.innerText()).toContain("AIC");
@@ -249,7 +268,10 @@ describe("selectivity screen", () => {
       const report = await browser.context.newPage();
       await report.goto(`${server.url}/studies/${studyId}/runs/${runId}/report`);
       const body = report.getByTestId("run-report");
-      await body.getByTestId("forest-plot").waitFor();
+      // Every boundary in full, one after the other, after the heat map.
+      await body.getByTestId("forest-plot").nth(1).waitFor();
+      expect(await body.getByTestId("forest-plot").count()).toBe(2);
+      await body.getByTestId("log-odds-heat-map").locator("svg").first().waitFor();
       expect(await body.innerText()).toContain(CAUTION);
       expect(await body.getByTestId("run-parameters").innerText()).toMatch(/SHA-256 [0-9a-f]{64}/);
       await report.emulateMedia({ media: "print" });
@@ -265,10 +287,43 @@ describe("selectivity screen", () => {
       expect(await listed.locator("[data-status]").getAttribute("data-status")).toBe("succeeded");
       await listed.getByRole("button", { name: "Re-run “Planted effects (invented)” on today’s data" }).click();
       await page.waitForURL((url) => url.searchParams.get("run") !== null && url.searchParams.get("run") !== runId);
+      const rerunId = new URL(page.url()).searchParams.get("run")!;
       const changes = page.getByTestId("rerun-changes");
       await changes.waitFor({ timeout: 60_000 });
       expect(await changes.innerText()).toContain("Same data");
       expect(await changes.innerText()).toContain("No test result or odds ratio moved.");
+
+      // The two runs side by side, chosen in the list.
+      await page.getByRole("navigation", { name: "Study" }).getByRole("link", { name: "Runs" }).click();
+      await page.locator(`tr[data-run-id="${runId}"]`).getByRole("checkbox").check();
+      await page.locator(`tr[data-run-id="${rerunId}"]`).getByRole("checkbox").check();
+      await page.getByRole("button", { name: "Compare side by side" }).click();
+      await page.waitForURL((url) => url.pathname.endsWith("/runs/compare") && url.searchParams.get("base") === runId && url.searchParams.get("run") === rerunId);
+      const comparison = page.getByTestId("run-comparison");
+      expect(await comparison.getByTestId("data-change").innerText()).toContain("Same data");
+      await comparison.getByText("Same parameters.").waitFor();
+      expect(await comparison.locator('[data-compare-trait][data-changed="true"]').count()).toBe(0);
+
+      // A run that failed shows why, and a Retry computes it.
+      const params = ((await (await page.request.get(`${server.url}/api/studies/${studyId}/runs/${runId}`)).json()) as { params: Record<string, unknown> }).params;
+      const [failed] = await server.ctx.db
+        .insert(runs)
+        .values({
+          studyId,
+          name: "Planted effects, interrupted (invented)",
+          params: { ...params, name: "Planted effects, interrupted (invented)" },
+          appVersion: "invented",
+          status: "failed",
+          error: "Interrupted: the process computing this run stopped before it finished (invented for this test). Retry to compute it again.",
+          createdBy: userId,
+        })
+        .returning();
+      await page.goto(`${server.url}/studies/${studyId}/selectivity?run=${failed.id}`);
+      const failure = page.getByTestId("run-failed");
+      expect(await failure.innerText()).toContain("invented for this test");
+      await failure.getByRole("button", { name: "Retry" }).click();
+      await page.getByTestId("forest-plot").waitFor({ timeout: 60_000 });
+      expect(await page.getByTestId("run-failed").count()).toBe(0);
     });
   });
 });

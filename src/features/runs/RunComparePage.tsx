@@ -1,4 +1,4 @@
-import { useId, useState, type ReactNode } from "react";
+import { Fragment, useId, useState } from "react";
 import { Link, useSearchParams } from "react-router-dom";
 import type { RunDiff, RunSummary } from "@shared/schemas/runs";
 import { formatNumber } from "@shared/selectivity/formatNumber";
@@ -8,6 +8,7 @@ import { EmptyState } from "../../components/EmptyState";
 import { ErrorState } from "../../components/ErrorState";
 import { cx, focusRing } from "../../components/focus";
 import { LoadingState } from "../../components/LoadingState";
+import { formatAgeNumber } from "../../components/timescale/ages";
 import { PageHeader } from "../../components/PageHeader";
 import { TextLink } from "../../components/TextLink";
 import { useCurrentStudy } from "../../lib/currentStudy";
@@ -153,42 +154,29 @@ function RunSide({ side, studyId, run }: { side: string; studyId: string; run: R
   );
 }
 
-function Moved({ pair, format }: { pair: Pair; format: (v: number | null) => string }) {
-  const changed = pair.base !== pair.run;
-  return (
-    <td className={cx("px-3 py-2 text-right whitespace-nowrap tabular-nums", changed ? "font-medium text-stone-900" : "text-stone-600")}>
-      {changed ? (
-        <>
-          <span className="text-stone-500">{format(pair.base)}</span> <span aria-label="changed to">→</span> <mark className="rounded bg-caution-50 px-1 text-stone-900">{format(pair.run)}</mark>
-        </>
-      ) : (
-        format(pair.run)
-      )}
-    </td>
-  );
-}
-
 const PRESENCE: Record<"both" | "baseOnly" | "runOnly", string | null> = {
   both: null,
   baseOnly: "only in the earlier run",
   runOnly: "only in the later run",
 };
 
+type Metric = { label: string; pair: Pair; format: (v: number | null) => string };
+
 function BoundaryComparison({ boundary, onlyChanged }: { boundary: RunDiff["boundaries"][number]; onlyChanged: boolean }) {
   const traits = onlyChanged ? boundary.traits.filter((t) => t.changed || t.presence !== "both") : boundary.traits;
-  const th = "px-3 py-2 text-right text-xs font-semibold tracking-wide text-stone-500 uppercase";
   const counts: Array<[string, Pair]> = [
     ["Victims", boundary.victims],
     ["Survivors", boundary.survivors],
     ["In the regression", boundary.completeCases],
   ];
+  const window = boundary.windowMyr;
   return (
     <Card
       title={boundary.label}
       description={
         <>
-          {PRESENCE[boundary.presence] ? `This boundary is ${PRESENCE[boundary.presence]}.` : null} Window{" "}
-          {boundary.windowMyr.base === boundary.windowMyr.run ? `${number(boundary.windowMyr.run)} Myr` : `${number(boundary.windowMyr.base)} → ${number(boundary.windowMyr.run)} Myr`}.
+          {PRESENCE[boundary.presence] ? `This boundary is ${PRESENCE[boundary.presence]}. ` : null}
+          Window {window.base === window.run ? myr(window.run) : `${myr(window.base)} → ${myr(window.run)}`}.
         </>
       }
     >
@@ -197,7 +185,7 @@ function BoundaryComparison({ boundary, onlyChanged }: { boundary: RunDiff["boun
           <div key={label}>
             <dt className="text-xs font-semibold tracking-wide text-stone-500 uppercase">{label}</dt>
             <dd className={cx("tabular-nums", pair.base !== pair.run ? "font-semibold text-stone-900" : "text-stone-700")}>
-              {pair.base === pair.run ? formatCount(pair.run ?? 0) : `${pair.base === null ? "—" : formatCount(pair.base)} → ${pair.run === null ? "—" : formatCount(pair.run)}`}
+              {pair.base === pair.run ? count(pair.run) : `${count(pair.base)} → ${count(pair.run)}`}
             </dd>
           </div>
         ))}
@@ -206,41 +194,24 @@ function BoundaryComparison({ boundary, onlyChanged }: { boundary: RunDiff["boun
         <p className="text-[15px] text-stone-600">Nothing changed at this boundary.</p>
       ) : (
         <div className="overflow-x-auto rounded-lg border border-stone-200">
-          <table className="w-full min-w-[56rem] text-sm">
-            <caption className="sr-only">Tests and odds ratios of each trait at {boundary.label}, earlier run then later run</caption>
-            <thead className="border-b border-stone-200 bg-stone-50">
+          <table className="w-full min-w-[30rem] text-sm">
+            <caption className="sr-only">Tests and odds ratios of each trait at {boundary.label}: the earlier run beside the later one</caption>
+            <thead className="border-b border-stone-200 bg-stone-50 text-xs font-semibold tracking-wide text-stone-500 uppercase">
               <tr>
-                <th scope="col" className="px-3 py-2 text-left text-xs font-semibold tracking-wide text-stone-500 uppercase">
-                  Trait and contrast
+                <th scope="col" className="px-3 py-2 text-left">
+                  Trait, contrast and measure
                 </th>
-                <th scope="col" className={th}>
-                  Taxa
+                <th scope="col" className="px-3 py-2 text-right">
+                  Earlier
                 </th>
-                <th scope="col" className={th}>
-                  p
-                </th>
-                <th scope="col" className={th}>
-                  Adjusted p
-                </th>
-                <th scope="col" className={th}>
-                  Crude OR
-                </th>
-                <th scope="col" className={th}>
-                  For clade
-                </th>
-                <th scope="col" className={th}>
-                  For other traits
-                </th>
-                <th scope="col" className={th}>
-                  Flag
+                <th scope="col" className="px-3 py-2 text-right">
+                  Later
                 </th>
               </tr>
             </thead>
-            <tbody className="divide-y divide-stone-100">
-              {traits.map((t) => (
-                <TraitComparison key={t.key} trait={t} onlyChanged={onlyChanged} />
-              ))}
-            </tbody>
+            {traits.map((t) => (
+              <TraitComparison key={t.key} trait={t} onlyChanged={onlyChanged} />
+            ))}
           </table>
         </div>
       )}
@@ -248,41 +219,77 @@ function BoundaryComparison({ boundary, onlyChanged }: { boundary: RunDiff["boun
   );
 }
 
+const myr = (v: number | null) => (v === null ? "—" : `${formatAgeNumber(v)} Myr`);
+const count = (v: number | null) => (v === null ? "—" : formatCount(v));
+const flag = (v: boolean | null) => (v === null ? "—" : v ? "Flagged" : "Holds");
+
+function MetricRow({ metric, indent }: { metric: Metric; indent: boolean }) {
+  const changed = metric.pair.base !== metric.pair.run;
+  return (
+    <tr data-changed={changed ? "true" : "false"} className={changed ? "bg-caution-50/50" : undefined}>
+      <th scope="row" className={cx("py-1.5 pr-3 text-left font-normal text-stone-600", indent ? "pl-10" : "pl-6")}>
+        {metric.label}
+      </th>
+      <td className="px-3 py-1.5 text-right text-stone-600 tabular-nums">{metric.format(metric.pair.base)}</td>
+      <td className={cx("px-3 py-1.5 text-right tabular-nums", changed ? "font-semibold text-stone-900" : "text-stone-600")}>
+        {changed && <span className="sr-only">changed to </span>}
+        {metric.format(metric.pair.run)}
+      </td>
+    </tr>
+  );
+}
+
 function TraitComparison({ trait, onlyChanged }: { trait: RunDiff["boundaries"][number]["traits"][number]; onlyChanged: boolean }) {
   const contrasts = onlyChanged ? trait.contrasts.filter((c) => c.changed) : trait.contrasts;
-  const rows: ReactNode[] = [
-    <tr key="trait" data-compare-trait={trait.key} data-changed={trait.changed ? "true" : "false"} className={trait.changed ? "bg-caution-50/40" : undefined}>
-      <th scope="row" className="px-3 py-2 text-left font-semibold text-stone-900">
-        {trait.label}
-        {PRESENCE[trait.presence] && <span className="ml-1.5 text-xs font-normal text-stone-500">{PRESENCE[trait.presence]}</span>}
-      </th>
-      <Moved pair={trait.used} format={(v) => (v === null ? "—" : formatCount(v))} />
-      <Moved pair={trait.pValue} format={pValue} />
-      <Moved pair={trait.adjustedPValue} format={pValue} />
-      <td colSpan={4} />
-    </tr>,
-    ...contrasts.map((c) => (
-      <tr key={c.contrast} data-compare-contrast={`${trait.key}:${c.contrast}`}>
-        <th scope="row" className="py-2 pr-3 pl-7 text-left font-normal text-stone-700">
-          {c.contrast}
-        </th>
-        <td colSpan={3} />
-        <Moved pair={c.crudeOddsRatio} format={number} />
-        <Moved pair={c.cladeAdjustedOddsRatio} format={number} />
-        <Moved pair={c.modelAdjustedOddsRatio} format={number} />
-        <td className="px-3 py-2 text-right text-xs whitespace-nowrap">
-          {c.flagged.base === c.flagged.run ? (
-            c.flagged.run ? (
-              <span className="font-semibold text-caution-700">Flagged</span>
-            ) : (
-              <span className="text-stone-500">—</span>
-            )
-          ) : (
-            <mark className="rounded bg-caution-50 px-1 font-semibold text-caution-700">{c.flagged.run ? "Now flagged" : "No longer flagged"}</mark>
-          )}
-        </td>
-      </tr>
-    )),
+  const traitMetrics: Metric[] = [
+    { label: "Taxa tested", pair: trait.used, format: count },
+    { label: "p", pair: trait.pValue, format: pValue },
+    { label: "Adjusted p", pair: trait.adjustedPValue, format: pValue },
   ];
-  return <>{rows}</>;
+  const keep = (m: Metric) => !onlyChanged || m.pair.base !== m.pair.run;
+  return (
+    <tbody className="border-t border-stone-200" data-compare-trait={trait.key} data-changed={trait.changed ? "true" : "false"}>
+      <tr>
+        <th scope="rowgroup" colSpan={3} className="bg-white px-3 pt-3 pb-1 text-left font-semibold text-stone-900">
+          {trait.label}
+          {PRESENCE[trait.presence] && <span className="ml-1.5 text-xs font-normal text-stone-500">{PRESENCE[trait.presence]}</span>}
+          {trait.changed && <span className="ml-2 rounded-full bg-caution-200/70 px-2 py-0.5 text-xs font-semibold text-caution-700">Changed</span>}
+        </th>
+      </tr>
+      {traitMetrics.filter(keep).map((m) => (
+        <MetricRow key={m.label} metric={m} indent={false} />
+      ))}
+      {contrasts.map((c) => {
+        const metrics: Metric[] = [
+          { label: "Crude odds ratio", pair: c.crudeOddsRatio, format: number },
+          { label: "Adjusted for clade", pair: c.cladeAdjustedOddsRatio, format: number },
+          { label: "Adjusted for the other traits", pair: c.modelAdjustedOddsRatio, format: number },
+        ];
+        const flagChanged = c.flagged.base !== c.flagged.run;
+        return (
+          <Fragment key={c.contrast}>
+            <tr data-compare-contrast={`${trait.key}:${c.contrast}`}>
+              <th scope="rowgroup" colSpan={3} className="px-6 pt-2 pb-0.5 text-left text-[13px] font-medium text-stone-800">
+                {c.contrast}
+              </th>
+            </tr>
+            {metrics.filter(keep).map((m) => (
+              <MetricRow key={m.label} metric={m} indent />
+            ))}
+            {(!onlyChanged || flagChanged) && (
+              <tr data-changed={flagChanged ? "true" : "false"} className={flagChanged ? "bg-caution-50/50" : undefined}>
+                <th scope="row" className="py-1.5 pr-3 pl-10 text-left font-normal text-stone-600">
+                  Confounding check
+                </th>
+                <td className="px-3 py-1.5 text-right text-stone-600">{flag(c.flagged.base)}</td>
+                <td className={cx("px-3 py-1.5 text-right", flagChanged ? "font-semibold text-caution-700" : c.flagged.run ? "text-caution-700" : "text-stone-600")}>
+                  {flag(c.flagged.run)}
+                </td>
+              </tr>
+            )}
+          </Fragment>
+        );
+      })}
+    </tbody>
+  );
 }

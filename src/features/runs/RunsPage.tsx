@@ -2,11 +2,11 @@ import { useState } from "react";
 import { useNavigate, useSearchParams } from "react-router-dom";
 import { can } from "@shared/roles";
 import type { RunSummary } from "@shared/schemas/runs";
-import { Button, ButtonLink, buttonClasses } from "../../components/Button";
+import { Button, ButtonLink } from "../../components/Button";
 import { Card } from "../../components/Card";
 import { EmptyState } from "../../components/EmptyState";
 import { ErrorState } from "../../components/ErrorState";
-import { cx } from "../../components/focus";
+import { cx, focusRing } from "../../components/focus";
 import { LoadingState } from "../../components/LoadingState";
 import { FormError } from "../../components/Notice";
 import { PageHeader } from "../../components/PageHeader";
@@ -25,6 +25,8 @@ const STATUS: Record<RunSummary["status"], { label: string; dot: string }> = {
   succeeded: { label: "Finished", dot: "bg-accent-700" },
   failed: { label: "Failed", dot: "bg-red-600" },
 };
+
+const exportLink = cx("rounded font-medium text-accent-700 underline decoration-accent-200 underline-offset-2 hover:text-accent-900", focusRing);
 
 export const selectivityLink = (studyId: string, runId: string) => `${paths.study(studyId)}/selectivity?run=${encodeURIComponent(runId)}`;
 
@@ -224,7 +226,7 @@ function RunRow({ studyId, run, chosen, canRun, busy, onToggle, onRerun, onRetry
           className="mt-0.5 size-4 rounded border-stone-300 accent-accent-600"
         />
       </td>
-      <td className="px-3 py-3 align-top">
+      <td className="min-w-[14rem] px-3 py-3 align-top">
         <TextLink to={selectivityLink(studyId, run.id)}>{run.name}</TextLink>
         <p className="mt-0.5 text-xs text-stone-500">
           {boundaries.length === 1 ? boundaries[0] : pluralize(boundaries.length, "boundary", "boundaries")} · {pluralize(run.params.traits.length, "trait")}
@@ -265,26 +267,27 @@ function RunRow({ studyId, run, chosen, canRun, busy, onToggle, onRerun, onRetry
               {run.dataHashShort}
             </code>
             {run.rowCount !== null && <p className="text-xs text-stone-500">{formatCount(run.rowCount)} taxon rows</p>}
+            {run.status === "succeeded" && (
+              <p className="mt-1 text-xs">
+                <a href={exportUrl(studyId, run.id, "csv")} download className={exportLink} aria-label={`Download “${run.name}” as CSV`}>
+                  CSV
+                </a>
+                <span className="text-stone-400"> · </span>
+                <a href={exportUrl(studyId, run.id, "json")} download className={exportLink} aria-label={`Download “${run.name}” as JSON`}>
+                  JSON
+                </a>
+              </p>
+            )}
           </>
         ) : (
           <span className="text-stone-400">Not read yet</span>
         )}
       </td>
       <td className="px-3 py-3 text-right align-top">
-        <div className="flex flex-wrap justify-end gap-1.5">
+        <div className="flex justify-end gap-1.5 whitespace-nowrap">
           <ButtonLink to={selectivityLink(studyId, run.id)} variant="secondary" size="sm" aria-label={`Open “${run.name}”`}>
             Open
           </ButtonLink>
-          {run.status === "succeeded" && (
-            <>
-              <a href={exportUrl(studyId, run.id, "csv")} download className={buttonClasses("ghost", "sm")} aria-label={`Download “${run.name}” as CSV`}>
-                CSV
-              </a>
-              <a href={exportUrl(studyId, run.id, "json")} download className={buttonClasses("ghost", "sm")} aria-label={`Download “${run.name}” as JSON`}>
-                JSON
-              </a>
-            </>
-          )}
           {canRun && run.status === "failed" && (
             <Button size="sm" onClick={onRetry} busy={busy} aria-label={`Retry “${run.name}”`}>
               Retry

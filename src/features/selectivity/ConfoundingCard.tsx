@@ -5,7 +5,7 @@ import { Body, HeadRow, ResultTable, td, tdNum, th, thNum } from "./ResultTable"
 import { formatChange, formatEstimate, formatInterval, formatP, formatWholePercent, levelWords } from "./words";
 
 function OddsCell({ value, ci }: { value: number | undefined; ci: [number, number] | undefined }) {
-  if (value === undefined || !ci) return <td className={cx(tdNum, "text-stone-400")}>—</td>;
+  if (value === undefined || !ci) return <td className={cx(tdNum, "text-stone-500")}>—</td>;
   return (
     <td className={tdNum}>
       <span className="font-medium">{formatEstimate(value)}</span>
@@ -75,7 +75,7 @@ export function ConfoundingCard({ result, level, threshold }: { result: Selectiv
                   {trait.label}
                   {contrast.flagged && " "}
                   {contrast.flagged && (
-                    <span className="ml-1.5 inline-flex items-center rounded-full bg-caution-200/70 px-2 py-0.5 align-middle text-xs font-semibold text-caution-700">Flagged</span>
+                    <span className="ml-1.5 inline-flex items-center rounded-full bg-caution-200/50 px-2 py-0.5 align-middle text-xs font-semibold text-caution-700">Flagged</span>
                   )}
                   <span className="block text-xs font-normal text-stone-500">{contrastWords(trait, contrast)}</span>
                 </th>

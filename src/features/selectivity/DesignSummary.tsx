@@ -112,7 +112,7 @@ function BoundaryDesign({ design }: { design: RunPreview["boundaries"][number] }
                 <td className={tdNum}>{formatCount(t.survivorsUsed)}</td>
                 <td className={cx(tdNum, t.droppedMissing > 0 && "font-medium text-caution-700")}>{formatCount(t.droppedMissing)}</td>
                 <td className={cx(tdNum, t.droppedInvalid > 0 && "font-medium text-caution-700")}>{formatCount(t.droppedInvalid)}</td>
-                <td className={td}>{t.reference === null ? <span className="text-stone-400">—</span> : (t.states.find((s) => s.code === t.reference)?.label ?? t.reference)}</td>
+                <td className={td}>{t.reference === null ? <span className="text-stone-500">—</span> : (t.states.find((s) => s.code === t.reference)?.label ?? t.reference)}</td>
               </tr>
             ))}
           </Body>

@@ -1,6 +1,6 @@
 import { ResponsiveHeatMap, type HeatMapSvgProps } from "@nivo/heatmap";
+import { formatCompact } from "@shared/selectivity/formatNumber";
 import type { HeatRow } from "./resultRows";
-import { formatEstimate } from "./words";
 
 const FONT = '"Inter Tight", system-ui, sans-serif';
 /** Lower odds of extinction (teal), none (paper), higher odds (clay red): centred on a log odds ratio of 0. */
@@ -31,15 +31,16 @@ export function LogOddsHeatMap({ rows, title }: { rows: readonly HeatRow[]; titl
   const span = colourSpan(rows);
   const data = rows.map((row) => ({ id: truncate(row.label), data: row.cells.map((c) => ({ x: c.boundary, y: c.logOdds })) }));
   const columns = rows[0]?.cells.length ?? 0;
-  const height = Math.max(180, rows.length * ROW_HEIGHT + 150);
+  const tilted = columns > 3;
+  const height = Math.max(160, rows.length * ROW_HEIGHT + (tilted ? 160 : 110));
 
   return (
     <div style={{ height }} className="min-w-[36rem]" data-testid="log-odds-heat-map">
       <ResponsiveHeatMap<Cell, object>
         data={data}
-        margin={{ top: 96, right: 24, bottom: 54, left: 290 }}
+        margin={{ top: tilted ? 96 : 44, right: 24, bottom: 58, left: 290 }}
         valueFormat={(v: number) => (v > 0 ? `+${v.toFixed(2)}` : v.toFixed(2).replace("-", "−"))}
-        axisTop={{ tickSize: 4, tickPadding: 6, tickRotation: columns > 3 ? -25 : 0, format: (v: string) => (v.length > 30 ? `${v.slice(0, 29)}…` : v) }}
+        axisTop={{ tickSize: 4, tickPadding: 6, tickRotation: tilted ? -25 : 0, format: (v: string) => (v.length > 30 ? `${v.slice(0, 29)}…` : v) }}
         axisLeft={{ tickSize: 4, tickPadding: 6 }}
         colors={{ type: "diverging", colors: DIVERGING, minValue: -span, maxValue: span, divergeAt: 0.5 }}
         emptyColor="#e7e5e4"
@@ -54,14 +55,16 @@ export function LogOddsHeatMap({ rows, title }: { rows: readonly HeatRow[]; titl
             anchor: "bottom",
             translateX: 0,
             translateY: 34,
-            length: 260,
+            length: 320,
             thickness: 9,
             direction: "row",
             tickPosition: "after",
             tickSize: 3,
             tickSpacing: 4,
             tickOverlap: false,
-            tickFormat: (v: number) => `OR ${formatEstimate(Math.exp(v))}`,
+            // Five ticks, symmetric about 0, each read as the odds ratio it stands for.
+            ticks: [-span, -span / 2, 0, span / 2, span],
+            tickFormat: (v: number) => `OR ${formatCompact(Math.exp(v))}`,
             title: "ln odds ratio →",
             titleAlign: "start",
             titleOffset: 4,

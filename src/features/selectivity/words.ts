@@ -4,10 +4,10 @@ import { CORRECTION_LABELS, type RunParams } from "@shared/schemas/runs";
 import type { TraitKind } from "@shared/codebook";
 
 export const KIND_LABEL: Record<TraitKind, string> = {
-  binary: "Two states",
-  categorical: "Unordered states",
-  ordinal: "Ordered states",
-  numeric: "Number",
+  binary: "Binary",
+  categorical: "Categorical",
+  ordinal: "Ordinal",
+  numeric: "Numeric",
 };
 
 export const CORRECTION_SHORT: Record<RunParams["correction"], string> = {
