@@ -50,6 +50,17 @@ function isDatabaseDown(err: unknown): boolean {
   return false;
 }
 
+/** PostgreSQL's refusals of a NUL character: 22P05 in JSON (\u0000), 22021 in text. */
+const NUL_REFUSALS = new Set(["22P05", "22021"]);
+
+function isNulRefusal(err: unknown): boolean {
+  for (let e = err as { code?: string; message?: string; detail?: string; cause?: unknown } | null, depth = 0; e && depth < 5; depth++) {
+    if (e.code && NUL_REFUSALS.has(e.code) && /\\u0000|0x00/.test(`${e.message ?? ""} ${e.detail ?? ""}`)) return true;
+    e = e.cause as typeof e;
+  }
+  return false;
+}
+
 export const errorHandler: ErrorRequestHandler = (err, _req, res, _next) => {
   void _next;
   if (err instanceof HttpError) {
@@ -59,7 +70,13 @@ export const errorHandler: ErrorRequestHandler = (err, _req, res, _next) => {
   }
   if (err instanceof multer.MulterError) {
     const status = err.code === "LIMIT_FILE_SIZE" ? 413 : 400;
-    res.status(status).json({ error: { code: err.code.toLowerCase(), message: err.code === "LIMIT_FILE_SIZE" ? "The file is larger than the upload limit." : err.message } });
+    const message =
+      err.code === "LIMIT_FILE_SIZE"
+        ? "The file is larger than the upload limit."
+        : err.code === "LIMIT_UNEXPECTED_FILE" || err.code === "LIMIT_FILE_COUNT"
+          ? `Attach exactly one file, as the form field "file"${err.field && err.field !== "file" ? ` (a file came as "${err.field}")` : ""}.`
+          : err.message;
+    res.status(status).json({ error: { code: err.code.toLowerCase(), message } });
     return;
   }
   if ((err as { type?: string }).type === "entity.parse.failed") {
@@ -68,6 +85,11 @@ export const errorHandler: ErrorRequestHandler = (err, _req, res, _next) => {
   }
   if ((err as { type?: string }).type === "entity.too.large") {
     res.status(413).json({ error: { code: "too_large", message: "The request body is too large." } });
+    return;
+  }
+  if (isNulRefusal(err)) {
+    // The statement was refused as a whole, inside its transaction: nothing of it was written.
+    res.status(400).json({ error: { code: "nul_character", message: "The text holds a NUL character (U+0000), which cannot be stored. Remove it and try again." } });
     return;
   }
   if (isDatabaseDown(err)) {

@@ -14,6 +14,7 @@ import { alias } from "drizzle-orm/pg-core";
 import type { Database } from "../db";
 import { codingDecisions, imports, studies, users } from "../../db/schema/index";
 import { parseCsv, type CsvDelimiter, type ParsedCsv } from "../../shared/csv/parse";
+import { csvTextProblem } from "../../shared/csv/textCheck";
 import { mappingProblems, mappingToRemember, suggestMapping, type RememberedMapping } from "../../shared/csv/mapping";
 import { validateImportRows, type ImportRowChanges, type ImportValidation } from "../../shared/csv/validate";
 import { sameValue } from "../../shared/csv/values";
@@ -244,7 +245,10 @@ export function createImportService(db: Database) {
   return {
     async upload(studyId: string, user: { id: string }, file: { originalname: string; buffer: Buffer; size: number }, uploadDir: string): Promise<ImportUpload> {
       if (file.size > IMPORT_MAX_BYTES) throw new HttpError(413, "too_large", "The file is larger than the upload limit of 50 MB.");
-      const parsed = parseCsv(new Uint8Array(file.buffer.buffer, file.buffer.byteOffset, file.buffer.byteLength));
+      const bytes = new Uint8Array(file.buffer.buffer, file.buffer.byteOffset, file.buffer.byteLength);
+      const notText = csvTextProblem(bytes);
+      if (notText) throw new HttpError(415, "not_csv_text", notText, { file: notText });
+      const parsed = parseCsv(bytes);
       if (parsed.header.length === 0) throw badRequest("The file is empty: it needs a header row and at least one row of data.", { file: "The file is empty" });
       if (parsed.rows.length === 0) throw badRequest("The file has a header row but no data rows.", { file: "No data rows" });
       await sweepStaleUploads();
@@ -261,7 +265,11 @@ export function createImportService(db: Database) {
       const [row] = await db
         .insert(imports)
         .values({ studyId, target: "taxa", fileName, storedPath, status: "previewed", mapping: info as never, rowCount: parsed.rows.length, createdBy: user.id })
-        .returning({ id: imports.id });
+        .returning({ id: imports.id })
+        .catch(async (err: unknown) => {
+          await rm(storedPath, { force: true }); // no file is kept without its import row
+          throw err;
+        });
       return {
         import: await summary(studyId, row.id),
         columns: parsed.header,

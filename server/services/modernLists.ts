@@ -9,6 +9,7 @@ import { and, count, desc, eq, inArray, sql } from "drizzle-orm";
 import type { Database, DbOrTx } from "../db";
 import { activity, comparisons, imports, modernLists, modernSpecies, users } from "../../db/schema/index";
 import { parseCsv, type CsvDelimiter, type ParsedCsv } from "../../shared/csv/parse";
+import { csvTextProblem } from "../../shared/csv/textCheck";
 import {
   crosswalkCoverage,
   crosswalkProblems,
@@ -233,7 +234,10 @@ export function createModernListService(db: Database) {
   return {
     async upload(studyId: string, user: { id: string }, file: { originalname: string; buffer: Buffer; size: number }, uploadDir: string): Promise<ModernListUpload> {
       if (file.size > MODERN_LIST_MAX_BYTES) throw new HttpError(413, "too_large", `The file is larger than the upload limit of ${MODERN_LIST_MAX_LABEL}.`);
-      const parsed = parseCsv(new Uint8Array(file.buffer.buffer, file.buffer.byteOffset, file.buffer.byteLength));
+      const bytes = new Uint8Array(file.buffer.buffer, file.buffer.byteOffset, file.buffer.byteLength);
+      const notText = csvTextProblem(bytes);
+      if (notText) throw new HttpError(415, "not_csv_text", notText, { file: notText });
+      const parsed = parseCsv(bytes);
       if (parsed.header.length === 0) throw badRequest("The file is empty: it needs a header row and at least one species.", { file: "The file is empty" });
       if (parsed.rows.length === 0) throw badRequest("The file has a header row but no species rows.", { file: "No data rows" });
       await mkdir(uploadDir, { recursive: true, mode: 0o700 });
