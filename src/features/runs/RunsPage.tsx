@@ -136,7 +136,7 @@ export function RunsPage() {
 
           <Card>
             <div className="-mx-5 -my-5 overflow-x-auto sm:-mx-6">
-              <table className="w-full min-w-[52rem] text-sm">
+              <table className="w-full min-w-[46rem] text-sm">
                 <caption className="sr-only">Selectivity runs of the study, newest first</caption>
                 <thead className="border-b border-stone-200 bg-stone-50 text-left text-xs font-semibold tracking-wide text-stone-500 uppercase">
                   <tr>
@@ -283,7 +283,7 @@ function RunRow({ studyId, run, chosen, canRun, busy, onToggle, onRerun, onRetry
           <span className="text-stone-400">Not read yet</span>
         )}
       </td>
-      <td className="px-3 py-3 text-right align-top">
+      <td className="py-3 pr-4 pl-3 text-right align-top">
         <div className="flex justify-end gap-1.5 whitespace-nowrap">
           <ButtonLink to={selectivityLink(studyId, run.id)} variant="secondary" size="sm" aria-label={`Open “${run.name}”`}>
             Open

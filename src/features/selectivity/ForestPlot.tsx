@@ -62,8 +62,12 @@ export function logDomain(rows: readonly ForestRow[]): { low: number; high: numb
   const low = [...ALL_TICKS].reverse().find((t) => t <= min * 1.0000001) ?? ALL_TICKS[0];
   const high = ALL_TICKS.find((t) => t >= max / 1.0000001) ?? ALL_TICKS[ALL_TICKS.length - 1];
   let ticks = ALL_TICKS.filter((t) => t >= low && t <= high);
-  // Over a wide span, powers of ten only (and 1-2-5 would crowd the axis).
-  if (ticks.length > 9) ticks = ticks.filter((t) => Number.isInteger(Math.log10(t)) || t === low || t === high);
+  // Over a wide span, powers of ten only (1-2-5 would crowd the axis), plus the ends where they have room.
+  if (ticks.length > 9) {
+    const decades = ticks.filter((t) => Number.isInteger(Math.log10(t)));
+    const roomy = (t: number) => decades.every((d) => Math.abs(Math.log10(t) - Math.log10(d)) >= 0.45);
+    ticks = [...(roomy(low) ? [low] : []), ...decades, ...(roomy(high) ? [high] : [])];
+  }
   return { low, high, ticks };
 }
 

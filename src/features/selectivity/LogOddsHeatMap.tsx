@@ -38,7 +38,8 @@ export function LogOddsHeatMap({ rows, title }: { rows: readonly HeatRow[]; titl
     <div style={{ height }} className="min-w-[36rem]" data-testid="log-odds-heat-map">
       <ResponsiveHeatMap<Cell, object>
         data={data}
-        margin={{ top: tilted ? 96 : 44, right: 24, bottom: 58, left: 290 }}
+        // Tilted column names lean to the right of their column: room for them there.
+        margin={{ top: tilted ? 110 : 44, right: tilted ? 150 : 24, bottom: 58, left: 290 }}
         valueFormat={(v: number) => (v > 0 ? `+${v.toFixed(2)}` : v.toFixed(2).replace("-", "−"))}
         axisTop={{ tickSize: 4, tickPadding: 6, tickRotation: tilted ? -25 : 0, format: (v: string) => (v.length > 30 ? `${v.slice(0, 29)}…` : v) }}
         axisLeft={{ tickSize: 4, tickPadding: 6 }}

@@ -97,7 +97,7 @@ function ReportBody({ run }: { run: Run & { results: RunResults } }) {
         <h2 id="report-cautions" className="mb-4 text-xl font-semibold tracking-tight text-stone-900">
           Cautions
         </h2>
-        <RunCautions results={run.results} />
+        <RunCautions results={run.results} printable />
       </section>
 
       {run.results.boundaries.length > 1 && <HeatMapCard boundaries={run.results.boundaries} filePrefix={prefix} printable />}

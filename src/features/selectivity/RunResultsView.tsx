@@ -14,19 +14,34 @@ export function runFilePrefix(run: Run): string {
   return `${fileSlug(run.name)}_${run.createdAt.slice(0, 10)}`;
 }
 
+/** Above this many warnings about the outcomes, the list folds (its count stays in view). */
+const FOLD_WARNINGS_ABOVE = 3;
+
 /** The run's cautions: the standing one first, then the warnings about the outcomes it read. */
-export function RunCautions({ results }: { results: RunResults }) {
+export function RunCautions({ results, printable = false }: { results: RunResults; printable?: boolean }) {
   const [first, ...rest] = results.cautions;
+  const list = (
+    <ul className="list-disc space-y-1 pl-5">
+      {rest.map((caution) => (
+        <li key={caution}>{caution}</li>
+      ))}
+    </ul>
+  );
   return (
     <div className="space-y-3 break-inside-avoid" data-testid="run-cautions">
       <Caution title="Association, not mechanism">{first}</Caution>
       {rest.length > 0 && (
         <Caution title="What the outcomes rest on">
-          <ul className="list-disc space-y-1 pl-5">
-            {rest.map((caution) => (
-              <li key={caution}>{caution}</li>
-            ))}
-          </ul>
+          {rest.length > FOLD_WARNINGS_ABOVE ? (
+            <details open={printable || undefined}>
+              <summary className="cursor-pointer font-medium text-caution-700">
+                {rest.length} warnings about the survivors and victims these results count: how many taxa each touches
+              </summary>
+              <div className="mt-2">{list}</div>
+            </details>
+          ) : (
+            list
+          )}
         </Caution>
       )}
     </div>
