@@ -153,7 +153,7 @@ describe("boundary screen", () => {
 
       // Vessirella brevis ranges into the Turonian only through reworked shells: set it a victim, with a reason.
       await page.getByRole("tab", { name: /Survivors/ }).click();
-      await page.getByRole("button", { name: "Set the outcome of Vessirella brevis" }).click();
+      await page.getByRole("button", { name: "Set outcome of Vessirella brevis" }).click();
       const dialog = page.getByRole("dialog", { name: "Set the outcome of Vessirella brevis" });
       await dialog.getByLabel(/^Victim/).check();
       await dialog.getByRole("button", { name: "Set outcome" }).click();

@@ -47,9 +47,9 @@ function spanAround(scale: ScaleIndex, boundary: number, window: number | null):
   return { older: older + pad, younger: Math.max(0, younger - pad) };
 }
 
+/** The last word of a unit's name ("Late Cretaceous" -> "Cretaceous"): narrow cells show as much of it as fits. */
 function shortLabel(label: string): string {
-  const word = label.split(" ").pop() ?? label;
-  return word.length > 5 ? `${word.slice(0, 4)}.` : word;
+  return label.split(" ").pop() ?? label;
 }
 
 /**
@@ -118,7 +118,7 @@ export function BoundaryStrip({ scale, boundary, window, chosenUnit, onPick }: B
                       )}
                       style={{ left: `${left}%`, width: `${span}%` }}
                     >
-                      {span >= MIN_LABEL_PERCENT ? <span className="block truncate">{name}</span> : span >= MIN_SHORT_LABEL_PERCENT ? shortLabel(unit.label) : null}
+                      {span >= MIN_LABEL_PERCENT ? <span className="block truncate">{name}</span> : span >= MIN_SHORT_LABEL_PERCENT ? <span className="block truncate">{shortLabel(unit.label)}</span> : null}
                     </button>
                   );
                 })}

@@ -158,8 +158,8 @@ function TaxonTable({
                 )}
                 {taxon.rangeProblem && <p className="mt-1 text-sm text-caution-700">{taxon.rangeProblem}</p>}
               </td>
-              <td className="px-3 py-2.5 text-right tabular-nums">{taxon.fad === null ? <span className="text-stone-400">—</span> : formatAgeNumber(taxon.fad)}</td>
-              <td className="px-3 py-2.5 text-right tabular-nums">{taxon.lad === null ? <span className="text-stone-400">—</span> : formatAgeNumber(taxon.lad)}</td>
+              <td className="px-3 py-2.5 text-right tabular-nums">{taxon.fad === null ? <span className="text-stone-500">—</span> : formatAgeNumber(taxon.fad)}</td>
+              <td className="px-3 py-2.5 text-right tabular-nums">{taxon.lad === null ? <span className="text-stone-500">—</span> : formatAgeNumber(taxon.lad)}</td>
               <td className="px-3 py-2.5">
                 <OutcomeBadge outcome={taxon.outcome} />
                 {taxon.override && (
@@ -176,7 +176,7 @@ function TaxonTable({
               {canOverride && (
                 <td className="py-2.5 pr-5 pl-3 sm:pr-6">
                   <div className="flex flex-col items-end gap-1">
-                    <Button variant="secondary" size="sm" onClick={() => onSetOutcome(taxon)} aria-label={`Set the outcome of ${taxon.name}`}>
+                    <Button variant="secondary" size="sm" onClick={() => onSetOutcome(taxon)} aria-label={`Set outcome of ${taxon.name}`}>
                       Set outcome…
                     </Button>
                     {taxon.override && (

@@ -31,7 +31,7 @@ export function OutcomeSummary({ result, refreshing }: { result: OutcomesResult;
           <div key={group} className={cx("rounded-lg border px-4 py-3", TILE_TONE[group])}>
             <dt className="text-sm font-medium">{OUTCOME_GROUP_LABEL[group]}</dt>
             <dd className="mt-1 text-3xl font-semibold tracking-tight tabular-nums">{formatCount(counts[group])}</dd>
-            <p className="text-sm opacity-80">{TILE_NOTE[group]}</p>
+            <dd className="text-sm opacity-80">{TILE_NOTE[group]}</dd>
           </div>
         ))}
       </dl>
@@ -83,7 +83,7 @@ function IntervalBar({ value, low, high }: { value: number; low: number; high: n
         <div className="absolute inset-y-0 rounded-full bg-red-200" style={{ left: pct(low), width: `calc(${pct(high)} - ${pct(low)})` }} />
         <div className="absolute -top-1 -bottom-1 w-1 -translate-x-1/2 rounded-full bg-red-700" style={{ left: pct(value) }} />
       </div>
-      <div className="mt-1 flex justify-between text-xs text-stone-400 tabular-nums">
+      <div className="mt-1 flex justify-between text-xs text-stone-500 tabular-nums">
         <span>0%</span>
         <span>50%</span>
         <span>100%</span>

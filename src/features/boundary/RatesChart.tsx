@@ -135,7 +135,6 @@ function RatesBody({ data, boundary, measure, onMeasure }: { data: RatesResult; 
           role="img"
           ariaLabel={`${measureInfo.label} per stage, ${stages[0].label} to ${stages[stages.length - 1].label}${crisis ? `; boundary at ${formatMa(boundary!)}, closing the ${crisis.label}` : ""}`}
           ariaDescribedBy={helpId}
-          barAriaLabel={(d) => `${d.indexValue}: ${formatValue(measure, d.value ?? 0)}`}
         />
       </div>
 
