@@ -100,8 +100,8 @@ export function MentionComposer({ label, value, onChange, members, error, hint, 
             aria-describedby={describedBy}
             aria-invalid={invalid || undefined}
             aria-autocomplete="list"
+            // A text area is a textbox, which takes no aria-expanded; the open list is named by aria-controls.
             aria-controls={open ? listId : undefined}
-            aria-expanded={open}
             aria-activedescendant={open ? `${listId}-${activeIndex}` : undefined}
             onChange={(event) => {
               onChange(event.target.value);

@@ -58,7 +58,7 @@ export function TraitSummary({ trait, actions }: { trait: Trait; actions?: React
         <ol className="mt-3 flex flex-wrap gap-1.5" aria-label={`States of ${trait.label}`}>
           {states.map((s, i) => (
             <li key={s.code} className="inline-flex items-baseline gap-1.5 rounded-md border border-stone-200 bg-stone-50 px-2 py-0.5 text-sm">
-              {trait.kind === "ordinal" && <span className="text-xs text-stone-400 tabular-nums">{i + 1}</span>}
+              {trait.kind === "ordinal" && <span className="text-xs text-stone-500 tabular-nums">{i + 1}</span>}
               <span className="font-mono text-stone-600">{s.code}</span>
               <span className="text-stone-900">{s.label}</span>
             </li>

@@ -215,8 +215,8 @@ function ImportDecisions({ studyId, importId, traits }: { studyId: string; impor
                 <tr key={d.id} className={cx(d.revertedById && "text-stone-400 line-through")}>
                   <td className="px-3 py-1.5 italic">{d.taxonName ?? "—"}</td>
                   <td className="px-3 py-1.5">{fieldLabel(d.field, d.traitId, traits, d.traitKey)}</td>
-                  <td className="px-3 py-1.5">{formatImportValue(d.oldValue, trait) ?? <span className="text-stone-400">missing</span>}</td>
-                  <td className="px-3 py-1.5">{formatImportValue(d.newValue, trait) ?? <span className="text-stone-400">missing</span>}</td>
+                  <td className="px-3 py-1.5">{formatImportValue(d.oldValue, trait) ?? <span className="text-stone-500">missing</span>}</td>
+                  <td className="px-3 py-1.5">{formatImportValue(d.newValue, trait) ?? <span className="text-stone-500">missing</span>}</td>
                 </tr>
               );
             })}

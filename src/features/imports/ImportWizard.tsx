@@ -34,7 +34,7 @@ function StepList({ current }: { current: Stage["step"] }) {
           aria-current={i === index ? "step" : undefined}
           className={cx(
             "flex items-center gap-2 rounded-full px-3 py-1 ring-1",
-            i === index ? "bg-accent-50 font-semibold text-accent-900 ring-accent-200" : i < index ? "text-stone-700 ring-stone-200" : "text-stone-400 ring-stone-200",
+            i === index ? "bg-accent-50 font-semibold text-accent-900 ring-accent-200" : i < index ? "text-stone-700 ring-stone-200" : "text-stone-500 ring-stone-200",
           )}
         >
           <span className="tabular-nums">{i + 1}</span> {s.label}

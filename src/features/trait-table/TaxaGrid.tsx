@@ -103,7 +103,7 @@ export interface TaxaGridProps {
 
 function MissingMark() {
   return (
-    <span className="text-stone-400" title="No value recorded">
+    <span className="text-stone-500" title="No value recorded">
       <span aria-hidden="true">—</span>
       <span className="sr-only">missing</span>
     </span>
@@ -341,7 +341,7 @@ export function TaxaGrid(props: TaxaGridProps) {
                       className="flex min-w-0 flex-1 items-center gap-1 rounded text-left hover:text-stone-950 focus-visible:ring-2 focus-visible:ring-accent-500 focus-visible:outline-none"
                     >
                       <span className="truncate">{gc?.label}</span>
-                      {gc?.kind === "trait" && gc.trait.kind === "numeric" && gc.trait.unit && <span className="font-normal text-stone-500">({gc.trait.unit})</span>}
+                      {gc?.kind === "trait" && gc.trait.kind === "numeric" && gc.trait.unit && <span className="font-normal text-stone-600">({gc.trait.unit})</span>}
                       {gc?.kind === "trait" && openTraitThreads?.has(gc.id) && <ThreadDot label={`Open thread about the trait ${gc.label}`} />}
                       <span aria-hidden="true" className={cx("ml-auto text-xs", sorted ? "text-accent-700" : "text-stone-300")}>
                         {sorted === "desc" ? "▼" : "▲"}

@@ -165,7 +165,7 @@ export function TraitTablePage() {
           <div className="flex flex-wrap items-center justify-between gap-3">
             <p className="text-sm text-stone-600 tabular-nums" aria-live="polite">
               {page.data ? (total === 0 ? "No taxa" : `Taxa ${formatCount(firstShown)}–${formatCount(lastShown)} of ${formatCount(total)}`) : "\u00a0"}
-              {page.isFetching && page.data && <span className="ml-2 text-stone-400">Updating…</span>}
+              {page.isFetching && page.data && <span className="ml-2 text-stone-500">Updating…</span>}
             </p>
             <div className="flex flex-wrap items-center gap-2">
               {selectedIds.length > 0 && (
