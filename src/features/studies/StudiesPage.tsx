@@ -60,7 +60,7 @@ function StudyCard({ study }: { study: Study }) {
         <h2 className="text-base font-semibold tracking-tight text-stone-900 group-hover:text-accent-800">{study.name}</h2>
         <RoleBadge role={study.role} className="shrink-0" />
       </div>
-      <p className={cx("mt-2 line-clamp-3 flex-1 text-[15px]", study.description ? "text-stone-600" : "text-stone-400 italic")}>
+      <p className={cx("mt-2 line-clamp-3 flex-1 text-[15px]", study.description ? "text-stone-600" : "text-stone-500 italic")}>
         {study.description || "No description yet."}
       </p>
       <p className="mt-4 flex flex-wrap gap-x-4 gap-y-1 text-sm text-stone-500 tabular-nums">
