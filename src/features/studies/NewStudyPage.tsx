@@ -1,4 +1,4 @@
-import { useNavigate } from "react-router-dom";
+import { useNavigate, useSearchParams } from "react-router-dom";
 import { studyCreateSchema } from "@shared/schemas/studies";
 import { Button, ButtonLink } from "../../components/Button";
 import { Card } from "../../components/Card";
@@ -10,10 +10,13 @@ import { formLevelMessage, useZodForm } from "../../lib/forms";
 import { paths } from "../../lib/paths";
 import { useDocumentTitle } from "../../lib/useDocumentTitle";
 import { useCreateStudy } from "./api";
+import { FIRST_STEP_SCREENS, firstStepFrom, pathAfterCreation } from "./newStudySteps";
 
 export function NewStudyPage() {
   useDocumentTitle("New study");
   const navigate = useNavigate();
+  const [params] = useSearchParams();
+  const then = firstStepFrom(params.get("then"));
   const toast = useToast();
   const create = useCreateStudy();
   const form = useZodForm(studyCreateSchema, { name: "", description: "" });
@@ -22,7 +25,7 @@ export function NewStudyPage() {
     create.mutate(input, {
       onSuccess: (study) => {
         toast.show(`Study “${study.name}” created. You are its study lead.`);
-        navigate(paths.study(study.id));
+        navigate(pathAfterCreation(study.id, then));
       },
       onError: form.showServerErrors,
     }),
@@ -30,7 +33,14 @@ export function NewStudyPage() {
 
   return (
     <div className="max-w-2xl">
-      <PageHeader title="New study" description="You become the study lead: you invite the team and give each person a role." />
+      <PageHeader
+        title="New study"
+        description={
+          then
+            ? `You become the study lead: you invite the team and give each person a role. Once it is created, the study opens on its ${FIRST_STEP_SCREENS[then].name} screen.`
+            : "You become the study lead: you invite the team and give each person a role."
+        }
+      />
       <Card>
         <FormError message={formLevelMessage(create.error)} className="mb-5" />
         <form noValidate onSubmit={submit} className="space-y-5">

@@ -1,22 +1,68 @@
-import { Link } from "react-router-dom";
+import { useEffect, type ReactNode } from "react";
+import { Link, NavigationType, useNavigate, useNavigationType } from "react-router-dom";
+import { SUGGESTED_CODEBOOK } from "@shared/codebook";
 import type { Study } from "@shared/schemas/studies";
-import { ButtonLink } from "../../components/Button";
-import { EmptyState } from "../../components/EmptyState";
+import { Button, ButtonLink } from "../../components/Button";
 import { ErrorState } from "../../components/ErrorState";
 import { cx, focusRing } from "../../components/focus";
 import { LoadingState } from "../../components/LoadingState";
 import { PageHeader } from "../../components/PageHeader";
 import { RoleBadge } from "../../components/RoleBadge";
+import { textLinkClasses } from "../../components/TextLink";
 import { formatDate, pluralize } from "../../lib/format";
 import { paths } from "../../lib/paths";
+import { useMe } from "../../lib/session";
 import { useDocumentTitle } from "../../lib/useDocumentTitle";
 import { useStudies } from "./api";
+import { newStudyThen } from "./newStudySteps";
+import { downloadSuggestedTaxaTemplate, TAXA_TEMPLATE_FILE_NAME } from "./taxaTemplate";
+
+/** sessionStorage key: set once this person has seen the studies list (or been taken to their only study) in this browser session. */
+const listSeenKey = (userId: string) => `stratasieve:studies-list-seen:${userId}`;
+
+function listSeen(userId: string): boolean {
+  try {
+    return window.sessionStorage.getItem(listSeenKey(userId)) !== null;
+  } catch {
+    return true; // storage refused: never redirect, the list always shows
+  }
+}
+
+function markListSeen(userId: string): void {
+  try {
+    window.sessionStorage.setItem(listSeenKey(userId), "1");
+  } catch {
+    // Nothing to remember without storage; listSeen then answers true.
+  }
+}
+
+/**
+ * A person with exactly one study (a demo account on first start, someone just invited) goes straight
+ * to it when the studies list is where they arrive (after signing in, or opening the address) for
+ * the first time in this browser session. A link to the list (All studies) always shows the list.
+ */
+function useOpenOnlyStudyOnce(studies: Study[] | undefined): boolean {
+  const me = useMe();
+  const navigate = useNavigate();
+  const arrivedByLink = useNavigationType() === NavigationType.Push;
+  const userId = me.data?.user.id;
+  const only = studies?.length === 1 ? studies[0] : null;
+  const opening = Boolean(only && userId && !arrivedByLink && !listSeen(userId));
+  useEffect(() => {
+    if (!userId || !studies) return;
+    markListSeen(userId);
+    if (opening && only) navigate(paths.study(only.id), { replace: true });
+  }, [opening, only, studies, userId, navigate]);
+  return opening;
+}
 
 /** Home: the studies the person leads or belongs to. */
 export function StudiesPage() {
   useDocumentTitle("Studies");
   const studies = useStudies();
   const hasStudies = (studies.data?.length ?? 0) > 0;
+  const opening = useOpenOnlyStudyOnce(studies.data);
+  if (opening) return <LoadingState label="Opening your study" lines={0} />;
 
   return (
     <>
@@ -72,22 +118,90 @@ function StudyCard({ study }: { study: Study }) {
 }
 
 function NoStudiesYet() {
+  const traitNames = SUGGESTED_CODEBOOK.map((t) => t.label.toLowerCase()).join(", ");
   return (
-    <EmptyState
-      illustration={<SieveDrawing />}
-      title="No studies yet"
-      description={
-        <>
-          <p>Start a study for your question: which traits set the victims of a crisis apart from the survivors.</p>
+    <section aria-labelledby="no-studies-title" className="rounded-xl border border-dashed border-stone-300 bg-white/60 px-6 py-10">
+      <div className="flex flex-col items-center text-center">
+        <div className="mb-5 text-accent-600">
+          <SieveDrawing />
+        </div>
+        <h2 id="no-studies-title" className="text-lg font-semibold tracking-tight text-stone-900">
+          No studies yet
+        </h2>
+        <div className="mt-2 max-w-xl text-[15px] text-stone-600">
+          <p>Start a study for your question: which traits set the victims of a crisis apart from the survivors. Three steps get it going.</p>
           <p className="mt-2">Joining a colleague’s study? Open the invitation link from your e-mail.</p>
-        </>
-      }
-      action={
-        <ButtonLink to={paths.newStudy} icon={<PlusIcon />}>
-          Create your first study
-        </ButtonLink>
-      }
-    />
+        </div>
+      </div>
+      <ol className="mx-auto mt-8 grid max-w-5xl gap-4 md:grid-cols-3">
+        <FirstStep
+          number={1}
+          title="Define the codebook"
+          action={
+            <ButtonLink to={paths.newStudy} icon={<PlusIcon />}>
+              Create your first study
+            </ButtonLink>
+          }
+        >
+          A study starts from five suggested traits ({traitNames}), each with a coding rule. Change them, add your own states or traits, or retire the ones you do not need.
+        </FirstStep>
+        <FirstStep
+          number={2}
+          title="Import taxa"
+          action={
+            <>
+              <Button variant="secondary" onClick={downloadSuggestedTaxaTemplate} icon={<DownloadIcon />}>
+                Download the CSV template
+              </Button>
+              <Link to={newStudyThen("imports")} className={cx(textLinkClasses, "text-sm")}>
+                Create a study and import
+              </Link>
+            </>
+          }
+        >
+          One row per taxon: name, higher taxon, first and last appearance (ages in Ma or stage names) and a column per trait. The template ({TAXA_TEMPLATE_FILE_NAME}) has the
+          columns the import recognises.
+        </FirstStep>
+        <FirstStep
+          number={3}
+          title="Pick a boundary"
+          action={
+            <ButtonLink to={newStudyThen("boundary")} variant="secondary">
+              Create a study and pick a boundary
+            </ButtonLink>
+          }
+        >
+          Choose a boundary of the geologic time scale and a window below it: every taxon becomes a survivor, a victim or not at risk, ready for the selectivity tests.
+        </FirstStep>
+      </ol>
+    </section>
+  );
+}
+
+function FirstStep({ number, title, action, children }: { number: number; title: string; action: ReactNode; children: ReactNode }) {
+  return (
+    <li className="flex flex-col rounded-xl border border-stone-200 bg-white p-5 text-left shadow-[0_1px_2px_rgb(28_25_23/0.04)]">
+      <div className="flex items-center gap-3">
+        <span aria-hidden="true" className="flex size-7 shrink-0 items-center justify-center rounded-full bg-accent-100 text-sm font-semibold text-accent-900 tabular-nums">
+          {number}
+        </span>
+        <h3 className="text-base font-semibold tracking-tight text-stone-900">
+          <span className="sr-only">Step {number}: </span>
+          {title}
+        </h3>
+      </div>
+      <p className="mt-3 flex-1 text-[15px] text-stone-600">{children}</p>
+      <div className="mt-5 flex flex-wrap items-center gap-x-4 gap-y-3">{action}</div>
+    </li>
+  );
+}
+
+function DownloadIcon() {
+  return (
+    <svg className="size-4" viewBox="0 0 20 20" fill="currentColor" aria-hidden="true">
+      <path d="M10.75 2.75a.75.75 0 0 0-1.5 0v8.69L6.53 8.72a.75.75 0 0 0-1.06 1.06l4 4a.75.75 0 0 0 1.06 0l4-4a.75.75 0 1 0-1.06-1.06l-2.72 2.72V2.75Z" />
+      <path d="M3.5 12.75a.75.75 0 0 0-1.5 0v2.5A2.75 2.75 0 0 0 4.75 18h10.5A2.75 2.75 0 0 0 18 15.25v-2.5a.75.75 0 0 0-1.5 0v2.5c0 .69-.56 1.25-1.25 1.25H4.75c-.69 0-1.25-.56-1.25-1.25v-2.5Z" />
+    </svg>
   );
 }
 

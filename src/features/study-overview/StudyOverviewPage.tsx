@@ -19,6 +19,7 @@ import { paths } from "../../lib/paths";
 import { useDocumentTitle } from "../../lib/useDocumentTitle";
 import { ActivityFeed } from "./ActivityFeed";
 import { useDeleteStudy, useUpdateStudy } from "./api";
+import { FirstSteps } from "./FirstSteps";
 import { MentionEmailsCard } from "./MentionEmailsCard";
 
 export function StudyOverviewPage() {
@@ -32,6 +33,7 @@ export function StudyOverviewPage() {
       <PageHeader eyebrow="Study overview" title={study.name} />
       <div className="grid gap-6 xl:grid-cols-[minmax(0,1fr)_18rem]">
         <div className="min-w-0 space-y-6">
+          <FirstSteps study={study} />
           <Card title="About this study">
             {study.description ? (
               <p className="max-w-prose text-[15px] whitespace-pre-line text-stone-700">{study.description}</p>

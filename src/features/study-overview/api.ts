@@ -2,6 +2,8 @@ import { keepPreviousData, useMutation, useQuery, useQueryClient } from "@tansta
 import type { ActivityList } from "@shared/schemas/activity";
 import type { NotificationPreference, NotificationPreferenceList, NotificationPreferenceUpdateInput } from "@shared/schemas/notifications";
 import type { Study, StudyUpdateInput } from "@shared/schemas/studies";
+import type { TaxaPage } from "@shared/schemas/taxa";
+import type { TraitList } from "@shared/schemas/traits";
 import { api } from "../../lib/api";
 import { queryKeys } from "../../lib/queryKeys";
 
@@ -60,3 +62,24 @@ export function useSetMentionPreference(studyId: string) {
       ),
   });
 }
+
+/** GET /api/studies/:studyId/traits: the codebook, for the first steps of a new study. */
+export function useCodebook(studyId: string) {
+  return useQuery({
+    queryKey: queryKeys.traits.list(studyId),
+    queryFn: ({ signal }) => api.get<TraitList>(`/studies/${encodeURIComponent(studyId)}/traits`, signal),
+  });
+}
+
+/** GET /api/studies/:studyId/taxa?page=1&pageSize=1: only the total, to tell whether the study has taxa yet. */
+export function useTaxaTotal(studyId: string) {
+  const query = "page=1&pageSize=1";
+  return useQuery({
+    queryKey: queryKeys.taxa.page(studyId, query),
+    queryFn: ({ signal }) => api.get<TaxaPage>(`/studies/${encodeURIComponent(studyId)}/taxa?${query}`, signal),
+    select: (page) => page.total,
+  });
+}
+
+/** GET /api/studies/:studyId/exports/template.csv: the study's import template (a plain download link). */
+export const templateCsvUrl = (studyId: string) => `/api/studies/${encodeURIComponent(studyId)}/exports/template.csv`;
