@@ -126,9 +126,10 @@ describe("the demo tour", () => {
         [expected.survivors, expected.victims, expected.notAtRisk].map(count).join(","),
       );
       expect(await page.getByTestId("proportional-extinction").innerText()).toContain(`${count(expected.victims)} of ${count(expected.victims + expected.survivors)} taxa at risk`);
-      // The two genera with a reworked Turonian record count as survivors until someone overrides them.
       await page.getByRole("note").filter({ hasText: "not proof of a kill mechanism" }).waitFor();
-      await page.evaluate(() => window.scrollTo(0, 0));
+      // The picture starts at the outcomes, under the sticky top bar.
+      await page.getByRole("region", { name: "Outcomes across the boundary" }).evaluate((el) => el.scrollIntoView({ block: "start" }));
+      await page.evaluate(() => window.scrollBy(0, -90));
       await tourPicture(page, "boundary-turonian");
 
       // The Runs list holds the two invented demo runs; the crisis run opens on the Selectivity screen.
