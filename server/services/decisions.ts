@@ -341,7 +341,7 @@ export function createDecisionService(db: Database) {
         const rows = await revertable(tx, studyId, eq(codingDecisions.batchId, batchId));
         if (rows.length === 0) throw notFound("No coding decisions of this study carry this batch id.");
         const result = await revertDecisions(tx, studyId, rows, { userId: user.id, reason, skipChanged: false, skipUndone: true });
-        await recordActivity(tx, { studyId, userId: user.id, kind: "bulk_revert", summary: `Reverted ${result.reverted} decisions of one edit: ${reason}`, refType: "batch", refId: result.batchId });
+        await recordActivity(tx, { studyId, userId: user.id, kind: "bulk.reverted", summary: `Reverted ${result.reverted} decisions of one edit: ${reason}`, refType: "batch", refId: result.batchId });
         return result;
       });
     },

@@ -443,7 +443,7 @@ export function createImportService(db: Database) {
           await recordActivity(tx, {
             studyId,
             userId: user.id,
-            kind: "import_committed",
+            kind: "import.committed",
             summary: `Imported ${row.fileName}: ${created.length} taxa added, ${updated.length} changed${checked.invalidRowCount ? `, ${checked.invalidRowCount} invalid rows skipped` : ""}`,
             refType: "import",
             refId: importId,
@@ -480,7 +480,7 @@ export function createImportService(db: Database) {
         await recordActivity(tx, {
           studyId,
           userId: user.id,
-          kind: "import_reverted",
+          kind: "import.reverted",
           summary: `Reverted the import of ${current.file_name}: ${result.reverted} decisions undone${result.skipped ? `, ${result.skipped} left as they are` : ""}`,
           refType: "import",
           refId: importId,

@@ -410,7 +410,7 @@ export function createTaxonService(db: Database) {
         await recordActivity(tx, {
           studyId,
           userId: user.id,
-          kind: "bulk_edit",
+          kind: "bulk.edited",
           summary: `Set ${what} to ${shown} on ${changed.length} taxa: ${input.reason}`,
           refType: "batch",
           refId: batchId,

@@ -167,7 +167,7 @@ export function createTraitService(db: Database) {
             await recordActivity(tx, {
               studyId,
               userId: user.id,
-              kind: "codebook_remap",
+              kind: "codebook.remapped",
               summary: `Changed the states of ${label}: ${remapped} values moved (${moving.map((u) => `${u.code} -> ${remap[String(u.code)] ?? "empty"}`).join(", ")})`,
               refType: "batch",
               refId: batchId,

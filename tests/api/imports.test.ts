@@ -144,7 +144,7 @@ describe("commit: all or nothing", () => {
       ["taxon", "create"],
     ]);
     const feed = await app.ctx.db.select().from(activity).where(and(eq(activity.studyId, study.studyId), eq(activity.refId, importId)));
-    expect(feed[0]).toMatchObject({ kind: "import_committed", userId: cast.people.coder.user.id });
+    expect(feed[0]).toMatchObject({ kind: "import.committed", userId: cast.people.coder.user.id });
     const history = await cast.people.viewer.agent.get(`/api/studies/${study.studyId}/imports`);
     expect(history.body.rows[0]).toMatchObject({ id: importId, fileName: "invented-taxa.csv", createdBy: { id: cast.people.coder.user.id }, createdCount: 2 });
   });

@@ -217,7 +217,7 @@ describe("bulk edits", () => {
     expect(batch.map((d) => d.taxonId).sort()).toEqual([a.id, c.id].sort());
     expect(new Set(batch.map((d) => d.reason))).toEqual(new Set(["Burrow casts in all three (invented)"]));
     const feed = await app.ctx.db.select().from(activity).where(eq(activity.refId, res.body.batchId));
-    expect(feed[0]).toMatchObject({ kind: "bulk_edit", summary: expect.stringMatching(/Life habit to "infaunal" on 2 taxa/) });
+    expect(feed[0]).toMatchObject({ kind: "bulk.edited", summary: expect.stringMatching(/Life habit to "infaunal" on 2 taxa/) });
 
     const undo = await cast.people.owner.agent.post(`/api/studies/${study.studyId}/decisions/batches/${res.body.batchId}/revert`).send({ reason: "Casts belong to another layer" });
     expect(undo.body).toMatchObject({ reverted: 2, skipped: 0 });
