@@ -10,7 +10,7 @@ import type { Page } from "playwright-core";
 import { DEMO_ACCOUNTS, seedDemo, type DemoAccount, type DemoSeedResult } from "../../db/demo/seed";
 import { DEMO_CRISIS_RUN_NAME, DEMO_SWEEP_RUN_NAME } from "../../db/demo/analyses";
 import { generateDemoStudy } from "../../db/demo/generator";
-import { launchBrowser, withScreenshotOnFailure } from "../support/browser";
+import { launchBrowser, screenshot, withScreenshotOnFailure } from "../support/browser";
 import { PASSWORD, startTestServer, uniqueEmail } from "../support/server";
 
 type Server = Awaited<ReturnType<typeof startTestServer>>;
@@ -187,6 +187,7 @@ describe("first start of a new account", () => {
           "Pick a boundary",
         ]);
         await page.getByRole("link", { name: "Create your first study" }).waitFor();
+        await screenshot(page, "demo-first-steps-no-studies");
 
         // The template is written in the browser: the taxon columns, then the suggested traits.
         const [download] = await Promise.all([page.waitForEvent("download"), page.getByRole("button", { name: "Download the CSV template" }).click()]);
@@ -216,6 +217,7 @@ describe("first start of a new account", () => {
         await firstSteps.getByRole("link", { name: "Edit the codebook" }).waitFor();
         await firstSteps.getByRole("link", { name: "Download the CSV template" }).waitFor();
         await firstSteps.getByRole("link", { name: "Open the Boundary screen" }).waitFor();
+        await screenshot(page, "demo-first-steps-overview");
         await firstSteps.getByRole("link", { name: "Import taxa" }).click();
         await page.waitForURL(`${server.url}${studyPath}/imports`);
       });
