@@ -61,7 +61,7 @@ const INVENTED_TAXA: Array<[name: string, fad: number | null, lad: number]> = [
 /** The three counts on the summary, in the order survivors, victims, not at risk, once they read `expected`. */
 async function waitForCounts(page: Page, expected: [number, number, number]): Promise<void> {
   await page.waitForFunction(
-    (want) => Array.from(document.querySelectorAll('[aria-label="Outcome counts"] dd')).map((dd) => dd.textContent?.trim()).join(",") === want,
+    (want) => Array.from(document.querySelectorAll('[aria-label="Outcome counts"] > div > dd:first-of-type')).map((dd) => dd.textContent?.trim()).join(",") === want,
     expected.join(","),
   );
 }
