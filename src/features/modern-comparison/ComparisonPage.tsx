@@ -6,6 +6,7 @@ import { ConfirmDialog } from "../../components/ConfirmDialog";
 import { ErrorState } from "../../components/ErrorState";
 import { LoadingState } from "../../components/LoadingState";
 import { PageHeader } from "../../components/PageHeader";
+import { DiscussButton } from "../../components/threads/DiscussButton";
 import { useToast } from "../../components/Toast";
 import { errorMessage } from "../../lib/api";
 import { useCurrentStudy } from "../../lib/currentStudy";
@@ -46,6 +47,7 @@ export function ComparisonPage() {
               <ButtonLink to={`${base}/comparisons/${comparisonId}/report`} variant="secondary">
                 Printable report
               </ButtonLink>
+              <DiscussButton studyId={study.id} target={{ type: "comparison", id: comparisonId }} targetLabel={`The comparison “${comparison.data.name}”`} variant="secondary" size="md" />
               {can(study.role, "comparisons.create") && (
                 <Button variant="ghost" onClick={() => setDeleting(true)}>
                   Delete

@@ -5,6 +5,7 @@ import { Button, ButtonLink, buttonClasses } from "../../components/Button";
 import { Card } from "../../components/Card";
 import { ErrorState } from "../../components/ErrorState";
 import { cx, focusRing } from "../../components/focus";
+import { DiscussButton } from "../../components/threads/DiscussButton";
 import { LoadingState } from "../../components/LoadingState";
 import { FormError } from "../../components/Notice";
 import { TextLink } from "../../components/TextLink";
@@ -133,6 +134,7 @@ function RunHeader({ study, run, onRerun }: { study: Study; run: Run; onRerun: (
               Compare with another run
             </ButtonLink>
           )}
+          <DiscussButton studyId={study.id} target={{ type: "run", id: run.id }} targetLabel={`The run “${run.name}”`} />
         </div>
       </div>
       {done && (

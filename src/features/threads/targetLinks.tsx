@@ -12,6 +12,10 @@ export function targetScreen(studyId: string, target: ThreadTarget): { to: strin
       return { to: `${paths.study(studyId)}/codebook`, label: "Open the codebook" };
     case "override":
       return { to: `${paths.study(studyId)}/boundary`, label: "Open the boundary screen" };
+    case "run":
+      return target.missing ? null : { to: `${paths.study(studyId)}/selectivity?run=${encodeURIComponent(target.id)}`, label: "Open the run" };
+    case "comparison":
+      return target.missing ? null : { to: `${paths.study(studyId)}/modern-comparison/comparisons/${encodeURIComponent(target.id)}`, label: "Open the comparison" };
     default:
       return null;
   }
