@@ -49,7 +49,8 @@ export function scaleNumericTrait(spec: SelectivityTraitSpec, transformed: Float
 export function numericStep(spec: SelectivityTraitSpec): string {
   if (spec.standardise) return "per SD";
   if (spec.transform === "log10") return "per 1 log10 unit";
-  return spec.unit ? `per 1 ${spec.unit}` : "per 1 unit";
+  // Units are written in the plural in codebooks ("regions"); one step reads in the singular.
+  return spec.unit ? `per 1 ${spec.unit.replace(/(?<=[a-z]{2}[^siue])s$/, "")}` : "per 1 unit";
 }
 
 /** "Body size (log10, per SD)": a numeric predictor named for tables. */
