@@ -1,3 +1,4 @@
+import "./lib/strictCsp";
 import { StrictMode } from "react";
 import { createRoot } from "react-dom/client";
 import "@fontsource/inter-tight/latin-400.css";
