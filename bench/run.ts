@@ -36,7 +36,7 @@ async function main() {
   const width = Math.max(...figures.map((f) => f.name.length), 10);
   console.log(`\n${"figure".padEnd(width)}  ${"value".padStart(12)}  unit      note`);
   for (const f of figures) {
-    const value = f.value >= 100 ? f.value.toFixed(0) : f.value.toPrecision(4);
+    const value = f.unit === "count" || f.value >= 100 ? f.value.toFixed(0) : f.value.toPrecision(4);
     console.log(`${f.name.padEnd(width)}  ${value.padStart(12)}  ${f.unit.padEnd(8)}  ${f.note ?? ""}`);
   }
   console.log(`\nmachine: ${cores} cores, ${cpus()[0]?.model ?? "unknown CPU"}, node ${process.version}`);

@@ -8,4 +8,7 @@ export interface BenchFigure {
 
 export const BENCHMARKS: Record<string, () => Promise<BenchFigure[]>> = {
   stats: async () => (await import("./stats")).benchStats(),
+  selectivity: async () => (await import("./selectivity")).benchSelectivity(),
+  traitTables: async () => (await import("./traitTables")).benchTraitTables(),
+  load: async () => (await import("./load")).benchLoad(),
 };
