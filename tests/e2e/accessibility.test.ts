@@ -140,6 +140,10 @@ describe("accessibility of every screen (axe-core)", () => {
       await page.goto(linkIn(invitationMail.text, "/invitations/"));
       await h1(page, /^Join/);
       await expectAccessible(page, "Invitation, signed out");
+
+      await page.goto(`${server.url}/no-such-page`);
+      await page.getByRole("heading", { level: 1 }).waitFor();
+      await expectAccessible(page, "Page not found");
     });
   });
 
@@ -369,6 +373,33 @@ describe("accessibility of every screen (axe-core)", () => {
       await h1(page, "Members");
       await page.locator("[data-member-email]").first().waitFor();
       await expectAccessible(page, "Members");
+      await page.getByRole("button", { name: `Remove ${demo.account.viewer.name}` }).click();
+      await page.getByRole("dialog", { name: `Remove ${demo.account.viewer.name}?` }).waitFor();
+      await expectAccessible(page, "Members, confirming a removal");
+      await page.keyboard.press("Escape");
+    });
+  });
+});
+
+describe("accessibility of the read-only screens (axe-core)", () => {
+  it("the demo study's guest: overview, trait table, imports, selectivity, modern comparison and members, each with its read-only notes", async () => {
+    await newcomer.context.request.post(`${server.url}/api/auth/logout`);
+    await signInAs(newcomer.context, server.url, demo.account.viewer);
+    const page = await newcomer.context.newPage();
+    await withScreenshotOnFailure(newcomer.context, "a11y-guest", async () => {
+      const screens: Array<[string, string, (p: Page) => Promise<unknown>]> = [
+        ["Study overview, guest", "", (p) => p.getByRole("list", { name: "Activity, newest first" }).waitFor()],
+        ["Trait table, guest", "/table", (p) => p.getByRole("grid", { name: "Trait table" }).locator("[role=row][data-taxon]").first().waitFor()],
+        ["Imports, guest", "/imports", (p) => p.locator("[data-import-file]").first().waitFor()],
+        ["Selectivity, guest", "/selectivity", (p) => h1(p, "Selectivity")],
+        ["Modern comparison, guest", "/modern-comparison", (p) => p.getByRole("heading", { name: "Saved comparisons" }).waitFor()],
+        ["Members, guest", "/members", (p) => p.locator("[data-member-email]").first().waitFor()],
+      ];
+      for (const [screen, path, ready] of screens) {
+        await page.goto(`${demo.studyUrl}${path}`);
+        await ready(page);
+        await expectAccessible(page, screen);
+      }
     });
   });
 });
@@ -455,6 +486,7 @@ describe("keyboard alone", () => {
       const ask = page.getByRole("dialog", { name: "Why change this value?" });
       await ask.waitFor();
       expect((await focused(page)).label?.trim()).toBe("Reason");
+      await expectAccessible(page, "Trait table, asking why a value changes");
       await page.keyboard.press("Escape");
       await ask.waitFor({ state: "hidden" });
       expect(await shown()).toBe(start.text);
