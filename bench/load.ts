@@ -27,8 +27,8 @@ export interface LoadFigure {
 const TAXA = 10_000;
 const READERS = 50;
 const WRITERS = 5;
-/** Taxa each coder edits in turn (no two coders share one). */
-const TAXA_PER_WRITER = 400;
+/** Taxa each coder edits in turn (no two coders share one), so each is edited many times. */
+const TAXA_PER_WRITER = 10;
 const PASSWORD = "load bench password (invented)";
 
 /** mulberry32: a small seeded generator, so every run imports the same invented study. */
@@ -152,10 +152,11 @@ export async function benchLoad(): Promise<LoadFigure[]> {
     const ids = (await db.query("SELECT id FROM taxa WHERE study_id = $1 ORDER BY name", [studyId])).rows.map((r) => r.id as string);
     const owned = coders.map((_, w) => ids.filter((_, i) => i % WRITERS === w).slice(0, TAXA_PER_WRITER));
     const version = new Map(ids.map((id) => [id, 1]));
-    const lastValue = new Map<string, number>();
-    const editsOk = new Map<string, number>();
+    // Every edit by its number: what it set, whether an answer came and whether it was 2xx.
+    const sent = new Map<number, { taxonId: string; value: number }>();
+    const answered = new Set<number>();
+    const succeeded = new Set<number>();
     let editCounter = 0;
-    let edits2xx = 0;
     let decisionsAnswered = 0;
     const editFailures = new Map<number, number>();
 
@@ -197,24 +198,24 @@ export async function benchLoad(): Promise<LoadFigure[]> {
         method: "PATCH",
         setupRequest: (req, context) => {
           const taxonId = mine[turn++ % mine.length];
+          const edit = ++editCounter;
           // A value no taxon held before, so every edit changes the row.
-          const value = 1000 + ++editCounter;
-          context.taxonId = taxonId;
-          context.value = value;
+          const value = 1000 + edit;
+          sent.set(edit, { taxonId, value });
+          context.edit = edit;
           return {
             ...req,
             path: `/api/studies/${studyId}/taxa/${taxonId}`,
-            body: JSON.stringify({ version: version.get(taxonId), changes: { values: { [trait.body_size]: value } }, reason: `Load bench: remeasured (edit ${editCounter})` }),
+            body: JSON.stringify({ version: version.get(taxonId), changes: { values: { [trait.body_size]: value } }, reason: `Load bench: remeasured (edit ${edit})` }),
           };
         },
         onResponse: (status, body, context) => {
-          const taxonId = context.taxonId as string;
+          const edit = context.edit as number;
+          answered.add(edit);
           if (status === 200) {
             const saved = JSON.parse(body) as { taxon: { version: number }; decisions: number };
-            version.set(taxonId, saved.taxon.version);
-            lastValue.set(taxonId, context.value as number);
-            editsOk.set(taxonId, (editsOk.get(taxonId) ?? 0) + 1);
-            edits2xx++;
+            version.set(sent.get(edit)!.taxonId, saved.taxon.version);
+            succeeded.add(edit);
             decisionsAnswered += saved.decisions;
           } else {
             editFailures.set(status, (editFailures.get(status) ?? 0) + 1);
@@ -244,18 +245,35 @@ export async function benchLoad(): Promise<LoadFigure[]> {
       counts[kind].timeouts += r.timeouts;
     }
 
-    // What the database holds after the run.
-    const decisionsWritten = Number(
-      (await db.query("SELECT count(*) AS n FROM coding_decisions WHERE study_id = $1 AND user_id = ANY($2::uuid[]) AND trait_id = $3", [studyId, coders.map((c) => c.id), trait.body_size])).rows[0].n,
-    );
-    const edited = [...editsOk.keys()];
-    const stored = (await db.query("SELECT id, version, trait_values ->> $2 AS value FROM taxa WHERE id = ANY($1::uuid[])", [edited, trait.body_size])).rows as Array<{
+    // What the database holds after the run: the coders' decisions, each naming its edit.
+    const decisions = (
+      await db.query("SELECT taxon_id, reason FROM coding_decisions WHERE study_id = $1 AND user_id = ANY($2::uuid[]) AND trait_id = $3", [
+        studyId,
+        coders.map((c) => c.id),
+        trait.body_size,
+      ])
+    ).rows as Array<{ taxon_id: string; reason: string }>;
+    const stored = new Set(decisions.map((d) => Number(/\(edit (\d+)\)$/.exec(d.reason)?.[1])));
+    // Lost: answered 2xx, not stored. Stored though refused: answered otherwise, yet written.
+    const lost = [...succeeded].filter((e) => !stored.has(e)).length;
+    const storedThoughRefused = [...answered].filter((e) => !succeeded.has(e) && stored.has(e)).length;
+    // Cut off by the end of the run: sent, no answer seen (stored or not, both are fine).
+    const unanswered = [...sent.keys()].filter((e) => !answered.has(e));
+    const unansweredStored = unanswered.filter((e) => stored.has(e)).length;
+    // Each edited taxon: version 1 plus one per stored edit, and the value of its latest stored edit.
+    const expected = new Map<string, { version: number; value: number; latest: number }>();
+    for (const e of [...stored].sort((a, b) => a - b)) {
+      const { taxonId, value } = sent.get(e) ?? { taxonId: "", value: NaN };
+      const before = expected.get(taxonId) ?? { version: 1, value: NaN, latest: 0 };
+      expected.set(taxonId, { version: before.version + 1, value, latest: e });
+    }
+    const rows = (await db.query("SELECT id, version, trait_values ->> $2 AS value FROM taxa WHERE id = ANY($1::uuid[])", [[...expected.keys()], trait.body_size])).rows as Array<{
       id: string;
       version: number;
       value: string;
     }>;
-    const disagreeing = stored.filter((row) => row.version !== 1 + editsOk.get(row.id)! || Number(row.value) !== lastValue.get(row.id)).length;
-    const lostEdits = edits2xx - decisionsWritten + disagreeing;
+    const disagreeing = rows.filter((row) => row.version !== expected.get(row.id)!.version || Number(row.value) !== expected.get(row.id)!.value).length + (expected.size - rows.length);
+    const lostEdits = lost + storedThoughRefused + disagreeing;
 
     const read = [...latencies.read].sort((a, b) => a - b);
     const edit = [...latencies.edit].sort((a, b) => a - b);
@@ -274,9 +292,19 @@ export async function benchLoad(): Promise<LoadFigure[]> {
       { name: "load: edit latency p99", value: quantile(edit, 0.99), unit: "ms" },
       { name: "load: errors (connection, timeout)", value: errors, unit: "count", note: `reads ${counts.read.errors + counts.read.timeouts}, edits ${counts.edit.errors + counts.edit.timeouts}` },
       { name: "load: non-2xx answers", value: non2xx, unit: "count", note: failures ? `edits: ${failures}` : `reads ${counts.read.non2xx}, edits ${counts.edit.non2xx}` },
-      { name: "load: edits answered 2xx", value: edits2xx, unit: "count", note: `the answers reported ${decisionsAnswered} coding decisions` },
-      { name: "load: coding decisions stored by the edits", value: decisionsWritten, unit: "count", note: "counted in the database afterwards" },
-      { name: "load: lost edits", value: lostEdits, unit: "count", note: `2xx edits without a stored decision, plus ${disagreeing} of ${edited.length} edited taxa whose stored version or value differs` },
+      { name: "load: edits answered 2xx", value: succeeded.size, unit: "count", note: `the answers reported ${decisionsAnswered} coding decisions` },
+      {
+        name: "load: coding decisions stored by the edits",
+        value: stored.size,
+        unit: "count",
+        note: `counted in the database afterwards; ${unanswered.length} edits were in flight when the run stopped (${unansweredStored} of them stored)`,
+      },
+      {
+        name: "load: lost edits",
+        value: lostEdits,
+        unit: "count",
+        note: `${lost} answered 2xx but not stored, ${storedThoughRefused} stored though refused, ${disagreeing} of ${expected.size} edited taxa with another version or value than their stored edits give`,
+      },
     ];
   } finally {
     app.child.kill("SIGTERM");
