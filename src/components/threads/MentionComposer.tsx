@@ -1,4 +1,4 @@
-import { useId, useRef, useState, type KeyboardEvent } from "react";
+import { useId, useLayoutEffect, useRef, useState, type KeyboardEvent } from "react";
 import { MARKDOWN_MAX_LENGTH } from "@shared/markdown";
 import { controlClasses, FieldShell } from "../Field";
 import { cx } from "../focus";
@@ -33,6 +33,16 @@ export function MentionComposer({ label, value, onChange, members, error, hint, 
   const [caret, setCaret] = useState(0);
   const [active, setActive] = useState(0);
   const [dismissedAt, setDismissedAt] = useState<number | null>(null);
+  // Where the caret goes once a picked name is in the text: set right after that render, before the
+  // next key is handled (a later frame would let fast typing land ahead of it).
+  const caretAfterPick = useRef<number | null>(null);
+  useLayoutEffect(() => {
+    const position = caretAfterPick.current;
+    if (position === null || !ref.current) return;
+    caretAfterPick.current = null;
+    ref.current.focus();
+    ref.current.setSelectionRange(position, position);
+  });
 
   const typing = mentionQueryAt(value, caret);
   // A completed "@Name " is not a question any more.
@@ -45,13 +55,10 @@ export function MentionComposer({ label, value, onChange, members, error, hint, 
     if (!typing) return;
     const next = `${value.slice(0, typing.start)}@${member.name} ${value.slice(caret)}`;
     const position = typing.start + member.name.length + 2;
+    caretAfterPick.current = position;
     onChange(next);
     setCaret(position);
     setActive(0);
-    requestAnimationFrame(() => {
-      ref.current?.focus();
-      ref.current?.setSelectionRange(position, position);
-    });
   };
 
   const onKeyDown = (event: KeyboardEvent<HTMLTextAreaElement>) => {
