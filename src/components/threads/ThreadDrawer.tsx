@@ -16,7 +16,7 @@ export function ThreadDrawer({ onClose, ...panel }: ThreadDrawerProps) {
   }, [panel.target.type, panel.target.id, panel.target.traitId]);
 
   return (
-    <aside
+    <div
       role="dialog"
       aria-modal="false"
       aria-labelledby={titleId}
@@ -42,6 +42,6 @@ export function ThreadDrawer({ onClose, ...panel }: ThreadDrawerProps) {
       <div className="min-h-0 flex-1 overflow-y-auto px-5 py-4">
         <ThreadPanel {...panel} />
       </div>
-    </aside>
+    </div>
   );
 }

@@ -86,7 +86,7 @@ export function HistoryPanel({ studyId, row, column, traits, canRevert, onClose 
   })();
 
   return (
-    <aside
+    <div
       role="dialog"
       aria-modal="false"
       aria-labelledby="cell-history-title"
@@ -208,6 +208,6 @@ export function HistoryPanel({ studyId, row, column, traits, canRevert, onClose 
           )
         }
       />
-    </aside>
+    </div>
   );
 }
