@@ -193,6 +193,7 @@ describe("a day of each person in the demo study", () => {
 
       await page.getByRole("button", { name: "History of Body size for Perforella secunda (invented)" }).click();
       const history = page.getByRole("dialog", { name: "Body size of Perforella secunda (invented)" });
+      await history.getByText("From the import of perforella-invented.csv").waitFor();
       const entries = await history.getByRole("list", { name: "Changes, newest first" }).getByRole("listitem").allInnerTexts();
       expect(entries[0]).toContain("Changed · Demo coder");
       expect(entries[0]).toContain("Digits transposed in the notebook");
