@@ -19,3 +19,17 @@ export const studyParamsSchema = z.object({ studyId: uuidSchema });
 export const okSchema = z.object({ ok: z.literal(true) }).meta({ id: "Ok" });
 
 export const isoDateSchema = z.string().meta({ description: "ISO 8601 date-time" });
+
+/**
+ * The query of a CSV/JSON export made of several tables: `format`, and `table` to pick one
+ * table of the CSV (by default all of them, each row naming its table in the first column).
+ */
+export function exportQuerySchema<const T extends readonly [string, ...string[]]>(tables: T, defaultFormat: "json" | "csv", tablesDescription: string) {
+  return z.object({
+    format: z.enum(["json", "csv"], { message: "format must be json or csv" }).default(defaultFormat),
+    table: z
+      .enum(tables, { message: `table must be one of ${tables.join(", ")}` })
+      .optional()
+      .meta({ description: `CSV only: one table (${tablesDescription}); default: all, each row naming its table in the first column` }),
+  });
+}

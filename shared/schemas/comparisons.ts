@@ -3,7 +3,7 @@
 // parameters, a hash of the exact data read, results, who and when; exported as CSV.
 import { z } from "zod";
 import type { ComparisonResult } from "../comparison/types";
-import { isoDateSchema, uuidSchema } from "./common";
+import { exportQuerySchema, isoDateSchema, uuidSchema } from "./common";
 import { crosswalkSchema, iucnCategorySchema, listNameSchema } from "./modernLists";
 
 /** Default probability from which a species listed LC or DD is "worth a look": more likely than not to have died out in the past crisis. */
@@ -160,14 +160,9 @@ export const comparisonParamsPathSchema = z.object({ studyId: uuidSchema, compar
 export const COMPARISON_EXPORT_TABLES = ["comparison", "species", "traits", "worth_a_look", "roc"] as const;
 export type ComparisonExportTable = (typeof COMPARISON_EXPORT_TABLES)[number];
 
-export const comparisonExportQuerySchema = z.object({
-  format: z.enum(["json", "csv"], { message: "format must be json or csv" }).default("csv"),
-  table: z
-    .enum(COMPARISON_EXPORT_TABLES, { message: `table must be one of ${COMPARISON_EXPORT_TABLES.join(", ")}` })
-    .optional()
-    .meta({
-      description:
-        "CSV only: one table (comparison: parameters, data hash, counts, AUC, Spearman and cautions as field and value; species: every species with its score; traits: odds ratios today and in the past; worth_a_look; roc: the curve's points); default: all, each row naming its table in the first column",
-    }),
-});
+export const comparisonExportQuerySchema = exportQuerySchema(
+  COMPARISON_EXPORT_TABLES,
+  "csv",
+  "comparison: parameters, data hash, counts, AUC, Spearman and cautions as field and value; species: every species with its score; traits: odds ratios today and in the past; worth_a_look; roc: the curve's points",
+);
 export type ComparisonExportQuery = z.input<typeof comparisonExportQuerySchema>;

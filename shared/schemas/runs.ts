@@ -3,7 +3,7 @@
 // recomputing, re-run on today's data, compared side by side and exported.
 import { z } from "zod";
 import type { SelectivityResult } from "../selectivity/types";
-import { isoDateSchema, uuidSchema } from "./common";
+import { exportQuerySchema, isoDateSchema, uuidSchema } from "./common";
 import { numericTransformSchema, traitKindSchema } from "./traits";
 
 /** Most boundaries one run tests. */
@@ -420,14 +420,9 @@ export const runDiffQuerySchema = z.object({ against: uuidSchema.meta({ descript
 export const RUN_EXPORT_TABLES = ["run", "design", "states", "tests", "contrasts", "coefficients", "terms"] as const;
 export type RunExportTable = (typeof RUN_EXPORT_TABLES)[number];
 
-export const runExportQuerySchema = z.object({
-  format: z.enum(["json", "csv"], { message: "format must be json or csv" }).default("json"),
-  table: z
-    .enum(RUN_EXPORT_TABLES, { message: `table must be one of ${RUN_EXPORT_TABLES.join(", ")}` })
-    .optional()
-    .meta({
-      description:
-        "CSV only: one table (run: name, parameters, data hash and cautions as field and value; design, states: extinction proportions per trait state, tests, contrasts: odds ratios crude and adjusted, coefficients and terms of the multiple regression); default: all, each row naming its table in the first column",
-    }),
-});
+export const runExportQuerySchema = exportQuerySchema(
+  RUN_EXPORT_TABLES,
+  "json",
+  "run: name, parameters, data hash and cautions as field and value; design, states: extinction proportions per trait state, tests, contrasts: odds ratios crude and adjusted, coefficients and terms of the multiple regression",
+);
 export type RunExportQuery = z.input<typeof runExportQuerySchema>;
