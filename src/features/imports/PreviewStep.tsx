@@ -9,7 +9,7 @@ import { ApiError, errorMessage } from "../../lib/api";
 import { formatCount, pluralize } from "../../lib/format";
 import { useCommitImport, useImportSummary } from "./api";
 import { fieldLabel, formatImportValue } from "./formatValue";
-import { ProgressBar } from "./ProgressBar";
+import { ProgressBar } from "../../components/ProgressBar";
 
 interface PreviewStepProps {
   studyId: string;

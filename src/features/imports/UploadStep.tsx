@@ -7,8 +7,8 @@ import { FormError } from "../../components/Notice";
 import { textLinkClasses } from "../../components/TextLink";
 import { ApiError, errorMessage } from "../../lib/api";
 import { useUploadImport, templateCsvUrl } from "./api";
-import { ProgressBar } from "./ProgressBar";
-import type { UploadProgress } from "./uploadWithProgress";
+import { ProgressBar } from "../../components/ProgressBar";
+import type { UploadProgress } from "../../lib/uploadWithProgress";
 
 const megabytes = (bytes: number) => `${(bytes / (1024 * 1024)).toFixed(bytes < 10 * 1024 * 1024 ? 1 : 0)} MB`;
 

@@ -14,7 +14,7 @@ import type {
 import type { TraitList } from "@shared/schemas/traits";
 import { api } from "../../lib/api";
 import { queryKeys } from "../../lib/queryKeys";
-import { uploadWithProgress, type UploadProgress } from "./uploadWithProgress";
+import { uploadWithProgress, type UploadProgress } from "../../lib/uploadWithProgress";
 
 const studyPath = (studyId: string) => `/studies/${encodeURIComponent(studyId)}`;
 const importsPath = (studyId: string) => `${studyPath(studyId)}/imports`;

@@ -21,8 +21,8 @@ import { issuesToFieldErrors, type FieldErrors } from "../../lib/forms";
 import { formatCount, pluralize } from "../../lib/format";
 import { useCommitModernList, useDiscardModernUpload, usePreviewModernList, useUploadModernList } from "./api";
 import { CategoryBadge } from "./CategoryBadge";
-import { ProgressBar } from "./ProgressBar";
-import type { UploadProgress } from "./uploadFile";
+import { ProgressBar } from "../../components/ProgressBar";
+import type { UploadProgress } from "../../lib/uploadWithProgress";
 
 type Stage =
   | { step: "upload" }

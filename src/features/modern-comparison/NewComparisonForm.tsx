@@ -12,7 +12,7 @@ import { issuesToFieldErrors, type FieldErrors } from "../../lib/forms";
 import { formatDate } from "../../lib/format";
 import { paths } from "../../lib/paths";
 import { useCreateComparison, useRun } from "./api";
-import { ProgressBar } from "./ProgressBar";
+import { ProgressBar } from "../../components/ProgressBar";
 
 const LEVELS = [
   { value: "0.9", label: "90%" },

@@ -7,7 +7,7 @@ import type { Study } from "@shared/schemas/studies";
 import type { TraitList } from "@shared/schemas/traits";
 import { api } from "../../lib/api";
 import { queryKeys } from "../../lib/queryKeys";
-import { uploadFile, type UploadProgress } from "./uploadFile";
+import { uploadWithProgress, type UploadProgress } from "../../lib/uploadWithProgress";
 
 const studyPath = (studyId: string) => `/studies/${encodeURIComponent(studyId)}`;
 const listsPath = (studyId: string) => `${studyPath(studyId)}/modern-lists`;
@@ -51,7 +51,7 @@ export function useModernList(studyId: string, listId: string) {
 /** POST /api/studies/:studyId/modern-lists/uploads (multipart, field `file`). */
 export function useUploadModernList(studyId: string) {
   return useMutation({
-    mutationFn: ({ file, onProgress }: { file: File; onProgress: (p: UploadProgress) => void }) => uploadFile<ModernListUpload>(`${listsPath(studyId)}/uploads`, file, onProgress),
+    mutationFn: ({ file, onProgress }: { file: File; onProgress: (p: UploadProgress) => void }) => uploadWithProgress<ModernListUpload>(`${listsPath(studyId)}/uploads`, "file", file, onProgress),
   });
 }
 

@@ -1,7 +1,7 @@
 // Uploads a file with XMLHttpRequest, whose upload progress events fetch() does not offer, and
 // turns refusals into the same ApiError the rest of the client uses.
 import { apiErrorSchema } from "@shared/schemas/common";
-import { ApiError, NETWORK_ERROR_CODE } from "../../lib/api";
+import { ApiError, NETWORK_ERROR_CODE } from "./api";
 
 export interface UploadProgress {
   loaded: number;

@@ -1,4 +1,4 @@
-import { cx } from "../../components/focus";
+import { cx } from "./focus";
 
 /** A labelled bar for long work; `value` from 0 to 1, or null while the share is unknown. */
 export function ProgressBar({ label, value, detail }: { label: string; value: number | null; detail?: string }) {
