@@ -59,7 +59,6 @@ async function matrixRun(studyId: string, status: "succeeded" | "failed" = "succ
   return run;
 }
 
-
 /** A new invented taxon in the study, for rows that need one to act on. */
 async function matrixTaxon(studyId: string) {
   const [taxon] = await app.ctx.db.insert(taxa).values({ studyId, name: `Matrixella ${randomUUID().slice(0, 8)}`, fadMa: 70, ladMa: 67 }).returning();
