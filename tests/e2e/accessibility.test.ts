@@ -215,7 +215,7 @@ describe("accessibility of every screen (axe-core)", () => {
       await expectAccessible(page, "Outbox");
 
       await page.getByRole("button", { name: /^Notifications, \d+ unread/ }).click();
-      await page.getByRole("heading", { name: "Mentions" }).waitFor();
+      await page.getByRole("heading", { name: "Mentions", exact: true }).waitFor();
       await page.getByText("Does the life habit signal survive the clade adjustment?").first().waitFor();
       await expectAccessible(page, "Notification menu open");
     });
