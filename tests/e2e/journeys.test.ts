@@ -211,6 +211,9 @@ describe("a day of each person in the demo study", () => {
       await page.getByLabel("Epoch", { exact: true }).selectOption("UpperCretaceous");
       await page.getByLabel("Stage", { exact: true }).selectOption("Turonian");
       await page.waitForURL(/[?&]unit=Turonian(&|$)/);
+      // The counts on screen belong to the Turonian only once the summary names its base (the
+      // previous choice's counts stay visible while the new ones load).
+      await page.getByText(/ taxa at 93\.9 Ma, window /).waitFor();
       const tiles = page.locator('[aria-label="Outcome counts"] > div');
       await tiles.first().waitFor();
       const count = async (label: string) => (await tiles.filter({ has: page.locator("dt", { hasText: label }) }).locator("dd").first().innerText()).trim();
