@@ -1,5 +1,6 @@
-import { useEffect, useId, useRef, type ReactNode } from "react";
+import type { ReactNode } from "react";
 import { Button } from "./Button";
+import { useModalDialog } from "./useModalDialog";
 import { FormError } from "./Notice";
 
 export interface ConfirmDialogProps {
@@ -36,28 +37,11 @@ export function ConfirmDialog({
   onConfirm,
   onCancel,
 }: ConfirmDialogProps) {
-  const ref = useRef<HTMLDialogElement>(null);
-  const titleId = useId();
-
-  useEffect(() => {
-    const dialog = ref.current;
-    if (!dialog) return;
-    if (open && !dialog.open) dialog.showModal();
-    if (!open && dialog.open) dialog.close();
-  }, [open]);
+  const { titleId, dialogProps } = useModalDialog(open, busy, onCancel);
 
   return (
     <dialog
-      ref={ref}
-      aria-labelledby={titleId}
-      onCancel={(event) => {
-        event.preventDefault();
-        if (!busy) onCancel();
-      }}
-      // The browser may close it anyway (a repeated Escape); keep `open` in step with it.
-      onClose={() => {
-        if (open) onCancel();
-      }}
+      {...dialogProps}
       className="m-auto w-[calc(100%-2rem)] max-w-md rounded-xl border border-stone-200 bg-white p-0 text-stone-900 shadow-xl backdrop:bg-stone-900/45"
     >
       {open && (

@@ -1,5 +1,6 @@
-import { useEffect, useId, useRef, type ReactNode } from "react";
+import type { ReactNode } from "react";
 import { cx } from "../../components/focus";
+import { useModalDialog } from "../../components/useModalDialog";
 
 interface ModalDialogProps {
   open: boolean;
@@ -17,25 +18,10 @@ interface ModalDialogProps {
  * focus back to the cell or button that opened it.
  */
 export function ModalDialog({ open, title, description, onClose, busy = false, width = "md", children }: ModalDialogProps) {
-  const ref = useRef<HTMLDialogElement>(null);
-  const titleId = useId();
-  useEffect(() => {
-    const dialog = ref.current;
-    if (!dialog) return;
-    if (open && !dialog.open) dialog.showModal();
-    if (!open && dialog.open) dialog.close();
-  }, [open]);
+  const { titleId, dialogProps } = useModalDialog(open, busy, onClose);
   return (
     <dialog
-      ref={ref}
-      aria-labelledby={titleId}
-      onCancel={(event) => {
-        event.preventDefault();
-        if (!busy) onClose();
-      }}
-      onClose={() => {
-        if (open) onClose();
-      }}
+      {...dialogProps}
       className={cx(
         "m-auto w-[calc(100%-2rem)] rounded-xl border border-stone-200 bg-white p-0 text-stone-900 shadow-xl backdrop:bg-stone-900/45",
         width === "lg" ? "max-w-2xl" : "max-w-md",
