@@ -1,8 +1,7 @@
 import { useState, type FormEvent } from "react";
 import { IMPORT_MAX_BYTES, IMPORT_MAX_LABEL, type ImportUpload } from "@shared/schemas/imports";
 import { Button } from "../../components/Button";
-import { FieldShell, controlClasses } from "../../components/Field";
-import { cx } from "../../components/focus";
+import { CsvFileField } from "../../components/CsvFileField";
 import { FormError } from "../../components/Notice";
 import { textLinkClasses } from "../../components/TextLink";
 import { ApiError, errorMessage } from "../../lib/api";
@@ -42,31 +41,17 @@ export function UploadStep({ studyId, onUploaded }: { studyId: string; onUploade
   return (
     <form noValidate onSubmit={submit} className="space-y-5" aria-label="Upload a CSV file">
       <FormError message={upload.error ? errorMessage(upload.error) : null} />
-      <FieldShell
+      <CsvFileField
         label="CSV file"
         hint={`Comma, semicolon or tab separated, with a header row; UTF-8 (with or without BOM), UTF-16 or Windows-1252. Up to ${IMPORT_MAX_LABEL}.`}
         error={fileError ?? (upload.error instanceof ApiError ? upload.error.fields.file : undefined)}
-      >
-        {({ id, describedBy, invalid }) => (
-          <input
-            id={id}
-            type="file"
-            accept=".csv,.tsv,.txt,text/csv,text/tab-separated-values"
-            aria-describedby={describedBy}
-            aria-invalid={invalid || undefined}
-            disabled={upload.isPending}
-            onChange={(e) => {
-              setFile(e.target.files?.[0] ?? null);
-              setFileError(undefined);
-              upload.reset();
-            }}
-            className={cx(
-              controlClasses(invalid),
-              "h-auto py-2 file:mr-3 file:rounded-md file:border-0 file:bg-accent-50 file:px-3 file:py-1.5 file:text-sm file:font-medium file:text-accent-900 hover:file:bg-accent-100",
-            )}
-          />
-        )}
-      </FieldShell>
+        disabled={upload.isPending}
+        onFile={(chosen) => {
+          setFile(chosen);
+          setFileError(undefined);
+          upload.reset();
+        }}
+      />
       {upload.isPending && (
         <ProgressBar
           label={`Uploading ${file?.name ?? "the file"}`}

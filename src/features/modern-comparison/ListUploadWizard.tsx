@@ -11,7 +11,7 @@ import {
   type ModernListUpload,
 } from "@shared/schemas/modernLists";
 import { Button } from "../../components/Button";
-import { FieldShell, controlClasses } from "../../components/Field";
+import { CsvFileField } from "../../components/CsvFileField";
 import { cx } from "../../components/focus";
 import { FormError, Notice } from "../../components/Notice";
 import { Select } from "../../components/Select";
@@ -108,31 +108,17 @@ function UploadStep({ studyId, onUploaded, onCancel }: { studyId: string; onUplo
   return (
     <form noValidate onSubmit={submit} className="space-y-5" aria-label="Upload a modern species list">
       <FormError message={upload.error ? errorMessage(upload.error) : null} />
-      <FieldShell
+      <CsvFileField
         label="Species list (CSV)"
         hint={`One row per species: its name, optionally a higher taxon, its threat category (an IUCN 3.1 code or name: ${IUCN_CATEGORIES.join(", ")}) and any trait columns. Comma, semicolon or tab separated; up to ${MODERN_LIST_MAX_LABEL}.`}
         error={fileError ?? (upload.error instanceof ApiError ? upload.error.fields.file : undefined)}
-      >
-        {({ id, describedBy, invalid }) => (
-          <input
-            id={id}
-            type="file"
-            accept=".csv,.tsv,.txt,text/csv,text/tab-separated-values"
-            aria-describedby={describedBy}
-            aria-invalid={invalid || undefined}
-            disabled={upload.isPending}
-            onChange={(e) => {
-              setFile(e.target.files?.[0] ?? null);
-              setFileError(undefined);
-              upload.reset();
-            }}
-            className={cx(
-              controlClasses(invalid),
-              "h-auto py-2 file:mr-3 file:rounded-md file:border-0 file:bg-accent-50 file:px-3 file:py-1.5 file:text-sm file:font-medium file:text-accent-900 hover:file:bg-accent-100",
-            )}
-          />
-        )}
-      </FieldShell>
+        disabled={upload.isPending}
+        onFile={(chosen) => {
+          setFile(chosen);
+          setFileError(undefined);
+          upload.reset();
+        }}
+      />
       {upload.isPending && (
         <ProgressBar label={`Uploading ${file?.name ?? "the file"}`} value={sent < 1 ? sent : null} detail={sent < 1 ? undefined : "Reading the file…"} />
       )}
