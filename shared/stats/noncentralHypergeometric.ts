@@ -2,63 +2,135 @@
 // margins, held in log space so that tables with millions of taxa neither overflow nor lose
 // precision. It is the conditional distribution on which Fisher's exact test, the conditional
 // maximum likelihood odds ratio and its exact interval rest (Fisher 1935; Cornfield 1956).
+//
+// The support of a table with a million taxa has hundreds of thousands of values, nearly all of them
+// with probabilities far below anything a sum can notice. Log-weights are therefore computed lazily,
+// outward from the mode, only as far as some sum needs them; every sum stops where its terms fall
+// below exp(-WINDOW_LOG_CUTOFF) of its largest term. The pmf is log-concave, so past that point the
+// terms keep shrinking at least geometrically and what is left out is below 1e-18 of the sum.
 
-import { LogSumAccumulator, logSumExp } from "./distributions";
+import { logSumExp } from "./distributions";
 
-// Terms below exp(-WINDOW_LOG_CUTOFF) of the largest one are dropped from tilted sums; with a
-// log-concave pmf what is dropped is below 1e-20 of the total.
 const WINDOW_LOG_CUTOFF = 50;
 
 /**
  * Support lo..hi of X = a given the margins of [[a, b], [c, d]], with the central (odds ratio 1)
- * log-probabilities up to a constant: logWeight[i] = ln P(X = lo + i) + constant.
- */
-export interface HypergeometricSupport {
-  lo: number;
-  hi: number;
-  logWeight: Float64Array;
-  /** ln of the sum of exp(logWeight): subtract it to get normalised log-probabilities. */
-  logTotal: number;
-  /** Index of the central mode, where logWeight is 0. */
-  modeIndex: number;
-}
-
-/**
- * Builds the support for first-column total m, second-column total n and first-row total k (R's
- * dhyper parameterisation). Probabilities are built outward from the mode by the exact ratio
+ * log-probabilities up to a constant: logWeight(i) = ln P(X = lo + i) + constant, 0 at the mode.
+ *
+ * Probabilities are built outward from the mode by the exact ratio
  * P(x + 1) / P(x) = (k - x)(m - x) / ((x + 1)(n - k + x + 1)), so each value carries a relative
  * error of a few roundings per step instead of the cancellation of large log-factorials.
  */
+export class HypergeometricSupport {
+  readonly lo: number;
+  readonly hi: number;
+  /** Index of the central mode, where logWeight is 0. */
+  readonly modeIndex: number;
+  /** ln of the sum of all weights: subtract it to get normalised log-probabilities. */
+  readonly logTotal: number;
+  private readonly weights: Float64Array;
+  // Indices whose log-weight has been computed: from..to, always containing the mode.
+  private from: number;
+  private to: number;
+
+  /** First-column total m, second-column total n and first-row total k (R's dhyper parameterisation). */
+  constructor(
+    private readonly m: number,
+    private readonly n: number,
+    private readonly k: number,
+  ) {
+    this.lo = Math.max(0, k - n);
+    this.hi = Math.min(k, m);
+    this.weights = new Float64Array(this.hi - this.lo + 1);
+    const mode = Math.min(this.hi, Math.max(this.lo, Math.floor(((k + 1) * (m + 1)) / (m + n + 2))));
+    this.modeIndex = mode - this.lo;
+    this.from = this.modeIndex;
+    this.to = this.modeIndex;
+    const first = this.lowerEnd(this.modeIndex, -WINDOW_LOG_CUTOFF);
+    const last = this.upperEnd(this.modeIndex, -WINDOW_LOG_CUTOFF);
+    this.logTotal = logSumExp(this.weights, first, last + 1);
+  }
+
+  get size(): number {
+    return this.weights.length;
+  }
+
+  /** ln P(X = lo + index) + constant (0 at the mode). */
+  logWeight(index: number): number {
+    if (index < this.from) this.extendDown(index);
+    else if (index > this.to) this.extendUp(index);
+    return this.weights[index];
+  }
+
+  /** P(lo + index + 1) / P(lo + index), known without walking the support. */
+  stepRatio(index: number): number {
+    const { m, n, k } = this;
+    const x = this.lo + index;
+    return ((k - x) * (m - x)) / ((x + 1) * (n - k + x + 1));
+  }
+
+  /** ln of stepRatio(index). */
+  logStepRatio(index: number): number {
+    return Math.log(this.stepRatio(index));
+  }
+
+  /** Smallest index at or below `index` whose log-weight, and every one between, exceeds `floor` (log-weights fall away from the mode). */
+  lowerEnd(index: number, floor: number): number {
+    let i = index;
+    while (i > 0 && this.logWeight(i - 1) > floor) i--;
+    return i;
+  }
+
+  /** Largest index at or above `index` whose log-weight, and every one between, exceeds `floor`. */
+  upperEnd(index: number, floor: number): number {
+    const last = this.weights.length - 1;
+    let i = index;
+    while (i < last && this.logWeight(i + 1) > floor) i++;
+    return i;
+  }
+
+  /** ln of the sum of weights over first..last, a run on one side of the mode whose largest term is at `peak`. */
+  logSumFrom(peak: number, first: number, last: number): number {
+    const floor = this.logWeight(peak) - WINDOW_LOG_CUTOFF;
+    const start = Math.max(first, peak > first ? this.lowerEnd(peak, floor) : peak);
+    const end = Math.min(last, peak < last ? this.upperEnd(peak, floor) : peak);
+    return logSumExp(this.weights, start, end + 1);
+  }
+
+  private extendDown(index: number): void {
+    const { weights } = this;
+    for (let i = this.from; i > index; i--) weights[i - 1] = weights[i] - this.logStepRatio(i - 1);
+    this.from = index;
+  }
+
+  private extendUp(index: number): void {
+    const { weights } = this;
+    for (let i = this.to; i < index; i++) weights[i + 1] = weights[i] + this.logStepRatio(i);
+    this.to = index;
+  }
+}
+
+/** Support and central weights for first-column total m, second-column total n and first-row total k. */
 export function hypergeometricSupport(m: number, n: number, k: number): HypergeometricSupport {
-  const lo = Math.max(0, k - n);
-  const hi = Math.min(k, m);
-  const size = hi - lo + 1;
-  const logWeight = new Float64Array(size);
-  const mode = Math.min(hi, Math.max(lo, Math.floor(((k + 1) * (m + 1)) / (m + n + 2))));
-  const modeIndex = mode - lo;
-  for (let x = mode; x < hi; x++) {
-    const i = x - lo;
-    logWeight[i + 1] = logWeight[i] + Math.log(((k - x) * (m - x)) / ((x + 1) * (n - k + x + 1)));
-  }
-  for (let x = mode; x > lo; x--) {
-    const i = x - lo;
-    logWeight[i - 1] = logWeight[i] - Math.log(((k - x + 1) * (m - x + 1)) / (x * (n - k + x)));
-  }
-  return { lo, hi, logWeight, logTotal: logSumExp(logWeight), modeIndex };
+  return new HypergeometricSupport(m, n, k);
 }
 
 /** ln P(X <= x) under odds ratio 1, summed in log space (accurate however small). */
 export function logLowerTail(support: HypergeometricSupport, x: number): number {
   if (x < support.lo) return -Infinity;
   if (x >= support.hi) return 0;
-  return Math.min(0, logSumExp(support.logWeight, 0, x - support.lo + 1) - support.logTotal);
+  const index = x - support.lo;
+  const peak = Math.min(index, support.modeIndex);
+  return Math.min(0, support.logSumFrom(peak, 0, index) - support.logTotal);
 }
 
 /** ln P(X >= x) under odds ratio 1. */
 export function logUpperTail(support: HypergeometricSupport, x: number): number {
   if (x <= support.lo) return 0;
   if (x > support.hi) return -Infinity;
-  return Math.min(0, logSumExp(support.logWeight, x - support.lo, support.logWeight.length) - support.logTotal);
+  const index = x - support.lo;
+  const peak = Math.max(index, support.modeIndex);
+  return Math.min(0, support.logSumFrom(peak, index, support.size - 1) - support.logTotal);
 }
 
 /**
@@ -66,71 +138,89 @@ export function logUpperTail(support: HypergeometricSupport, x: number): number 
  * more likely" allows a relative tolerance of 1e-7 (the rule of R's fisher.test).
  */
 export function logTwoSidedTail(support: HypergeometricSupport, x: number): number {
-  const { logWeight } = support;
-  const threshold = logWeight[x - support.lo] + Math.log1p(1e-7);
-  const accumulator = new LogSumAccumulator();
-  for (let i = 0; i < logWeight.length; i++) if (logWeight[i] <= threshold) accumulator.add(logWeight[i]);
-  return Math.min(0, accumulator.value() - support.logTotal);
+  const threshold = support.logWeight(x - support.lo) + Math.log1p(1e-7);
+  // The weights rise to the mode and fall after it, so the values no more likely than x are the
+  // indices up to `left` and from `right` on.
+  let left = support.modeIndex;
+  while (left >= 0 && support.logWeight(left) > threshold) left--;
+  let right = support.modeIndex + 1;
+  while (right < support.size && support.logWeight(right) > threshold) right++;
+  const lowerPart = left >= 0 ? support.logSumFrom(left, 0, left) : -Infinity;
+  const upperPart = right < support.size ? support.logSumFrom(right, right, support.size - 1) : -Infinity;
+  return Math.min(0, logSumExp([lowerPart, upperPart]) - support.logTotal);
 }
 
 /**
- * Window of the distribution tilted by odds ratio exp(theta): weights proportional to
- * exp(logWeight[i] + theta * i), normalised, over the indices that carry any mass.
+ * Sums over the distribution tilted by odds ratio exp(theta): weights proportional to
+ * exp(logWeight(i) + theta * i), over the indices that carry any mass.
  */
-interface TiltedWindow {
-  start: number;
-  weights: Float64Array;
+interface TiltedSums {
+  total: number;
+  /** Sum of weight times the value lo + i. */
+  moment: number;
+  /** Sum of the weights of values <= `split`. */
+  atOrBelow: number;
+  /** Sum of the weights of values > `split` (summed apart so that a small upper tail keeps its digits). */
+  above: number;
 }
 
-function tiltedWindow(support: HypergeometricSupport, theta: number): TiltedWindow {
-  const { logWeight } = support;
-  const last = logWeight.length - 1;
-  // The tilted log-weights are concave in i, so their maximum is where the increments turn negative.
+function tiltedSums(support: HypergeometricSupport, theta: number, split = -Infinity): TiltedSums {
+  // The tilted log-weights are concave in i, so their maximum is where the increments turn negative;
+  // the increments are known in closed form, so the peak is found without walking the support.
+  const last = support.size - 1;
   let low = 0;
   let high = last;
   while (low < high) {
     const mid = (low + high) >> 1;
-    if (logWeight[mid + 1] - logWeight[mid] + theta > 0) low = mid + 1;
+    if (support.logStepRatio(mid) + theta > 0) low = mid + 1;
     else high = mid;
   }
   const peak = low;
-  const value = (i: number): number => logWeight[i] - logWeight[peak] + theta * (i - peak);
-  let start = peak;
-  while (start > 0 && value(start - 1) > -WINDOW_LOG_CUTOFF) start--;
-  let end = peak;
-  while (end < last && value(end + 1) > -WINDOW_LOG_CUTOFF) end++;
-  const weights = new Float64Array(end - start + 1);
-  let total = 0;
-  for (let i = start; i <= end; i++) {
-    const w = Math.exp(value(i));
-    weights[i - start] = w;
+  // Weights relative to the peak, walked outward by multiplying the step ratios: no exp or log per
+  // term, and the rounding that accumulates over a window of thousands of steps stays near 1e-14.
+  const { lo } = support;
+  const factor = Math.exp(theta);
+  const floor = Math.exp(-WINDOW_LOG_CUTOFF);
+  const splitIndex = split - lo;
+  let total = 1;
+  let moment = lo + peak;
+  let atOrBelow = peak <= splitIndex ? 1 : 0;
+  let above = 1 - atOrBelow;
+  let w = 1;
+  for (let i = peak + 1; i <= last; i++) {
+    w *= support.stepRatio(i - 1) * factor;
+    if (!(w > floor)) break;
     total += w;
+    moment += w * (lo + i);
+    if (i <= splitIndex) atOrBelow += w;
+    else above += w;
   }
-  for (let i = 0; i < weights.length; i++) weights[i] /= total;
-  return { start, weights };
+  w = 1;
+  for (let i = peak - 1; i >= 0; i--) {
+    w /= support.stepRatio(i) * factor;
+    if (!(w > floor)) break;
+    total += w;
+    moment += w * (lo + i);
+    if (i <= splitIndex) atOrBelow += w;
+    else above += w;
+  }
+  return { total, moment, atOrBelow, above };
 }
 
 /** E[X] under odds ratio exp(theta). */
 export function noncentralMean(support: HypergeometricSupport, theta: number): number {
-  const { start, weights } = tiltedWindow(support, theta);
-  let mean = 0;
-  for (let i = 0; i < weights.length; i++) mean += weights[i] * (support.lo + start + i);
-  return mean;
+  const { total, moment } = tiltedSums(support, theta);
+  return moment / total;
 }
 
 /** P(X <= x) under odds ratio exp(theta). */
 export function noncentralLowerTail(support: HypergeometricSupport, theta: number, x: number): number {
-  const { start, weights } = tiltedWindow(support, theta);
-  const last = Math.min(weights.length - 1, x - support.lo - start);
-  let sum = 0;
-  for (let i = 0; i <= last; i++) sum += weights[i];
-  return Math.min(1, sum);
+  const { total, atOrBelow } = tiltedSums(support, theta, x);
+  return Math.min(1, atOrBelow / total);
 }
 
 /** P(X >= x) under odds ratio exp(theta). */
 export function noncentralUpperTail(support: HypergeometricSupport, theta: number, x: number): number {
-  const { start, weights } = tiltedWindow(support, theta);
-  let sum = 0;
-  for (let i = Math.max(0, x - support.lo - start); i < weights.length; i++) sum += weights[i];
-  return Math.min(1, sum);
+  const { total, above } = tiltedSums(support, theta, x - 1);
+  return Math.min(1, above / total);
 }

@@ -222,6 +222,78 @@ describe("tables with up to a million taxa", () => {
   });
 });
 
+describe("agrees with summing jStat's hypergeometric pmf over the whole support", () => {
+  // The test sums only the terms that matter, starting at the mode; summing every term of
+  // jStat.hypgeom.pdf by brute force must give the same p-values, MLE and interval.
+  const random = createUniformSource(97531);
+  const tables: number[][][] = [
+    [
+      [700, 900],
+      [950, 650],
+    ], // far tail: p about 1e-18
+    [
+      [12, 380],
+      [30, 410],
+    ], // skewed margins
+  ];
+  for (let i = 0; i < 6; i++) {
+    const cell = (): number => 20 + Math.floor(random() * 400);
+    tables.push([
+      [cell(), cell()],
+      [cell(), cell()],
+    ]);
+  }
+
+  it.each(tables.map((table) => [JSON.stringify(table), table] as const))("%s", (_label, table) => {
+    const [[a, b], [c, d]] = table;
+    const total = a + b + c + d;
+    const firstColumn = a + c;
+    const firstRow = a + b;
+    const lo = Math.max(0, firstRow - (total - firstColumn));
+    const hi = Math.min(firstRow, firstColumn);
+    const values: number[] = [];
+    const logPmf: number[] = [];
+    for (let x = lo; x <= hi; x++) {
+      values.push(x);
+      logPmf.push(Math.log(jStat.hypgeom.pdf(x, total, firstColumn, firstRow)));
+    }
+    const observed = logPmf[a - lo];
+    const sumWhere = (keep: (x: number, logP: number) => boolean): number =>
+      logPmf.reduce((sum, logP, i) => (keep(values[i], logP) ? sum + Math.exp(logP) : sum), 0);
+    // R's fisher.test rule: values no more likely than the observed one, relative tolerance 1e-7.
+    expectRelativeClose(fisherExact(table).pValue, sumWhere((_x, logP) => logP <= observed + Math.log1p(1e-7)), 1e-9);
+    expectRelativeClose(fisherExact(table, { alternative: "less" }).pValue, sumWhere((x) => x <= a), 1e-9);
+    expectRelativeClose(fisherExact(table, { alternative: "greater" }).pValue, sumWhere((x) => x >= a), 1e-9);
+
+    // Under the noncentral distribution tilted by the estimate, E[X] = a; at the lower limit
+    // P(X >= a) = 0.025 and at the upper limit P(X <= a) = 0.025 (Cornfield 1956).
+    const tilted = (psi: number): number[] => {
+      const logs = logPmf.map((logP, i) => logP + values[i] * Math.log(psi));
+      const max = Math.max(...logs);
+      const weights = logs.map((l) => Math.exp(l - max));
+      const sum = weights.reduce((s, w) => s + w, 0);
+      return weights.map((w) => w / sum);
+    };
+    const result = fisherExact(table);
+    const atEstimate = tilted(result.oddsRatio!);
+    expectRelativeClose(
+      atEstimate.reduce((s, p, i) => s + p * values[i], 0),
+      a,
+      1e-9,
+    );
+    expectRelativeClose(
+      tilted(result.ci![0]).reduce((s, p, i) => (values[i] >= a ? s + p : s), 0),
+      0.025,
+      1e-6,
+    );
+    expectRelativeClose(
+      tilted(result.ci![1]).reduce((s, p, i) => (values[i] <= a ? s + p : s), 0),
+      0.025,
+      1e-6,
+    );
+  });
+});
+
 describe("properties on seeded random tables", () => {
   const random = createUniformSource(424242);
   const randomTable = (): number[][] => [
