@@ -19,6 +19,8 @@ export interface AppConfig {
   uploadDir: string;
   /** Whether this process takes jobs from the shared queue (JOB_WORKERS=0 makes a web-only process). */
   jobWorkers: boolean;
+  /** Taxa this process keeps in memory for fast grid filters and sorts, over all studies (GRID_MAX_TAXA). */
+  gridMaxTaxa: number;
 }
 
 export const DATA_DIR = join(process.cwd(), ".data");
@@ -60,6 +62,14 @@ export function loadConfig(overrides: Partial<AppConfig> = {}): AppConfig {
     },
     uploadDir: env.UPLOAD_DIR ?? join(DATA_DIR, "uploads"),
     jobWorkers: env.JOB_WORKERS !== "0",
+    gridMaxTaxa: positiveInteger("GRID_MAX_TAXA", env.GRID_MAX_TAXA, 500_000),
     ...overrides,
   };
+}
+
+function positiveInteger(name: string, text: string | undefined, fallback: number): number {
+  if (text === undefined || text === "") return fallback;
+  const n = Number(text);
+  if (!Number.isInteger(n) || n < 1) throw new Error(`${name} must be a whole number from 1 (it is "${text}").`);
+  return n;
 }

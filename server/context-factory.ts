@@ -25,12 +25,13 @@ export async function createContext(config: AppConfig): Promise<RunningContext> 
   const mailer = createMailer(smtpUrl, config.mailFrom, fakeSmtp !== null);
   const jobs = new JobQueue(config.databaseUrl);
   const workers = new WorkerPool();
-  const services = createServices(database.db, mailer, config.appUrl, { jobs, workers });
+  const services = createServices(database.db, mailer, config.appUrl, { jobs, workers, gridMaxTaxa: config.gridMaxTaxa });
   // Every app process works the shared queue; the services registered their job kinds above.
   await jobs.start({ work: config.jobWorkers });
   services.runs.startSweeping();
   services.imports.startSweeping();
   services.notifications.startDigestClock();
+  services.taxaGrid.startPruning();
   return {
     config,
     db: database.db,
@@ -44,6 +45,7 @@ export async function createContext(config: AppConfig): Promise<RunningContext> 
       await services.runs.stopSweeping();
       await services.imports.stopSweeping();
       services.notifications.stopDigestClock();
+      services.taxaGrid.stopPruning();
       await jobs.stop();
       await workers.close();
       mailer.close();

@@ -1,5 +1,5 @@
 import { relations, sql } from "drizzle-orm";
-import { doublePrecision, index, integer, jsonb, pgEnum, pgTable, real, text, timestamp, uniqueIndex, uuid } from "drizzle-orm/pg-core";
+import { bigint, doublePrecision, index, integer, jsonb, pgEnum, pgTable, real, text, timestamp, uniqueIndex, uuid } from "drizzle-orm/pg-core";
 import { studies } from "./studies";
 import { users } from "./accounts";
 import { TRAIT_KINDS, TRAIT_ASPECTS, NUMERIC_TRANSFORMS, type TraitState } from "../../shared/codebook";
@@ -63,12 +63,29 @@ export const taxa = pgTable(
     uniqueIndex("taxa_study_live_name_idx").on(t.studyId, t.name).where(sql`deleted_at IS NULL`),
     index("taxa_study_higher_idx").on(t.studyId, t.higherTaxon),
     index("taxa_study_lad_idx").on(t.studyId, t.ladMa),
-    // Serves the grid's state filters (trait_values @> {"<trait id>": "<code>"}) without reading every row.
-    index("taxa_values_gin").using("gin", t.traitValues.op("jsonb_path_ops")),
-    // Serve "contains" filters (ILIKE '%...%') on names and higher taxa; pg_trgm is created by migration 0006.
-    index("taxa_name_trgm").using("gin", t.name.op("gin_trgm_ops")),
-    index("taxa_higher_trgm").using("gin", t.higherTaxon.op("gin_trgm_ops")),
+    // No indexes on trait values or name fragments: the grid filters its in-memory copy of the study
+    // (server/services/taxaGrid.ts), and such indexes cost imports more than they ever saved.
   ],
+);
+
+/**
+ * Which taxa each transaction changed, written by statement triggers on `taxa` (migration 0008) in
+ * the changing transaction itself, so a change and its log entry commit together. A process that
+ * keeps a copy of a study's grid columns asks this log which taxa changed in transactions its
+ * copy's snapshot cannot see. No foreign keys: a deleted study's entries age out with the rest.
+ */
+export const taxaChanges = pgTable(
+  "taxa_changes",
+  {
+    studyId: uuid("study_id").notNull(),
+    taxonId: uuid("taxon_id").notNull(),
+    /** The writing transaction's id (xid8 as a number), compared with snapshots by pg_visible_in_snapshot. */
+    txid: bigint("txid", { mode: "bigint" })
+      .notNull()
+      .default(sql`(pg_current_xact_id()::text)::bigint`),
+    changedAt: timestamp("changed_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [index("taxa_changes_study_txid_idx").on(t.studyId, t.txid), index("taxa_changes_changed_at_idx").on(t.changedAt)],
 );
 
 /** An uploaded CSV: previewed, then committed in one transaction (or not at all), revertible. */

@@ -11,6 +11,7 @@ import { createOutcomeService } from "./outcomes";
 import { createRunService } from "./runs";
 import { createTraitService } from "./traits";
 import { createTaxonService } from "./taxa";
+import { createTaxaGrid } from "./taxaGrid";
 import { createDecisionService } from "./decisions";
 import { createImportService } from "./imports";
 import { createExportService } from "./exports";
@@ -24,10 +25,13 @@ import { createActivityService } from "./activity";
 export interface Runtime {
   jobs: JobQueue;
   workers: WorkerPool;
+  /** Taxa the grid copies may hold in memory in this process (GRID_MAX_TAXA). */
+  gridMaxTaxa?: number;
 }
 
 export function createServices(db: Database, mailer: Mailer, appUrl: string, runtime: Runtime) {
   const notifications = createNotificationService(db, mailer, appUrl, runtime.jobs);
+  const taxaGrid = createTaxaGrid(db, { maxTaxa: runtime.gridMaxTaxa });
   return {
     users: createUserService(db),
     studies: createStudyService(db),
@@ -37,7 +41,8 @@ export function createServices(db: Database, mailer: Mailer, appUrl: string, run
     outcomes: createOutcomeService(db),
     runs: createRunService(db, runtime, { outcomes: createOutcomeService(db), traits: createTraitService(db) }),
     traits: createTraitService(db),
-    taxa: createTaxonService(db),
+    taxa: createTaxonService(db, taxaGrid),
+    taxaGrid,
     decisions: createDecisionService(db),
     imports: createImportService(db),
     exports: createExportService(db),

@@ -1,9 +1,9 @@
-// The trait table: a grid page with sorting and filtering done in the database, edits guarded by
-// the row version (an edit based on an older version gets 409 with what is there now and who set
+// The trait table: a grid page (filtered, sorted and counted on the study's grid copy, see
+// taxaGrid.ts; rows read fresh), edits guarded by the row version (an edit based on an older version gets 409 with what is there now and who set
 // it), bulk edits with one shared reason, and a coding decision for every change, written in the
 // same transaction as the change.
 import { randomUUID } from "node:crypto";
-import { sql, type SQL } from "drizzle-orm";
+import { sql } from "drizzle-orm";
 import type { Database, DbOrTx } from "../db";
 import { checkTraitValue, rangeProblem, resolveRangeEnd, sameValue } from "../../shared/csv/values";
 import type {
@@ -18,7 +18,7 @@ import type {
   TaxonUpdateInput,
   TraitValue,
 } from "../../shared/schemas/taxa";
-import { BULK_FIELDS, TAXON_AGE_COLUMNS, TAXON_TEXT_COLUMNS } from "../../shared/schemas/taxa";
+import { BULK_FIELDS } from "../../shared/schemas/taxa";
 import type { Trait } from "../../shared/schemas/traits";
 import { badRequest, HttpError, notFound } from "../http/errors";
 import { DetailedHttpError } from "../http/detailed";
@@ -31,19 +31,20 @@ import {
   isUniqueViolation,
   lastSetters,
   loadCodebook,
+  loadTaxaById,
   lockTaxaById,
   newBatchId,
   openThreadsFor,
   recordActivity,
   setField,
   snapshotOf,
-  stateFromRow,
   taxonRowOf,
   toTaxonRow,
   writeTaxa,
   type NewDecision,
   type TaxonState,
 } from "./taxonState";
+import { createTaxaGrid, type TaxaGrid } from "./taxaGrid";
 
 interface Person {
   id: string;
@@ -52,84 +53,7 @@ interface Person {
 const nameTaken = (name: string) =>
   new HttpError(409, "name_taken", `A taxon named "${name}" already exists in this study; names are unique within a study.`, { name: "This name is already used in this study" });
 
-const COLUMN_SQL: Record<string, SQL> = {
-  name: sql`t.name`,
-  higherTaxon: sql`t.higher_taxon`,
-  notes: sql`t.notes`,
-  fadInterval: sql`t.fad_interval`,
-  ladInterval: sql`t.lad_interval`,
-  fadMa: sql`t.fad_ma`,
-  ladMa: sql`t.lad_ma`,
-  updatedAt: sql`t.updated_at`,
-};
-
-/** `%` and `_` typed in a filter are literal characters, not wildcards. */
-const likePattern = (text: string) => `%${text.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
-
-function traitOf(codebook: Map<string, Trait>, id: string, what: string): Trait {
-  const trait = codebook.get(id);
-  if (!trait) throw badRequest(`${what}: no trait of this study has the id ${id}`, { [what]: "Unknown trait" });
-  return trait;
-}
-
-/**
- * The sort key of a trait's value: the state's place in the codebook, or the number. Every write
- * path checks values against the codebook, so a numeric trait holds only numbers and the cast is
- * safe; it is much cheaper per row than comparing JSON values.
- */
-function traitSortSql(trait: Trait): SQL {
-  if (trait.kind === "numeric") return sql`(t.trait_values ->> ${trait.id})::float8`;
-  const codes = trait.states.map((s) => s.code);
-  return sql`array_position(ARRAY(SELECT jsonb_array_elements_text(${JSON.stringify(codes)}::jsonb)), t.trait_values ->> ${trait.id})`;
-}
-
-function filterSql(query: TaxaListQuery, codebook: Map<string, Trait>): SQL[] {
-  const where: SQL[] = [];
-  for (const f of query.filter) {
-    const what = `filter ${f.column}:${f.op}`;
-    if (f.column in COLUMN_SQL) {
-      const col = COLUMN_SQL[f.column];
-      const isText = (TAXON_TEXT_COLUMNS as readonly string[]).includes(f.column);
-      const isAge = (TAXON_AGE_COLUMNS as readonly string[]).includes(f.column);
-      if (f.op === "contains" && isText) where.push(sql`${col} ILIKE ${likePattern(f.value)}`);
-      else if (f.op === "eq" && isText) where.push(sql`${col} = ${f.value}`);
-      else if (f.op === "eq" && isAge) where.push(sql`${col} = ${Number(f.value)}`);
-      else if (f.op === "min" && isAge) where.push(sql`${col} >= ${Number(f.value)}`);
-      else if (f.op === "max" && isAge) where.push(sql`${col} <= ${Number(f.value)}`);
-      else throw badRequest(`${what}: ${f.op} does not apply to ${f.column}`, { filter: `${f.op} does not apply to ${f.column}` });
-      continue;
-    }
-    const trait = traitOf(codebook, f.column, "filter");
-    if (trait.kind === "numeric") {
-      const n = Number(f.value);
-      if (!Number.isFinite(n)) throw badRequest(`${what}: ${trait.label} is numeric; give a number`, { filter: `${trait.label} takes a number` });
-      // Containment can use the GIN index; a bound is a JSON path test, cheaper per row than comparing JSON values.
-      if (f.op === "eq") where.push(sql`t.trait_values @> jsonb_build_object(${trait.id}::text, ${n}::float8)`);
-      else if (f.op === "min" || f.op === "max") {
-        const path = `$."${trait.id}" ? (@ ${f.op === "min" ? ">=" : "<="} ${JSON.stringify(n)})`;
-        where.push(sql`t.trait_values @? ${path}::jsonpath`);
-      } else throw badRequest(`${what}: ${trait.label} is numeric; use eq, min or max`, { filter: "Use eq, min or max on a numeric trait" });
-    } else {
-      if (f.op !== "eq") throw badRequest(`${what}: ${trait.label} has states; use eq with a state code`, { filter: "Use eq with a state code" });
-      where.push(sql`t.trait_values @> jsonb_build_object(${trait.id}::text, ${f.value}::text)`);
-    }
-  }
-  for (const column of query.missing) {
-    if (column === "fad" || column === "fadMa") where.push(sql`t.fad_ma IS NULL`);
-    else if (column === "lad" || column === "ladMa") where.push(sql`t.lad_ma IS NULL`);
-    else if (column === "higherTaxon" || column === "notes") where.push(sql`${COLUMN_SQL[column]} = ''`);
-    else if (column === "fadInterval" || column === "ladInterval") where.push(sql`${COLUMN_SQL[column]} IS NULL`);
-    else if (column === "name" || column === "updatedAt") throw badRequest(`missing=${column}: every taxon has a ${column}`, { missing: `Every taxon has a ${column}` });
-    else where.push(sql`NOT (t.trait_values ? ${traitOf(codebook, column, "missing").id})`);
-  }
-  if (query.hasOpenThread !== undefined) {
-    const exists = sql`EXISTS (SELECT 1 FROM threads th WHERE th.study_id = t.study_id AND th.target_id = t.id AND th.target_type IN ('taxon', 'value') AND th.status = 'open')`;
-    where.push(query.hasOpenThread ? exists : sql`NOT ${exists}`);
-  }
-  return where;
-}
-
-export function createTaxonService(db: Database) {
+export function createTaxonService(db: Database, grid: TaxaGrid = createTaxaGrid(db)) {
   /** Checks and resolves the changes of an edit against the codebook; unchanged fields are dropped. */
   function resolveChanges(
     state: TaxonState,
@@ -198,40 +122,10 @@ export function createTaxonService(db: Database) {
   const service = {
     async list(studyId: string, query: TaxaListQuery): Promise<TaxaPage> {
       const codebook = new Map((await loadCodebook(db, studyId)).map((t) => [t.id, t]));
-      const where = sql.join([sql`t.study_id = ${studyId}`, sql`t.deleted_at IS NULL`, ...filterSql(query, codebook)], sql` AND `);
-      const sortKey = query.sort in COLUMN_SQL ? COLUMN_SQL[query.sort] : traitSortSql(traitOf(codebook, query.sort, "sort"));
-      // Empty texts sort with the missing values, after everything else in both directions.
-      const sortExpr = query.sort === "higherTaxon" || query.sort === "notes" ? sql`NULLIF(${sortKey}, '')` : sortKey;
-      const dir = query.dir === "desc" ? sql`DESC` : sql`ASC`;
-      const offset = (query.page - 1) * query.pageSize;
-      const columns = sql`t.id, t.name, t.higher_taxon, t.fad_ma, t.fad_interval, t.lad_ma, t.lad_interval, t.notes, t.trait_values, t.version, t.updated_at, t.deleted_at`;
-      const filtered = query.filter.length > 0 || query.missing.length > 0 || query.hasOpenThread !== undefined;
-      let rows: Array<Record<string, unknown>>;
-      let total: number;
-      if (filtered) {
-        // One pass over the matching rows keeps their ids and sort keys; the count and the page both
-        // come from that narrow list, then only the page's rows are read whole. About half the work
-        // of running the filter twice (once for the page, once for the count).
-        const res = await db.execute(sql`
-          WITH f AS MATERIALIZED (SELECT t.id, t.name, ${sortExpr} AS k FROM taxa t WHERE ${where}),
-               p AS (SELECT f.id, f.k, f.name FROM f ORDER BY f.k ${dir} NULLS LAST, f.name, f.id LIMIT ${query.pageSize} OFFSET ${offset})
-          SELECT (SELECT count(*) FROM f)::int AS total, ${columns}
-          FROM (SELECT 1) AS one LEFT JOIN p ON true LEFT JOIN taxa t ON t.id = p.id
-          ORDER BY p.k ${dir} NULLS LAST, p.name, p.id`);
-        total = (res.rows[0] as { total: number }).total;
-        rows = (res.rows as Array<Record<string, unknown>>).filter((r) => r.id !== null);
-      } else {
-        // Without a filter the name order comes from an index and the count from an index-only
-        // scan; both run side by side on two connections.
-        const order = query.sort === "name" ? sql`t.name ${dir}, t.id` : sql`${sortExpr} ${dir} NULLS LAST, t.name, t.id`;
-        const [page, count] = await Promise.all([
-          db.execute(sql`SELECT ${columns} FROM taxa t WHERE ${where} ORDER BY ${order} LIMIT ${query.pageSize} OFFSET ${offset}`),
-          db.execute(sql`SELECT count(*)::int AS n FROM taxa t WHERE ${where}`),
-        ]);
-        rows = page.rows as Array<Record<string, unknown>>;
-        total = (count.rows[0] as { n: number }).n;
-      }
-      const states = rows.map(stateFromRow);
+      // The filter, sort and count come from the study's grid copy; the page's rows are read fresh.
+      const { ids, total } = await grid.page(studyId, query, codebook);
+      const found = new Map((await loadTaxaById(db, studyId, ids)).map((s) => [s.id, s]));
+      const states = ids.map((id) => found.get(id)).filter((s): s is TaxonState => s !== undefined);
       const threads = await openThreadsFor(
         db,
         studyId,

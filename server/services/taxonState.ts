@@ -144,6 +144,13 @@ export function stateFromRow(r: Record<string, unknown>): TaxonState {
 export const jsonParam = (value: unknown) => sql`${JSON.stringify(value)}::jsonb`;
 export const uuidList = (ids: string[]) => sql`(SELECT jsonb_array_elements_text(${JSON.stringify(ids)}::jsonb)::uuid)`;
 
+/** Live taxa of the study by id, in no particular order. */
+export async function loadTaxaById(db: DbOrTx, studyId: string, ids: string[]): Promise<TaxonState[]> {
+  if (ids.length === 0) return [];
+  const res = await db.execute(sql`SELECT ${TAXON_COLUMNS} FROM taxa t WHERE t.study_id = ${studyId} AND t.deleted_at IS NULL AND t.id IN ${uuidList(ids)}`);
+  return res.rows.map(stateFromRow);
+}
+
 /** Taxa of the study by id, locked for update (removed ones too, for restores). */
 export async function lockTaxaById(tx: DbOrTx, studyId: string, ids: string[]): Promise<TaxonState[]> {
   if (ids.length === 0) return [];

@@ -1,0 +1,242 @@
+// The grid's filter, sort and count come from a per-process copy of the study's columns. These
+// tests hold that copy to two things a coder relies on: it answers exactly what a plain SQL query
+// over the table answers (the oracle below states the grid's documented order and filters in SQL),
+// and it is never stale: a change committed by anyone (another process writing directly, an import,
+// a removal) is in the very next page, and a change not yet committed is not. All taxa are invented.
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { sql, type SQL } from "drizzle-orm";
+import request from "supertest";
+import { createTestApp, PASSWORD, type TestApp } from "../support/server";
+import { importCsv, studyWithCodebook, type CodebookStudy } from "../support/traitTables";
+import { castOfRoles, type Cast } from "./fixtures";
+import { createUniformSource } from "@shared/stats/random";
+
+let app: TestApp;
+let cast: Cast;
+let study: CodebookStudy;
+
+const TAXA = 240;
+
+/** A deterministic invented file with ties, gaps, mixed-case names, intervals and empty cells. */
+function inventedCsv(): string {
+  const random = createUniformSource(6061);
+  const pick = <T>(list: readonly T[]) => list[Math.floor(random() * list.length)];
+  const lines = ["name,higher_taxon,first_appearance,last_appearance,environment,life_habit,feeding,body_size,geographic_range"];
+  for (let i = 0; i < TAXA; i++) {
+    const fad = 70 + Math.floor(random() * 20);
+    const ranges = random() < 0.2 ? ["Santonian", "Campanian"] : random() < 0.1 ? ["", ""] : [String(fad), String(fad - Math.floor(random() * 6))];
+    lines.push(
+      [
+        `${pick(["Invented", "invented", "INVENTED"])}ella ${pick(["alba", "Borea", "cauda", "dorsa"])} ${String(i).padStart(3, "0")}`,
+        random() < 0.15 ? "" : `Clade ${pick(["A", "B", "c", "D"])}`,
+        ...ranges,
+        random() < 0.1 ? "" : pick(["marine", "nonmarine"]),
+        random() < 0.1 ? "" : pick(["epifaunal", "infaunal", "nektonic"]),
+        random() < 0.1 ? "" : pick(["suspension", "deposit", "predator", "grazer"]),
+        random() < 0.15 ? "" : pick(["1", "2.5", "2.5", "10", "40", "300"]), // ties on purpose
+        random() < 0.15 ? "" : String(Math.floor(random() * 12)),
+      ].join(","),
+    );
+  }
+  return lines.join("\n");
+}
+
+beforeAll(async () => {
+  app = await createTestApp();
+  cast = await castOfRoles(app);
+  study = await studyWithCodebook(app, cast, "Invented grid-copy study");
+  const { commit } = await importCsv(cast.people.coder.agent, study, inventedCsv());
+  if (commit.status !== 200) throw new Error(`test setup: import ${commit.status} ${JSON.stringify(commit.body)}`);
+});
+afterAll(() => app.close());
+
+interface GridQuery {
+  filter?: string[];
+  missing?: string[];
+  sort?: string;
+  dir?: "asc" | "desc";
+}
+
+async function gridIds(q: GridQuery, page = 1, pageSize = 500): Promise<{ ids: string[]; total: number }> {
+  const params = new URLSearchParams({ page: String(page), pageSize: String(pageSize) });
+  if (q.sort) params.set("sort", q.sort);
+  if (q.dir) params.set("dir", q.dir);
+  for (const f of q.filter ?? []) params.append("filter", f);
+  for (const m of q.missing ?? []) params.append("missing", m);
+  const res = await cast.people.viewer.agent.get(`/api/studies/${study.studyId}/taxa?${params}`);
+  expect(res.status, JSON.stringify(res.body)).toBe(200);
+  return { ids: (res.body.rows as Array<{ id: string }>).map((r) => r.id), total: res.body.total as number };
+}
+
+const TEXT_COLUMNS: Record<string, SQL> = {
+  name: sql`t.name`,
+  higherTaxon: sql`NULLIF(t.higher_taxon, '')`,
+  fadInterval: sql`t.fad_interval`,
+  ladInterval: sql`t.lad_interval`,
+};
+
+/** The grid's documented semantics as one SQL query: the oracle. */
+async function oracleIds(q: GridQuery): Promise<string[]> {
+  const where: SQL[] = [sql`t.study_id = ${study.studyId}`, sql`t.deleted_at IS NULL`];
+  for (const f of q.filter ?? []) {
+    const [column, op, value] = f.split(":");
+    if (column === "name" || column === "higherTaxon") {
+      const col = column === "name" ? sql`t.name` : sql`t.higher_taxon`;
+      where.push(op === "contains" ? sql`${col} ILIKE ${`%${value}%`}` : sql`${col} = ${value}`);
+    } else if (column === "fadMa" || column === "ladMa") {
+      const col = column === "fadMa" ? sql`t.fad_ma` : sql`t.lad_ma`;
+      where.push(op === "min" ? sql`${col} >= ${Number(value)}` : op === "max" ? sql`${col} <= ${Number(value)}` : sql`${col} = ${Number(value)}`);
+    } else {
+      const number = sql`(t.trait_values ->> ${column})::float8`;
+      if (op === "eq" && Number.isNaN(Number(value))) where.push(sql`t.trait_values ->> ${column} = ${value}`);
+      else where.push(op === "min" ? sql`${number} >= ${Number(value)}` : op === "max" ? sql`${number} <= ${Number(value)}` : sql`${number} = ${Number(value)}`);
+    }
+  }
+  for (const m of q.missing ?? []) {
+    if (m === "fad") where.push(sql`t.fad_ma IS NULL`);
+    else if (m === "higherTaxon") where.push(sql`t.higher_taxon = ''`);
+    else where.push(sql`NOT (t.trait_values ? ${m})`);
+  }
+  const sort = q.sort ?? "name";
+  const trait = Object.values(study.trait).find((t) => t.id === sort);
+  const key = trait
+    ? trait.kind === "numeric"
+      ? sql`(t.trait_values ->> ${trait.id})::float8`
+      : sql`array_position(${`{${trait.states.map((s) => s.code).join(",")}}`}::text[], t.trait_values ->> ${trait.id})`
+    : sort in TEXT_COLUMNS
+      ? sql`${TEXT_COLUMNS[sort]} COLLATE "C"`
+      : sort === "fadMa"
+        ? sql`t.fad_ma`
+        : sql`t.lad_ma`;
+  const dir = q.dir === "desc" ? sql`DESC` : sql`ASC`;
+  const res = await app.ctx.db.execute(sql`SELECT t.id FROM taxa t WHERE ${sql.join(where, sql` AND `)} ORDER BY ${key} ${dir} NULLS LAST, t.name COLLATE "C", t.id`);
+  return res.rows.map((r) => (r as { id: string }).id);
+}
+
+async function expectSameAsOracle(q: GridQuery): Promise<string[]> {
+  const expected = await oracleIds(q);
+  const got = await gridIds(q);
+  expect(got.total).toBe(expected.length);
+  expect(got.ids).toEqual(expected);
+  return expected;
+}
+
+describe("the grid copy answers what SQL over the table answers", () => {
+  it("for every sort column in both directions, unfiltered", async () => {
+    const t = study.trait;
+    for (const sort of ["name", "higherTaxon", "fadMa", "ladMa", "fadInterval", t.body_size.id, t.life_habit.id, t.environment.id]) {
+      for (const dir of ["asc", "desc"] as const) await expectSameAsOracle({ sort, dir });
+    }
+  });
+
+  it("for filters on text, ages, states, numeric bounds and missing values, alone and combined", async () => {
+    const t = study.trait;
+    const cases: GridQuery[] = [
+      { filter: ["name:contains:ELLA B"], sort: t.body_size.id, dir: "desc" },
+      { filter: ["name:contains:invented"], sort: "ladMa" },
+      { filter: ["higherTaxon:eq:Clade c"], sort: t.feeding.id },
+      { filter: ["fadMa:min:80", "fadMa:max:85"], sort: t.geographic_range.id, dir: "desc" },
+      { filter: [`${t.life_habit.id}:eq:infaunal`], sort: t.body_size.id, dir: "desc" },
+      { filter: [`${t.body_size.id}:eq:2.5`], sort: "name", dir: "desc" },
+      { filter: [`${t.geographic_range.id}:min:3`, `${t.geographic_range.id}:max:7`, `${t.environment.id}:eq:marine`], sort: t.life_habit.id },
+      { missing: [t.body_size.id], sort: t.life_habit.id, dir: "desc" },
+      { missing: ["fad", "higherTaxon"] },
+      { filter: [`${t.feeding.id}:eq:grazer`], missing: [t.geographic_range.id], sort: "fadMa", dir: "desc" },
+    ];
+    for (const q of cases) {
+      const expected = await expectSameAsOracle(q);
+      expect(expected.length, JSON.stringify(q)).toBeGreaterThan(0);
+    }
+  });
+
+  it("pages are consecutive slices of the whole order", async () => {
+    const q: GridQuery = { filter: [`${study.trait.environment.id}:eq:marine`], sort: study.trait.body_size.id, dir: "asc" };
+    const whole = await oracleIds(q);
+    const third = await gridIds(q, 3, 17);
+    expect(third.total).toBe(whole.length);
+    expect(third.ids).toEqual(whole.slice(34, 51));
+    const beyond = await gridIds(q, 99, 17);
+    expect(beyond).toEqual({ ids: [], total: whole.length });
+  });
+});
+
+describe("the grid copy is never stale", () => {
+  const size = () => study.trait.body_size.id;
+  const bigFirst = async () => (await gridIds({ sort: size(), dir: "desc" }, 1, 1)).ids[0];
+
+  it("sees a change another process commits directly in the database", async () => {
+    const before = await gridIds({ filter: [`${size()}:min:5000`] });
+    expect(before.total).toBe(0);
+    const [victim] = (await app.ctx.db.execute(sql`SELECT id FROM taxa WHERE study_id = ${study.studyId} AND deleted_at IS NULL ORDER BY name LIMIT 1`)).rows as Array<{ id: string }>;
+    await app.ctx.db.execute(sql`UPDATE taxa SET trait_values = trait_values || jsonb_build_object(${size()}::text, 9000) WHERE id = ${victim.id}`);
+    expect(await gridIds({ filter: [`${size()}:min:5000`] })).toEqual({ ids: [victim.id], total: 1 });
+    expect(await bigFirst()).toBe(victim.id);
+  });
+
+  it("does not show a change until its transaction commits, then shows it at once", async () => {
+    const client = await app.ctx.database.pool.connect();
+    try {
+      const [victim] = (await app.ctx.db.execute(sql`SELECT id FROM taxa WHERE study_id = ${study.studyId} AND deleted_at IS NULL ORDER BY name DESC LIMIT 1`)).rows as Array<{ id: string }>;
+      await client.query("BEGIN");
+      await client.query(`UPDATE taxa SET trait_values = trait_values || jsonb_build_object($1::text, 12345) WHERE id = $2`, [size(), victim.id]);
+      expect(await bigFirst()).not.toBe(victim.id);
+      await client.query("COMMIT");
+      expect(await bigFirst()).toBe(victim.id);
+    } finally {
+      client.release();
+    }
+  });
+
+  it("follows a new taxon, a rename and a removal through the API, in name order and count", async () => {
+    const before = await gridIds({});
+    const created = await cast.people.coder.agent.post(`/api/studies/${study.studyId}/taxa`).send({ name: "Aaa invented first" });
+    expect(created.status).toBe(201);
+    const id = created.body.taxon.id as string;
+    let now = await gridIds({});
+    expect(now.total).toBe(before.total + 1);
+    expect(now.ids[0]).toBe(id);
+    const renamed = await cast.people.coder.agent
+      .patch(`/api/studies/${study.studyId}/taxa/${id}`)
+      .send({ version: created.body.taxon.version, changes: { name: "zzz invented last" }, reason: "moved to the end" });
+    expect(renamed.status).toBe(200);
+    now = await gridIds({});
+    expect(now.ids.at(-1)).toBe(id);
+    await expectSameAsOracle({});
+    const removed = await cast.people.coder.agent.delete(`/api/studies/${study.studyId}/taxa/${id}?version=${renamed.body.taxon.version}&reason=Duplicate`);
+    expect(removed.status).toBe(204);
+    now = await gridIds({});
+    expect(now.total).toBe(before.total);
+    expect(now.ids).not.toContain(id);
+  });
+
+  it("reads the study again whole when most of it changed, and still agrees with SQL", async () => {
+    await gridIds({});
+    await app.ctx.db.execute(sql`UPDATE taxa SET trait_values = trait_values || jsonb_build_object(${study.trait.geographic_range.id}::text, 11 - (trait_values ->> ${study.trait.geographic_range.id})::float8)
+      WHERE study_id = ${study.studyId} AND trait_values ? ${study.trait.geographic_range.id}`);
+    await expectSameAsOracle({ sort: study.trait.geographic_range.id });
+    await expectSameAsOracle({ sort: study.trait.geographic_range.id, dir: "desc", filter: [`${study.trait.geographic_range.id}:max:4`] });
+  });
+
+  it("a second app process (its own copy) sees the first one's edits", async () => {
+    const other = await createTestApp();
+    try {
+      const viewer = request.agent(other.app);
+      const login = await viewer.post("/api/auth/login").send({ email: cast.people.viewer.email, password: PASSWORD });
+      expect(login.status, JSON.stringify(login.body)).toBe(200);
+      const viaOther = async () => {
+        const res = await viewer.get(`/api/studies/${study.studyId}/taxa?sort=${size()}&dir=desc&pageSize=1`);
+        expect(res.status, JSON.stringify(res.body)).toBe(200);
+        return (res.body.rows as Array<{ id: string; version: number }>)[0];
+      };
+      const top = await viaOther();
+      const [next] = (await app.ctx.db.execute(sql`SELECT id, version FROM taxa WHERE study_id = ${study.studyId} AND deleted_at IS NULL AND id <> ${top.id} ORDER BY name LIMIT 1`)).rows as Array<{ id: string; version: number }>;
+      const edit = await cast.people.coder.agent
+        .patch(`/api/studies/${study.studyId}/taxa/${next.id}`)
+        .send({ version: next.version, changes: { values: { [size()]: 99999 } }, reason: "largest now" });
+      expect(edit.status, JSON.stringify(edit.body)).toBe(200);
+      expect((await viaOther()).id).toBe(next.id);
+    } finally {
+      await other.close();
+    }
+  });
+});
