@@ -13,7 +13,7 @@ import type { Database, DbOrTx } from "../db";
 import type { TaxaListQuery, TraitValue } from "../../shared/schemas/taxa";
 import type { Trait } from "../../shared/schemas/traits";
 import { uuidList } from "./taxonState";
-import { emptyColumns, mergeIntoNameOrder, nameOrder, pageOf, rowTest, sortedOrder, type DerivedCache, type GridColumns } from "./taxaGridQuery";
+import { emptyColumns, GridDerived, pageOf, rowTest, type GridColumns } from "./taxaGridQuery";
 
 export interface TaxaGridOptions {
   /** Taxa kept in memory over all studies; the least recently used studies' copies go first. */
@@ -25,8 +25,7 @@ interface StudyCopy {
   rowOf: Map<string, number>;
   liveCount: number;
   deadCount: number;
-  byName: Int32Array;
-  derived: DerivedCache;
+  derived: GridDerived;
   /** pg_current_snapshot() text and its xmin: every change the copy lacks comes from a transaction at or after xmin that this snapshot cannot see. */
   snapshot: string;
   snapshotXmin: string;
@@ -105,23 +104,22 @@ export function createTaxaGrid(db: Database, options: TaxaGridOptions = {}) {
   }
 
   function buildCopy(rows: TaxonGridRow[], snapshot: string, snapshotXmin: string): StudyCopy {
+    const columns = emptyColumns();
     const copy: StudyCopy = {
-      columns: emptyColumns(),
+      columns,
       rowOf: new Map(),
       liveCount: rows.length,
       deadCount: 0,
-      byName: new Int32Array(0),
-      derived: new Map(),
+      derived: new GridDerived(columns),
       snapshot,
       snapshotXmin,
       syncedAt: Date.now(),
     };
     for (const r of rows) appendRow(copy, r);
-    copy.byName = nameOrder(copy.columns);
     return copy;
   }
 
-  /** Applies re-read rows (changed, added or removed) and merges them into the name order. */
+  /** Applies re-read rows (changed, added or removed); the sorted orders take them in by merging. */
   function applyChanges(copy: StudyCopy, rows: TaxonGridRow[]): void {
     const touched: number[] = [];
     for (const r of rows) {
@@ -143,8 +141,7 @@ export function createTaxaGrid(db: Database, options: TaxaGridOptions = {}) {
       }
       touched.push(existing);
     }
-    copy.byName = mergeIntoNameOrder(copy.columns, copy.byName, touched);
-    copy.derived = new Map();
+    copy.derived.rowsChanged(touched);
   }
 
   /** The taxa changed by transactions the copy's snapshot cannot see, and the snapshot they were found at. */
@@ -267,7 +264,7 @@ export function createTaxaGrid(db: Database, options: TaxaGridOptions = {}) {
       // From here to the return nothing waits, so the copy cannot change underneath.
       const copy = entry.copy!;
       const test = rowTest(copy.columns, copy.derived, query, codebook, threads);
-      const order = sortedOrder(copy.columns, copy.derived, copy.byName, query.sort, query.dir, codebook);
+      const order = copy.derived.sortedOrder(query.sort, query.dir, codebook);
       const { rows, total } = pageOf(order, test, (query.page - 1) * query.pageSize, query.pageSize);
       return { ids: rows.map((row) => copy.columns.ids[row]), total };
     },

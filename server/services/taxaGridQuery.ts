@@ -81,14 +81,6 @@ function traitOf(codebook: Map<string, Trait>, id: string, what: string): Trait 
   return trait;
 }
 
-/** Things derived from the columns (lower-cased texts, sorted orders), dropped whenever the copy changes. */
-export type DerivedCache = Map<string, unknown>;
-
-function derived<T>(cache: DerivedCache, key: string, build: () => T): T {
-  if (!cache.has(key)) cache.set(key, build());
-  return cache.get(key) as T;
-}
-
 export type RowTest = (row: number) => boolean;
 
 /**
@@ -97,13 +89,13 @@ export type RowTest = (row: number) => boolean;
  */
 export function rowTest(
   columns: GridColumns,
-  cache: DerivedCache,
+  derived: GridDerived,
   query: Pick<TaxaListQuery, "filter" | "missing" | "hasOpenThread">,
   codebook: Map<string, Trait>,
   taxaWithOpenThreads: ReadonlySet<string> | null,
 ): RowTest {
   const tests: RowTest[] = [];
-  for (const f of query.filter) tests.push(filterTest(columns, cache, f, codebook));
+  for (const f of query.filter) tests.push(filterTest(columns, derived, f, codebook));
   for (const column of query.missing) tests.push(missingTest(columns, column, codebook));
   if (query.hasOpenThread !== undefined) {
     if (!taxaWithOpenThreads) throw new Error("rowTest: the open-thread filter needs the taxa with open threads");
@@ -119,7 +111,7 @@ export function rowTest(
   };
 }
 
-function filterTest(columns: GridColumns, cache: DerivedCache, f: TaxaColumnFilter, codebook: Map<string, Trait>): RowTest {
+function filterTest(columns: GridColumns, derived: GridDerived, f: TaxaColumnFilter, codebook: Map<string, Trait>): RowTest {
   const what = `filter ${f.column}:${f.op}`;
   const notApplicable = () => badRequest(`${what}: ${f.op} does not apply to ${f.column}`, { filter: `${f.op} does not apply to ${f.column}` });
   if (isTextColumn(f.column)) {
@@ -127,7 +119,7 @@ function filterTest(columns: GridColumns, cache: DerivedCache, f: TaxaColumnFilt
     if (f.op === "eq") return (row) => values[row] === f.value;
     if (f.op !== "contains") throw notApplicable();
     // Case-blind substring; % and _ are ordinary characters.
-    const lower = derived(cache, `lower:${f.column}`, () => values.map((v) => (v === null ? null : v.toLowerCase())));
+    const lower = derived.lowerCased(f.column);
     const needle = f.value.toLowerCase();
     return (row) => {
       const v = lower[row];
@@ -170,31 +162,150 @@ function missingTest(columns: GridColumns, column: string, codebook: Map<string,
   return (row) => values[row] === undefined;
 }
 
-/** Live rows by name, then id: the base order every other order refines. */
-export function nameOrder(columns: GridColumns): Int32Array {
-  const rows: number[] = [];
-  for (let i = 0; i < columns.ids.length; i++) if (columns.alive[i]) rows.push(i);
-  return Int32Array.from(rows.sort(byName(columns)));
-}
-
 const byName =
   ({ names, ids }: GridColumns) =>
   (a: number, b: number): number =>
     compareText(names[a], names[b]) || compareText(ids[a], ids[b]);
 
+const traitValueAt = (columns: GridColumns, traitId: string, row: number): TraitValue | undefined => columns.traitColumns.get(traitId)?.[row];
+
+function numericKey(v: TraitValue | undefined): number {
+  return typeof v === "number" ? v : typeof v === "string" && v.trim() !== "" ? Number(v) : NaN;
+}
+
+/** A sorted order of the live rows, and the comparison that defines it (used to merge changed rows in). */
+interface KeptOrder {
+  rows: Int32Array;
+  compare: (a: number, b: number) => number;
+  usedAt: number;
+}
+
+/** Sorted orders beyond this many are dropped, least recently used first: each costs a pass per change. */
+const MAX_KEPT_ORDERS = 8;
+
 /**
- * The name order after some rows changed: the unchanged rows keep their places and the changed
- * ones (still alive) are merged in, so a few edits cost one pass instead of a new sort.
+ * What the grid derives from a copy's columns, built on first use and kept current as rows change:
+ * lower-cased texts for the case-blind filters, and the sorted orders. A few changed rows are merged
+ * into each order in one pass instead of a new sort.
  */
-export function mergeIntoNameOrder(columns: GridColumns, previous: Int32Array, changedRows: Iterable<number>): Int32Array {
-  const changed = new Set(changedRows);
-  const compare = byName(columns);
-  const added = [...changed].filter((row) => columns.alive[row]).sort(compare);
-  const merged = new Int32Array(previous.length - countIn(previous, changed) + added.length);
+export class GridDerived {
+  private readonly lowered = new Map<TextColumn, Array<string | null>>();
+  private readonly numbers = new Map<string, number[]>();
+  private readonly orders = new Map<string, KeptOrder>();
+  private clock = 0;
+
+  constructor(private readonly columns: GridColumns) {}
+
+  lowerCased(column: TextColumn): ReadonlyArray<string | null> {
+    let lower = this.lowered.get(column);
+    if (!lower) {
+      lower = textColumn(this.columns, column).map((v) => (v === null ? null : v.toLowerCase()));
+      this.lowered.set(column, lower);
+    }
+    return lower;
+  }
+
+  /** Live rows by name, then id: the order every other order refines. */
+  nameOrder(): Int32Array {
+    return this.kept("name", byName(this.columns), () => {
+      const rows: number[] = [];
+      for (let i = 0; i < this.columns.ids.length; i++) if (this.columns.alive[i]) rows.push(i);
+      return Int32Array.from(rows.sort(byName(this.columns)));
+    }).rows;
+  }
+
+  /**
+   * Live rows in the order of a sort: by the key in the asked direction with missing keys last, ties
+   * by name then id. Built from the name order by a stable sort on the key alone (or, for states, by
+   * one bucket per state), so ties never compare names again.
+   */
+  sortedOrder(sort: string, dir: "asc" | "desc", codebook: Map<string, Trait>): Int32Array {
+    const { columns } = this;
+    if (sort === "name") {
+      const ascending = this.nameOrder();
+      if (dir === "asc") return ascending;
+      const names = byName(columns);
+      return this.kept("name:desc", (a, b) => names(b, a), () => ascending.slice().reverse()).rows;
+    }
+    const trait = isTextColumn(sort) || isAgeColumn(sort) || sort === "updatedAt" ? null : traitOf(codebook, sort, "sort");
+    const sign = dir === "asc" ? 1 : -1;
+    if (trait && trait.kind !== "numeric") {
+      const codes = trait.states.map((s) => s.code);
+      const place = new Map(codes.map((code, i) => [code, i]));
+      // No value, or a code the codebook no longer has, sorts with the missing.
+      const placeOf = (row: number) => place.get(traitValueAt(columns, trait.id, row) as string);
+      return this.keyed(`${sort}:${dir}:${JSON.stringify(codes)}`, (row) => placeOf(row) === undefined, (a, b) => sign * (placeOf(a)! - placeOf(b)!), () =>
+        bucketOrder(this.nameOrder(), placeOf, codes.length, dir),
+      ).rows;
+    }
+    if (isTextColumn(sort)) {
+      // Empty higher taxa and notes count as missing.
+      const values = textColumn(columns, sort);
+      return this.keyed(`${sort}:${dir}`, (row) => !values[row], (a, b) => sign * compareText(values[a]!, values[b]!)).rows;
+    }
+    const numbers = trait ? this.traitNumbers(trait.id) : sort === "updatedAt" ? columns.updatedAt : ageColumn(columns, sort as AgeColumn);
+    return this.keyed(`${sort}:${dir}`, (row) => Number.isNaN(numbers[row]), (a, b) => sign * (numbers[a] - numbers[b])).rows;
+  }
+
+  /** A numeric trait's values as sort keys (NaN where missing). */
+  private traitNumbers(traitId: string): number[] {
+    let keys = this.numbers.get(traitId);
+    if (!keys) {
+      keys = new Array<number>(this.columns.ids.length);
+      for (let row = 0; row < keys.length; row++) keys[row] = numericKey(traitValueAt(this.columns, traitId, row));
+      this.numbers.set(traitId, keys);
+    }
+    return keys;
+  }
+
+  /** Brings every derived thing up to date after the given rows changed, were added or removed. */
+  rowsChanged(rows: number[]): void {
+    const touched = [...new Set(rows)];
+    for (const [column, lower] of this.lowered) {
+      const values = textColumn(this.columns, column);
+      for (const row of touched) lower[row] = values[row] === null ? null : values[row]!.toLowerCase();
+    }
+    for (const [traitId, keys] of this.numbers) for (const row of touched) keys[row] = numericKey(traitValueAt(this.columns, traitId, row));
+    const mark = new Uint8Array(this.columns.ids.length);
+    for (const row of touched) mark[row] = 1;
+    for (const order of this.orders.values()) order.rows = mergeRows(order.rows, touched, mark, this.columns.alive, order.compare);
+  }
+
+  private keyed(name: string, isMissing: (row: number) => boolean, compareKeys: (a: number, b: number) => number, build?: () => Int32Array): KeptOrder {
+    const names = byName(this.columns);
+    const compare = (a: number, b: number): number => {
+      const missingA = isMissing(a);
+      if (missingA !== isMissing(b)) return missingA ? 1 : -1;
+      return (missingA ? 0 : compareKeys(a, b)) || names(a, b);
+    };
+    return this.kept(name, compare, build ?? (() => keyedOrder(this.nameOrder(), isMissing, compareKeys)));
+  }
+
+  private kept(name: string, compare: (a: number, b: number) => number, build: () => Int32Array): KeptOrder {
+    let order = this.orders.get(name);
+    if (!order) {
+      order = { rows: build(), compare, usedAt: 0 };
+      if (this.orders.size >= MAX_KEPT_ORDERS) {
+        const [oldest] = [...this.orders.entries()].filter(([key]) => key !== "name").sort((a, b) => a[1].usedAt - b[1].usedAt)[0];
+        this.orders.delete(oldest);
+      }
+      this.orders.set(name, order);
+    }
+    order.usedAt = ++this.clock;
+    return order;
+  }
+}
+
+/** The previous order without the changed rows, with the changed rows that are alive merged back in. */
+function mergeRows(previous: Int32Array, touched: number[], mark: Uint8Array, alive: boolean[], compare: (a: number, b: number) => number): Int32Array {
+  const added = touched.filter((row) => alive[row]).sort(compare);
+  let kept = 0;
+  for (const row of previous) if (!mark[row]) kept++;
+  const merged = new Int32Array(kept + added.length);
   let out = 0;
   let next = 0;
   for (const row of previous) {
-    if (changed.has(row)) continue;
+    if (mark[row]) continue;
     while (next < added.length && compare(added[next], row) < 0) merged[out++] = added[next++];
     merged[out++] = row;
   }
@@ -202,58 +313,20 @@ export function mergeIntoNameOrder(columns: GridColumns, previous: Int32Array, c
   return merged;
 }
 
-function countIn(order: Int32Array, rows: Set<number>): number {
-  let n = 0;
-  for (const row of order) if (rows.has(row)) n++;
-  return n;
-}
-
-/**
- * Live rows in the order of a sort: by the key in the asked direction with missing keys last, ties
- * by name then id. Built from the name order by a stable sort on the key alone (or, for states, by
- * placing rows into one bucket per state), so ties never compare names again.
- */
-export function sortedOrder(columns: GridColumns, cache: DerivedCache, byNameOrder: Int32Array, sort: string, dir: "asc" | "desc", codebook: Map<string, Trait>): Int32Array {
-  if (sort === "name") return dir === "asc" ? byNameOrder : derived(cache, "order:name:desc", () => byNameOrder.slice().reverse());
-  const trait = isTextColumn(sort) || isAgeColumn(sort) || sort === "updatedAt" ? null : traitOf(codebook, sort, "sort");
-  const stateCodes = trait && trait.kind !== "numeric" ? trait.states.map((s) => s.code) : null;
-  const key = `order:${sort}:${dir}:${stateCodes ? JSON.stringify(stateCodes) : ""}`;
-  return derived(cache, key, () => {
-    if (stateCodes) return bucketOrder(byNameOrder, traitColumn(columns, trait!.id), stateCodes, dir);
-    if (isTextColumn(sort)) {
-      // Empty higher taxa and notes count as missing.
-      const values = textColumn(columns, sort);
-      return keyedOrder(byNameOrder, (row) => !values[row], (a, b) => compareText(values[a]!, values[b]!), dir);
-    }
-    const numbers = trait ? numericKeys(traitColumn(columns, trait.id)) : sort === "updatedAt" ? columns.updatedAt : ageColumn(columns, sort as AgeColumn);
-    return keyedOrder(byNameOrder, (row) => Number.isNaN(numbers[row]), (a, b) => numbers[a] - numbers[b], dir);
-  });
-}
-
-function numericKeys(values: ReadonlyArray<TraitValue | undefined>): number[] {
-  const keys = new Array<number>(values.length);
-  for (let i = 0; i < values.length; i++) {
-    const v = values[i];
-    keys[i] = typeof v === "number" ? v : typeof v === "string" && v.trim() !== "" ? Number(v) : NaN;
-  }
-  return keys;
-}
-
-function keyedOrder(byNameOrder: Int32Array, isMissing: (row: number) => boolean, compare: (a: number, b: number) => number, dir: "asc" | "desc"): Int32Array {
+function keyedOrder(byNameOrder: Int32Array, isMissing: (row: number) => boolean, compareKeys: (a: number, b: number) => number): Int32Array {
   const present: number[] = [];
   const missing: number[] = [];
   for (const row of byNameOrder) (isMissing(row) ? missing : present).push(row);
   // Array.prototype.sort is stable, so rows with equal keys stay in name order.
-  present.sort(dir === "asc" ? compare : (a, b) => compare(b, a));
+  present.sort(compareKeys);
   return Int32Array.from([...present, ...missing]);
 }
 
-function bucketOrder(byNameOrder: Int32Array, values: ReadonlyArray<TraitValue | undefined>, codes: string[], dir: "asc" | "desc"): Int32Array {
-  const place = new Map(codes.map((code, i) => [code, i]));
-  const buckets = codes.map(() => [] as number[]);
-  const missing: number[] = []; // no value, or a code the codebook no longer has
+function bucketOrder(byNameOrder: Int32Array, placeOf: (row: number) => number | undefined, places: number, dir: "asc" | "desc"): Int32Array {
+  const buckets = Array.from({ length: places }, () => [] as number[]);
+  const missing: number[] = [];
   for (const row of byNameOrder) {
-    const at = place.get(values[row] as string);
+    const at = placeOf(row);
     if (at === undefined) missing.push(row);
     else buckets[at].push(row);
   }

@@ -209,6 +209,27 @@ describe("the grid copy is never stale", () => {
     expect(now.ids).not.toContain(id);
   });
 
+  it("keeps every sorted order it holds right through a handful of edits (merged in, not re-sorted)", async () => {
+    const t = study.trait;
+    const sorts: GridQuery[] = [
+      { sort: t.body_size.id },
+      { sort: t.life_habit.id, dir: "desc" },
+      { sort: "higherTaxon" },
+      { sort: "fadMa", dir: "desc" },
+      { sort: "name", dir: "desc" },
+      { sort: "name", filter: ["name:contains:ORE"] },
+    ];
+    for (const q of sorts) await expectSameAsOracle(q);
+    const rows = (await app.ctx.db.execute(sql`SELECT id FROM taxa WHERE study_id = ${study.studyId} AND deleted_at IS NULL ORDER BY id LIMIT 5`)).rows as Array<{ id: string }>;
+    const [a, b, c, d, e] = rows.map((r) => r.id);
+    await app.ctx.db.execute(sql`UPDATE taxa SET trait_values = trait_values - ${t.body_size.id} WHERE id = ${a}`);
+    await app.ctx.db.execute(sql`UPDATE taxa SET trait_values = trait_values || jsonb_build_object(${t.life_habit.id}::text, 'nektonic') WHERE id = ${b}`);
+    await app.ctx.db.execute(sql`UPDATE taxa SET higher_taxon = '', fad_ma = 99.5, name = 'Borea invented renamed' WHERE id = ${c}`);
+    await app.ctx.db.execute(sql`UPDATE taxa SET deleted_at = now() WHERE id = ${d}`);
+    await app.ctx.db.execute(sql`UPDATE taxa SET trait_values = trait_values || jsonb_build_object(${t.body_size.id}::text, 2.5), fad_ma = NULL WHERE id = ${e}`);
+    for (const q of sorts) await expectSameAsOracle(q);
+  });
+
   it("reads the study again whole when most of it changed, and still agrees with SQL", async () => {
     await gridIds({});
     await app.ctx.db.execute(sql`UPDATE taxa SET trait_values = trait_values || jsonb_build_object(${study.trait.geographic_range.id}::text, 11 - (trait_values ->> ${study.trait.geographic_range.id})::float8)
