@@ -26,6 +26,8 @@ interface StudyCopy {
   liveCount: number;
   deadCount: number;
   derived: GridDerived;
+  /** One instance of each repeated text. */
+  texts: Map<string, string>;
   /** pg_current_snapshot() text and its xmin: every change the copy lacks comes from a transaction at or after xmin that this snapshot cannot see. */
   snapshot: string;
   snapshotXmin: string;
@@ -62,6 +64,8 @@ const COPY_MAX_SILENCE_MS = 60 * 60 * 1000;
 /** Copies nobody asked for in this long are dropped to free memory. */
 const IDLE_DROP_MS = 30 * 60 * 1000;
 const PRUNE_EVERY_MS = 10 * 60 * 1000;
+/** Distinct texts shared per copy; beyond this (free-text values) rows keep their own. */
+const MAX_SHARED_TEXTS = 20_000;
 
 const GRID_COLUMNS = sql`t.id, t.name, t.higher_taxon, t.notes, t.fad_ma, t.lad_ma, t.fad_interval, t.lad_interval,
   extract(epoch FROM t.updated_at)::float8 AS updated, t.trait_values, t.deleted_at IS NOT NULL AS removed`;
@@ -73,14 +77,23 @@ export function createTaxaGrid(db: Database, options: TaxaGridOptions = {}) {
 
   function setRow(copy: StudyCopy, row: number, r: TaxonGridRow): void {
     const c = copy.columns;
+    // Texts that repeat across taxa (states, higher taxa, intervals) are kept once: each row read
+    // from the database brings its own copy, which for 100,000 taxa would double the memory.
+    const shared = <T extends string | null>(text: T): T => {
+      if (text === null) return text;
+      const known = copy.texts.get(text);
+      if (known !== undefined) return known as T;
+      if (copy.texts.size < MAX_SHARED_TEXTS) copy.texts.set(text, text);
+      return text;
+    };
     c.ids[row] = r.id;
     c.names[row] = r.name;
-    c.higherTaxa[row] = r.higher_taxon;
+    c.higherTaxa[row] = shared(r.higher_taxon);
     c.notes[row] = r.notes;
     c.fadMa[row] = r.fad_ma ?? NaN;
     c.ladMa[row] = r.lad_ma ?? NaN;
-    c.fadIntervals[row] = r.fad_interval;
-    c.ladIntervals[row] = r.lad_interval;
+    c.fadIntervals[row] = shared(r.fad_interval);
+    c.ladIntervals[row] = shared(r.lad_interval);
     c.updatedAt[row] = r.updated;
     c.alive[row] = !r.removed;
     for (const values of c.traitColumns.values()) values[row] = undefined;
@@ -90,7 +103,7 @@ export function createTaxaGrid(db: Database, options: TaxaGridOptions = {}) {
         values = new Array<TraitValue | undefined>(c.ids.length).fill(undefined);
         c.traitColumns.set(traitId, values);
       }
-      values[row] = value ?? undefined;
+      values[row] = typeof value === "string" ? shared(value) : (value ?? undefined);
     }
   }
 
@@ -111,6 +124,7 @@ export function createTaxaGrid(db: Database, options: TaxaGridOptions = {}) {
       liveCount: rows.length,
       deadCount: 0,
       derived: new GridDerived(columns),
+      texts: new Map(),
       snapshot,
       snapshotXmin,
       syncedAt: Date.now(),
