@@ -10,6 +10,10 @@ import { createTestApp, PASSWORD, type TestApp } from "../support/server";
 import { importCsv, studyWithCodebook, type CodebookStudy } from "../support/traitTables";
 import { castOfRoles, type Cast } from "./fixtures";
 import { createUniformSource } from "@shared/stats/random";
+import { randomUUID } from "node:crypto";
+import { createTaxaGrid } from "../../server/services/taxaGrid";
+import { loadCodebook } from "../../server/services/taxonState";
+import { taxaListQuerySchema } from "../../shared/schemas/taxa";
 
 let app: TestApp;
 let cast: Cast;
@@ -259,5 +263,38 @@ describe("the grid copy is never stale", () => {
     } finally {
       await other.close();
     }
+  });
+});
+
+describe("the grid copies' memory and log upkeep", () => {
+  it("drops the least recently used study's copy beyond GRID_MAX_TAXA and reads it again when asked", async () => {
+    const other = await studyWithCodebook(app, cast, "Invented second grid-copy study");
+    const { commit } = await importCsv(
+      cast.people.coder.agent,
+      other,
+      ["name,higher_taxon,first_appearance,last_appearance,environment,life_habit,feeding,body_size,geographic_range", "Invented one,,,,,,,,", "Invented two,,,,,,,,", "Invented three,,,,,,,,"].join("\n"),
+    );
+    expect(commit.status).toBe(200);
+    const grid = createTaxaGrid(app.ctx.db, { maxTaxa: 100 });
+    const codebookOf = async (s: CodebookStudy) => new Map((await loadCodebook(app.ctx.db, s.studyId)).map((t) => [t.id, t]));
+    const everything = taxaListQuerySchema.parse({ pageSize: "500" });
+    const first = await grid.page(study.studyId, everything, await codebookOf(study));
+    expect(grid.heldTaxa()).toBe(first.total);
+    const second = await grid.page(other.studyId, everything, await codebookOf(other));
+    expect(second.total).toBe(3);
+    // Both would exceed the limit, so the first study's copy went (a single study is always kept).
+    expect(grid.heldTaxa()).toBe(3);
+    expect(await grid.page(study.studyId, everything, await codebookOf(study))).toEqual(first);
+    expect(grid.heldTaxa()).toBe(first.total);
+  });
+
+  it("prunes log entries older than six hours and keeps recent ones", async () => {
+    const grid = createTaxaGrid(app.ctx.db);
+    const studyId = randomUUID();
+    await app.ctx.db.execute(sql`INSERT INTO taxa_changes (study_id, taxon_id, changed_at) VALUES
+      (${studyId}, ${randomUUID()}, now() - interval '7 hours'), (${studyId}, ${randomUUID()}, now() - interval '5 hours')`);
+    await grid.prune();
+    const left = await app.ctx.db.execute(sql`SELECT changed_at > now() - interval '6 hours' AS recent FROM taxa_changes WHERE study_id = ${studyId}`);
+    expect(left.rows).toEqual([{ recent: true }]);
   });
 });
