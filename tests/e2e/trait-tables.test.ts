@@ -158,12 +158,26 @@ describe("trait tables", () => {
       await page.keyboard.press("Escape");
       expect(await shown("Vessiraspis minor", "Body size")).toBe("120 mm");
 
-      // Replacing a recorded value asks why.
+      // Replacing a recorded value asks why; giving up there leaves the value, and the focus on
+      // the cell (Enter would otherwise have moved it to the row below).
+      await cell("Tethyconcha lata", "Body size").click();
+      await page.keyboard.press("Enter");
+      await page.getByLabel("Body size of Tethyconcha lata").fill("3.5");
+      await page.keyboard.press("Enter");
+      const ask = page.getByRole("dialog", { name: "Why change this value?" });
+      await ask.waitFor();
+      await page.keyboard.press("Escape");
+      await ask.waitFor({ state: "hidden" });
+      const focused = () =>
+        page.evaluate(() => ({ column: document.activeElement?.getAttribute("data-column"), row: document.activeElement?.closest("[role=row]")?.textContent ?? "" }));
+      await expect.poll(async () => (await focused()).column).toBe("Body size");
+      expect((await focused()).row).toContain("Tethyconcha lata");
+      expect(await shown("Tethyconcha lata", "Body size")).toBe("35 mm");
+
       await cell("Vessiraspis minor", "Body size").click();
       await page.keyboard.press("Enter");
       await editor.fill("12");
       await page.keyboard.press("Enter");
-      const ask = page.getByRole("dialog", { name: "Why change this value?" });
       await ask.waitFor();
       expect(await ask.innerText()).toContain("120 mm");
       await ask.getByRole("button", { name: "Save change" }).click();

@@ -95,7 +95,8 @@ export interface TaxaGridProps {
   savingCells: ReadonlySet<string>;
   /** Grey the rows while a new page loads (the previous one stays visible). */
   stale: boolean;
-  onCommit: (row: TaxonRow, column: GridColumn, change: CellChange) => void;
+  /** "asking" when the change waits for a reason first: the grid then stays on the cell. */
+  onCommit: (row: TaxonRow, column: GridColumn, change: CellChange) => "sending" | "asking";
   onShowHistory: (row: TaxonRow, column: GridColumn) => void;
   /** Traits with an open thread about the trait itself (its coding rule): their headers are marked. */
   openTraitThreads?: ReadonlySet<string>;
@@ -278,8 +279,10 @@ export function TaxaGrid(props: TaxaGridProps) {
   function finishEdit(change: CellChange | null, move: "stay" | "down" | "right" | "left") {
     setEditing(null);
     const c = columnIds.indexOf(columnId);
-    if (change && activeRow && activeGridColumn) onCommit(activeRow, activeGridColumn, change);
-    if (move === "down") moveTo(rowIndex + 1, c);
+    const asking = change && activeRow && activeGridColumn ? onCommit(activeRow, activeGridColumn, change) === "asking" : false;
+    // While a reason is asked for, the edit has not happened: stay, so focus comes back here.
+    if (asking) moveTo(rowIndex, c);
+    else if (move === "down") moveTo(rowIndex + 1, c);
     else if (move === "right") moveTo(rowIndex, c + 1);
     else if (move === "left") moveTo(rowIndex, c - 1);
     else moveTo(rowIndex, c);

@@ -75,10 +75,14 @@ export function useCellEdits(studyId: string, traits: Map<string, Trait>) {
     );
   }
 
-  function commit(row: TaxonRow, column: GridColumn, change: CellChange) {
+  function commit(row: TaxonRow, column: GridColumn, change: CellChange): "sending" | "asking" {
     const edit: PendingEdit = { row, column, change, version: row.version, reason: "" };
-    if (isEmptyValue(change.oldValue)) send(edit);
-    else setAskReason(edit);
+    if (isEmptyValue(change.oldValue)) {
+      send(edit);
+      return "sending";
+    }
+    setAskReason(edit);
+    return "asking";
   }
 
   const field = askReason ? fieldOf(askReason.column) : "";
