@@ -47,6 +47,12 @@ export class JobQueue {
     return id;
   }
 
+  /** Whether a job still waits for a process or is being worked (false once it ended, expired or vanished). */
+  async isPending(name: string, id: string): Promise<boolean> {
+    const job = await this.boss.getJobById(name, id);
+    return job !== null && (job.state === "created" || job.state === "retry" || job.state === "active");
+  }
+
   async stop(): Promise<void> {
     if (!this.started) return;
     this.started = false;

@@ -405,7 +405,17 @@ export function createRunService(db: Database, runtime: RunRuntime, sources: Run
     const row = await db.transaction(async (tx) => {
       const [created] = await tx
         .insert(runs)
-        .values({ studyId, name: params.name, params: params as unknown as Record<string, unknown>, appVersion: APP_VERSION, rerunOf, createdBy: user.id, progressNote: "Waiting for a process to take the job" })
+        .values({
+          studyId,
+          name: params.name,
+          params: params as unknown as Record<string, unknown>,
+          appVersion: APP_VERSION,
+          rerunOf,
+          createdBy: user.id,
+          progressNote: "Waiting for a process to take the job",
+          // While queued, the heartbeat says when the attempt was queued (the lost-job sweep reads it).
+          heartbeatAt: sql`now()`,
+        })
         .returning();
       await tx.insert(activity).values({
         studyId,
@@ -540,6 +550,34 @@ export function createRunService(db: Database, runtime: RunRuntime, sources: Run
       swept.push(run.id);
       await recordFinish(run, "failed", reason);
     }
+    return [...swept, ...(await sweepLostJobs())];
+  }
+
+  /**
+   * Marks failed, with the reason, queued runs whose job no process can take any more: never sent
+   * (the process stopped between saving the run and queueing it) or ended without the run being
+   * claimed. A run whose job still waits, however long, is left alone.
+   */
+  async function sweepLostJobs(): Promise<string[]> {
+    const queued = await db
+      .select({ id: runs.id, studyId: runs.studyId, name: runs.name, createdBy: runs.createdBy, attempt: runs.attempt, jobId: runs.jobId })
+      .from(runs)
+      .where(and(eq(runs.status, "queued"), sql`coalesce(${runs.heartbeatAt}, ${runs.createdAt}) < now() - make_interval(secs => ${STALE_AFTER_SECONDS})`));
+    const swept: string[] = [];
+    for (const run of queued) {
+      if (run.jobId && (await runtime.jobs.isPending(SELECTIVITY_RUN_JOB, run.jobId))) continue;
+      const reason = run.jobId
+        ? "The queue dropped this run's job before any process took it. Retry to queue it again."
+        : "This run was saved but never reached the job queue (the process stopped in between). Retry to queue it.";
+      const [failed] = await db
+        .update(runs)
+        .set({ status: "failed", error: reason, finishedAt: sql`now()`, progressNote: "Not started" })
+        .where(and(eq(runs.id, run.id), eq(runs.attempt, run.attempt), eq(runs.status, "queued"), run.jobId ? eq(runs.jobId, run.jobId) : sql`${runs.jobId} IS NULL`))
+        .returning({ id: runs.id });
+      if (!failed) continue;
+      swept.push(run.id);
+      await recordFinish(run, "failed", reason);
+    }
     return swept;
   }
 
@@ -651,7 +689,7 @@ export function createRunService(db: Database, runtime: RunRuntime, sources: Run
             appVersion: APP_VERSION,
             startedAt: null,
             finishedAt: null,
-            heartbeatAt: null,
+            heartbeatAt: sql`now()`,
           })
           .where(and(eq(runs.id, runId), eq(runs.studyId, studyId), eq(runs.status, "failed")))
           .returning();

@@ -335,7 +335,7 @@ export const runSummarySchema = z
     createdAt: isoDateSchema,
     startedAt: isoDateSchema.nullable(),
     finishedAt: isoDateSchema.nullable(),
-    heartbeatAt: isoDateSchema.nullable().meta({ description: "Last sign of life of the process computing the run" }),
+    heartbeatAt: isoDateSchema.nullable().meta({ description: "Last sign of life of the process computing the run; while queued, when the attempt was queued" }),
   })
   .meta({ id: "RunSummary" });
 export type RunSummary = z.infer<typeof runSummarySchema>;

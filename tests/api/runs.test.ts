@@ -5,7 +5,10 @@
 // interrupted run is swept to failed and can be retried.
 import { readFileSync } from "node:fs";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { and, eq, sql } from "drizzle-orm";
+import { and, eq, inArray, sql } from "drizzle-orm";
+import { randomUUID } from "node:crypto";
+import PgBoss from "pg-boss";
+import { SELECTIVITY_RUN_JOB } from "../../server/services/runs";
 import Papa from "papaparse";
 import { activity, runs, taxa, traits } from "../../db/schema/index";
 import { runParamsSchema, type Run, type RunDiff, type RunList, type RunParamsInput, type RunPreview } from "../../shared/schemas/runs";
@@ -484,5 +487,56 @@ describe("a run interrupted by a crash", () => {
     const done = await finished(stopped.id);
     expect(done.status, done.error ?? "").toBe("succeeded");
     expect(done.results!.boundaries[0].result.design).toMatchObject({ victims: VICTIMS, survivors: SURVIVORS });
+  });
+});
+
+describe("a queued run whose job was lost", () => {
+  it("is marked failed with the reason when its job is gone or was never sent, and left alone while its job waits", async () => {
+    const stored = runParamsSchema.parse(params({ name: "Queued" }));
+    const insert = (name: string, jobId: string | null, queuedSecondsAgo: number) =>
+      app.ctx.db
+        .insert(runs)
+        .values({
+          studyId,
+          name,
+          params: { ...stored, name } as unknown as Record<string, unknown>,
+          appVersion: APP_VERSION,
+          status: "queued",
+          jobId,
+          createdBy: cast.people.analyst.user.id,
+          heartbeatAt: sql`now() - make_interval(secs => ${queuedSecondsAgo})`,
+        })
+        .returning();
+    // A real job that waits in the queue for an hour (no process takes it before then).
+    const boss = new PgBoss({ connectionString: process.env.DATABASE_URL!, schedule: false, supervise: false });
+    await boss.start();
+    try {
+      const [waiting] = await insert("Waiting behind a long queue", null, 600);
+      const waitingJob = await boss.send(SELECTIVITY_RUN_JOB, { runId: waiting.id, attempt: 1 }, { startAfter: 3600 });
+      await app.ctx.db.update(runs).set({ jobId: waitingJob }).where(eq(runs.id, waiting.id));
+      const [dropped] = await insert("Job dropped", randomUUID(), 600);
+      const [neverSent] = await insert("Never queued", null, 600);
+      const [justQueued] = await insert("Just queued", null, 1);
+
+      const swept = await app.ctx.services.runs.sweepInterrupted();
+      expect(swept).toEqual(expect.arrayContaining([dropped.id, neverSent.id]));
+      const read = async (id: string) => (await cast.people.viewer.agent.get(`/api/studies/${studyId}/runs/${id}`)).body as Run;
+      expect(await read(dropped.id)).toMatchObject({ status: "failed", error: "The queue dropped this run's job before any process took it. Retry to queue it again." });
+      expect(await read(neverSent.id)).toMatchObject({
+        status: "failed",
+        error: "This run was saved but never reached the job queue (the process stopped in between). Retry to queue it.",
+      });
+      expect((await read(waiting.id)).status).toBe("queued");
+      expect((await read(justQueued.id)).status).toBe("queued");
+
+      // A retry queues it again, now with a job that a process takes.
+      const retried = await cast.people.analyst.agent.post(`/api/studies/${studyId}/runs/${neverSent.id}/retry`);
+      expect(retried.status, JSON.stringify(retried.body)).toBe(202);
+      expect((await finished(neverSent.id)).status).toBe("succeeded");
+      await boss.cancel(SELECTIVITY_RUN_JOB, waitingJob!);
+      await app.ctx.db.delete(runs).where(inArray(runs.id, [waiting.id, justQueued.id]));
+    } finally {
+      await boss.stop({ graceful: false });
+    }
   });
 });
