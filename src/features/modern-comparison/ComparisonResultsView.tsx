@@ -93,7 +93,7 @@ export function ComparisonResultsView({ comparison, print = false }: { compariso
             <Figure label="Area under the ROC curve" value="—" detail={r.rocNote} />
           )}
           {r.spearman ? (
-            <Figure label="Spearman’s rho with the category" value={formatTwo(r.spearman.rho)} detail={`${formatP(r.spearman.pValue)}, ${pluralize(r.spearman.n, "species", "species")}`} />
+            <Figure label="Spearman’s rho with the category" value={formatTwo(r.spearman.rho)} detail={`${formatP(r.spearman.pValue)} by the t approximation on ${r.spearman.df} df, ${pluralize(r.spearman.n, "species", "species")}`} />
           ) : (
             <Figure label="Spearman’s rho with the category" value="—" detail={r.spearmanNote} />
           )}
