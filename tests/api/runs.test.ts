@@ -5,7 +5,7 @@
 // interrupted run is swept to failed and can be retried.
 import { readFileSync } from "node:fs";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { and, eq, inArray, sql } from "drizzle-orm";
+import { and, eq, inArray, sql, type SQL } from "drizzle-orm";
 import { randomUUID } from "node:crypto";
 import PgBoss from "pg-boss";
 import { SELECTIVITY_RUN_JOB } from "../../server/services/runs";
@@ -444,24 +444,27 @@ describe("a run that cannot be computed", () => {
 
 // ---------------------------------------------------------------- interrupted runs
 
+/** A run row written directly, as a process would have left it, its heartbeat some seconds old. */
+function insertRun(name: string, heartbeatSecondsAgo: number, fields: Omit<Partial<typeof runs.$inferInsert>, "startedAt"> & { startedAt?: SQL }) {
+  const stored = runParamsSchema.parse(params({ name }));
+  return app.ctx.db
+    .insert(runs)
+    .values({
+      studyId,
+      name,
+      params: stored as unknown as Record<string, unknown>,
+      appVersion: APP_VERSION,
+      createdBy: cast.people.analyst.user.id,
+      heartbeatAt: sql`now() - make_interval(secs => ${heartbeatSecondsAgo})`,
+      ...fields,
+    })
+    .returning();
+}
+
 describe("a run interrupted by a crash", () => {
   it("is marked failed with its reason by the sweep, and can be retried", async () => {
-    const stored = runParamsSchema.parse(params({ name: "Interrupted" }));
     const insert = (name: string, heartbeatSecondsAgo: number) =>
-      app.ctx.db
-        .insert(runs)
-        .values({
-          studyId,
-          name,
-          params: { ...stored, name } as unknown as Record<string, unknown>,
-          appVersion: APP_VERSION,
-          status: "running",
-          progress: 0.4,
-          createdBy: cast.people.analyst.user.id,
-          startedAt: sql`now() - interval '15 minutes'`,
-          heartbeatAt: sql`now() - make_interval(secs => ${heartbeatSecondsAgo})`,
-        })
-        .returning();
+      insertRun(name, heartbeatSecondsAgo, { status: "running", progress: 0.4, startedAt: sql`now() - interval '15 minutes'` });
     // A process that stopped ten minutes ago, and one still beating.
     const [stopped] = await insert("Interrupted", 600);
     const [alive] = await insert("Still computing", 1);
@@ -492,21 +495,8 @@ describe("a run interrupted by a crash", () => {
 
 describe("a queued run whose job was lost", () => {
   it("is marked failed with the reason when its job is gone or was never sent, and left alone while its job waits", async () => {
-    const stored = runParamsSchema.parse(params({ name: "Queued" }));
-    const insert = (name: string, jobId: string | null, queuedSecondsAgo: number) =>
-      app.ctx.db
-        .insert(runs)
-        .values({
-          studyId,
-          name,
-          params: { ...stored, name } as unknown as Record<string, unknown>,
-          appVersion: APP_VERSION,
-          status: "queued",
-          jobId,
-          createdBy: cast.people.analyst.user.id,
-          heartbeatAt: sql`now() - make_interval(secs => ${queuedSecondsAgo})`,
-        })
-        .returning();
+    // While queued, the heartbeat holds when the attempt was queued.
+    const insert = (name: string, jobId: string | null, queuedSecondsAgo: number) => insertRun(name, queuedSecondsAgo, { status: "queued", jobId });
     // A real job that waits in the queue for an hour (no process takes it before then).
     const boss = new PgBoss({ connectionString: process.env.DATABASE_URL!, schedule: false, supervise: false });
     await boss.start();
