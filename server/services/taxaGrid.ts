@@ -274,9 +274,11 @@ export function createTaxaGrid(db: Database, options: TaxaGridOptions = {}) {
         entries.set(studyId, entry);
       }
       entry.usedAt = Date.now();
-      await current(entry);
+      // A copy dropped for memory while this request waited is read again.
+      do await current(entry);
+      while (!entry.copy);
       // From here to the return nothing waits, so the copy cannot change underneath.
-      const copy = entry.copy!;
+      const copy = entry.copy;
       const test = rowTest(copy.columns, copy.derived, query, codebook, threads);
       const order = copy.derived.sortedOrder(query.sort, query.dir, codebook);
       const { rows, total } = pageOf(order, test, (query.page - 1) * query.pageSize, query.pageSize);
