@@ -3,6 +3,8 @@ import { studyParamsSchema } from "../../shared/schemas/common";
 import {
   taxaBulkEditSchema,
   taxaBulkResultSchema,
+  taxaIdsQuerySchema,
+  taxaIdsSchema,
   taxaListQuerySchema,
   taxaPageSchema,
   taxonConflictSchema,
@@ -27,7 +29,7 @@ export function taxaRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
   api.add({
     method: "get",
     path: "/studies/:studyId/taxa",
-    summary: "A page of the trait table, sorted and filtered in the database",
+    summary: "A page of the trait table, sorted, filtered and counted on the study's grid copy (never stale), rows read fresh",
     tags: ["taxa"],
     access: "study.read",
     params: studyParamsSchema,
@@ -46,6 +48,19 @@ export function taxaRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
     body: taxonCreateSchema,
     response: { status: 201, schema: taxonSavedSchema },
     handler: ({ params, body, user }) => taxa.create(params.studyId, user!, body),
+  });
+
+  // Before /taxa/:taxonId, which would otherwise take "ids" for a taxon id.
+  api.add({
+    method: "get",
+    path: "/studies/:studyId/taxa/ids",
+    summary: "The ids of every taxon the filters match, in the grid's order (for selecting them all); 400 beyond one bulk edit's limit",
+    tags: ["taxa"],
+    access: "study.read",
+    params: studyParamsSchema,
+    query: taxaIdsQuerySchema,
+    response: { status: 200, schema: taxaIdsSchema },
+    handler: ({ params, query }) => taxa.matchingIds(params.studyId, query),
   });
 
   api.add({

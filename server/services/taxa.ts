@@ -18,7 +18,7 @@ import type {
   TaxonUpdateInput,
   TraitValue,
 } from "../../shared/schemas/taxa";
-import { BULK_FIELDS } from "../../shared/schemas/taxa";
+import { BULK_FIELDS, TAXA_MAX_BULK, type TaxaIds, type TaxaIdsQuery } from "../../shared/schemas/taxa";
 import type { Trait } from "../../shared/schemas/traits";
 import { badRequest, HttpError, notFound } from "../http/errors";
 import { DetailedHttpError } from "../http/detailed";
@@ -137,6 +137,18 @@ export function createTaxonService(db: Database, grid: TaxaGrid = createTaxaGrid
         page: query.page,
         pageSize: query.pageSize,
       };
+    },
+
+    /** Every taxon the filters match, for selecting them all at once (as many as one bulk edit takes). */
+    async matchingIds(studyId: string, query: TaxaIdsQuery): Promise<TaxaIds> {
+      const codebook = new Map((await loadCodebook(db, studyId)).map((t) => [t.id, t]));
+      const { ids, total } = await grid.page(studyId, { ...query, page: 1, pageSize: TAXA_MAX_BULK }, codebook);
+      if (total > TAXA_MAX_BULK) {
+        throw badRequest(`${total.toLocaleString("en-US")} taxa match; one bulk edit takes at most ${TAXA_MAX_BULK.toLocaleString("en-US")}. Narrow the filter.`, {
+          filter: "Too many taxa match",
+        });
+      }
+      return { ids, total };
     },
 
     async get(studyId: string, taxonId: string): Promise<TaxonRow> {

@@ -230,6 +230,18 @@ export const taxaListQuerySchema = z.object({
 });
 export type TaxaListQuery = z.output<typeof taxaListQuerySchema>;
 
+/** GET taxa/ids: the same filters as a page, without paging. */
+export const taxaIdsQuerySchema = taxaListQuerySchema.omit({ page: true, pageSize: true });
+export type TaxaIdsQuery = z.output<typeof taxaIdsQuerySchema>;
+
+export const taxaIdsSchema = z
+  .object({
+    ids: z.array(z.uuid()).meta({ description: `Every matching taxon, in the grid's order (at most ${TAXA_MAX_BULK.toLocaleString("en-US")})` }),
+    total: z.number().int(),
+  })
+  .meta({ id: "TaxaIds" });
+export type TaxaIds = z.infer<typeof taxaIdsSchema>;
+
 export const taxaPageSchema = z
   .object({ rows: z.array(taxonRowSchema), total: z.number().int(), page: z.number().int(), pageSize: z.number().int() })
   .meta({ id: "TaxaPage" });

@@ -224,6 +224,7 @@ const MATRIX: Record<string, Row> = {
     call: async (a, { studyId }) => a.get(`/api/studies/${studyId}/traits/${await codedTrait(app, studyId)}/usage`),
   },
   "GET /api/studies/{studyId}/taxa": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/taxa?pageSize=5`) },
+  "GET /api/studies/{studyId}/taxa/ids": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/taxa/ids`) },
   "POST /api/studies/{studyId}/taxa": { allowed: ["owner", "coder"], call: (a, { studyId }) => a.post(`/api/studies/${studyId}/taxa`).send({ name: `Matrix ${randomUUID()}` }) },
   "POST /api/studies/{studyId}/taxa/bulk": {
     allowed: ["owner", "coder"],

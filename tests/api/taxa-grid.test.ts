@@ -13,7 +13,7 @@ import { createUniformSource } from "@shared/stats/random";
 import { randomUUID } from "node:crypto";
 import { createTaxaGrid } from "../../server/services/taxaGrid";
 import { loadCodebook } from "../../server/services/taxonState";
-import { taxaListQuerySchema } from "../../shared/schemas/taxa";
+import { TAXA_MAX_BULK, taxaListQuerySchema } from "../../shared/schemas/taxa";
 
 let app: TestApp;
 let cast: Cast;
@@ -161,6 +161,31 @@ describe("the grid copy answers what SQL over the table answers", () => {
     expect(third.ids).toEqual(whole.slice(34, 51));
     const beyond = await gridIds(q, 99, 17);
     expect(beyond).toEqual({ ids: [], total: whole.length });
+  });
+});
+
+describe("selecting every matching taxon", () => {
+  it("lists the ids of every taxon the filters match, in the grid's order, beyond one page", async () => {
+    const q: GridQuery = { filter: [`${study.trait.environment.id}:eq:marine`], sort: study.trait.body_size.id, dir: "desc" };
+    const expected = await oracleIds(q);
+    expect(expected.length).toBeGreaterThan(100);
+    const params = new URLSearchParams({ sort: q.sort!, dir: q.dir! });
+    for (const f of q.filter!) params.append("filter", f);
+    const res = await cast.people.viewer.agent.get(`/api/studies/${study.studyId}/taxa/ids?${params}`);
+    expect(res.status, JSON.stringify(res.body)).toBe(200);
+    expect(res.body).toEqual({ ids: expected, total: expected.length });
+  });
+
+  it("refuses, saying how many match, when more taxa match than one bulk edit takes", async () => {
+    const crowded = await studyWithCodebook(app, cast, "Invented crowded study");
+    await app.ctx.db.execute(
+      sql`INSERT INTO taxa (study_id, name) SELECT ${crowded.studyId}, 'Invented crowd ' || lpad(g::text, 5, '0') FROM generate_series(1, ${TAXA_MAX_BULK + 1}) g`,
+    );
+    const res = await cast.people.viewer.agent.get(`/api/studies/${crowded.studyId}/taxa/ids`);
+    expect(res.status).toBe(400);
+    expect(res.body.error.message).toBe("20,001 taxa match; one bulk edit takes at most 20,000. Narrow the filter.");
+    const fewer = await cast.people.viewer.agent.get(`/api/studies/${crowded.studyId}/taxa/ids?filter=name:contains:crowd 0000`);
+    expect(fewer.body).toMatchObject({ total: 9 });
   });
 });
 

@@ -261,8 +261,13 @@ describe("trait tables", () => {
       const names = () => grid.locator("[role=row][data-taxon]").evaluateAll((rows) => rows.map((r) => r.getAttribute("data-taxon")));
       expect(await names()).toEqual(["Nektoteuthis vaga", "Planctella levis"]);
 
-      // Both shown taxa get one feeding mode, with one reason.
+      // Both shown taxa get one feeding mode, with one reason. They can be selected by the page's
+      // checkbox, or as every taxon the filter matches (which reaches beyond the page).
       await grid.getByRole("checkbox", { name: "Select every taxon on this page" }).check();
+      await page.getByText("2 taxa selected").waitFor();
+      await page.getByRole("button", { name: "Clear selection" }).click();
+      await page.getByRole("button", { name: "Select all 2 matching" }).click();
+      await page.getByText("2 taxa selected").waitFor();
       await page.getByRole("button", { name: "Edit selected…" }).click();
       const bulk = page.getByRole("dialog", { name: "Edit 2 selected taxa" });
       await bulk.getByLabel("Column").selectOption({ label: "Feeding mode" });

@@ -1,7 +1,7 @@
 import { useEffect, useMemo, useState } from "react";
 import type { ColumnVisibilityState, RowSelectionState, Updater } from "@tanstack/react-table";
 import { can, ROLE_LABELS } from "@shared/roles";
-import type { TaxaColumnFilter, TaxonRow } from "@shared/schemas/taxa";
+import { TAXA_MAX_BULK, type TaxaColumnFilter, type TaxonRow } from "@shared/schemas/taxa";
 import { Button, ButtonLink } from "../../components/Button";
 import { EmptyState } from "../../components/EmptyState";
 import { ErrorState } from "../../components/ErrorState";
@@ -14,12 +14,14 @@ import { useCurrentStudy } from "../../lib/currentStudy";
 import { formatCount, pluralize } from "../../lib/format";
 import { paths } from "../../lib/paths";
 import { useDocumentTitle } from "../../lib/useDocumentTitle";
+import { errorMessage } from "../../lib/api";
+import { useToast } from "../../components/Toast";
 import { useThreads } from "../../components/threads/api";
-import { codebookCsvUrl, taxaCsvUrl, useTaxaPage, useTraits } from "./api";
+import { codebookCsvUrl, taxaCsvUrl, useMatchingTaxonIds, useTaxaPage, useTraits } from "./api";
 import { BulkEditDialog } from "./BulkEditDialog";
 import { gridColumns, type GridColumn } from "./cellValues";
 import { FilterBar } from "./FilterBar";
-import { addFilter, gridQueryString, initialGridQuery, PAGE_SIZES, type GridQuery } from "./gridQuery";
+import { addFilter, gridQueryString, initialGridQuery, matchingQueryString, PAGE_SIZES, type GridQuery } from "./gridQuery";
 import { HistoryPanel } from "./HistoryPanel";
 import { Popover } from "./Popover";
 import { TaxaGrid } from "./TaxaGrid";
@@ -78,6 +80,8 @@ export function TraitTablePage() {
   const [history, setHistory] = useState<{ row: TaxonRow; column: GridColumn } | null>(null);
   const [bulkOpen, setBulkOpen] = useState(false);
   const edits = useCellEdits(study.id, traitsById);
+  const matching = useMatchingTaxonIds(study.id);
+  const toast = useToast();
   const traitThreads = useThreads(study.id, { targetType: "trait", status: "open", pageSize: 100 });
   const openTraitThreads = useMemo(() => new Set((traitThreads.data?.rows ?? []).map((t) => t.target.id)), [traitThreads.data]);
 
@@ -168,6 +172,22 @@ export function TraitTablePage() {
               {page.isFetching && page.data && <span className="ml-2 text-stone-500">Updating…</span>}
             </p>
             <div className="flex flex-wrap items-center gap-2">
+              {/* Every matching taxon, not just this page's, up to what one bulk edit takes. */}
+              {canEdit && total > 0 && total <= TAXA_MAX_BULK && selectedIds.length < total && (
+                <Button
+                  size="sm"
+                  variant="secondary"
+                  busy={matching.isPending}
+                  onClick={() =>
+                    matching.mutate(matchingQueryString(effectiveQuery), {
+                      onSuccess: (found) => setRowSelection(Object.fromEntries(found.ids.map((id) => [id, true]))),
+                      onError: (error) => toast.show(`The taxa could not be selected: ${errorMessage(error)}`, "error"),
+                    })
+                  }
+                >
+                  {filtered ? `Select all ${formatCount(total)} matching` : `Select all ${pluralize(total, "taxon", "taxa")}`}
+                </Button>
+              )}
               {selectedIds.length > 0 && (
                 <div className="flex items-center gap-2 rounded-lg bg-accent-50 py-1 pr-1 pl-3 text-sm text-accent-900 ring-1 ring-accent-200" role="status">
                   {pluralize(selectedIds.length, "taxon", "taxa")} selected

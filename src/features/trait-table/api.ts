@@ -1,7 +1,7 @@
 // The trait table's API hooks: one per endpoint, keys from src/lib/queryKeys.ts.
 import { keepPreviousData, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
 import type { DecisionRevertInput, RevertResult } from "@shared/schemas/decisions";
-import type { TaxaBulkEditInput, TaxaBulkResult, TaxaPage, TaxonHistory, TaxonRow, TaxonSaved, TaxonUpdateInput } from "@shared/schemas/taxa";
+import type { TaxaBulkEditInput, TaxaBulkResult, TaxaIds, TaxaPage, TaxonHistory, TaxonRow, TaxonSaved, TaxonUpdateInput } from "@shared/schemas/taxa";
 import type { TraitList } from "@shared/schemas/traits";
 import type { EXPORT_FORMS } from "@shared/schemas/exports";
 import { api } from "../../lib/api";
@@ -26,6 +26,13 @@ export function useTaxaPage(studyId: string, query: string) {
     queryKey: queryKeys.taxa.page(studyId, query),
     queryFn: ({ signal }) => api.get<TaxaPage>(`${studyPath(studyId)}/taxa?${query}`, signal),
     placeholderData: keepPreviousData,
+  });
+}
+
+/** GET /api/studies/:studyId/taxa/ids?sort&dir&filter&missing&hasOpenThread: every matching taxon, to select them all. */
+export function useMatchingTaxonIds(studyId: string) {
+  return useMutation({
+    mutationFn: (matchingQuery: string) => api.get<TaxaIds>(`${studyPath(studyId)}/taxa/ids?${matchingQuery}`),
   });
 }
 

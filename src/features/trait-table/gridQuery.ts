@@ -24,6 +24,12 @@ export function gridQueryString(q: GridQuery): string {
   const params = new URLSearchParams();
   params.set("page", String(q.page));
   params.set("pageSize", String(q.pageSize));
+  return `${params}&${matchingQueryString(q)}`;
+}
+
+/** The sort and filters without the paging: what taxa/ids takes to list every matching taxon. */
+export function matchingQueryString(q: GridQuery): string {
+  const params = new URLSearchParams();
   params.set("sort", q.sort);
   params.set("dir", q.dir);
   for (const f of q.filters) params.append("filter", formatTaxaFilter(f));
