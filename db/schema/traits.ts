@@ -61,10 +61,9 @@ export const taxa = pgTable(
   (t) => [
     // Unique among live taxa only: a taxon removed by a revert keeps its history and its name is free again.
     uniqueIndex("taxa_study_live_name_idx").on(t.studyId, t.name).where(sql`deleted_at IS NULL`),
-    index("taxa_study_higher_idx").on(t.studyId, t.higherTaxon),
-    index("taxa_study_lad_idx").on(t.studyId, t.ladMa),
-    // No indexes on trait values or name fragments: the grid filters its in-memory copy of the study
-    // (server/services/taxaGrid.ts), and such indexes cost imports more than they ever saved.
+    // No indexes for filters or sorts (trait values, name fragments, higher taxa, ages): the grid
+    // filters and sorts its in-memory copy of the study (server/services/taxaGrid.ts), and such
+    // indexes would only slow every import and edit down.
   ],
 );
 

@@ -30,6 +30,7 @@ import {
   type ImportUpload,
 } from "../../shared/schemas/imports";
 import type { Trait } from "../../shared/schemas/traits";
+import type { TraitValue } from "../../shared/schemas/taxa";
 import { badRequest, HttpError, notFound } from "../http/errors";
 import { DetailedHttpError } from "../http/detailed";
 import { revertDecisions } from "./decisions";
@@ -404,7 +405,12 @@ export function createImportService(db: Database) {
                 updatedAt: new Date(),
                 deletedAt: null,
               };
-              for (const c of p.changes) setField(s, c.field, c.to);
+              // Trait values go straight into the new taxon's one object: setField copies the
+              // values for every field, which over 100,000 new taxa of ten traits costs a second.
+              for (const c of p.changes) {
+                if (c.traitId === null) setField(s, c.field, c.to);
+                else if (c.to !== null && c.to !== undefined) s.traitValues[c.traitId] = c.to as TraitValue;
+              }
               created.push(s);
             } else if (p.changes.length) {
               for (const c of p.changes) {

@@ -1,0 +1,2 @@
+DROP INDEX "taxa_study_higher_idx";--> statement-breakpoint
+DROP INDEX "taxa_study_lad_idx";
