@@ -121,16 +121,12 @@ export function createTaxonService(db: Database, grid: TaxaGrid = createTaxaGrid
 
   const service = {
     async list(studyId: string, query: TaxaListQuery): Promise<TaxaPage> {
-      const codebook = new Map((await loadCodebook(db, studyId)).map((t) => [t.id, t]));
+      const codebook = loadCodebook(db, studyId).then((list) => new Map(list.map((t) => [t.id, t])));
       // The filter, sort and count come from the study's grid copy; the page's rows are read fresh.
       const { ids, total } = await grid.page(studyId, query, codebook);
-      const found = new Map((await loadTaxaById(db, studyId, ids)).map((s) => [s.id, s]));
+      const [rows, threads] = await Promise.all([loadTaxaById(db, studyId, ids), openThreadsFor(db, studyId, ids)]);
+      const found = new Map(rows.map((s) => [s.id, s]));
       const states = ids.map((id) => found.get(id)).filter((s): s is TaxonState => s !== undefined);
-      const threads = await openThreadsFor(
-        db,
-        studyId,
-        states.map((s) => s.id),
-      );
       return {
         rows: states.map((s) => toTaxonRow(s, threads.get(s.id))),
         total,
@@ -141,7 +137,7 @@ export function createTaxonService(db: Database, grid: TaxaGrid = createTaxaGrid
 
     /** Every taxon the filters match, for selecting them all at once (as many as one bulk edit takes). */
     async matchingIds(studyId: string, query: TaxaIdsQuery): Promise<TaxaIds> {
-      const codebook = new Map((await loadCodebook(db, studyId)).map((t) => [t.id, t]));
+      const codebook = loadCodebook(db, studyId).then((list) => new Map(list.map((t) => [t.id, t])));
       const { ids, total } = await grid.page(studyId, { ...query, page: 1, pageSize: TAXA_MAX_BULK }, codebook);
       if (total > TAXA_MAX_BULK) {
         throw badRequest(`${total.toLocaleString("en-US")} taxa match; one bulk edit takes at most ${TAXA_MAX_BULK.toLocaleString("en-US")}. Narrow the filter.`, {

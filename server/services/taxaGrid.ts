@@ -266,17 +266,22 @@ export function createTaxaGrid(db: Database, options: TaxaGridOptions = {}) {
 
   return {
     /** The ids of one grid page, in order, and how many taxa pass the filters. */
-    async page(studyId: string, query: TaxaListQuery, codebook: Map<string, Trait>): Promise<{ ids: string[]; total: number }> {
-      const threads = query.hasOpenThread === undefined ? null : await taxaWithOpenThreads(studyId);
+    async page(studyId: string, query: TaxaListQuery, codebookSource: Map<string, Trait> | Promise<Map<string, Trait>>): Promise<{ ids: string[]; total: number }> {
       let entry = entries.get(studyId);
       if (!entry) {
         entry = { studyId, copy: null, running: null, queued: null, usedAt: Date.now() };
         entries.set(studyId, entry);
       }
       entry.usedAt = Date.now();
+      // The codebook, the open threads and the copy's sync are read side by side. A sync that
+      // finishes first can only be overtaken by a later one, which is newer still.
+      const [codebook, threads] = await Promise.all([
+        codebookSource,
+        query.hasOpenThread === undefined ? null : taxaWithOpenThreads(studyId),
+        current(entry),
+      ]);
       // A copy dropped for memory while this request waited is read again.
-      do await current(entry);
-      while (!entry.copy);
+      while (!entry.copy) await current(entry);
       // From here to the return nothing waits, so the copy cannot change underneath.
       const copy = entry.copy;
       const test = rowTest(copy.columns, copy.derived, query, codebook, threads);
