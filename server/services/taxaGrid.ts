@@ -286,7 +286,7 @@ export function createTaxaGrid(db: Database, options: TaxaGridOptions = {}) {
       const copy = entry.copy;
       const test = rowTest(copy.columns, copy.derived, query, codebook, threads);
       const order = copy.derived.sortedOrder(query.sort, query.dir, codebook);
-      const { rows, total } = pageOf(order, test, (query.page - 1) * query.pageSize, query.pageSize);
+      const { rows, total } = pageOf(order, test, copy.columns.ids.length, (query.page - 1) * query.pageSize, query.pageSize);
       return { ids: rows.map((row) => copy.columns.ids[row]), total };
     },
 
