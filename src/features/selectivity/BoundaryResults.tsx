@@ -8,7 +8,7 @@ import { ConfoundingCard } from "./ConfoundingCard";
 import { ESTIMATE_KINDS, ESTIMATE_STYLE, ForestPlot } from "./ForestPlot";
 import { ModelCard } from "./ModelCard";
 import { forestRows, type BoundaryResult } from "./resultRows";
-import { Body, HeadRow, ResultTable, td, tdNum, th, thNum } from "./ResultTable";
+import { Body, ColHead, HeadRow, ResultTable, td, tdNum, thNum } from "./ResultTable";
 import { TraitResultCard } from "./TraitResultCard";
 import { fileSlug, formatEstimate, formatInterval, levelWords } from "./words";
 
@@ -55,9 +55,7 @@ export function BoundaryResults({ boundary, params, filePrefix, printable = fals
             numbers={
               <ResultTable caption={`Odds ratios behind the forest plot, with ${percent} intervals`} minWidth="44rem">
                 <HeadRow>
-                  <th scope="col" className={th}>
-                    Contrast
-                  </th>
+                  <ColHead>Contrast</ColHead>
                   {ESTIMATE_KINDS.map((kind) => (
                     <th key={kind} scope="col" className={thNum}>
                       {ESTIMATE_STYLE[kind].label.split(" (")[0]}

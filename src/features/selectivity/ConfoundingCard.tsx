@@ -1,7 +1,7 @@
 import { Card } from "../../components/Card";
 import { cx } from "../../components/focus";
 import { contrastWords, type ContrastData, type SelectivityResultData } from "./resultRows";
-import { Body, HeadRow, ResultTable, td, tdNum, th, thNum } from "./ResultTable";
+import { Body, ColHead, HeadRow, ResultTable, td, tdNum, thNum } from "./ResultTable";
 import { formatChange, formatEstimate, formatInterval, formatP, formatWholePercent, levelWords } from "./words";
 
 function OddsCell({ value, ci }: { value: number | undefined; ci: [number, number] | undefined }) {
@@ -49,24 +49,14 @@ export function ConfoundingCard({ result, level, threshold }: { result: Selectiv
         </p>
         <ResultTable caption={`Crude and adjusted odds ratios with ${percent} intervals, and how far each moves on adjustment`} minWidth="44rem">
           <HeadRow>
-            <th scope="col" className={th}>
-              Trait and contrast
-            </th>
-            <th scope="col" className={thNum}>
-              Crude
-            </th>
-            <th scope="col" className={thNum}>
-              For clade
-            </th>
+            <ColHead>Trait and contrast</ColHead>
+            <ColHead numeric>Crude</ColHead>
+            <ColHead numeric>For clade</ColHead>
             <th scope="col" className={thNum} title="Breslow-Day test (with Tarone's correction) of one common odds ratio across clades">
               Breslow-Day p
             </th>
-            <th scope="col" className={thNum}>
-              For other traits
-            </th>
-            <th scope="col" className={thNum}>
-              Moves by
-            </th>
+            <ColHead numeric>For other traits</ColHead>
+            <ColHead numeric>Moves by</ColHead>
           </HeadRow>
           <Body>
             {rows.map(({ trait, contrast }) => (

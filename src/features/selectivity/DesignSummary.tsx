@@ -6,7 +6,7 @@ import { LoadingState } from "../../components/LoadingState";
 import { formatMa, formatMyr } from "../../components/timescale/ages";
 import { ApiError } from "../../lib/api";
 import { formatCount } from "../../lib/format";
-import { Body, HeadRow, ResultTable, td, tdNum, th, thNum } from "./ResultTable";
+import { Body, ColHead, HeadRow, ResultTable, td, tdNum } from "./ResultTable";
 import { KIND_LABEL } from "./words";
 
 export interface DesignSummaryProps {
@@ -75,27 +75,13 @@ function BoundaryDesign({ design }: { design: RunPreview["boundaries"][number] }
       ) : (
         <ResultTable caption={`Taxa entering each trait's test at ${design.label}`} className="mt-3" minWidth="40rem">
           <HeadRow>
-            <th scope="col" className={th}>
-              Trait
-            </th>
-            <th scope="col" className={thNum}>
-              Enter
-            </th>
-            <th scope="col" className={thNum}>
-              Victims
-            </th>
-            <th scope="col" className={thNum}>
-              Survivors
-            </th>
-            <th scope="col" className={thNum}>
-              Missing
-            </th>
-            <th scope="col" className={thNum}>
-              Unusable
-            </th>
-            <th scope="col" className={th}>
-              Reference
-            </th>
+            <ColHead>Trait</ColHead>
+            <ColHead numeric>Enter</ColHead>
+            <ColHead numeric>Victims</ColHead>
+            <ColHead numeric>Survivors</ColHead>
+            <ColHead numeric>Missing</ColHead>
+            <ColHead numeric>Unusable</ColHead>
+            <ColHead>Reference</ColHead>
           </HeadRow>
           <Body>
             {design.traits.map((t) => (

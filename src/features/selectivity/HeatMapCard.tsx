@@ -5,7 +5,7 @@ import { ChartFigure } from "./ChartFigure";
 import { ESTIMATE_KINDS, ESTIMATE_STYLE } from "./ForestPlot";
 import { LogOddsHeatMap } from "./LogOddsHeatMap";
 import { boundaryColumns, heatRows, type BoundaryResult, type HeatMeasure } from "./resultRows";
-import { Body, HeadRow, ResultTable, td, tdNum, th, thNum } from "./ResultTable";
+import { Body, ColHead, HeadRow, ResultTable, td, tdNum, thNum } from "./ResultTable";
 import { formatEstimate } from "./words";
 
 /** Traits by boundary: does a trait's odds ratio at the crisis stand out against the background intervals? */
@@ -53,9 +53,7 @@ export function HeatMapCard({ boundaries, filePrefix, printable = false }: { bou
           numbers={
             <ResultTable caption={`Odds ratios (${measureLabel}) by trait and boundary`} minWidth={`${16 + columns.length * 10}rem`}>
               <HeadRow>
-                <th scope="col" className={th}>
-                  Contrast
-                </th>
+                <ColHead>Contrast</ColHead>
                 {columns.map((column) => (
                   <th key={column} scope="col" className={thNum}>
                     {column}

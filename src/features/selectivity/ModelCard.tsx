@@ -3,7 +3,7 @@ import { cx } from "../../components/focus";
 import { Notice } from "../../components/Notice";
 import { formatCount } from "../../lib/format";
 import type { SelectivityResultData } from "./resultRows";
-import { Body, HeadRow, ResultTable, td, tdNum, th, thNum } from "./ResultTable";
+import { Body, ColHead, HeadRow, ResultTable, td, tdNum } from "./ResultTable";
 import { formatEstimate, formatInterval, formatP, levelWords } from "./words";
 
 /** Why Firth's bias-reduced fit was used, in words. */
@@ -48,27 +48,13 @@ export function ModelCard({ result, level }: { result: SelectivityResultData; le
 
           <ResultTable caption={`Coefficients of the multiple logistic regression with ${percent} intervals`} minWidth="48rem">
             <HeadRow>
-              <th scope="col" className={th}>
-                Term
-              </th>
-              <th scope="col" className={thNum}>
-                Estimate
-              </th>
-              <th scope="col" className={thNum}>
-                SE
-              </th>
-              <th scope="col" className={thNum}>
-                Odds ratio
-              </th>
-              <th scope="col" className={thNum}>
-                {percent} interval
-              </th>
-              <th scope="col" className={thNum}>
-                z
-              </th>
-              <th scope="col" className={thNum}>
-                p
-              </th>
+              <ColHead>Term</ColHead>
+              <ColHead numeric>Estimate</ColHead>
+              <ColHead numeric>SE</ColHead>
+              <ColHead numeric>Odds ratio</ColHead>
+              <ColHead numeric>{percent} interval</ColHead>
+              <ColHead numeric>z</ColHead>
+              <ColHead numeric>p</ColHead>
             </HeadRow>
             <Body>
               {model.coefficients.map((c) => (
@@ -90,18 +76,10 @@ export function ModelCard({ result, level }: { result: SelectivityResultData; le
           {model.terms.length > 0 && (
             <ResultTable caption="Likelihood ratio test of each trait: the model with and without all of the trait's terms" minWidth="28rem">
               <HeadRow>
-                <th scope="col" className={th}>
-                  Trait (likelihood ratio test)
-                </th>
-                <th scope="col" className={thNum}>
-                  df
-                </th>
-                <th scope="col" className={thNum}>
-                  χ²
-                </th>
-                <th scope="col" className={thNum}>
-                  p
-                </th>
+                <ColHead>Trait (likelihood ratio test)</ColHead>
+                <ColHead numeric>df</ColHead>
+                <ColHead numeric>χ²</ColHead>
+                <ColHead numeric>p</ColHead>
               </HeadRow>
               <Body>
                 {model.terms.map((t) => (

@@ -26,6 +26,15 @@ export function HeadRow({ children }: { children: ReactNode }) {
   );
 }
 
+/** A column heading; numeric columns are right-aligned like their cells. */
+export function ColHead({ numeric = false, children }: { numeric?: boolean; children: ReactNode }) {
+  return (
+    <th scope="col" className={numeric ? thNum : th}>
+      {children}
+    </th>
+  );
+}
+
 export function Body({ children }: { children: ReactNode }) {
   return <tbody className="divide-y divide-stone-100">{children}</tbody>;
 }

@@ -4,7 +4,7 @@ import { formatCount, pluralize } from "../../lib/format";
 import { ChartFigure } from "./ChartFigure";
 import { ProportionChart } from "./ProportionChart";
 import { contrastWords, type TraitResultData } from "./resultRows";
-import { Body, HeadRow, ResultTable, td, tdNum, th, thNum } from "./ResultTable";
+import { Body, ColHead, HeadRow, ResultTable, td, tdNum } from "./ResultTable";
 import { CORRECTION_SHORT, fileSlug, formatEstimate, formatInterval, formatP, formatPercent, KIND_LABEL, levelWords } from "./words";
 
 export interface TraitResultCardProps {
@@ -39,21 +39,11 @@ export function TraitResultCard({ trait, level, correction, filePrefix, printabl
         <div className="space-y-5">
           <ResultTable caption={`${trait.label}: taxa by state and outcome, with the extinction proportion and its ${percent} Wilson interval`} minWidth="30rem">
             <HeadRow>
-              <th scope="col" className={th}>
-                {trait.kind === "numeric" ? "Quarter of values" : "State"}
-              </th>
-              <th scope="col" className={thNum}>
-                Victims
-              </th>
-              <th scope="col" className={thNum}>
-                Survivors
-              </th>
-              <th scope="col" className={thNum}>
-                Extinct
-              </th>
-              <th scope="col" className={thNum}>
-                {percent} interval
-              </th>
+              <ColHead>{trait.kind === "numeric" ? "Quarter of values" : "State"}</ColHead>
+              <ColHead numeric>Victims</ColHead>
+              <ColHead numeric>Survivors</ColHead>
+              <ColHead numeric>Extinct</ColHead>
+              <ColHead numeric>{percent} interval</ColHead>
             </HeadRow>
             <Body>
               {trait.table.map((row) => (
@@ -91,18 +81,10 @@ export function TraitResultCard({ trait, level, correction, filePrefix, printabl
         {trait.contrasts.length > 0 && (
           <ResultTable caption={`${trait.label}: odds ratios of extinction against the reference`} minWidth="34rem">
             <HeadRow>
-              <th scope="col" className={th}>
-                Odds ratio of
-              </th>
-              <th scope="col" className={thNum}>
-                Odds ratio
-              </th>
-              <th scope="col" className={thNum}>
-                {percent} interval
-              </th>
-              <th scope="col" className={th}>
-                How
-              </th>
+              <ColHead>Odds ratio of</ColHead>
+              <ColHead numeric>Odds ratio</ColHead>
+              <ColHead numeric>{percent} interval</ColHead>
+              <ColHead>How</ColHead>
             </HeadRow>
             <Body>
               {trait.contrasts.map((c) => (
