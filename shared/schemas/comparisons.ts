@@ -3,7 +3,7 @@
 // parameters, a hash of the exact data read, results, who and when; exported as CSV.
 import { z } from "zod";
 import type { ComparisonResult } from "../comparison/types";
-import { exportQuerySchema, isoDateSchema, uuidSchema } from "./common";
+import { exportQuerySchema, isoDateSchema, uuidSchema, personOrNoneSchema, type Same, cautionsSchema } from "./common";
 import { crosswalkSchema, iucnCategorySchema, listNameSchema } from "./modernLists";
 
 /** Default probability from which a species listed LC or DD is "worth a look": more likely than not to have died out in the past crisis. */
@@ -111,7 +111,6 @@ export const comparisonResultSchema = z
   })
   .meta({ id: "ComparisonResult" });
 
-type Same<A, B> = [A] extends [B] ? ([B] extends [A] ? true : false) : false;
 const resultMatchesContract: Same<z.infer<typeof comparisonResultSchema>, ComparisonResult> = true;
 void resultMatchesContract;
 
@@ -121,12 +120,11 @@ export const comparisonResultsSchema = comparisonResultSchema
     list: z.object({ id: z.uuid(), name: z.string(), speciesCount: z.number().int() }),
     crosswalk: crosswalkSchema.meta({ description: "The crosswalk as it was when the comparison read the list" }),
     crosswalkLabels: z.array(z.object({ traitId: z.uuid(), traitKey: z.string(), traitLabel: z.string(), column: z.string() })),
-    cautions: z.array(z.string()).meta({ description: "Shown with the results wherever they are read or exported" }),
+    cautions: cautionsSchema,
   })
   .meta({ id: "ComparisonResults" });
 export type ComparisonResults = z.infer<typeof comparisonResultsSchema>;
 
-const personSchema = z.object({ id: z.uuid(), name: z.string() }).nullable();
 
 export const comparisonSummarySchema = z
   .object({
@@ -143,7 +141,7 @@ export const comparisonSummarySchema = z
     appVersion: z.string(),
     auc: z.number().nullable(),
     worthALookCount: z.number().int(),
-    createdBy: personSchema,
+    createdBy: personOrNoneSchema,
     createdAt: isoDateSchema,
   })
   .meta({ id: "ComparisonSummary" });

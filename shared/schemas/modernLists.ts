@@ -4,7 +4,7 @@
 import { z } from "zod";
 import type { Crosswalk, CrosswalkCoverage, ListColumn } from "../comparison/types";
 import { IUCN_CATEGORIES } from "../iucn";
-import { isoDateSchema, uuidSchema } from "./common";
+import { isoDateSchema, uuidSchema, personOrNoneSchema, type Same } from "./common";
 import { csvDelimiterSchema, importProblemSchema, IMPORT_MAX_PROBLEMS_LISTED } from "./imports";
 import { traitKindSchema } from "./traits";
 
@@ -53,7 +53,6 @@ export const modernListMappingDraftSchema = z
   .meta({ id: "ModernListMappingDraft" });
 export type ModernListMappingDraft = z.infer<typeof modernListMappingDraftSchema>;
 
-const personSchema = z.object({ id: z.uuid(), name: z.string() }).nullable();
 
 export const MODERN_UPLOAD_STATUSES = ["previewed", "committing", "committed", "discarded"] as const;
 
@@ -66,7 +65,7 @@ export const modernUploadSummarySchema = z
     validCount: z.number().int(),
     errorCount: z.number().int(),
     failureReason: z.string().nullable(),
-    createdBy: personSchema,
+    createdBy: personOrNoneSchema,
     createdAt: isoDateSchema,
   })
   .meta({ id: "ModernUploadSummary" });
@@ -200,7 +199,6 @@ export const listColumnSchema = z
   .meta({ id: "ListColumn" });
 
 // The zod schemas and the pure module's types must describe the same objects.
-type Same<A, B> = [A] extends [B] ? ([B] extends [A] ? true : false) : false;
 const crosswalkMatches: Same<z.output<typeof crosswalkSchema>, Crosswalk> = true;
 const coverageMatches: Same<z.infer<typeof crosswalkCoverageSchema>, CrosswalkCoverage> = true;
 const columnMatches: Same<z.infer<typeof listColumnSchema>, ListColumn> = true;
@@ -217,7 +215,7 @@ export const modernListSummarySchema = z
     fileName: z.string().nullable(),
     crosswalkSaved: z.boolean().meta({ description: "A crosswalk has been saved for this list" }),
     comparisonCount: z.number().int(),
-    createdBy: personSchema,
+    createdBy: personOrNoneSchema,
     createdAt: isoDateSchema,
     updatedAt: isoDateSchema,
   })

@@ -1,6 +1,6 @@
 import { z } from "zod";
 import { findUnit } from "../timescale/lookup";
-import { isoDateSchema, uuidSchema } from "./common";
+import { isoDateSchema, uuidSchema, personOrNoneSchema } from "./common";
 import { timescaleRankSchema } from "./timescale";
 
 export const BOUNDARY_OUTCOMES = ["survivor", "victim", "excluded"] as const;
@@ -202,7 +202,6 @@ export const outcomeOverrideListQuerySchema = z.object({
   pageSize: pageSizeSchema,
 });
 
-const personSchema = z.object({ id: z.uuid(), name: z.string() }).nullable();
 
 export const outcomeOverrideSchema = z
   .object({
@@ -215,9 +214,9 @@ export const outcomeOverrideSchema = z
     source: z.enum(["manual", "import"]),
     active: z.boolean(),
     createdAt: isoDateSchema,
-    createdBy: personSchema,
+    createdBy: personOrNoneSchema,
     revokedAt: isoDateSchema.nullable(),
-    revokedBy: personSchema,
+    revokedBy: personOrNoneSchema,
     revokeReason: z.string().nullable(),
   })
   .meta({ id: "OutcomeOverride" });

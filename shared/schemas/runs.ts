@@ -3,7 +3,7 @@
 // recomputing, re-run on today's data, compared side by side and exported.
 import { z } from "zod";
 import type { SelectivityResult } from "../selectivity/types";
-import { exportQuerySchema, isoDateSchema, uuidSchema } from "./common";
+import { exportQuerySchema, isoDateSchema, uuidSchema, personOrNoneSchema, type Same, cautionsSchema } from "./common";
 import { numericTransformSchema, traitKindSchema } from "./traits";
 
 /** Most boundaries one run tests. */
@@ -296,7 +296,6 @@ export const selectivityResultSchema = z
   .meta({ id: "SelectivityResult" });
 
 // The zod schema and the analysis contract must describe the same object.
-type Same<A, B> = [A] extends [B] ? ([B] extends [A] ? true : false) : false;
 const resultSchemaMatchesContract: Same<z.infer<typeof selectivityResultSchema>, SelectivityResult> = true;
 void resultSchemaMatchesContract;
 
@@ -306,14 +305,13 @@ export const runResultsSchema = z
     traits: z
       .array(z.object({ traitId: z.uuid(), key: z.string(), label: z.string() }))
       .meta({ description: "The traits tested, as the codebook named them when the run read it" }),
-    cautions: z.array(z.string()).meta({ description: "Shown with the results wherever they are read or exported" }),
+    cautions: cautionsSchema,
   })
   .meta({ id: "RunResults" });
 export type RunResults = z.infer<typeof runResultsSchema>;
 
 // ---------------------------------------------------------------- runs
 
-const personSchema = z.object({ id: z.uuid(), name: z.string() }).nullable();
 
 export const runSummarySchema = z
   .object({
@@ -331,7 +329,7 @@ export const runSummarySchema = z
     appVersion: z.string(),
     attempt: z.number().int().meta({ description: "1, plus one for each retry" }),
     rerunOf: z.uuid().nullable().meta({ description: "The run whose parameters this one re-ran on the data of its day" }),
-    createdBy: personSchema,
+    createdBy: personOrNoneSchema,
     createdAt: isoDateSchema,
     startedAt: isoDateSchema.nullable(),
     finishedAt: isoDateSchema.nullable(),
