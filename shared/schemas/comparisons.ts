@@ -125,7 +125,6 @@ export const comparisonResultsSchema = comparisonResultSchema
   .meta({ id: "ComparisonResults" });
 export type ComparisonResults = z.infer<typeof comparisonResultsSchema>;
 
-
 export const comparisonSummarySchema = z
   .object({
     id: z.uuid(),

@@ -53,7 +53,6 @@ export const modernListMappingDraftSchema = z
   .meta({ id: "ModernListMappingDraft" });
 export type ModernListMappingDraft = z.infer<typeof modernListMappingDraftSchema>;
 
-
 export const MODERN_UPLOAD_STATUSES = ["previewed", "committing", "committed", "discarded"] as const;
 
 export const modernUploadSummarySchema = z

@@ -202,7 +202,6 @@ export const outcomeOverrideListQuerySchema = z.object({
   pageSize: pageSizeSchema,
 });
 
-
 export const outcomeOverrideSchema = z
   .object({
     id: z.uuid(),

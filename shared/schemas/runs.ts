@@ -312,7 +312,6 @@ export type RunResults = z.infer<typeof runResultsSchema>;
 
 // ---------------------------------------------------------------- runs
 
-
 export const runSummarySchema = z
   .object({
     id: z.uuid(),
