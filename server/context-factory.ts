@@ -44,8 +44,8 @@ export async function createContext(config: AppConfig): Promise<RunningContext> 
     async close() {
       await services.runs.stopSweeping();
       await services.imports.stopSweeping();
-      services.notifications.stopDigestClock();
-      services.taxaGrid.stopPruning();
+      await services.notifications.stopDigestClock();
+      await services.taxaGrid.stopPruning();
       await jobs.stop();
       await workers.close();
       mailer.close();

@@ -12,6 +12,7 @@ import { join } from "node:path";
 import { and, count, desc, eq, inArray, lt, sql } from "drizzle-orm";
 import { alias } from "drizzle-orm/pg-core";
 import type { Database } from "../db";
+import { RepeatingTask } from "../jobs/repeatingTask";
 import { codingDecisions, imports, studies, users } from "../../db/schema/index";
 import { parseCsv, type CsvDelimiter, type ParsedCsv } from "../../shared/csv/parse";
 import { csvTextProblem } from "../../shared/csv/textCheck";
@@ -218,14 +219,7 @@ export function createImportService(db: Database) {
     return swept;
   }
 
-  let sweeper: NodeJS.Timeout | null = null;
-  let sweeping: Promise<unknown> | null = null;
-  const sweepOnce = () => {
-    if (sweeping) return;
-    sweeping = sweepInterrupted()
-      .catch((err: Error) => console.error(`import sweep: ${err.message}`))
-      .finally(() => (sweeping = null));
-  };
+  const sweeper = new RepeatingTask("import sweep", sweepInterrupted, IMPORT_SWEEP_EVERY_MS);
 
   /** Discards uploads left uncommitted for a day, so stored files do not pile up. */
   async function sweepStaleUploads(): Promise<void> {
@@ -498,17 +492,8 @@ export function createImportService(db: Database) {
 
     sweepInterrupted,
     /** Sweeps now and every IMPORT_SWEEP_EVERY_MS until stopSweeping. */
-    startSweeping(): void {
-      if (sweeper) return;
-      sweepOnce();
-      sweeper = setInterval(sweepOnce, IMPORT_SWEEP_EVERY_MS);
-      sweeper.unref();
-    },
-    async stopSweeping(): Promise<void> {
-      if (sweeper) clearInterval(sweeper);
-      sweeper = null;
-      await sweeping;
-    },
+    startSweeping: () => sweeper.start({ now: true }),
+    stopSweeping: () => sweeper.stop(),
 
     /** Drops an upload that was never committed, and its stored file. */
     async discard(studyId: string, importId: string): Promise<void> {

@@ -5,6 +5,7 @@
 // marked e-mailed, so no mention is sent twice and each person gets at most one digest a day.
 import { and, count, desc, eq, inArray, isNull, sql } from "drizzle-orm";
 import type { Database, DbOrTx } from "../db";
+import { RepeatingTask } from "../jobs/repeatingTask";
 import { memberships, notificationPreferences, notifications, studies, threadPosts, threads, users } from "../../db/schema/index";
 import { markdownExcerpt } from "../../shared/markdown";
 import type { NotificationList, NotificationListQuery, NotificationMode, NotificationPreference, NotificationPreferenceList } from "../../shared/schemas/notifications";
@@ -164,7 +165,7 @@ export function createNotificationService(db: Database, mailer: Mailer, appUrl: 
     await sendDigests(new Date());
   });
 
-  let clock: NodeJS.Timeout | null = null;
+  const clock = new RepeatingTask("digest check not queued", () => jobs.send(DIGEST_JOB, { at: new Date().toISOString() }), DIGEST_CHECK_EVERY_MS);
 
   return {
     /**
@@ -283,17 +284,8 @@ export function createNotificationService(db: Database, mailer: Mailer, appUrl: 
     },
 
     /** Every process checks for due digests now and then; the lock and the e-mailed marks keep it to one send. */
-    startDigestClock(): void {
-      if (clock) return;
-      clock = setInterval(() => {
-        jobs.send(DIGEST_JOB, { at: new Date().toISOString() }).catch((err: Error) => console.error(`digest check not queued: ${err.message}`));
-      }, DIGEST_CHECK_EVERY_MS);
-      clock.unref();
-    },
-    stopDigestClock(): void {
-      if (clock) clearInterval(clock);
-      clock = null;
-    },
+    startDigestClock: () => clock.start(),
+    stopDigestClock: () => clock.stop(),
   };
 }
 export type NotificationService = ReturnType<typeof createNotificationService>;

@@ -7,6 +7,7 @@ import { createHash } from "node:crypto";
 import { readFileSync } from "node:fs";
 import { and, count, desc, eq, getTableColumns, isNull, sql } from "drizzle-orm";
 import type { Database } from "../db";
+import { RepeatingTask } from "../jobs/repeatingTask";
 import { activity, runs, taxa, users } from "../../db/schema/index";
 import { analyzeSelectivity, chooseReference, countStates, encodeTrait, type EncodedTrait } from "../../shared/selectivity/index";
 import type { SelectivityInput, SelectivityResult, SelectivityTaxon, SelectivityTraitSpec } from "../../shared/selectivity/types";
@@ -581,14 +582,7 @@ export function createRunService(db: Database, runtime: RunRuntime, sources: Run
     return swept;
   }
 
-  let sweeper: NodeJS.Timeout | null = null;
-  let sweeping: Promise<unknown> | null = null;
-  const sweepOnce = () => {
-    if (sweeping) return;
-    sweeping = sweepInterrupted()
-      .catch((err: Error) => console.error(`run sweep: ${err.message}`))
-      .finally(() => (sweeping = null));
-  };
+  const sweeper = new RepeatingTask("run sweep", sweepInterrupted, SWEEP_EVERY_MS);
 
   return {
     /** Counts of what would enter the analysis, per boundary and trait, without testing anything. */
@@ -723,17 +717,8 @@ export function createRunService(db: Database, runtime: RunRuntime, sources: Run
 
     sweepInterrupted,
     /** Sweeps now and every SWEEP_EVERY_MS until stopSweeping. */
-    startSweeping(): void {
-      if (sweeper) return;
-      sweepOnce();
-      sweeper = setInterval(sweepOnce, SWEEP_EVERY_MS);
-      sweeper.unref();
-    },
-    async stopSweeping(): Promise<void> {
-      if (sweeper) clearInterval(sweeper);
-      sweeper = null;
-      await sweeping;
-    },
+    startSweeping: () => sweeper.start({ now: true }),
+    stopSweeping: () => sweeper.stop(),
   };
 }
 export type RunService = ReturnType<typeof createRunService>;

@@ -10,6 +10,7 @@
 // not yet committed is not. Only page rows' ids come from the copy; their contents are read fresh.
 import { sql } from "drizzle-orm";
 import type { Database, DbOrTx } from "../db";
+import { RepeatingTask } from "../jobs/repeatingTask";
 import type { TaxaListQuery, TraitValue } from "../../shared/schemas/taxa";
 import type { Trait } from "../../shared/schemas/traits";
 import { uuidList } from "./taxonState";
@@ -73,7 +74,6 @@ const GRID_COLUMNS = sql`t.id, t.name, t.higher_taxon, t.notes, t.fad_ma, t.lad_
 export function createTaxaGrid(db: Database, options: TaxaGridOptions = {}) {
   const maxTaxa = options.maxTaxa ?? 500_000;
   const entries = new Map<string, StudyEntry>();
-  let pruner: NodeJS.Timeout | null = null;
 
   function setRow(copy: StudyCopy, row: number, r: TaxonGridRow): void {
     const c = copy.columns;
@@ -259,6 +259,8 @@ export function createTaxaGrid(db: Database, options: TaxaGridOptions = {}) {
     }
   }
 
+  const pruner = new RepeatingTask("grid copy pruning", prune, PRUNE_EVERY_MS);
+
   async function taxaWithOpenThreads(studyId: string): Promise<Set<string>> {
     const res = await db.execute(sql`SELECT DISTINCT target_id FROM threads WHERE study_id = ${studyId} AND status = 'open' AND target_type IN ('taxon', 'value')`);
     return new Set(res.rows.map((r) => (r as { target_id: string }).target_id));
@@ -292,18 +294,8 @@ export function createTaxaGrid(db: Database, options: TaxaGridOptions = {}) {
 
     prune,
 
-    startPruning(): void {
-      if (pruner) return;
-      pruner = setInterval(() => {
-        prune().catch((err: Error) => console.error(`grid copy pruning: ${err.message}`));
-      }, PRUNE_EVERY_MS);
-      pruner.unref();
-    },
-
-    stopPruning(): void {
-      if (pruner) clearInterval(pruner);
-      pruner = null;
-    },
+    startPruning: () => pruner.start(),
+    stopPruning: () => pruner.stop(),
 
     /** Taxa held in memory, for the bench and tests. */
     heldTaxa(): number {
