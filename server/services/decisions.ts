@@ -15,7 +15,7 @@ import {
   fieldValue,
   insertDecisions,
   lastSetters,
-  loadCodebook,
+  loadCodebookById,
   lockTaxaById,
   newBatchId,
   recordActivity,
@@ -68,7 +68,7 @@ export async function revertDecisions(tx: Transaction, studyId: string, decision
   const ordered = [...decisions].sort((a, b) => b.createdAt.getTime() - a.createdAt.getTime());
   const taxonIds = [...new Set(ordered.map((d) => d.taxonId).filter((id): id is string => id !== null))];
   const states = new Map((await lockTaxaById(tx, studyId, taxonIds)).map((s) => [s.id, s]));
-  const codebook = new Map((await loadCodebook(tx, studyId)).map((t) => [t.id, t]));
+  const codebook = await loadCodebookById(tx, studyId);
   /** Why a value can no longer be put back (its state was removed, the trait changed kind), or null. */
   const codebookRefuses = (traitId: string, value: unknown): string | null => {
     if (value === null || value === undefined) return null;

@@ -30,7 +30,7 @@ import {
   isEmptyValue,
   isUniqueViolation,
   lastSetters,
-  loadCodebook,
+  loadCodebookById,
   loadTaxaById,
   lockTaxaById,
   newBatchId,
@@ -121,7 +121,7 @@ export function createTaxonService(db: Database, grid: TaxaGrid = createTaxaGrid
 
   const service = {
     async list(studyId: string, query: TaxaListQuery): Promise<TaxaPage> {
-      const codebook = loadCodebook(db, studyId).then((list) => new Map(list.map((t) => [t.id, t])));
+      const codebook = loadCodebookById(db, studyId);
       // The filter, sort and count come from the study's grid copy; the page's rows are read fresh.
       const { ids, total } = await grid.page(studyId, query, codebook);
       const [rows, threads] = await Promise.all([loadTaxaById(db, studyId, ids), openThreadsFor(db, studyId, ids)]);
@@ -137,7 +137,7 @@ export function createTaxonService(db: Database, grid: TaxaGrid = createTaxaGrid
 
     /** Every taxon the filters match, for selecting them all at once (as many as one bulk edit takes). */
     async matchingIds(studyId: string, query: TaxaIdsQuery): Promise<TaxaIds> {
-      const codebook = loadCodebook(db, studyId).then((list) => new Map(list.map((t) => [t.id, t])));
+      const codebook = loadCodebookById(db, studyId);
       const { ids, total } = await grid.page(studyId, { ...query, page: 1, pageSize: TAXA_MAX_BULK }, codebook);
       if (total > TAXA_MAX_BULK) {
         throw badRequest(`${total.toLocaleString("en-US")} taxa match; one bulk edit takes at most ${TAXA_MAX_BULK.toLocaleString("en-US")}. Narrow the filter.`, {
@@ -156,7 +156,7 @@ export function createTaxonService(db: Database, grid: TaxaGrid = createTaxaGrid
     async create(studyId: string, user: Person, input: TaxonCreateInput & { higherTaxon: string; notes: string; reason: string }): Promise<TaxonSaved> {
       try {
         return await db.transaction(async (tx) => {
-          const codebook = new Map((await loadCodebook(tx, studyId)).map((t) => [t.id, t]));
+          const codebook = await loadCodebookById(tx, studyId);
           const state: TaxonState = {
             id: randomUUID(),
             name: input.name,
@@ -201,7 +201,7 @@ export function createTaxonService(db: Database, grid: TaxaGrid = createTaxaGrid
             for (const [traitId, v] of Object.entries(changes.values ?? {})) wanted.push({ field: traitId, traitId, yourValue: v });
             throw await versionConflict(tx, studyId, state, wanted);
           }
-          const codebook = new Map((await loadCodebook(tx, studyId)).map((t) => [t.id, t]));
+          const codebook = await loadCodebookById(tx, studyId);
           const resolved = resolveChanges(state, changes, codebook);
           if (resolved.length === 0) return { taxon: await taxonRowOf(tx, studyId, state), decisions: 0 };
           const replaced = resolved.filter((c) => !isEmptyValue(c.from));
@@ -250,7 +250,7 @@ export function createTaxonService(db: Database, grid: TaxaGrid = createTaxaGrid
     /** One value for a selection, one shared reason, one decision per changed taxon sharing a batch id. */
     async bulkEdit(studyId: string, user: Person, input: TaxaBulkEditInput): Promise<TaxaBulkResult> {
       return db.transaction(async (tx) => {
-        const codebook = new Map((await loadCodebook(tx, studyId)).map((t) => [t.id, t]));
+        const codebook = await loadCodebookById(tx, studyId);
         const field = input.field;
         let value: unknown;
         let traitId: string | null = null;

@@ -68,6 +68,21 @@ const PRUNE_EVERY_MS = 10 * 60 * 1000;
 /** Distinct texts shared per copy; beyond this (free-text values) rows keep their own. */
 const MAX_SHARED_TEXTS = 20_000;
 
+/**
+ * Texts that repeat across taxa (states, higher taxa, intervals) are kept once: each row read from
+ * the database brings its own copy, which for 100,000 taxa would double the memory.
+ */
+function sharedText<T extends string | null>(texts: Map<string, string>, text: T): T {
+  if (text === null) return text;
+  const known = texts.get(text) as T | undefined;
+  if (known !== undefined) return known;
+  if (texts.size < MAX_SHARED_TEXTS) texts.set(text, text);
+  return text;
+}
+
+/** The statement's snapshot, and its xmin (below which every transaction is settled). */
+const SNAPSHOT_COLUMNS = sql`pg_current_snapshot()::text AS snapshot, pg_snapshot_xmin(pg_current_snapshot())::text AS xmin`;
+
 const GRID_COLUMNS = sql`t.id, t.name, t.higher_taxon, t.notes, t.fad_ma, t.lad_ma, t.fad_interval, t.lad_interval,
   extract(epoch FROM t.updated_at)::float8 AS updated, t.trait_values, t.deleted_at IS NOT NULL AS removed`;
 
@@ -77,23 +92,14 @@ export function createTaxaGrid(db: Database, options: TaxaGridOptions = {}) {
 
   function setRow(copy: StudyCopy, row: number, r: TaxonGridRow): void {
     const c = copy.columns;
-    // Texts that repeat across taxa (states, higher taxa, intervals) are kept once: each row read
-    // from the database brings its own copy, which for 100,000 taxa would double the memory.
-    const shared = <T extends string | null>(text: T): T => {
-      if (text === null) return text;
-      const known = copy.texts.get(text);
-      if (known !== undefined) return known as T;
-      if (copy.texts.size < MAX_SHARED_TEXTS) copy.texts.set(text, text);
-      return text;
-    };
     c.ids[row] = r.id;
     c.names[row] = r.name;
-    c.higherTaxa[row] = shared(r.higher_taxon);
+    c.higherTaxa[row] = sharedText(copy.texts, r.higher_taxon);
     c.notes[row] = r.notes;
     c.fadMa[row] = r.fad_ma ?? NaN;
     c.ladMa[row] = r.lad_ma ?? NaN;
-    c.fadIntervals[row] = shared(r.fad_interval);
-    c.ladIntervals[row] = shared(r.lad_interval);
+    c.fadIntervals[row] = sharedText(copy.texts, r.fad_interval);
+    c.ladIntervals[row] = sharedText(copy.texts, r.lad_interval);
     c.updatedAt[row] = r.updated;
     c.alive[row] = !r.removed;
     for (const values of c.traitColumns.values()) values[row] = undefined;
@@ -103,7 +109,7 @@ export function createTaxaGrid(db: Database, options: TaxaGridOptions = {}) {
         values = new Array<TraitValue | undefined>(c.ids.length).fill(undefined);
         c.traitColumns.set(traitId, values);
       }
-      values[row] = typeof value === "string" ? shared(value) : (value ?? undefined);
+      values[row] = typeof value === "string" ? sharedText(copy.texts, value) : (value ?? undefined);
     }
   }
 
@@ -160,7 +166,7 @@ export function createTaxaGrid(db: Database, options: TaxaGridOptions = {}) {
 
   /** The taxa changed by transactions the copy's snapshot cannot see, and the snapshot they were found at. */
   async function changesSince(conn: DbOrTx, studyId: string, copy: StudyCopy) {
-    const res = await conn.execute(sql`SELECT pg_current_snapshot()::text AS snapshot, pg_snapshot_xmin(pg_current_snapshot())::text AS xmin,
+    const res = await conn.execute(sql`SELECT ${SNAPSHOT_COLUMNS},
       ARRAY(SELECT DISTINCT taxon_id::text FROM taxa_changes
         WHERE study_id = ${studyId} AND txid >= ${copy.snapshotXmin}::bigint
           AND NOT pg_visible_in_snapshot(txid::text::xid8, ${copy.snapshot}::pg_snapshot)) AS changed`);
@@ -185,9 +191,7 @@ export function createTaxaGrid(db: Database, options: TaxaGridOptions = {}) {
     const result = await db.transaction(
       async (tx) => {
         const whole = async () => {
-          const [{ snapshot, xmin }] = (
-            await tx.execute(sql`SELECT pg_current_snapshot()::text AS snapshot, pg_snapshot_xmin(pg_current_snapshot())::text AS xmin`)
-          ).rows as Array<{ snapshot: string; xmin: string }>;
+          const [{ snapshot, xmin }] = (await tx.execute(sql`SELECT ${SNAPSHOT_COLUMNS}`)).rows as Array<{ snapshot: string; xmin: string }>;
           const rows = (await tx.execute(sql`SELECT ${GRID_COLUMNS} FROM taxa t WHERE t.study_id = ${entry.studyId} AND t.deleted_at IS NULL`)).rows;
           return { snapshot, xmin, rows: rows as unknown as TaxonGridRow[], whole: true };
         };
@@ -239,9 +243,15 @@ export function createTaxaGrid(db: Database, options: TaxaGridOptions = {}) {
     return entry.running;
   }
 
-  function evictBeyondLimit(keep: StudyEntry): void {
+  /** Taxa held in memory over all studies' copies. */
+  function heldTaxa(): number {
     let total = 0;
     for (const e of entries.values()) total += e.copy?.columns.ids.length ?? 0;
+    return total;
+  }
+
+  function evictBeyondLimit(keep: StudyEntry): void {
+    let total = heldTaxa();
     const byAge = [...entries.values()].filter((e) => e !== keep && e.copy).sort((a, b) => a.usedAt - b.usedAt);
     for (const e of byAge) {
       if (total <= maxTaxa) break;
@@ -298,11 +308,7 @@ export function createTaxaGrid(db: Database, options: TaxaGridOptions = {}) {
     stopPruning: () => pruner.stop(),
 
     /** Taxa held in memory, for the bench and tests. */
-    heldTaxa(): number {
-      let total = 0;
-      for (const e of entries.values()) total += e.copy?.columns.ids.length ?? 0;
-      return total;
-    },
+    heldTaxa,
   };
 }
 export type TaxaGrid = ReturnType<typeof createTaxaGrid>;

@@ -75,6 +75,7 @@ export function traitColumn(columns: GridColumns, traitId: string): ReadonlyArra
 }
 
 const compareText = (a: string, b: string): number => (a < b ? -1 : a > b ? 1 : 0);
+const lowerOrNull = (v: string | null): string | null => (v === null ? null : v.toLowerCase());
 
 function traitOf(codebook: Map<string, Trait>, id: string, what: string): Trait {
   const trait = codebook.get(id);
@@ -200,7 +201,7 @@ export class GridDerived {
   lowerCased(column: TextColumn): ReadonlyArray<string | null> {
     let lower = this.lowered.get(column);
     if (!lower) {
-      lower = textColumn(this.columns, column).map((v) => (v === null ? null : v.toLowerCase()));
+      lower = textColumn(this.columns, column).map(lowerOrNull);
       this.lowered.set(column, lower);
     }
     return lower;
@@ -264,7 +265,7 @@ export class GridDerived {
     const touched = [...new Set(rows)];
     for (const [column, lower] of this.lowered) {
       const values = textColumn(this.columns, column);
-      for (const row of touched) lower[row] = values[row] === null ? null : values[row]!.toLowerCase();
+      for (const row of touched) lower[row] = lowerOrNull(values[row]);
     }
     for (const [traitId, keys] of this.numbers) for (const row of touched) keys[row] = numericKey(traitValueAt(this.columns, traitId, row));
     const mark = new Uint8Array(this.columns.ids.length);

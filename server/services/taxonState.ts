@@ -213,6 +213,11 @@ export async function loadCodebook(db: DbOrTx, studyId: string): Promise<Trait[]
   return rows.map(toTrait);
 }
 
+/** The study's codebook keyed by trait id. */
+export async function loadCodebookById(db: DbOrTx, studyId: string): Promise<Map<string, Trait>> {
+  return new Map((await loadCodebook(db, studyId)).map((t) => [t.id, t]));
+}
+
 export async function loadTrait(db: DbOrTx, studyId: string, traitId: string): Promise<Trait | null> {
   const [row] = await db.select().from(traits).where(and(eq(traits.studyId, studyId), eq(traits.id, traitId)));
   return row ? toTrait(row) : null;

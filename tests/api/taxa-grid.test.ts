@@ -12,7 +12,7 @@ import { castOfRoles, type Cast } from "./fixtures";
 import { createUniformSource } from "@shared/stats/random";
 import { randomUUID } from "node:crypto";
 import { createTaxaGrid } from "../../server/services/taxaGrid";
-import { loadCodebook } from "../../server/services/taxonState";
+import { loadCodebookById } from "../../server/services/taxonState";
 import { TAXA_MAX_BULK, taxaListQuerySchema } from "../../shared/schemas/taxa";
 
 let app: TestApp;
@@ -301,7 +301,7 @@ describe("the grid copies' memory and log upkeep", () => {
     );
     expect(commit.status).toBe(200);
     const grid = createTaxaGrid(app.ctx.db, { maxTaxa: 100 });
-    const codebookOf = async (s: CodebookStudy) => new Map((await loadCodebook(app.ctx.db, s.studyId)).map((t) => [t.id, t]));
+    const codebookOf = (s: CodebookStudy) => loadCodebookById(app.ctx.db, s.studyId);
     const everything = taxaListQuerySchema.parse({ pageSize: "500" });
     const first = await grid.page(study.studyId, everything, await codebookOf(study));
     expect(grid.heldTaxa()).toBe(first.total);
