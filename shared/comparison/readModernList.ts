@@ -1,7 +1,8 @@
 // Reading an uploaded modern species list: which column holds the species name, the higher taxon,
 // the threat category and the trait columns; every row checked so the preview can list each problem
 // by row and column before anything is written. The file itself is parsed by shared/csv.
-import type { CsvProblem, ParsedCsv } from "../csv/parse";
+import type { ParsedCsv } from "../csv/parse";
+import { checkRows, type CheckedRows } from "../csv/rowChecks";
 import { IUCN_CATEGORIES, IUCN_CATEGORY_NAMES, readIucnCategory, type IucnCategory } from "../iucn";
 import type { ModernListMapping, ModernListMappingDraft } from "../schemas/modernLists";
 
@@ -15,14 +16,9 @@ export interface ModernListRow {
   traits: Record<string, string>;
 }
 
-export interface ModernListValidation {
-  rows: ModernListRow[];
-  problems: CsvProblem[];
-  rowCount: number;
-  invalidRowCount: number;
-}
+export type ModernListValidation = CheckedRows<ModernListRow>;
 
-const MAX_TEXT = { name: 300, higherTaxon: 300, trait: 300 };
+const MAX_TEXT = { higherTaxon: 300, trait: 300 };
 const normal = (s: string) => s.toLowerCase().replace(/[^a-z0-9]/g, "");
 
 // Header words lists commonly use (common practice, no source).
@@ -76,26 +72,7 @@ export function validateModernListRows(parsed: ParsedCsv, mapping: ModernListMap
   const categoryCol = col(mapping.category);
   const traitCols = mapping.traitColumns.map((header) => ({ header, index: col(header) })).filter((t) => t.index >= 0);
 
-  const problems: Array<CsvProblem & { order: number }> = parsed.problems.map((p) => ({ ...p, order: -1 }));
-  const broken = new Set(parsed.problems.map((p) => p.row));
-  const firstRowOf = new Map<string, number>();
-  const rows: ModernListRow[] = [];
-  let invalidRowCount = 0;
-
-  for (const { row, cells } of parsed.rows) {
-    let valid = !broken.has(row);
-    const problem = (index: number, message: string) => {
-      problems.push({ row, column: index >= 0 ? parsed.header[index] : null, message, order: index });
-      valid = false;
-    };
-    const name = nameCol >= 0 ? cells[nameCol].trim() : "";
-    if (!name) problem(nameCol, "Species name is missing");
-    else if (name.length > MAX_TEXT.name) problem(nameCol, `Species name has ${name.length} characters; at most ${MAX_TEXT.name}`);
-    else {
-      const earlier = firstRowOf.get(name);
-      if (earlier !== undefined) problem(nameCol, `Duplicate species "${name}": also on row ${earlier}`);
-      else firstRowOf.set(name, row);
-    }
+  return checkRows(parsed, nameCol, { label: "Species name", kind: "species" }, (row, cells, name, problem): ModernListRow | null => {
     const higherTaxon = higherCol >= 0 ? cells[higherCol].trim() : "";
     if (higherTaxon.length > MAX_TEXT.higherTaxon) problem(higherCol, `Higher taxon has ${higherTaxon.length} characters; at most ${MAX_TEXT.higherTaxon}`);
     const categoryText = categoryCol >= 0 ? cells[categoryCol].trim() : "";
@@ -108,9 +85,6 @@ export function validateModernListRows(parsed: ParsedCsv, mapping: ModernListMap
       if (text.length > MAX_TEXT.trait) problem(index, `The cell has ${text.length} characters; at most ${MAX_TEXT.trait}`);
       traits[header] = text;
     }
-    if (valid && category) rows.push({ row, name, higherTaxon, category, traits });
-    else invalidRowCount++;
-  }
-  problems.sort((a, b) => a.row - b.row || a.order - b.order);
-  return { rows, problems: problems.map(({ row, column, message }) => ({ row, column, message })), rowCount: parsed.rows.length, invalidRowCount };
+    return category ? { row, name, higherTaxon, category, traits } : null;
+  });
 }

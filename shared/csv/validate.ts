@@ -2,7 +2,8 @@
 // preview lists each problem by row and column before anything is written.
 import type { ImportMapping } from "../schemas/imports";
 import type { RangeEnd } from "../schemas/taxa";
-import type { CsvProblem, ParsedCsv } from "./parse";
+import type { ParsedCsv } from "./parse";
+import { checkRows, type CheckedRows } from "./rowChecks";
 import { readRangeCell, readTraitCell, rangeProblem, type CodebookTrait } from "./values";
 
 /** What an import row sets on a taxon; a part the row leaves empty is absent (kept as it is). */
@@ -22,16 +23,9 @@ export interface ExistingRange {
   lad: RangeEnd;
 }
 
-export interface ImportValidation {
-  /** The valid rows, in file order. */
-  rows: ImportRowChanges[];
-  /** Every problem, by row and then by column in file order. */
-  problems: CsvProblem[];
-  rowCount: number;
-  invalidRowCount: number;
-}
+export type ImportValidation = CheckedRows<ImportRowChanges>;
 
-const MAX_TEXT = { higherTaxon: 300, notes: 8000, name: 300 };
+const MAX_TEXT = { higherTaxon: 300, notes: 8000 };
 
 /**
  * Validates the rows of `parsed` read through `mapping`. Problems: a missing name, a name given on
@@ -58,26 +52,7 @@ export function validateImportRows(
     .map(([id, header]) => ({ trait: byId.get(id), index: col(header) }))
     .filter((t): t is { trait: CodebookTrait; index: number } => t.trait !== undefined && t.index >= 0);
 
-  const problems: Array<CsvProblem & { order: number }> = parsed.problems.map((p) => ({ ...p, order: -1 }));
-  const broken = new Set(parsed.problems.map((p) => p.row));
-  const firstRowOfName = new Map<string, number>();
-  const rows: ImportRowChanges[] = [];
-  let invalidRowCount = 0;
-
-  for (const { row, cells } of parsed.rows) {
-    let valid = !broken.has(row);
-    const problem = (index: number, message: string) => {
-      problems.push({ row, column: index >= 0 ? parsed.header[index] : null, message, order: index });
-      valid = false;
-    };
-    const name = nameCol >= 0 ? cells[nameCol].trim() : "";
-    if (!name) problem(nameCol, "Name is missing");
-    else if (name.length > MAX_TEXT.name) problem(nameCol, `Name has ${name.length} characters; at most ${MAX_TEXT.name}`);
-    else {
-      const earlier = firstRowOfName.get(name);
-      if (earlier !== undefined) problem(nameCol, `Duplicate taxon "${name}": also on row ${earlier}`);
-      else firstRowOfName.set(name, row);
-    }
+  return checkRows(parsed, nameCol, { label: "Name", kind: "taxon" }, (row, cells, name, problem) => {
     const changes: ImportRowChanges = { row, name, values: {} };
     const text = (index: number, key: "higherTaxon" | "notes") => {
       if (index < 0) return;
@@ -107,9 +82,6 @@ export function validateImportRows(
       if (!r.ok) problem(index, r.message);
       else if (r.value !== null) changes.values[trait.id] = r.value;
     }
-    if (valid) rows.push(changes);
-    else invalidRowCount++;
-  }
-  problems.sort((a, b) => a.row - b.row || a.order - b.order);
-  return { rows, problems: problems.map(({ row, column, message }) => ({ row, column, message })), rowCount: parsed.rows.length, invalidRowCount };
+    return changes;
+  });
 }
