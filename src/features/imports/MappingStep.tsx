@@ -9,6 +9,7 @@ import { issuesToFieldErrors, type FieldErrors } from "../../lib/forms";
 import { formatCount } from "../../lib/format";
 import { usePreviewImport } from "./api";
 import type { ImportPreview } from "@shared/schemas/imports";
+import { SampleRowsTable } from "../../components/SampleRowsTable";
 
 type TaxonTarget = "name" | "higherTaxon" | "firstAppearance" | "lastAppearance" | "notes";
 
@@ -174,28 +175,7 @@ export function MappingStep({ studyId, upload, traits, initialMapping, onPreview
         <details className="rounded-lg border border-stone-200">
           <summary className="cursor-pointer px-4 py-2 text-sm font-medium text-stone-700">The file’s first rows</summary>
           <div className="overflow-x-auto border-t border-stone-100">
-            <table className="min-w-full text-left text-sm">
-              <thead className="bg-stone-50 text-stone-600">
-                <tr>
-                  {upload.columns.map((c) => (
-                    <th key={c} scope="col" className="px-3 py-1.5 font-semibold whitespace-nowrap">
-                      {c}
-                    </th>
-                  ))}
-                </tr>
-              </thead>
-              <tbody className="divide-y divide-stone-100">
-                {upload.sampleRows.slice(0, 5).map((cells, i) => (
-                  <tr key={i}>
-                    {upload.columns.map((c, j) => (
-                      <td key={c} className="px-3 py-1.5 whitespace-nowrap text-stone-800">
-                        {cells[j] ?? ""}
-                      </td>
-                    ))}
-                  </tr>
-                ))}
-              </tbody>
-            </table>
+            <SampleRowsTable columns={upload.columns} rows={upload.sampleRows} caption="The first rows of the file" />
           </div>
         </details>
       )}

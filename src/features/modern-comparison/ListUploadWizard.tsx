@@ -23,6 +23,7 @@ import { useCommitModernList, useDiscardModernUpload, usePreviewModernList, useU
 import { CategoryBadge } from "./CategoryBadge";
 import { ProgressBar } from "../../components/ProgressBar";
 import type { UploadProgress } from "../../lib/uploadWithProgress";
+import { SampleRowsTable } from "../../components/SampleRowsTable";
 
 type Stage =
   | { step: "upload" }
@@ -221,29 +222,7 @@ function MapStep({ studyId, upload, initialMapping, initialName, onPreviewed, on
       </fieldset>
       {upload.sampleRows.length > 0 && (
         <div className="overflow-x-auto rounded-lg border border-stone-200">
-          <table className="min-w-full text-sm">
-            <caption className="sr-only">The first rows of the file</caption>
-            <thead className="bg-stone-50 text-left text-stone-600">
-              <tr>
-                {upload.columns.map((c) => (
-                  <th key={c} scope="col" className="px-3 py-2 font-medium whitespace-nowrap">
-                    {c}
-                  </th>
-                ))}
-              </tr>
-            </thead>
-            <tbody className="divide-y divide-stone-100">
-              {upload.sampleRows.slice(0, 5).map((cells, i) => (
-                <tr key={i}>
-                  {cells.map((cell, j) => (
-                    <td key={j} className="px-3 py-1.5 whitespace-nowrap text-stone-700">
-                      {cell}
-                    </td>
-                  ))}
-                </tr>
-              ))}
-            </tbody>
-          </table>
+          <SampleRowsTable columns={upload.columns} rows={upload.sampleRows} caption="The first rows of the file" />
         </div>
       )}
       <div className="flex flex-wrap justify-between gap-3">
