@@ -16,6 +16,8 @@ import { pathToFileURL } from "node:url";
 import pg from "pg";
 import { freePort } from "../db/cluster";
 import { SUGGESTED_CODEBOOK } from "../shared/codebook";
+import { mulberry32, pick } from "../db/demo/names";
+import { quantile } from "./quantile";
 
 export interface LoadFigure {
   name: string;
@@ -31,36 +33,15 @@ const WRITERS = 5;
 const TAXA_PER_WRITER = 10;
 const PASSWORD = "load bench password (invented)";
 
-/** mulberry32: a small seeded generator, so every run imports the same invented study. */
-function generator(seed: number) {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
-
-function quantile(sorted: number[], q: number): number {
-  if (sorted.length === 0) return NaN;
-  const pos = (sorted.length - 1) * q;
-  const lo = Math.floor(pos);
-  const hi = Math.ceil(pos);
-  return sorted[lo] + (sorted[hi] - sorted[lo]) * (pos - lo);
-}
-
 const taxonName = (i: number) => `Loadella ${String(i).padStart(5, "0")}`;
 
 function inventedCsv(): string {
-  const rand = generator(5050);
-  const pick = <T>(list: readonly T[]) => list[Math.floor(rand() * list.length)];
+  const rand = mulberry32(5050);
   const lines = [["name", "higher_taxon", "first_appearance", "last_appearance", ...SUGGESTED_CODEBOOK.map((t) => t.key)].join(",")];
   for (let i = 0; i < TAXA; i++) {
     const fad = 70 + rand() * 30;
     const lad = fad - rand() * 12;
-    const values = SUGGESTED_CODEBOOK.map((t) => (rand() < 0.05 ? "" : t.kind === "numeric" ? (1 + rand() * 300).toFixed(1) : pick(t.states).code));
+    const values = SUGGESTED_CODEBOOK.map((t) => (rand() < 0.05 ? "" : t.kind === "numeric" ? (1 + rand() * 300).toFixed(1) : pick(rand, t.states).code));
     lines.push([taxonName(i), `Invented clade ${Math.floor(rand() * 40)}`, fad.toFixed(2), lad.toFixed(2), ...values].join(","));
   }
   return lines.join("\n") + "\n";

@@ -16,6 +16,8 @@ import { createTaxonService } from "../server/services/taxa";
 import { loadCodebook } from "../server/services/taxonState";
 import { taxaListQuerySchema } from "../shared/schemas/taxa";
 import type { ImportMapping } from "../shared/schemas/imports";
+import { mulberry32, pick } from "../db/demo/names";
+import { quantile } from "./quantile";
 
 export interface TraitTableFigure {
   name: string;
@@ -37,29 +39,9 @@ const EXTRA_TRAITS = [
   { key: "depth", label: "Water depth", kind: "numeric" as const, states: [] },
 ];
 
-/** A small deterministic generator (mulberry32) so every run imports the same invented file. */
-function generator(seed: number) {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
-
-function quantile(sorted: number[], q: number): number {
-  const pos = (sorted.length - 1) * q;
-  const lo = Math.floor(pos);
-  const hi = Math.ceil(pos);
-  return sorted[lo] + (sorted[hi] - sorted[lo]) * (pos - lo);
-}
-
 /** The invented file: one row per taxon, ranges as ages or stage names, every trait filled or left empty. */
 function inventedCsv(): string {
-  const rand = generator(20260);
-  const pick = <T>(list: readonly T[]) => list[Math.floor(rand() * list.length)];
+  const rand = mulberry32(20260);
   const stages = ["Campanian", "Maastrichtian", "Santonian", "Coniacian", "Turonian"];
   const header = [
     "name",
@@ -78,16 +60,16 @@ function inventedCsv(): string {
       `Benchella ${String(i).padStart(6, "0")}`,
       `Invented clade ${Math.floor(rand() * 40)}`,
       useStages ? "Santonian" : fad.toFixed(2),
-      useStages ? pick(stages.slice(0, 2)) : lad.toFixed(2),
+      useStages ? pick(rand, stages.slice(0, 2)) : lad.toFixed(2),
       ...SUGGESTED_CODEBOOK.map((t) => {
         if (rand() < 0.05) return "";
         if (t.kind === "numeric") return (1 + rand() * 300).toFixed(1);
-        return pick(t.states).code;
+        return pick(rand, t.states).code;
       }),
       ...EXTRA_TRAITS.map((t) => {
         if (rand() < 0.05) return "";
         if (t.kind === "numeric") return (rand() * 1000).toFixed(0);
-        return pick(t.states);
+        return pick(rand, t.states);
       }),
     ];
     lines.push(cells.join(","));
