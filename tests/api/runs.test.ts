@@ -14,6 +14,7 @@ import { activity, runs, taxa, traits } from "../../db/schema/index";
 import { runParamsSchema, type Run, type RunDiff, type RunList, type RunParamsInput, type RunPreview } from "../../shared/schemas/runs";
 import { createTestApp, type TestApp } from "../support/server";
 import { castOfRoles, type Cast } from "./fixtures";
+import { HARD_HIT, NO_HABIT, NOT_AT_RISK, plantedTaxa, SPARED } from "../support/plantedSelectivity";
 
 const APP_VERSION = (JSON.parse(readFileSync(new URL("../../package.json", import.meta.url), "utf8")) as { version: string }).version;
 const CAUTION = "Selectivity results are statistical associations across a boundary, not proof of a kill mechanism; a shared cause can produce them.";
@@ -24,51 +25,9 @@ let studyId: string;
 let feedingId: string;
 let habitId: string;
 
-// ---------------------------------------------------------------- the invented study
+// ---------------------------------------------------------------- the invented study (tests/support/plantedSelectivity.ts)
 
-// Invented clades of an invented basin. Two are hard hit by the crisis; most of their members
-// burrow (infaunal), while burrowers are rare elsewhere. Feeding mode is spread evenly over clades
-// and habits, and suspension feeders die more often in every clade: 0.8 against 0.6 in the hard-hit
-// clades, 0.4 against 0.2 elsewhere, an odds ratio of 8/3 within each clade (worked by hand:
-// (0.8/0.2)/(0.6/0.4) = 4/1.5 and (0.4/0.6)/(0.2/0.8) = (2/3)/(1/4), both 8/3). Life habit has no
-// effect of its own: within a clade both habits die at the same rate. Cells are multiples of 5, so
-// every planted proportion is met exactly.
-const HARD_HIT = ["Caldorridae", "Vesperinidae"];
-const SPARED = ["Lumaquidae", "Orrentidae", "Pallisidae", "Quillatidae", "Sabranidae", "Tethrinidae"];
-const PER_CLADE = 50;
-const P_VICTIM = { hard: { suspension: 0.8, deposit: 0.6 }, spared: { suspension: 0.4, deposit: 0.2 } };
-/** Extra taxa of a spared clade with no life habit coded (they enter the feeding test only), planted with the same rates. */
-const NO_HABIT = 10;
-const NOT_AT_RISK = 30;
-
-interface PlantedTaxon {
-  name: string;
-  clade: string;
-  feeding: "suspension" | "deposit";
-  habit: "infaunal" | "epifaunal" | null;
-  victim: boolean;
-}
-
-function plantedTaxa(): PlantedTaxon[] {
-  const out: PlantedTaxon[] = [];
-  let serial = 0;
-  const name = () => `Sievella ${String(++serial).padStart(3, "0")} (invented)`;
-  const cell = (clade: string, habit: PlantedTaxon["habit"], n: number) => {
-    const rates = P_VICTIM[HARD_HIT.includes(clade) ? "hard" : "spared"];
-    for (const feeding of ["suspension", "deposit"] as const) {
-      const victims = Math.round((n / 2) * rates[feeding]);
-      for (let k = 0; k < n / 2; k++) out.push({ name: name(), clade, feeding, habit, victim: k < victims });
-    }
-  };
-  for (const clade of [...HARD_HIT, ...SPARED]) {
-    const infaunal = HARD_HIT.includes(clade) ? 40 : 10; // 80% of hard-hit clades burrow, 20% of the others
-    cell(clade, "infaunal", infaunal);
-    cell(clade, "epifaunal", PER_CLADE - infaunal);
-  }
-  cell(SPARED[0], null, NO_HABIT);
-  return out;
-}
-const PLANTED = plantedTaxa();
+const PLANTED = plantedTaxa("Sievella");
 const VICTIMS = PLANTED.filter((t) => t.victim).length;
 const SURVIVORS = PLANTED.length - VICTIMS;
 

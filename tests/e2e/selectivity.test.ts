@@ -10,6 +10,7 @@ import type { Download, Page } from "playwright-core";
 import { runs, taxa } from "../../db/schema/index";
 import { launchBrowser, screenshot, withScreenshotOnFailure } from "../support/browser";
 import { PASSWORD, startTestServer, uniqueEmail } from "../support/server";
+import { NO_HABIT, NOT_AT_RISK, plantedTaxa, SPARED } from "../support/plantedSelectivity";
 
 type Server = Awaited<ReturnType<typeof startTestServer>>;
 type Browser = Awaited<ReturnType<typeof launchBrowser>>;
@@ -29,47 +30,8 @@ afterAll(async () => {
 
 const CAUTION = "Selectivity results are statistical associations across a boundary, not proof of a kill mechanism; a shared cause can produce them.";
 
-// ---------------------------------------------------------------- the invented study
-// Eight invented clades; two are hard hit. Most members of the hard-hit clades burrow (infaunal),
-// few elsewhere. Suspension feeders die more often in every clade (0.8 against 0.6 in the hard-hit
-// clades, 0.4 against 0.2 elsewhere: an odds ratio of 8/3 within each clade, worked by hand:
-// (0.8/0.2)/(0.6/0.4) = 4/1.5 = 8/3 and (0.4/0.6)/(0.2/0.8) = (2/3)/(1/4) = 8/3). Life habit has no
-// effect of its own: within a clade both habits die at the same rate, so its clade-adjusted
-// (Mantel-Haenszel) odds ratio is exactly 1, while crudely it tracks the hard-hit clades.
-const HARD_HIT = ["Caldorridae", "Vesperinidae"];
-const SPARED = ["Lumaquidae", "Orrentidae", "Pallisidae", "Quillatidae", "Sabranidae", "Tethrinidae"];
-const RATE = { hard: { suspension: 0.8, deposit: 0.6 }, spared: { suspension: 0.4, deposit: 0.2 } };
-/** Taxa of a spared clade without a coded life habit: they enter the feeding test only. */
-const NO_HABIT = 10;
-const NOT_AT_RISK = 30;
-
-interface Planted {
-  name: string;
-  clade: string;
-  feeding: "suspension" | "deposit";
-  habit: "infaunal" | "epifaunal" | null;
-  victim: boolean;
-}
-
-function plantedTaxa(): Planted[] {
-  const out: Planted[] = [];
-  let serial = 0;
-  const cell = (clade: string, habit: Planted["habit"], n: number) => {
-    const rates = RATE[HARD_HIT.includes(clade) ? "hard" : "spared"];
-    for (const feeding of ["suspension", "deposit"] as const) {
-      const victims = Math.round((n / 2) * rates[feeding]);
-      for (let k = 0; k < n / 2; k++) out.push({ name: `Sieveria ${String(++serial).padStart(3, "0")} (invented)`, clade, feeding, habit, victim: k < victims });
-    }
-  };
-  for (const clade of [...HARD_HIT, ...SPARED]) {
-    const infaunal = HARD_HIT.includes(clade) ? 40 : 10;
-    cell(clade, "infaunal", infaunal);
-    cell(clade, "epifaunal", 50 - infaunal);
-  }
-  cell(SPARED[0], null, NO_HABIT);
-  return out;
-}
-const PLANTED = plantedTaxa();
+// ---------------------------------------------------------------- the invented study (tests/support/plantedSelectivity.ts)
+const PLANTED = plantedTaxa("Sieveria");
 
 // Worked by hand from the plan above (per hard-hit clade: 40 infaunal = 20 suspension (16 lost) +
 // 20 deposit (12 lost), 10 epifaunal = 5 (4 lost) + 5 (3 lost); per spared clade: 10 infaunal =
