@@ -7,7 +7,7 @@
 // included), so a "committing" import whose lock is free was interrupted: the sweep says so and
 // the import can be committed again.
 import { randomUUID } from "node:crypto";
-import { mkdir, readFile, rm, writeFile } from "node:fs/promises";
+import { mkdir, rm, writeFile } from "node:fs/promises";
 import { join } from "node:path";
 import { and, count, desc, eq, inArray, lt, sql } from "drizzle-orm";
 import { alias } from "drizzle-orm/pg-core";
@@ -48,6 +48,7 @@ import {
   type NewDecision,
   type TaxonState,
 } from "./taxonState";
+import { readStoredUpload, refuseMappingProblems } from "./storedUploads";
 
 type ImportRow = typeof imports.$inferSelect;
 
@@ -152,25 +153,6 @@ export function createImportService(db: Database) {
           ? "This upload was discarded; upload the file again."
           : `This import was already ${row.status}; upload the file again to import it anew.`,
     );
-
-  async function readStored(row: ImportRow): Promise<ParsedCsv> {
-    if (!row.storedPath) throw new HttpError(409, "file_gone", "The uploaded file is no longer kept; upload it again.");
-    const info = row.mapping as unknown as StoredImportInfo;
-    let bytes: Buffer;
-    try {
-      bytes = await readFile(row.storedPath);
-    } catch {
-      throw new HttpError(409, "file_gone", "The uploaded file is no longer kept; upload it again.");
-    }
-    return parseCsv(new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength), { delimiter: info.delimiter });
-  }
-
-  function checkMapping(mapping: ImportMapping, parsed: ParsedCsv, codebook: Trait[]) {
-    const problems = mappingProblems(mapping, parsed.header, codebook);
-    if (Object.keys(problems).length) {
-      throw badRequest(`Invalid mapping: ${Object.values(problems).join("; ")}`, Object.fromEntries(Object.entries(problems).map(([k, v]) => [`mapping.${k}`, v])));
-    }
-  }
 
   /** Validates against the codebook and, for ranges, the stored taxa of the same names. */
   function validate(parsed: ParsedCsv, mapping: ImportMapping, codebook: Trait[], existing: Map<string, TaxonState>): ImportValidation {
@@ -301,9 +283,9 @@ export function createImportService(db: Database) {
     async preview(studyId: string, importId: string, mapping: ImportMapping): Promise<ImportPreview> {
       const row = await importRow(studyId, importId);
       if (row.status !== "previewed") throw notPreviewable(row);
-      const parsed = await readStored(row);
+      const parsed = await readStoredUpload(row);
       const codebook = await loadCodebook(db, studyId);
-      checkMapping(mapping, parsed, codebook);
+      refuseMappingProblems(mappingProblems(mapping, parsed.header, codebook));
       const existing = new Map((await taxaByName(db, studyId, namesIn(parsed, mapping), false)).map((s) => [s.name, s]));
       const result = validate(parsed, mapping, codebook, existing);
       const plans = result.rows.map((r) => planRow(r, existing.get(r.name) ?? null));
@@ -362,9 +344,9 @@ export function createImportService(db: Database) {
             .returning();
           if (!row) throw notPreviewable(await importRow(studyId, importId));
           claim.row = row;
-          const parsed = await readStored(row);
+          const parsed = await readStoredUpload(row);
           const codebook = await loadCodebook(db, studyId);
-          checkMapping(input.mapping, parsed, codebook);
+          refuseMappingProblems(mappingProblems(input.mapping, parsed.header, codebook));
           const names = namesIn(parsed, input.mapping);
           const reason = input.reason || `Imported from ${row.fileName}`;
           // The taxa this file names, locked: an edit in the grid meanwhile waits for the commit.

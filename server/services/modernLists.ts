@@ -3,12 +3,12 @@
 // nothing; leaving invalid rows out must be asked for. The crosswalk pairs the list's trait columns
 // with the study's codebook and is saved with the list; values it cannot read are listed.
 import { randomUUID } from "node:crypto";
-import { mkdir, readFile, rm, writeFile } from "node:fs/promises";
+import { mkdir, rm, writeFile } from "node:fs/promises";
 import { join } from "node:path";
 import { and, count, desc, eq, inArray, sql } from "drizzle-orm";
 import type { Database, DbOrTx } from "../db";
 import { activity, comparisons, imports, modernLists, modernSpecies, users } from "../../db/schema/index";
-import { parseCsv, type CsvDelimiter, type ParsedCsv } from "../../shared/csv/parse";
+import { parseCsv, type CsvDelimiter } from "../../shared/csv/parse";
 import { csvTextProblem } from "../../shared/csv/textCheck";
 import {
   crosswalkCoverage,
@@ -40,6 +40,7 @@ import type { Trait } from "../../shared/schemas/traits";
 import { badRequest, HttpError, notFound } from "../http/errors";
 import { DetailedHttpError } from "../http/detailed";
 import { loadCodebook } from "./taxonState";
+import { readStoredUpload, refuseMappingProblems } from "./storedUploads";
 
 const TARGET = "modern";
 const SAMPLE_ROWS = 10;
@@ -137,25 +138,6 @@ export function createModernListService(db: Database) {
           ? "This upload was discarded; upload the file again."
           : "This upload was already saved as a list; upload the file again to add it anew.",
     );
-
-  async function readStored(row: UploadRow): Promise<ParsedCsv> {
-    const gone = () => new HttpError(409, "file_gone", "The uploaded file is no longer kept; upload it again.");
-    if (!row.storedPath) throw gone();
-    let bytes: Buffer;
-    try {
-      bytes = await readFile(row.storedPath);
-    } catch {
-      throw gone();
-    }
-    return parseCsv(new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength), { delimiter: (row.mapping as unknown as StoredUploadInfo).delimiter });
-  }
-
-  function checkMapping(mapping: ModernListMapping, parsed: ParsedCsv): void {
-    const problems = modernMappingProblems(mapping, parsed.header);
-    if (Object.keys(problems).length) {
-      throw badRequest(`Invalid mapping: ${Object.values(problems).join("; ")}`, Object.fromEntries(Object.entries(problems).map(([k, v]) => [`mapping.${k}`, v])));
-    }
-  }
 
   /** Species per category and comparisons per list, for the lists given. */
   async function listCounts(listIds: string[]) {
@@ -267,8 +249,8 @@ export function createModernListService(db: Database) {
     async preview(studyId: string, uploadId: string, mapping: ModernListMapping): Promise<ModernListPreview> {
       const { row } = await uploadRow(studyId, uploadId);
       if (row.status !== "previewed") throw closed(row);
-      const parsed = await readStored(row);
-      checkMapping(mapping, parsed);
+      const parsed = await readStoredUpload(row);
+      refuseMappingProblems(modernMappingProblems(mapping, parsed.header));
       const result = validateModernListRows(parsed, mapping);
       const categories = emptyCounts();
       for (const r of result.rows) categories[r.category]++;
@@ -301,8 +283,8 @@ export function createModernListService(db: Database) {
       if (claimed.length === 0) throw closed((await uploadRow(studyId, uploadId)).row);
       const row = claimed[0];
       try {
-        const parsed = await readStored(row);
-        checkMapping(input.mapping, parsed);
+        const parsed = await readStoredUpload(row);
+        refuseMappingProblems(modernMappingProblems(input.mapping, parsed.header));
         const checked = validateModernListRows(parsed, input.mapping);
         if (checked.problems.length && !input.skipInvalid) {
           throw new DetailedHttpError(
