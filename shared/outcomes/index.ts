@@ -4,3 +4,4 @@ export { boundaryCrosserRates, countBoundaryCrossers, type BoundaryCrosserCounts
 export { ratesThroughTime, type IntervalRates } from "./ratesThroughTime";
 export { outcomeWarnings, type OutcomeWarnings, type WarningGroup } from "./outcomeWarnings";
 export { rangeProblem, type NamedInterval, type RangeProblem, type TaxonRange } from "./validateRanges";
+export { backgroundContrast, MAD_NORMAL_CONSISTENCY, MIN_BACKGROUND_VALUES, type BackgroundContrast } from "./backgroundContrast";
