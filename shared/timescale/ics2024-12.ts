@@ -1,8 +1,8 @@
 // International Chronostratigraphic Chart v2024/12, as published by the International Commission
 // on Stratigraphy (Cohen, Harper, Gibbard & Car 2025, Episodes 48: 105-115), copied row by row
-// from the chart's machine-readable form (the CSV kept beside the project at
-// ../shared/data/ics-chart-2024-12.csv). The data are committed here because that file lives
-// outside the repository. Numbers are written exactly as in that file (e.g. 3.600, 66.00).
+// from the chart's machine-readable form (tests/fixtures/timescale/ics-chart-2024-12.csv, which a
+// unit test holds this module to row for row; docs/sources.md section 8). Numbers are written
+// exactly as in that file (e.g. 3.600, 66.00).
 //
 // Fields: base = base age in Ma; uncertainty = the stated +/- in Myr, null where none is given;
 // parent = the next broader unit named in the data; gsspRatified = true where the data mark the

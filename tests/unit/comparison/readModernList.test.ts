@@ -17,7 +17,7 @@ describe("IUCN Red List Categories and Criteria 3.1 (IUCN 2012)", () => {
   });
 
   it("orders LC 0 to CR 4 for the rank correlation", () => {
-    // Red List Index weights (Butchart et al. 2004, 2007; citations from memory, CHECK-SOURCES section 9).
+    // Red List Index weights (Butchart et al. 2004, 2007; citations from memory, docs/sources.md section 9).
     expect(IUCN_ORDINAL).toEqual({ LC: 0, NT: 1, VU: 2, EN: 3, CR: 4 });
   });
 

@@ -11,7 +11,7 @@ const BASE = 10;
 const TOP = 5;
 
 describe("boundaryCrosserRates: Foote (2000) synthetic example", () => {
-  // Check values: CHECK-SOURCES section 7, "Illustrative numbers (COMPUTED, synthetic)": Nbt = 60, NbL = 40,
+  // Check values: docs/sources.md section 7, "Illustrative numbers (COMPUTED, synthetic)": Nbt = 60, NbL = 40,
   // NFt = 15, NFL = 10 give q = -ln 0.6 = 0.5108, p = -ln 0.8 = 0.2231, proportional extinction 50/125 = 0.40.
   // The formulas behind them (Foote 2000, Paleobiology 26(4) suppl.: 74-102) are FROM MEMORY per that file:
   // Foote's Table 1 was not read. So this checks the computation against a derived, not a published, value.
@@ -27,17 +27,17 @@ describe("boundaryCrosserRates: Foote (2000) synthetic example", () => {
     expect(rates).toMatchObject({ nbt: 60, nbL: 40, nFt: 15, nFL: 10, nb: 100, nt: 75, taxonCount: 125, duration: 5 });
   });
   it("gives q = 0.5108 and p = 0.2231 per interval", () => {
-    expect(rates.q).toBeCloseTo(0.5108, 4); // CHECK-SOURCES 7, -ln 0.6 (formula FROM MEMORY)
-    expect(rates.p).toBeCloseTo(0.2231, 4); // CHECK-SOURCES 7, -ln 0.8 (formula FROM MEMORY)
+    expect(rates.q).toBeCloseTo(0.5108, 4); // docs/sources.md section 7, -ln 0.6 (formula FROM MEMORY)
+    expect(rates.p).toBeCloseTo(0.2231, 4); // docs/sources.md section 7, -ln 0.8 (formula FROM MEMORY)
   });
   it("divides by the interval's length for rates per Myr", () => {
-    // CHECK-SOURCES 7: q-hat = -ln(Nbt/Nb) / Δt with Nbt/Nb = 0.6, p-hat with Nbt/Nt = 0.8 (formulas FROM MEMORY); Δt = 5 Myr.
+    // docs/sources.md section 7: q-hat = -ln(Nbt/Nb) / Δt with Nbt/Nb = 0.6, p-hat with Nbt/Nt = 0.8 (formulas FROM MEMORY); Δt = 5 Myr.
     expect(rates.qPerMyr).toBeCloseTo(-Math.log(0.6) / 5, 12);
     expect(rates.pPerMyr).toBeCloseTo(-Math.log(0.8) / 5, 12);
   });
   it("gives proportional extinction 0.40", () => {
-    expect(rates.proportionalExtinction).toBeCloseTo(0.4, 12); // CHECK-SOURCES 7, 50/125
-    expect(rates.proportionalOrigination).toBeCloseTo(25 / 125, 12); // CHECK-SOURCES 7: (NFt + NFL)/Ntot
+    expect(rates.proportionalExtinction).toBeCloseTo(0.4, 12); // docs/sources.md section 7, 50/125
+    expect(rates.proportionalOrigination).toBeCloseTo(25 / 125, 12); // docs/sources.md section 7: (NFt + NFL)/Ntot
   });
 });
 

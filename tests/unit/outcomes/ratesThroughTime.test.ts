@@ -2,7 +2,7 @@ import { describe, expect, it } from "vitest";
 import { ratesThroughTime } from "@shared/outcomes";
 
 // Invented ranges and intervals, worked by hand with the boundary-crosser rules (Foote 2000, Paleobiology
-// 26(4) suppl.: 74-102; the formulas are FROM MEMORY per CHECK-SOURCES section 7).
+// 26(4) suppl.: 74-102; the formulas are FROM MEMORY per docs/sources.md section 7).
 const taxa = [
   { fad: 12, lad: 3 }, // crosses 10 and 5; in A, crosses the base only
   { fad: 12, lad: 7 }, // crosses 10, last seen in B

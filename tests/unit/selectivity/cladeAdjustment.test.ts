@@ -5,7 +5,7 @@ import { createUniformSource } from "@shared/stats/random";
 import { expectAbsoluteClose, expectRelativeClose } from "../stats/helpers";
 import { DEFAULT_OPTIONS, numericTrait, stateTrait } from "./helpers";
 
-// Published worked example: R's UCBAdmissions data (Admit x Gender x Dept), CHECK-SOURCES 3. Each
+// Published worked example: R's UCBAdmissions data (Admit x Gender x Dept), docs/sources.md section 3. Each
 // applicant becomes one row with Dept as the clade, Gender as a two-state trait (male against the
 // female reference) and "admitted" as the outcome coded 1, so the clade-adjusted odds ratio is
 // the common odds ratio that mantelhaen.test(UCBAdmissions) prints.
@@ -43,14 +43,14 @@ describe("clade-adjusted odds ratio of a two-state trait (UCBAdmissions, R mante
 
   it("matches the published common odds ratio and interval", () => {
     const adjusted = contrast.cladeAdjusted!;
-    expectRelativeClose(adjusted.estimate, 0.9046968, 1e-6); // R output "common odds ratio 0.9046968" (CHECK-SOURCES 3)
+    expectRelativeClose(adjusted.estimate, 0.9046968, 1e-6); // R output "common odds ratio 0.9046968" (docs/sources.md section 3)
     expectRelativeClose(adjusted.ci[0], 0.7719074, 1e-6); // R output, 95% interval
     expectRelativeClose(adjusted.ci[1], 1.0603298, 1e-6); // R output
     expect(adjusted.method).toMatch(/^Mantel-Haenszel over 6 clades/);
   });
 
   it("reports the Breslow-Day test of equal odds ratios across departments", () => {
-    // COMPUTED in CHECK-SOURCES 3 (no published twin): Breslow-Day = Tarone = 18.8255 on 5 df, p 0.002071.
+    // COMPUTED in docs/sources.md section 3 (no published twin): Breslow-Day = Tarone = 18.8255 on 5 df, p 0.002071.
     expectAbsoluteClose(contrast.cladeAdjusted!.breslowDay!.chiSquare, 18.8255, 5e-4);
     expect(contrast.cladeAdjusted!.breslowDay!.df).toBe(5);
     expectAbsoluteClose(contrast.cladeAdjusted!.breslowDay!.pValue, 0.002071, 5e-6);
@@ -68,7 +68,7 @@ describe("clade-adjusted odds ratio of a two-state trait (UCBAdmissions, R mante
 });
 
 describe("fitStratifiedSlope: one intercept per stratum and a common slope", () => {
-  // Budworm data (Venables & Ripley 2002, from R's predict.glm help; CHECK-SOURCES 4b): 20 moths per
+  // Budworm data (Venables & Ripley 2002, from R's predict.glm help; docs/sources.md section 4): 20 moths per
   // dose and sex, deaths 1, 4, 9, 13, 18, 20 (male) and 0, 2, 6, 10, 12, 16 (female) at ldose 0..5.
   // The additive model sex + ldose - 1 gives ldose 1.0642 (SE 0.1311), sexF -3.4732, sexM -2.3724
   // (Venables & Ripley 2002 p. 192, from memory); the engine's logistic regression with a sex dummy

@@ -19,8 +19,8 @@ describe("a state with only victims", () => {
   const reef = setting.contrasts[0];
 
   it("gives a Fisher p-value and a Haldane-corrected crude odds ratio, and says so", () => {
-    expectAbsoluteClose(setting.test.pValue!, 0.032508, 5e-7); // CHECK-SOURCES 2, zero-cell table [[10,0],[5,5]] (COMPUTED)
-    // CHECK-SOURCES 2 (COMPUTED): Haldane + Woolf 21.0, 95% interval 0.9716 - 453.91;
+    expectAbsoluteClose(setting.test.pValue!, 0.032508, 5e-7); // docs/sources.md section 2, zero-cell table [[10,0],[5,5]] (COMPUTED)
+    // docs/sources.md section 2 (COMPUTED): Haldane + Woolf 21.0, 95% interval 0.9716 - 453.91;
     // worked by hand: (10.5 * 5.5) / (0.5 * 5.5) = 21.
     expectRelativeClose(reef.crude.estimate, 21, 1e-12);
     expectRelativeClose(reef.crude.ci[0], 0.9716, 1e-3);
@@ -37,7 +37,7 @@ describe("a state with only victims", () => {
       "Firth's bias-reduced logistic regression (Firth 1993) was used because the data separate the outcomes: all 10 taxa with Setting: Reef died out. An ordinary fit would give an infinite odds ratio there; Firth's stays finite but remains uncertain.",
     );
     expect(model.method).toMatch(/^Firth's bias-reduced multiple logistic regression/);
-    // CHECK-SOURCES 5 (COMPUTED there; that it is a known result is from memory): with one binary
+    // docs/sources.md section 5 (COMPUTED there; that it is a known result is from memory): with one binary
     // predictor, Firth's log odds ratio equals the Haldane-corrected one, ln 21 = 3.044522.
     expectAbsoluteClose(model.coefficients[1].estimate, 3.044522, 1e-5);
     expect(model.coefficients[1].label).toBe("Setting: Reef (vs Lagoon)");

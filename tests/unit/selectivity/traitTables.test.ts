@@ -42,7 +42,7 @@ describe("a trait whose table is the tea-tasting table", () => {
 
   it("gives the published two-sided Fisher p-value", () => {
     // Tea tasting, R fisher.test help example (Agresti 2002 p. 91): two-sided p = 34/70 = 0.4857
-    // (CHECK-SOURCES 1a: null probabilities 1/70, 16/70, 36/70, 16/70, 1/70; the tables no more
+    // (docs/sources.md section 1: null probabilities 1/70, 16/70, 36/70, 16/70, 1/70; the tables no more
     // likely than the observed one sum to 1 + 16 + 16 + 1 = 34 out of 70).
     expectRelativeClose(setting.test.pValue!, 34 / 70, 1e-12);
     expectAbsoluteClose(setting.test.pValue!, 0.4857, 5e-5);
@@ -72,7 +72,7 @@ describe("a trait whose table is the tea-tasting table", () => {
     const chosen = analyse({}, [{ ...SETTING, reference: "lagoon" }]).traits[0];
     const reef = chosen.contrasts[0];
     expect(reef.contrast).toBe("Reef vs Lagoon");
-    // CHECK-SOURCES 2 (COMPUTED there): tea table, sample OR 9.0, Woolf 95% interval 0.3666 - 220.93.
+    // docs/sources.md section 2 (COMPUTED there): tea table, sample OR 9.0, Woolf 95% interval 0.3666 - 220.93.
     expectRelativeClose(reef.crude.estimate, 9, 1e-12);
     expectRelativeClose(reef.crude.ci[0], 0.3666, 1e-3);
     expectRelativeClose(reef.crude.ci[1], 220.93, 1e-4);

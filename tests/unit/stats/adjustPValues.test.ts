@@ -5,21 +5,21 @@ import { expectAbsoluteClose } from "./helpers";
 
 // Published worked example: Benjamini & Hochberg (1995), the 15 p-values of the Neuhaus et al.
 // (1992) thrombolysis trial, as reproduced in scipy's false_discovery_control docstring
-// (CHECK-SOURCES section 6).
+// (docs/sources.md section 6).
 const NEUHAUS = [0.0001, 0.0004, 0.0019, 0.0095, 0.0201, 0.0278, 0.0298, 0.0344, 0.0459, 0.324, 0.4262, 0.5719, 0.6528, 0.759, 1.0];
 
 describe("Benjamini & Hochberg (1995) example", () => {
   it("BH-adjusted p-values and the four rejections at q = 0.05", () => {
-    // scipy false_discovery_control output, identical to R p.adjust(, "BH") (CHECK-SOURCES 6, COMPUTED).
+    // scipy false_discovery_control output, identical to R p.adjust(, "BH") (docs/sources.md section 6, COMPUTED).
     const expected = [0.0015, 0.003, 0.0095, 0.035625, 0.0603, 0.06385714, 0.06385714, 0.0645, 0.0765, 0.486, 0.58118182, 0.714875, 0.75323077, 0.81321429, 1];
     const adjusted = adjustPValues(NEUHAUS, "bh");
     expected.forEach((value, i) => expectAbsoluteClose(adjusted[i], value, 5e-9));
     expect(adjusted.filter((p) => p <= 0.05).length).toBe(4); // BH 1995: 4 rejections at 0.05
-    expect(adjusted.filter((p) => p <= 0.1).length).toBe(9); // CHECK-SOURCES 6: 9 at q = 0.10 (COMPUTED)
+    expect(adjusted.filter((p) => p <= 0.1).length).toBe(9); // docs/sources.md section 6: 9 at q = 0.10 (COMPUTED)
   });
 
   it("Holm-adjusted p-values (Holm 1979)", () => {
-    // CHECK-SOURCES 6 (COMPUTED): Holm rejects 3 at 0.05.
+    // docs/sources.md section 6 (COMPUTED): Holm rejects 3 at 0.05.
     const expected = [0.0015, 0.0056, 0.0247, 0.114, 0.2211, 0.278, 0.278, 0.278, 0.3213, 1, 1, 1, 1, 1, 1];
     const adjusted = adjustPValues(NEUHAUS, "holm");
     expected.forEach((value, i) => expectAbsoluteClose(adjusted[i], value, 1e-12));

@@ -27,7 +27,7 @@ describe("standard normal and chi-square reference points", () => {
     expectRelativeClose(normalCdf(1.96), 0.9750021048517796, 1e-14);
     expectRelativeClose(chiSquareUpperTail(3.841458820694124, 1), 0.05, 1e-12);
     // SAS Breslow-Day output for the Chinese smoking data: 5.200 on 7 df, p = 0.636 (Agresti 2002
-    // Table 3.3 via the Stanford ED257 handout, CHECK-SOURCES section 3).
+    // Table 3.3 via the Stanford ED257 handout, docs/sources.md section 3).
     expectAbsoluteClose(chiSquareUpperTail(5.2, 7), 0.636, 5e-4);
   });
 });

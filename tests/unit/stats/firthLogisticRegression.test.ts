@@ -7,7 +7,7 @@ import { expectAbsoluteClose } from "./helpers";
 
 // Published worked example: endometrial cancer data (Heinze & Schemper 2002), 79 patients; NV
 // (neovasculization), PI (pulsatility index), EH (endometrium height), outcome HG (high grade).
-// Rows NV,PI,EH,HG as listed in CHECK-SOURCES section 5.
+// Rows NV,PI,EH,HG as listed in docs/sources.md section 5.
 const ENDOMETRIAL = `0,13,1.64,0;0,16,2.26,0;0,8,3.14,0;0,34,2.68,0;0,20,1.28,0;0,5,2.31,0;0,17,1.8,0;0,10,1.68,0;0,26,1.56,0;0,17,2.31,0;
 0,8,2.01,0;0,7,1.89,0;0,20,3.15,0;0,10,1.23,0;0,18,1.27,0;0,16,1.76,0;0,18,2,0;0,8,2.64,1;0,29,0.88,1;0,12,1.27,1;
 0,20,1.37,1;1,38,0.97,1;1,22,1.14,1;1,7,0.88,1;1,25,0.91,1;1,15,0.58,1;0,7,0.97,1;0,28,1.5,0;0,11,1.33,0;0,19,2.37,0;
@@ -25,7 +25,7 @@ describe("endometrial data: separation and Firth's penalized likelihood (Heinze 
   const fit = logisticRegression(X, HG, { names: ["NV", "PI", "EH"], terms: [{ name: "NV", columns: [0] }] });
 
   it("detects the quasi-complete separation and names NV", () => {
-    // All 13 patients with NV = 1 have HG = 1 (CHECK-SOURCES 5, COMPUTED from the data).
+    // All 13 patients with NV = 1 have HG = 1 (docs/sources.md section 5, COMPUTED from the data).
     expect(fit.separation).toBe(true);
     expect(fit.separatedPredictors).toEqual(["NV"]);
     expect(fit.firth).toBe(true);
@@ -34,7 +34,7 @@ describe("endometrial data: separation and Firth's penalized likelihood (Heinze 
   });
 
   it("estimates and Wald standard errors", () => {
-    // logistf output as recorded in firthlogist's tests and recomputed (CHECK-SOURCES 5).
+    // logistf output as recorded in firthlogist's tests and recomputed (docs/sources.md section 5).
     const expected: Array<[string, number, number]> = [
       ["(Intercept)", 3.77456, 1.48869],
       ["NV", 2.92927, 1.55076],
@@ -46,12 +46,12 @@ describe("endometrial data: separation and Firth's penalized likelihood (Heinze 
       expectAbsoluteClose(fit.coefficients[j].estimate, estimate, 1e-5);
       expectAbsoluteClose(fit.coefficients[j].se, se, 1e-5);
     });
-    expectAbsoluteClose(fit.penalizedLogLik!, -24.0373, 5e-5); // CHECK-SOURCES 5 (COMPUTED)
+    expectAbsoluteClose(fit.penalizedLogLik!, -24.0373, 5e-5); // docs/sources.md section 5 (COMPUTED)
   });
 
   it("profile penalized likelihood intervals", () => {
     expect(fit.ciMethod).toBe("profile");
-    // CHECK-SOURCES 5; NV 0.61 - 7.85 also as recalled from Heinze & Schemper 2002 (from memory).
+    // docs/sources.md section 5; NV 0.61 - 7.85 also as recalled from Heinze & Schemper 2002 (from memory).
     const expected: Array<[number, number]> = [
       [1.08254, 7.20928],
       [0.60972, 7.85463],
@@ -66,7 +66,7 @@ describe("endometrial data: separation and Firth's penalized likelihood (Heinze 
 
   it("penalized likelihood ratio tests", () => {
     expect(fit.pValueMethod).toBe("penalized-likelihood-ratio");
-    // PLR chi-square 8.198, 6.7985, 0.7468, 17.759 with p 0.00419, 0.00912, 0.387, 2.51e-5 (CHECK-SOURCES 5).
+    // PLR chi-square 8.198, 6.7985, 0.7468, 17.759 with p 0.00419, 0.00912, 0.387, 2.51e-5 (docs/sources.md section 5).
     expectAbsoluteClose(fit.coefficients[0].pValue, 0.00419, 5e-6);
     expectAbsoluteClose(fit.coefficients[1].pValue, 0.00912, 5e-6);
     expectAbsoluteClose(fit.coefficients[2].pValue, 0.387, 5e-4);
@@ -96,7 +96,7 @@ describe("endometrial data: separation and Firth's penalized likelihood (Heinze 
 });
 
 describe("2x2 special case: Firth's log odds ratio equals the Haldane-Anscombe corrected one", () => {
-  // Tables and values from CHECK-SOURCES 5 (COMPUTED there): 3.044522, 2.901422, 3.806662.
+  // Tables and values from docs/sources.md section 5 (COMPUTED there): 3.044522, 2.901422, 3.806662.
   const cases: Array<[Table2x2, number]> = [
     [
       [
@@ -138,7 +138,7 @@ describe("2x2 special case: Firth's log odds ratio equals the Haldane-Anscombe c
     expectAbsoluteClose(fit.coefficients[1].estimate, oddsRatio(table, { correction: "always" }).logEstimate, 1e-8);
   });
 
-  it("Firth SE 1.6446 exceeds the Woolf-Haldane SE 1.5681 for [[10,0],[5,5]] (CHECK-SOURCES 5)", () => {
+  it("Firth SE 1.6446 exceeds the Woolf-Haldane SE 1.5681 for [[10,0],[5,5]] (docs/sources.md section 5)", () => {
     const rowsX = [...Array(10).fill([1]), ...Array(5).fill([0]), ...Array(5).fill([0])];
     const y = [...Array(10).fill(1), ...Array(5).fill(1), ...Array(5).fill(0)];
     const fit = logisticRegression(rowsX, y);

@@ -15,7 +15,7 @@ describe("tea tasting (R fisher.test example; Agresti 2002 p. 91)", () => {
   it("one-sided test, conditional MLE and one-sided interval", () => {
     const result = fisherExact(TEA, { alternative: "greater" });
     expectAbsoluteClose(result.pValue, 0.2429, 5e-5); // R example output "p = 0.2429"
-    expectRelativeClose(result.pValue, 17 / 70, 1e-12); // null probabilities 1/70 + 16/70 (CHECK-SOURCES 1a, COMPUTED)
+    expectRelativeClose(result.pValue, 17 / 70, 1e-12); // null probabilities 1/70 + 16/70 (docs/sources.md section 1, COMPUTED)
     expectRelativeClose(result.oddsRatio!, 6.408309, 1e-5); // R output, conditional MLE
     expectRelativeClose(result.ci![0], 0.3135693, 1e-4); // R output, one-sided 95% CI lower limit
     expect(result.ci![1]).toBe(Infinity); // R output "0.3135693 Inf"
@@ -23,13 +23,13 @@ describe("tea tasting (R fisher.test example; Agresti 2002 p. 91)", () => {
   });
 
   it("two-sided p = 34/70 and the less-than p", () => {
-    expectRelativeClose(fisherExact(TEA).pValue, 34 / 70, 1e-12); // CHECK-SOURCES 1a: scipy and full enumeration (COMPUTED)
-    expectAbsoluteClose(fisherExact(TEA, { alternative: "less" }).pValue, 0.9857, 5e-5); // CHECK-SOURCES 1a (COMPUTED)
+    expectRelativeClose(fisherExact(TEA).pValue, 34 / 70, 1e-12); // docs/sources.md section 1: scipy and full enumeration (COMPUTED)
+    expectAbsoluteClose(fisherExact(TEA, { alternative: "less" }).pValue, 0.9857, 5e-5); // docs/sources.md section 1 (COMPUTED)
   });
 
   it("two-sided exact interval", () => {
     const { ci } = fisherExact(TEA);
-    expectAbsoluteClose(ci![0], 0.2117, 5e-5); // CHECK-SOURCES 1a, scipy (COMPUTED)
+    expectAbsoluteClose(ci![0], 0.2117, 5e-5); // docs/sources.md section 1, scipy (COMPUTED)
     // 626.24 from scipy (COMPUTED); the note there says the upper limit is sensitive to the root
     // finder's tolerance (R-like solvers give ~622-626), so only 1% is asked.
     expectRelativeClose(ci![1], 626.24, 1e-2);
@@ -53,16 +53,16 @@ describe("convictions of twins (Fisher 1962; R fisher.test example)", () => {
   it("exact 95% and 99% intervals", () => {
     const ci95 = fisherExact(CONVICTIONS).ci!;
     // R output 0.003325764 - 0.363182271; R's uniroot tolerance moves the small lower limit in the
-    // 3rd digit, so 1e-2 there (CHECK-SOURCES 1b).
+    // 3rd digit, so 1e-2 there (docs/sources.md section 1).
     expectRelativeClose(ci95[0], 0.003325764, 1e-2);
     expectRelativeClose(ci95[1], 0.363182271, 1e-4);
-    // scipy contingency.odds_ratio(kind="conditional"): 0.0033172 - 0.3631896 (CHECK-SOURCES 1b, COMPUTED).
+    // scipy contingency.odds_ratio(kind="conditional"): 0.0033172 - 0.3631896 (docs/sources.md section 1, COMPUTED).
     expectRelativeClose(ci95[0], 0.0033172, 1e-4);
     expectRelativeClose(ci95[1], 0.3631896, 1e-5);
     const ci99 = fisherExact(CONVICTIONS, { level: 0.99 }).ci!;
     expectRelativeClose(ci99[0], 0.001386333, 2e-2); // R output; lower limit limited by uniroot as above
     expectRelativeClose(ci99[1], 0.578851645, 1e-5); // R output
-    expectRelativeClose(ci99[0], 0.0013719, 1e-4); // scipy (CHECK-SOURCES 1b, COMPUTED)
+    expectRelativeClose(ci99[0], 0.0013719, 1e-4); // scipy (docs/sources.md section 1, COMPUTED)
   });
 
   it("one-sided interval for alternative less", () => {
@@ -78,9 +78,9 @@ describe("zero cell", () => {
       [10, 0],
       [5, 5],
     ]);
-    expectAbsoluteClose(result.pValue, 0.032508, 5e-7); // CHECK-SOURCES 2 (COMPUTED)
-    expect(result.oddsRatio).toBe(Infinity); // CHECK-SOURCES 2: conditional MLE is infinite (COMPUTED)
-    expectAbsoluteClose(result.ci![0], 1.195, 5e-4); // CHECK-SOURCES 2 (COMPUTED)
+    expectAbsoluteClose(result.pValue, 0.032508, 5e-7); // docs/sources.md section 2 (COMPUTED)
+    expect(result.oddsRatio).toBe(Infinity); // docs/sources.md section 2: conditional MLE is infinite (COMPUTED)
+    expectAbsoluteClose(result.ci![0], 1.195, 5e-4); // docs/sources.md section 2 (COMPUTED)
     expect(result.ci![1]).toBe(Infinity);
   });
 
@@ -106,7 +106,7 @@ describe("r x c tables (Freeman-Halton)", () => {
     const result = fisherExact(job);
     expect(result.method).toBe("exact-rxc");
     expectAbsoluteClose(result.pValue, 0.7827, 5e-5); // R output "# 0.7827"
-    expectAbsoluteClose(result.pValue, 0.7826849, 5e-7); // full enumeration in C (CHECK-SOURCES 1d, COMPUTED)
+    expectAbsoluteClose(result.pValue, 0.7826849, 5e-7); // full enumeration in C (docs/sources.md section 1, COMPUTED)
     expect(result.oddsRatio).toBeUndefined();
     expect(result.ci).toBeUndefined();
   });
@@ -134,7 +134,7 @@ describe("r x c tables (Freeman-Halton)", () => {
     const simulated = fisherExact(job, { rxcMethod: "monte-carlo", replicates: 20000, seed: 7 });
     expect(simulated.method).toBe("monte-carlo-rxc");
     expect(simulated.monteCarlo).toMatchObject({ replicates: 20000, seed: 7 });
-    // R with simulate.p.value = TRUE, B = 1e5 reports 0.7842 (CHECK-SOURCES 1d); the exact value is
+    // R with simulate.p.value = TRUE, B = 1e5 reports 0.7842 (docs/sources.md section 1); the exact value is
     // 0.7826849. Allow four Monte Carlo standard errors around the exact value.
     expect(Math.abs(simulated.pValue - 0.7826849)).toBeLessThan(4 * simulated.monteCarlo!.standardError);
     const again = fisherExact(job, { rxcMethod: "monte-carlo", replicates: 20000, seed: 7 });

@@ -8,11 +8,11 @@ import { expectAbsoluteClose, expectRelativeClose } from "./helpers";
 
 // Published worked example: Space Shuttle O-ring data (Dalal, Fowlkes & Hoadley 1989), launch
 // temperature (F) and O-rings with thermal distress out of 6, in the Swan & Rigby (1995) listing
-// (CHECK-SOURCES 4a).
+// (docs/sources.md section 4).
 const TEMPERATURE = [53, 57, 58, 63, 66, 67, 67, 67, 68, 69, 70, 70, 70, 70, 72, 73, 75, 75, 76, 76, 78, 79, 81];
 const DAMAGED_OF_SIX = [2, 1, 1, 1, 0, 0, 0, 0, 0, 0, 0, 0, 1, 1, 0, 0, 0, 2, 0, 0, 0, 0, 0];
 
-describe("Challenger O-rings, any distress per flight (CHECK-SOURCES 4a)", () => {
+describe("Challenger O-rings, any distress per flight (docs/sources.md section 4)", () => {
   const anyDistress = DAMAGED_OF_SIX.map((d) => (d > 0 ? 1 : 0));
   const fit = logisticRegression(
     TEMPERATURE.map((t) => [t]),
@@ -23,7 +23,7 @@ describe("Challenger O-rings, any distress per flight (CHECK-SOURCES 4a)", () =>
   it("coefficients, standard errors and Wald tests", () => {
     const [intercept, slope] = fit.coefficients;
     expect(intercept.name).toBe("(Intercept)");
-    // Commonly quoted binary model (CHECK-SOURCES 4a); tolerances are half a unit in the last digit.
+    // Commonly quoted binary model (docs/sources.md section 4); tolerances are half a unit in the last digit.
     expectAbsoluteClose(intercept.estimate, 15.0429, 5e-5);
     expectAbsoluteClose(intercept.se, 7.3786, 5e-5);
     expectAbsoluteClose(slope.estimate, -0.23216, 5e-6);
@@ -73,7 +73,7 @@ describe("Challenger binomial model, expanded to one row per O-ring (Dalal et al
     const fit = logisticRegression(X, y);
     const [intercept, slope] = fit.coefficients;
     // Dalal et al. 1989 p. 4: 5.085 (SE 3.052) and -0.1156 (SE 0.047); COMPUTED 5.08498, -0.115601,
-    // 3.05249, 0.047024 (CHECK-SOURCES 4a).
+    // 3.05249, 0.047024 (docs/sources.md section 4).
     expectRelativeClose(intercept.estimate, 5.08498, 1e-5);
     expectRelativeClose(slope.estimate, -0.115601, 1e-5);
     expectRelativeClose(intercept.se, 3.05249, 1e-5);
@@ -91,7 +91,7 @@ describe("Challenger binomial model, expanded to one row per O-ring (Dalal et al
   });
 });
 
-describe("budworm, sex * ldose (Venables & Ripley 2002 pp. 190-2; R predict.glm help; CHECK-SOURCES 4b)", () => {
+describe("budworm, sex * ldose (Venables & Ripley 2002 pp. 190-2; R predict.glm help; docs/sources.md section 4)", () => {
   // Binomial counts out of 20 expanded to binary rows. Coefficients and SEs equal those of the
   // binomial fit; the deviance and AIC of R's output (4.9937, 43.104) belong to the binomial form, so
   // they are recomputed from the fitted probabilities rather than compared with fit.deviance.

@@ -40,18 +40,18 @@ describe("rabbits (R mantelhaen.test example)", () => {
     expectRelativeClose(result.oddsRatio, 7, 1e-12); // R output "common odds ratio 7"
     expectRelativeClose(result.ci[0], 1.026713, 1e-6); // R output
     expectRelativeClose(result.ci[1], 47.725133, 1e-7); // R output
-    expectAbsoluteClose(result.logOddsRatioSe, 0.979379, 5e-7); // CHECK-SOURCES 3 (COMPUTED)
+    expectAbsoluteClose(result.logOddsRatioSe, 0.979379, 5e-7); // docs/sources.md section 3 (COMPUTED)
   });
 
   it("uncorrected statistic", () => {
     const plain = mantelHaenszel(RABBITS, { correct: false });
-    expectAbsoluteClose(plain.chiSquare, 5.6571, 5e-5); // CHECK-SOURCES 3 (COMPUTED)
+    expectAbsoluteClose(plain.chiSquare, 5.6571, 5e-5); // docs/sources.md section 3 (COMPUTED)
     expectAbsoluteClose(plain.pValue, 0.01738, 5e-6);
     expect(plain.continuityCorrection).toBe(0);
   });
 
   it("Breslow-Day drops the strata with a zero margin", () => {
-    // COMPUTED only, no published value (CHECK-SOURCES 3): BD 8.6273, Tarone 8.3583 on 2 df from
+    // COMPUTED only, no published value (docs/sources.md section 3): BD 8.6273, Tarone 8.3583 on 2 df from
     // the 3 informative strata (levels 1/8 and 4 have a zero margin).
     expect(result.breslowDay.strataUsed).toBe(3);
     expect(result.breslowDay.df).toBe(2);
@@ -84,12 +84,12 @@ describe("UCB admissions by department (R mantelhaen.test example; data from R d
     expectRelativeClose(result.oddsRatio, 0.9046968, 1e-7); // R output
     expectRelativeClose(result.ci[0], 0.7719074, 1e-7); // R output
     expectRelativeClose(result.ci[1], 1.0603298, 1e-7); // R output
-    expectAbsoluteClose(mantelHaenszel(strata, { correct: false }).chiSquare, 1.5246, 5e-5); // CHECK-SOURCES 3 (COMPUTED)
+    expectAbsoluteClose(mantelHaenszel(strata, { correct: false }).chiSquare, 1.5246, 5e-5); // docs/sources.md section 3 (COMPUTED)
   });
 
   it("Breslow-Day on 5 df", () => {
     const { breslowDay } = mantelHaenszel(strata);
-    // CHECK-SOURCES 3 (COMPUTED): BD 18.8255, df 5, p 0.002071; Tarone 18.8255.
+    // docs/sources.md section 3 (COMPUTED): BD 18.8255, df 5, p 0.002071; Tarone 18.8255.
     expect(breslowDay.df).toBe(5);
     expectAbsoluteClose(breslowDay.uncorrectedChiSquare, 18.8255, 5e-5);
     expectAbsoluteClose(breslowDay.chiSquare, 18.8255, 5e-5);
@@ -121,7 +121,7 @@ describe("Chinese smoking and lung cancer, 8 cities (Agresti Table 3.3 via the S
     expectAbsoluteClose(result.breslowDay.uncorrectedChiSquare, 5.2, 5e-4); // SAS: Breslow-Day 5.200
     expect(result.breslowDay.df).toBe(7); // SAS: df 7
     expectAbsoluteClose(result.breslowDay.uncorrectedPValue, 0.636, 5e-4); // SAS: p 0.636
-    // RBG interval 1.98400 - 2.38325 (CHECK-SOURCES 3, COMPUTED; SAS printed test-based limits instead).
+    // RBG interval 1.98400 - 2.38325 (docs/sources.md section 3, COMPUTED; SAS printed test-based limits instead).
     expectAbsoluteClose(result.ci[0], 1.984, 5e-5);
     expectAbsoluteClose(result.ci[1], 2.38325, 5e-5);
   });
@@ -144,7 +144,7 @@ describe("SAS PROC FREQ migraine example (CMH statistics)", () => {
     );
     expectAbsoluteClose(result.chiSquare, 8.3052, 5e-5); // SAS docs (VERIFIED secondary)
     expectAbsoluteClose(result.pValue, 0.004, 5e-5);
-    expectAbsoluteClose(result.oddsRatio, 3.31317, 5e-6); // CHECK-SOURCES 3 (COMPUTED)
+    expectAbsoluteClose(result.oddsRatio, 3.31317, 5e-6); // docs/sources.md section 3 (COMPUTED)
     expectAbsoluteClose(result.breslowDay.uncorrectedChiSquare, 1.49293, 5e-6); // COMPUTED; SAS 1.4929 from memory
   });
 });

@@ -11,21 +11,21 @@ describe("Woolf interval, published example", () => {
       [2, 12],
       [1, 10],
     ]);
-    expectRelativeClose(result.estimate, 1.6667, 1e-4); // CHECK-SOURCES 2
-    expectRelativeClose(result.ci[0], 0.1310604, 1e-6); // ORCI help page output (CHECK-SOURCES 2, VERIFIED secondary)
+    expectRelativeClose(result.estimate, 1.6667, 1e-4); // docs/sources.md section 2
+    expectRelativeClose(result.ci[0], 0.1310604, 1e-6); // ORCI help page output (docs/sources.md section 2, VERIFIED secondary)
     expectRelativeClose(result.ci[1], 21.1946394, 1e-6); // same
     expect(result.corrected).toBe(false);
   });
 });
 
-describe("values from CHECK-SOURCES section 2 (COMPUTED there)", () => {
+describe("values from docs/sources.md section 2 (COMPUTED there)", () => {
   it("tea tasting, Woolf and Haldane-Anscombe", () => {
     const tea: Table2x2 = [
       [3, 1],
       [1, 3],
     ];
     const plain = oddsRatio(tea);
-    expectRelativeClose(plain.estimate, 9, 1e-12); // sample OR 9.0 (CHECK-SOURCES 1a)
+    expectRelativeClose(plain.estimate, 9, 1e-12); // sample OR 9.0 (docs/sources.md section 1)
     expectRelativeClose(plain.se, 1.63299, 1e-5);
     expectRelativeClose(plain.ci[0], 0.3666, 1e-3);
     expectRelativeClose(plain.ci[1], 220.93, 1e-4);

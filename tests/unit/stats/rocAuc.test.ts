@@ -7,7 +7,7 @@ import { expectAbsoluteClose, expectRelativeClose } from "./helpers";
 
 // Published worked example: Hanley & McNeil (1982) CT ratings 1 (definitely normal) to 5
 // (definitely abnormal) of 58 normal and 51 abnormal images. The counts are FROM MEMORY
-// (CHECK-SOURCES section 10); the paper's AUC 0.893 and SE about 0.032 (also from memory) fit them.
+// (docs/sources.md section 10); the paper's AUC 0.893 and SE about 0.032 (also from memory) fit them.
 const NORMAL_COUNTS = [33, 6, 6, 11, 2];
 const ABNORMAL_COUNTS = [3, 2, 2, 11, 33];
 
@@ -33,9 +33,9 @@ describe("Hanley & McNeil (1982) rating example (data from memory)", () => {
   it("area and DeLong standard error", () => {
     const { scores, labels } = ratings();
     const result = rocAuc(scores, labels);
-    expectRelativeClose(result.auc, 2642 / 2958, 1e-12); // U/(51*58) = 0.89317 (CHECK-SOURCES 10, COMPUTED)
+    expectRelativeClose(result.auc, 2642 / 2958, 1e-12); // U/(51*58) = 0.89317 (docs/sources.md section 10, COMPUTED)
     expectAbsoluteClose(result.auc, 0.893, 5e-4); // Hanley & McNeil 1982 (from memory)
-    expectAbsoluteClose(result.se, 0.0307, 5e-5); // DeLong SE (CHECK-SOURCES 10, COMPUTED)
+    expectAbsoluteClose(result.se, 0.0307, 5e-5); // DeLong SE (docs/sources.md section 10, COMPUTED)
     expect(result.cases).toBe(51);
     expect(result.controls).toBe(58);
     expectAbsoluteClose(result.ci[0], result.auc - 1.959963984540054 * result.se, 1e-12);
@@ -49,7 +49,7 @@ describe("R wilcox.test example (Hollander & Wolfe 1973 p. 69f)", () => {
     const result = rocAuc([...x, ...y], [...x.map(() => 1), ...y.map(() => 0)]);
     expect(result.mannWhitneyU).toBe(35); // R output "W = 35"
     expectRelativeClose(result.auc, 0.7, 1e-12); // Hanley & McNeil 1982: AUC = U/(n1 n0)
-    expectAbsoluteClose(result.se, 0.1418, 5e-5); // DeLong SE (CHECK-SOURCES 10, COMPUTED)
+    expectAbsoluteClose(result.se, 0.1418, 5e-5); // DeLong SE (docs/sources.md section 10, COMPUTED)
   });
 });
 

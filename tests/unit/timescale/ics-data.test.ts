@@ -3,9 +3,9 @@ import { fileURLToPath } from "node:url";
 import { describe, expect, it } from "vitest";
 import { ICS_2024_12_ROWS } from "@shared/timescale";
 
-// The committed data module must match, row for row, the chart's machine-readable form kept beside the
-// project (../shared/data/ics-chart-2024-12.csv from the repository root; every checkout and CI run has it).
-const csvPath = fileURLToPath(new URL("../../../../shared/data/ics-chart-2024-12.csv", import.meta.url));
+// The committed data module must match, row for row, the chart's machine-readable form as read from
+// the ICS chart data (tests/fixtures/timescale/ics-chart-2024-12.csv; docs/sources.md section 8).
+const csvPath = fileURLToPath(new URL("../../fixtures/timescale/ics-chart-2024-12.csv", import.meta.url));
 
 function readCsvRows() {
   const lines = readFileSync(csvPath, "utf8")
@@ -27,11 +27,11 @@ function readCsvRows() {
 }
 
 describe("ICS v2024/12 data module", () => {
-  it("holds exactly the rows of the chart file beside the project", () => {
+  it("holds exactly the rows of the chart file in tests/fixtures", () => {
     expect(ICS_2024_12_ROWS).toEqual(readCsvRows());
   });
   it("holds only Phanerozoic units (no base older than the Cambrian's 538.8 Ma)", () => {
-    // Cambrian base 538.8 Ma: ICS chart v2024/12 (Cohen et al. 2025), CHECK-SOURCES section 8.
+    // Cambrian base 538.8 Ma: ICS chart v2024/12 (Cohen et al. 2025), docs/sources.md section 8.
     expect(Math.max(...ICS_2024_12_ROWS.map((r) => r.base))).toBe(538.8);
   });
 });

@@ -21,7 +21,7 @@ function unit(name: string): TimescaleUnit {
 describe("base ages against the published chart", () => {
   // Source for every value in this block: ICS International Chronostratigraphic Chart v2024/12
   // (Cohen, Harper, Gibbard & Car 2025, Episodes 48: 105-115), values as listed in the chart's
-  // machine-readable form (CHECK-SOURCES section 8, table "Requested boundaries").
+  // machine-readable form (docs/sources.md section 8, table "Requested boundaries").
   it("Silurian base is 443.1 ± 1.0 Ma", () => {
     expect(unit("Silurian").base).toBe(443.1); // ICS chart v2024/12, Cohen et al. 2025
     expect(unit("Silurian").uncertainty).toBe(1.0); // ICS chart v2024/12, Cohen et al. 2025
@@ -43,11 +43,11 @@ describe("base ages against the published chart", () => {
     expect(unit("Paleogene").uncertainty).toBeNull(); // ICS chart v2024/12: no ± given for the base of the Danian
   });
   it("Cambrian base (base of the Phanerozoic) is 538.8 Ma", () => {
-    expect(unit("Cambrian").base).toBe(538.8); // ICS chart v2024/12 (CHECK-SOURCES section 8, period table)
+    expect(unit("Cambrian").base).toBe(538.8); // ICS chart v2024/12 (docs/sources.md section 8, period table)
   });
   it("carries the chart's version and citation", () => {
     expect(TIMESCALE_VERSION).toBe("2024/12");
-    // Citation as recommended in CHECK-SOURCES section 8 and its implementation notes.
+    // Citation as recommended in docs/sources.md section 8 and its implementation notes.
     expect(TIMESCALE_CITATION).toBe(
       "ICS International Chronostratigraphic Chart v2024/12 (Cohen, Harper, Gibbard & Car 2025, Episodes 48: 105-115)",
     );
@@ -78,7 +78,7 @@ describe("tops", () => {
   });
 
   it("keeps the chart's Aquitanian/Neogene mismatch as read (23.03 against 23.04)", () => {
-    // ICS chart v2024/12 machine-readable form: Aquitanian base 23.03, Neogene base 23.04 (CHECK-SOURCES section 8, caveats).
+    // ICS chart v2024/12 machine-readable form: Aquitanian base 23.03, Neogene base 23.04 (docs/sources.md section 8, caveats).
     expect(unit("Chattian").top).toBe(23.03);
     expect(unit("Oligocene").top).toBe(23.04);
     expect(unit("Paleogene").top).toBe(23.04);
