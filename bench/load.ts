@@ -16,7 +16,7 @@ import { pathToFileURL } from "node:url";
 import pg from "pg";
 import { freePort } from "../db/cluster";
 import { SUGGESTED_CODEBOOK } from "../shared/codebook";
-import { mulberry32, pick } from "../db/demo/names";
+import { mulberry32, pick } from "../scripts/seed/demo/names";
 import { quantile } from "./quantile";
 
 export interface LoadFigure {

@@ -5,7 +5,7 @@ import { cpus, tmpdir } from "node:os";
 import { join } from "node:path";
 import { PostgresCluster, freePort } from "../db/cluster";
 import { runMigrations } from "../db/migrate";
-import { seedIfEmpty } from "../db/seed";
+import { seedIfEmpty } from "../scripts/seed/seed";
 import { BENCHMARKS, type BenchFigure } from "./suites";
 
 async function main() {

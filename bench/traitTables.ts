@@ -16,7 +16,7 @@ import { createTaxonService } from "../server/services/taxa";
 import { loadCodebook } from "../server/services/taxonState";
 import { taxaListQuerySchema } from "../shared/schemas/taxa";
 import type { ImportMapping } from "../shared/schemas/imports";
-import { mulberry32, pick } from "../db/demo/names";
+import { mulberry32, pick } from "../scripts/seed/demo/names";
 import { quantile } from "./quantile";
 
 export interface TraitTableFigure {

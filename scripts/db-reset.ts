@@ -3,7 +3,7 @@
 // entered in the local database is lost; it never touches a database named by DATABASE_URL.
 import { LOCAL_DATABASE, localCluster } from "../db/local";
 import { runMigrations } from "../db/migrate";
-import { seedIfEmpty } from "../db/seed";
+import { seedIfEmpty } from "./seed/seed";
 
 const log = (msg: string) => console.log(`[db:reset] ${msg}`);
 

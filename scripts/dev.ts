@@ -3,7 +3,7 @@
 import { spawn } from "node:child_process";
 import { startLocalDatabase } from "../db/local";
 import { runMigrations } from "../db/migrate";
-import { seedIfEmpty } from "../db/seed";
+import { seedIfEmpty } from "./seed/seed";
 
 async function main() {
   const databaseUrl = process.env.DATABASE_URL ?? startLocalDatabase().url;

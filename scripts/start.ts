@@ -3,7 +3,7 @@
 import { spawnSync } from "node:child_process";
 import { startLocalDatabase } from "../db/local";
 import { runMigrations } from "../db/migrate";
-import { seedIfEmpty } from "../db/seed";
+import { seedIfEmpty } from "./seed/seed";
 
 const log = (msg: string) => console.log(`[start] ${msg}`);
 

@@ -7,7 +7,7 @@ import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { PostgresCluster, freePort } from "../db/cluster";
 import { runMigrations } from "../db/migrate";
-import { seedIfEmpty } from "../db/seed";
+import { seedIfEmpty } from "./seed/seed";
 
 const log = (msg: string) => console.log(`[test] ${msg}`);
 

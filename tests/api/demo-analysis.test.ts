@@ -7,9 +7,9 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import request from "supertest";
 import { eq } from "drizzle-orm";
 import { comparisons, modernLists } from "../../db/schema/index";
-import { DEMO_ACCOUNTS, seedDemo, type DemoAccount, type DemoSeedResult } from "../../db/demo/seed";
-import { DEMO_COMPARISON_NAME, DEMO_CRISIS_RUN_NAME, DEMO_SWEEP_RUN_NAME, DEMO_SWEEP_STAGES } from "../../db/demo/analyses";
-import { generateDemoStudy, MODERN_CROSSWALK } from "../../db/demo/generator";
+import { DEMO_ACCOUNTS, seedDemo, type DemoAccount, type DemoSeedResult } from "../../scripts/seed/demo/seed";
+import { DEMO_COMPARISON_NAME, DEMO_CRISIS_RUN_NAME, DEMO_SWEEP_RUN_NAME, DEMO_SWEEP_STAGES } from "../../scripts/seed/demo/analyses";
+import { generateDemoStudy, MODERN_CROSSWALK } from "../../scripts/seed/demo/generator";
 import type { Crosswalk } from "../../shared/comparison/index";
 import type { ComparisonResults } from "../../shared/schemas/comparisons";
 import type { Run, RunList, RunParamsInput } from "../../shared/schemas/runs";
@@ -81,7 +81,7 @@ describe("the default analysis of the demo study", () => {
   });
 
   it("finds that deposit feeding raised the odds of extinction", () => {
-    // Planted in db/demo/generator.ts: deposit feeders get +1.1 on the log-odds scale (an odds ratio
+    // Planted in scripts/seed/demo/generator.ts: deposit feeders get +1.1 on the log-odds scale (an odds ratio
     // of e^1.1, about 3.0) at the crisis, in every family alike.
     expect(planted).toMatchObject({ feedingMode: "deposit", feedingLogOdds: 1.1 });
     const feeding = traitOf(run, "feeding");
@@ -98,7 +98,7 @@ describe("the default analysis of the demo study", () => {
   });
 
   it("finds that a small geographic range raised the odds of extinction", () => {
-    // Planted in db/demo/generator.ts: genera known from at most 2 regions get +1.4 on the log-odds
+    // Planted in scripts/seed/demo/generator.ts: genera known from at most 2 regions get +1.4 on the log-odds
     // scale (an odds ratio of e^1.4, about 4.1). The trait is numeric (regions), so a larger range
     // lowers the odds: the odds ratio per region is below 1, and the smallest ranges die out most.
     expect(planted).toMatchObject({ smallRangeMaxRegions: 2, smallRangeLogOdds: 1.4 });
@@ -116,7 +116,7 @@ describe("the default analysis of the demo study", () => {
   });
 
   it("flags the infaunal life habit, which only shares the hard-hit family with extinction", () => {
-    // Planted in db/demo/generator.ts: the life habit has no effect of its own (log-odds 0), but 75%
+    // Planted in scripts/seed/demo/generator.ts: the life habit has no effect of its own (log-odds 0), but 75%
     // of the Quellorbidae are infaunal (the other families: under 15%), and the Quellorbidae get +2.3.
     expect(planted).toMatchObject({ confoundedLifeHabit: "infaunal", confoundedLifeHabitLogOdds: 0, hardHitClade: "Quellorbidae", confoundedShareInHardHitClade: 0.75 });
     const habit = traitOf(run, "life_habit");
@@ -178,7 +178,7 @@ describe("the analyses the seed saved", () => {
       expect(b.result.traits.map((t) => t.key).sort(), b.label).toEqual(data.traits.map((t) => t.key).sort());
       for (const t of b.result.traits) expect(t.contrasts.some((c) => Number.isFinite(c.crude.estimate)), `${b.label}: ${t.label}`).toBe(true);
     }
-    // Planted in db/demo/generator.ts: background extinction of 0.13-0.16 per stage, against a
+    // Planted in scripts/seed/demo/generator.ts: background extinction of 0.13-0.16 per stage, against a
     // crisis whose odds start at e^-1.5 (a share of 0.18) and rise with every risk factor.
     const share = (b: (typeof boundaries)[number]) => b.victims / (b.victims + b.survivors);
     const crisis = boundaries.find((b) => b.boundaryMa === planted.boundary.ageMa)!;
@@ -196,7 +196,7 @@ describe("the analyses the seed saved", () => {
     const [row] = await app.ctx.db.select().from(comparisons).where(eq(comparisons.id, seeded.analyses.comparisonId));
     expect(row).toMatchObject({ name: DEMO_COMPARISON_NAME, runId: seeded.analyses.crisisRunId, listId: seeded.listId, createdBy: seeded.userIds.analyst });
     const results = row.results as unknown as ComparisonResults;
-    // Planted in db/demo/generator.ts: the modern categories follow the crisis's risk factors plus
+    // Planted in scripts/seed/demo/generator.ts: the modern categories follow the crisis's risk factors plus
     // noise, so the crisis model ranks threatened species above the others more often than not.
     expect(results.roc!.auc).toBeGreaterThan(0.5);
     expect(results.cautions[0]).toMatch(/screening aid/);

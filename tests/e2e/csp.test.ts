@@ -5,7 +5,7 @@
 // policy violation (no `securitypolicyviolation` event, no console message about the policy).
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Page } from "playwright-core";
-import { DEMO_ACCOUNTS, seedDemo, type DemoAccount, type DemoSeedResult } from "../../db/demo/seed";
+import { DEMO_ACCOUNTS, seedDemo, type DemoAccount, type DemoSeedResult } from "../../scripts/seed/demo/seed";
 import { STUDY_NAV } from "../../src/app/studyNav";
 import { launchBrowser, withScreenshotOnFailure } from "../support/browser";
 import { startTestServer, uniqueEmail } from "../support/server";

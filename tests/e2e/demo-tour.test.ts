@@ -7,9 +7,9 @@ import { mkdirSync, readFileSync } from "node:fs";
 import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Page } from "playwright-core";
-import { DEMO_ACCOUNTS, seedDemo, type DemoAccount, type DemoSeedResult } from "../../db/demo/seed";
-import { DEMO_CRISIS_RUN_NAME, DEMO_SWEEP_RUN_NAME } from "../../db/demo/analyses";
-import { generateDemoStudy } from "../../db/demo/generator";
+import { DEMO_ACCOUNTS, seedDemo, type DemoAccount, type DemoSeedResult } from "../../scripts/seed/demo/seed";
+import { DEMO_CRISIS_RUN_NAME, DEMO_SWEEP_RUN_NAME } from "../../scripts/seed/demo/analyses";
+import { generateDemoStudy } from "../../scripts/seed/demo/generator";
 import { launchBrowser, screenshot, withScreenshotOnFailure } from "../support/browser";
 import { PASSWORD, startTestServer, uniqueEmail } from "../support/server";
 

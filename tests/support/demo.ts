@@ -1,8 +1,8 @@
-// The invented demo study (db/demo/seed.ts) as a fixture for browser tests: written into the
+// The invented demo study (scripts/seed/demo/seed.ts) as a fixture for browser tests: written into the
 // test database with addresses of its own (the database is shared by every test file), and a way
 // to sign a browser in as one of its members.
 import type { BrowserContext } from "playwright-core";
-import { DEMO_ACCOUNTS, seedDemo, type DemoAccount, type DemoSeedResult } from "../../db/demo/seed";
+import { DEMO_ACCOUNTS, seedDemo, type DemoAccount, type DemoSeedResult } from "../../scripts/seed/demo/seed";
 import type { StudyRole } from "../../shared/roles";
 import { uniqueEmail, type TestApp } from "./server";
 

@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { crosswalkCoverage, crosswalkProblems, listColumns, readSpeciesTraits, suggestCrosswalk, type CrosswalkTrait } from "@shared/comparison";
-import { MODERN_CROSSWALK, generateDemoStudy } from "../../../db/demo/generator";
+import { MODERN_CROSSWALK, generateDemoStudy } from "../../../scripts/seed/demo/generator";
 import { HABIT_CROSSWALK, HABIT_TRAIT } from "./helpers";
 
 const SIZE_TRAIT: CrosswalkTrait = { id: "00000000-0000-4000-8000-000000000002", key: "body_size", label: "Body size", kind: "numeric", states: [], unit: "mm" };

@@ -2,7 +2,7 @@
 // says, and carrying the planted effects: an analysis must find the narrow-range and deposit-feeding
 // effects, and must see that the infaunal habit only looks selective because of its clade.
 import { afterEach, describe, expect, it, vi } from "vitest";
-import { DEMO_SEED, generateDemoStudy, hashDemo, IUCN_CATEGORIES, MODERN_CROSSWALK, type DemoTaxon } from "../../../db/demo/generator";
+import { DEMO_SEED, generateDemoStudy, hashDemo, IUCN_CATEGORIES, MODERN_CROSSWALK, type DemoTaxon } from "../../../scripts/seed/demo/generator";
 import { SUGGESTED_CODEBOOK } from "../../../shared/codebook";
 import { classifyAcrossBoundary, outcomeWarnings, ratesThroughTime } from "../../../shared/outcomes/index";
 import { logisticRegression, mantelHaenszel, oddsRatio, type Table2x2 } from "../../../shared/stats/index";

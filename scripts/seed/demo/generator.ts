@@ -1,5 +1,5 @@
 // The demo study: an invented crisis in an invented basin, drawn from a fixed seed so that every
-// machine gets exactly the same data. Pure (no database); db/demo/seed.ts writes it.
+// machine gets exactly the same data. Pure (no database); scripts/seed/demo/seed.ts writes it.
 //
 // The scenario: about 1,200 invented genera of the Vessiran Basin (invented) live through the
 // Early and early Late Cretaceous stages. In every stage a fixed share dies out (background); at
@@ -7,8 +7,8 @@
 // extinction odds follow a logistic model with known ("planted") effects. An analysis of the data
 // should find those effects, and should flag the one trait that only looks selective.
 import { createHash } from "node:crypto";
-import { SUGGESTED_CODEBOOK, type SuggestedTrait } from "../../shared/codebook";
-import { findUnit, type TimescaleUnit } from "../../shared/timescale/index";
+import { SUGGESTED_CODEBOOK, type SuggestedTrait } from "../../../shared/codebook";
+import { findUnit, type TimescaleUnit } from "../../../shared/timescale/index";
 import { epithet, genusName, mulberry32, uniqueNames, type Random } from "./names";
 
 /** The committed seed of the demo study. Changing it changes every generated value. */

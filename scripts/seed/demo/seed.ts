@@ -1,12 +1,12 @@
-// Writes the invented demo study (db/demo/generator.ts) into a database, in one transaction:
+// Writes the invented demo study (scripts/seed/demo/generator.ts) into a database, in one transaction:
 // demo accounts (one per role), the study and its memberships, the suggested codebook, the trait
 // table as one committed import with one coding decision per taxon, a few later edits with
 // reasons, threads about coding decisions, the modern species list, the activity feed, and the
-// saved analyses (two runs, the list's crosswalk and a modern comparison; db/demo/analyses.ts).
+// saved analyses (two runs, the list's crosswalk and a modern comparison; scripts/seed/demo/analyses.ts).
 // For local use only: it refuses to run when NODE_ENV=production.
 import { inArray } from "drizzle-orm";
 import type { NodePgDatabase } from "drizzle-orm/node-postgres";
-import * as schema from "../schema/index";
+import * as schema from "../../../db/schema/index";
 import {
   activity,
   codingDecisions,
@@ -20,9 +20,9 @@ import {
   threads,
   traits as traitsTable,
   users,
-} from "../schema/index";
-import { hashPassword } from "../../server/auth/password";
-import { ROLE_LABELS, STUDY_ROLES, type StudyRole } from "../../shared/roles";
+} from "../../../db/schema/index";
+import { hashPassword } from "../../../server/auth/password";
+import { ROLE_LABELS, STUDY_ROLES, type StudyRole } from "../../../shared/roles";
 import { generateDemoStudy, INVENTED_NOTE, type DemoStudy, type DemoTaxon, type TraitValues } from "./generator";
 import { seedDemoAnalyses, type DemoAnalyses } from "./analyses";
 

@@ -5,17 +5,17 @@
 // transaction. All of it reads invented data, and the names say so.
 import { and, eq } from "drizzle-orm";
 import type { NodePgDatabase } from "drizzle-orm/node-postgres";
-import * as schema from "../schema/index";
-import { activity, comparisons, modernLists } from "../schema/index";
-import { computeRunNow, type RunDataSources } from "../../server/services/runs";
-import { createOutcomeService } from "../../server/services/outcomes";
-import { createTraitService } from "../../server/services/traits";
-import { createModernListService } from "../../server/services/modernLists";
-import { createComparisonService } from "../../server/services/comparisons";
-import { runParamsSchema, type RunParams } from "../../shared/schemas/runs";
-import { comparisonParamsSchema } from "../../shared/schemas/comparisons";
-import type { Crosswalk } from "../../shared/comparison/index";
-import { findUnit } from "../../shared/timescale/index";
+import * as schema from "../../../db/schema/index";
+import { activity, comparisons, modernLists } from "../../../db/schema/index";
+import { computeRunNow, type RunDataSources } from "../../../server/services/runs";
+import { createOutcomeService } from "../../../server/services/outcomes";
+import { createTraitService } from "../../../server/services/traits";
+import { createModernListService } from "../../../server/services/modernLists";
+import { createComparisonService } from "../../../server/services/comparisons";
+import { runParamsSchema, type RunParams } from "../../../shared/schemas/runs";
+import { comparisonParamsSchema } from "../../../shared/schemas/comparisons";
+import type { Crosswalk } from "../../../shared/comparison/index";
+import { findUnit } from "../../../shared/timescale/index";
 import { MODERN_CROSSWALK, type DemoStudy } from "./generator";
 
 type Db = NodePgDatabase<typeof schema>;

@@ -2,11 +2,11 @@
 import { count, inArray } from "drizzle-orm";
 import { drizzle } from "drizzle-orm/node-postgres";
 import pg from "pg";
-import * as schema from "./schema/index";
-import { timescaleUnits as timescaleUnitsTable, users } from "./schema/index";
-import { TIMESCALE_VERSION, timescaleUnits } from "../shared/timescale/index";
-import { ROLE_LABELS } from "../shared/roles";
-import { verifyPassword } from "../server/auth/password";
+import * as schema from "../../db/schema/index";
+import { timescaleUnits as timescaleUnitsTable, users } from "../../db/schema/index";
+import { TIMESCALE_VERSION, timescaleUnits } from "../../shared/timescale/index";
+import { ROLE_LABELS } from "../../shared/roles";
+import { verifyPassword } from "../../server/auth/password";
 import { DEMO_ACCOUNTS, seedDemo, type DemoAccount } from "./demo/seed";
 import { generateDemoStudy } from "./demo/generator";
 
