@@ -18,3 +18,11 @@ export { fitStratifiedSlope, type StratifiedSlopeFit } from "./stratifiedSlope";
 export { fitSelectivityModel, type ModelTraitInput, type SelectivityModelFit } from "./fitSelectivityModel";
 export { confoundingCheck, relativeChange, type ConfoundingContext } from "./confoundingCheck";
 export { formatCompact, formatNumber } from "./formatNumber";
+export {
+  crisisVersusBackground,
+  type CrisisVersusBackgroundContrast,
+  type CrisisVersusBackgroundInput,
+  type CrisisVersusBackgroundResult,
+  type CrisisVersusBackgroundRow,
+  type CrisisVersusBackgroundTrait,
+} from "./crisisVersusBackground";
