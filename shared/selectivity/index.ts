@@ -16,7 +16,8 @@ export { testNumericTrait, plainMessage, type NumericTraitTest } from "./testNum
 export { cladeAdjustedSlope } from "./cladeAdjustedSlope";
 export { fitStratifiedSlope, type StratifiedSlopeFit } from "./stratifiedSlope";
 export { fitSelectivityModel, type ModelTraitInput, type SelectivityModelFit } from "./fitSelectivityModel";
-export { confoundingCheck, relativeChange, type ConfoundingContext } from "./confoundingCheck";
+export { confoundingCheck, confoundingMethod, relativeChange, type ConfoundingContext } from "./confoundingCheck";
+export { judgeCladeConfounding, standardisedLogOdds, crudeLogOdds, cladeIntercept, CONFOUNDING_CITATION, DEFAULT_MIN_INFORMATIVE_CLADES, type CladeGroup, type CladeConfoundingOptions } from "./cladeConfounding";
 export { formatCompact, formatNumber } from "./formatNumber";
 export {
   crisisVersusBackground,
@@ -26,3 +27,10 @@ export {
   type CrisisVersusBackgroundRow,
   type CrisisVersusBackgroundTrait,
 } from "./crisisVersusBackground";
+export {
+  crisisComparison,
+  type CrisisComparisonContrast,
+  type CrisisComparisonInput,
+  type CrisisComparisonResult,
+  type CrisisComparisonTrait,
+} from "./crisisComparison";
