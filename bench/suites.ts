@@ -10,5 +10,6 @@ export const BENCHMARKS: Record<string, () => Promise<BenchFigure[]>> = {
   stats: async () => (await import("./stats")).benchStats(),
   selectivity: async () => (await import("./selectivity")).benchSelectivity(),
   traitTables: async () => (await import("./traitTables")).benchTraitTables(),
+  occurrences: async () => (await import("./occurrences")).benchOccurrences(),
   load: async () => (await import("./load")).benchLoad(),
 };
