@@ -6,3 +6,4 @@ export * from "./traits";
 export * from "./outcomes";
 export * from "./analysis";
 export * from "./discussion";
+export * from "./occurrences";
