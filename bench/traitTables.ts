@@ -3,7 +3,7 @@
 // filter and a sort on that study. Needs DATABASE_URL (bench/run.ts starts a throwaway cluster);
 // runs alone as `DATABASE_URL=... npx tsx bench/traitTables.ts`.
 import { randomUUID } from "node:crypto";
-import { mkdtemp, rm } from "node:fs/promises";
+import { mkdtemp, rm, writeFile } from "node:fs/promises";
 import { loadavg, tmpdir } from "node:os";
 import { join } from "node:path";
 import { pathToFileURL } from "node:url";
@@ -119,7 +119,10 @@ export async function benchTraitTables(): Promise<TraitTableFigure[]> {
     const csv = Buffer.from(inventedCsv(), "utf8");
     const imports = createImportService(db);
     const started = performance.now();
-    const uploaded = await imports.upload(study.id, user, { originalname: "invented-bench.csv", buffer: csv, size: csv.length }, uploadDir);
+    // The route's multer streams the file into the upload folder; here it is written there directly.
+    const storedPath = join(uploadDir, `${randomUUID()}.csv`);
+    await writeFile(storedPath, csv);
+    const uploaded = await imports.upload(study.id, user, { originalname: "invented-bench.csv", path: storedPath, size: csv.length });
     const afterUpload = performance.now();
     const committed = await imports.commit(study.id, uploaded.import.id, user, { mapping, skipInvalid: false, reason: "" });
     const done = performance.now();

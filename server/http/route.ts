@@ -42,11 +42,17 @@ export interface RouteSpec<B extends ZodType, Q extends ZodType, P extends ZodTy
   params?: P;
   /** Status and schema of the success answer; `raw` handlers send the answer themselves. */
   response: { status: number; schema?: ZodType; description?: string; contentType?: string };
-  /** Extra middleware that runs before validation (e.g. multer for uploads). */
+  /** Extra middleware that runs after the access check and before validation (e.g. multer for uploads). */
   before?: RequestHandler[];
   /** For OpenAPI only, when `before` parses a multipart body. */
   multipart?: ZodType;
   handler: (args: HandlerArgs<z.output<B>, z.output<Q>, z.output<P>>) => Promise<unknown> | unknown;
+}
+
+interface RouteAccess {
+  params: unknown;
+  user: SessionUser | null;
+  role: StudyRole | null;
 }
 
 export interface RegisteredRoute {
@@ -69,7 +75,9 @@ export class ApiRouter {
     this.routes.push({ method: spec.method, path: openApiPath, access: spec.access });
     this.registerOpenApi(spec, openApiPath);
     const ctx = this.ctx;
-    const handler = async (req: Request, res: Response, next: NextFunction) => {
+    // Access is decided before anything reads the body (an upload's `before` included), so a
+    // refused request is answered 401/403 without its body being read or stored.
+    const authorise = async (req: Request, res: Response, next: NextFunction) => {
       try {
         const params = spec.params ? spec.params.safeParse(req.params) : { success: true as const, data: req.params };
         if (!params.success) throw validationError(params.error, "path");
@@ -86,6 +94,15 @@ export class ApiRouter {
             }
           }
         }
+        res.locals.routeAccess = { params: params.data, user, role } satisfies RouteAccess;
+        next();
+      } catch (err) {
+        next(err);
+      }
+    };
+    const handler = async (req: Request, res: Response, next: NextFunction) => {
+      try {
+        const { params, user, role } = res.locals.routeAccess as RouteAccess;
         const query = spec.query ? spec.query.safeParse(req.query) : { success: true as const, data: req.query };
         if (!query.success) throw validationError(query.error, "query");
         const body = spec.body ? spec.body.safeParse(req.body ?? {}) : { success: true as const, data: undefined };
@@ -93,7 +110,7 @@ export class ApiRouter {
         const result = await spec.handler({
           body: body.data as never,
           query: query.data as never,
-          params: params.data as never,
+          params: params as never,
           user,
           role,
           req,
@@ -107,7 +124,7 @@ export class ApiRouter {
         next(err);
       }
     };
-    this.router[spec.method](spec.path, ...(spec.before ?? []), handler);
+    this.router[spec.method](spec.path, authorise, ...(spec.before ?? []), handler);
   }
 
   private registerOpenApi(spec: RouteSpec<ZodType, ZodType, ZodType>, path: string): void {

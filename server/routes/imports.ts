@@ -1,5 +1,4 @@
 import type { OpenAPIRegistry } from "@asteasolutions/zod-to-openapi";
-import multer from "multer";
 import { studyParamsSchema } from "../../shared/schemas/common";
 import {
   IMPORT_MAX_BYTES,
@@ -19,12 +18,8 @@ import {
 import { revertConflictSchema } from "../../shared/schemas/decisions";
 import type { AppContext } from "../context";
 import { answeringDetails, documentErrorBody } from "../http/detailed";
-import { badRequest } from "../http/errors";
 import { ApiRouter } from "../http/route";
-
-// Held in memory until the role check has passed; only then is it written to the upload folder,
-// so a refused upload leaves nothing behind.
-const upload = multer({ storage: multer.memoryStorage(), limits: { fileSize: IMPORT_MAX_BYTES, files: 1, fields: 10 } }).single("file");
+import { csvUpload, uploadedFile } from "../http/uploads";
 
 export function importsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRouter {
   const api = new ApiRouter(registry, ctx);
@@ -39,14 +34,10 @@ export function importsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
     tags: ["imports"],
     access: "imports.run",
     params: studyParamsSchema,
-    before: [upload],
+    before: [csvUpload(ctx.config.uploadDir, IMPORT_MAX_BYTES)],
     multipart: importUploadFormSchema,
     response: { status: 201, schema: importUploadSchema, description: "Uploaded and read. 413: larger than 50 MB" },
-    handler: ({ params, user, req }) => {
-      const file = req.file;
-      if (!file) throw badRequest('Attach the CSV file as the form field "file".', { file: "A CSV file is required" });
-      return imports.upload(params.studyId, user!, file, ctx.config.uploadDir);
-    },
+    handler: ({ params, user, req }) => imports.upload(params.studyId, user!, uploadedFile(req)),
   });
 
   api.add({

@@ -1,5 +1,4 @@
 import type { OpenAPIRegistry } from "@asteasolutions/zod-to-openapi";
-import multer from "multer";
 import { studyParamsSchema } from "../../shared/schemas/common";
 import {
   crosswalkSavedSchema,
@@ -19,11 +18,8 @@ import {
 } from "../../shared/schemas/modernLists";
 import type { AppContext } from "../context";
 import { answeringDetails, documentErrorBody } from "../http/detailed";
-import { badRequest } from "../http/errors";
 import { ApiRouter } from "../http/route";
-
-// Held in memory until the role check has passed; only then written to the upload folder.
-const upload = multer({ storage: multer.memoryStorage(), limits: { fileSize: MODERN_LIST_MAX_BYTES, files: 1, fields: 10 } }).single("file");
+import { csvUpload, uploadedFile } from "../http/uploads";
 
 export function modernListsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRouter {
   const api = new ApiRouter(registry, ctx);
@@ -38,14 +34,10 @@ export function modernListsRouter(ctx: AppContext, registry: OpenAPIRegistry): A
     tags,
     access: "comparisons.create",
     params: studyParamsSchema,
-    before: [upload],
+    before: [csvUpload(ctx.config.uploadDir, MODERN_LIST_MAX_BYTES)],
     multipart: modernListUploadFormSchema,
     response: { status: 201, schema: modernListUploadSchema, description: `Uploaded and read. 413: larger than ${MODERN_LIST_MAX_LABEL}` },
-    handler: ({ params, user, req }) => {
-      const file = req.file;
-      if (!file) throw badRequest('Attach the CSV file as the form field "file".', { file: "A CSV file is required" });
-      return modernLists.upload(params.studyId, user!, file, ctx.config.uploadDir);
-    },
+    handler: ({ params, user, req }) => modernLists.upload(params.studyId, user!, uploadedFile(req)),
   });
 
   api.add({

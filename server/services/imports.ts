@@ -7,8 +7,7 @@
 // included), so a "committing" import whose lock is free was interrupted: the sweep says so and
 // the import can be committed again.
 import { randomUUID } from "node:crypto";
-import { mkdir, rm, writeFile } from "node:fs/promises";
-import { join } from "node:path";
+import { chmod, readFile, rm } from "node:fs/promises";
 import { and, count, desc, eq, inArray, lt, sql } from "drizzle-orm";
 import { alias } from "drizzle-orm/pg-core";
 import type { Database } from "../db";
@@ -34,6 +33,7 @@ import type { Trait } from "../../shared/schemas/traits";
 import type { TraitValue } from "../../shared/schemas/taxa";
 import { badRequest, HttpError, notFound } from "../http/errors";
 import { DetailedHttpError } from "../http/detailed";
+import { removingOnFailure, type UploadedFile } from "../http/uploads";
 import { revertDecisions } from "./decisions";
 import {
   fieldValue,
@@ -220,45 +220,44 @@ export function createImportService(db: Database) {
   }
 
   return {
-    async upload(studyId: string, user: { id: string }, file: { originalname: string; buffer: Buffer; size: number }, uploadDir: string): Promise<ImportUpload> {
-      if (file.size > IMPORT_MAX_BYTES) throw new HttpError(413, "too_large", "The file is larger than the upload limit of 50 MB.");
-      const bytes = new Uint8Array(file.buffer.buffer, file.buffer.byteOffset, file.buffer.byteLength);
-      const notText = csvTextProblem(bytes);
-      if (notText) throw new HttpError(415, "not_csv_text", notText, { file: notText });
-      const parsed = parseCsv(bytes);
-      if (parsed.header.length === 0) throw badRequest("The file is empty: it needs a header row and at least one row of data.", { file: "The file is empty" });
-      if (parsed.rows.length === 0) throw badRequest("The file has a header row but no data rows.", { file: "No data rows" });
-      await sweepStaleUploads();
-      const codebook = await loadCodebook(db, studyId);
-      const [study] = await db.select({ settings: studies.settings }).from(studies).where(eq(studies.id, studyId));
-      const remembered = ((study?.settings as { importMapping?: RememberedMapping } | undefined)?.importMapping ?? {}) as RememberedMapping;
-      const suggestion = suggestMapping(parsed.header, codebook, remembered);
+    /** Reads the file multer stored in UPLOAD_DIR and keeps it as the upload's file; removes it when anything fails (no file without its import row). */
+    upload(studyId: string, user: { id: string }, file: UploadedFile): Promise<ImportUpload> {
+      return removingOnFailure(file, async () => {
+        if (file.size > IMPORT_MAX_BYTES) throw new HttpError(413, "too_large", "The file is larger than the upload limit of 50 MB.");
+        const content = await readFile(file.path);
+        const bytes = new Uint8Array(content.buffer, content.byteOffset, content.byteLength);
+        const notText = csvTextProblem(bytes);
+        if (notText) throw new HttpError(415, "not_csv_text", notText, { file: notText });
+        const parsed = parseCsv(bytes);
+        if (parsed.header.length === 0) throw badRequest("The file is empty: it needs a header row and at least one row of data.", { file: "The file is empty" });
+        if (parsed.rows.length === 0) throw badRequest("The file has a header row but no data rows.", { file: "No data rows" });
+        await sweepStaleUploads();
+        const codebook = await loadCodebook(db, studyId);
+        const [study] = await db.select({ settings: studies.settings }).from(studies).where(eq(studies.id, studyId));
+        const remembered = ((study?.settings as { importMapping?: RememberedMapping } | undefined)?.importMapping ?? {}) as RememberedMapping;
+        const suggestion = suggestMapping(parsed.header, codebook, remembered);
 
-      await mkdir(uploadDir, { recursive: true, mode: 0o700 });
-      const storedPath = join(uploadDir, `${randomUUID()}.csv`);
-      await writeFile(storedPath, file.buffer, { mode: 0o600 });
-      const info: StoredImportInfo = { columns: parsed.header, delimiter: parsed.delimiter };
-      const fileName = file.originalname.replace(/[\\/]/g, "_").slice(0, 255) || "upload.csv";
-      const [row] = await db
-        .insert(imports)
-        .values({ studyId, target: "taxa", fileName, storedPath, status: "previewed", mapping: info as never, rowCount: parsed.rows.length, createdBy: user.id })
-        .returning({ id: imports.id })
-        .catch(async (err: unknown) => {
-          await rm(storedPath, { force: true }); // no file is kept without its import row
-          throw err;
-        });
-      return {
-        import: await summary(studyId, row.id),
-        columns: parsed.header,
-        delimiter: parsed.delimiter,
-        encoding: parsed.encoding,
-        hadBom: parsed.hadBom,
-        rowCount: parsed.rows.length,
-        sampleRows: parsed.rows.slice(0, SAMPLE_ROWS).map((r) => r.cells),
-        suggestedMapping: suggestion.mapping,
-        rememberedColumns: suggestion.rememberedColumns,
-        maxBytes: IMPORT_MAX_BYTES,
-      };
+        const storedPath = file.path;
+        await chmod(storedPath, 0o600);
+        const info: StoredImportInfo = { columns: parsed.header, delimiter: parsed.delimiter };
+        const fileName = file.originalname.replace(/[\\/]/g, "_").slice(0, 255) || "upload.csv";
+        const [row] = await db
+          .insert(imports)
+          .values({ studyId, target: "taxa", fileName, storedPath, status: "previewed", mapping: info as never, rowCount: parsed.rows.length, createdBy: user.id })
+          .returning({ id: imports.id });
+        return {
+          import: await summary(studyId, row.id),
+          columns: parsed.header,
+          delimiter: parsed.delimiter,
+          encoding: parsed.encoding,
+          hadBom: parsed.hadBom,
+          rowCount: parsed.rows.length,
+          sampleRows: parsed.rows.slice(0, SAMPLE_ROWS).map((r) => r.cells),
+          suggestedMapping: suggestion.mapping,
+          rememberedColumns: suggestion.rememberedColumns,
+          maxBytes: IMPORT_MAX_BYTES,
+        };
+      });
     },
 
     get: summary,

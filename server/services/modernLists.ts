@@ -2,9 +2,7 @@
 // problem by row and column. Commit: the list and all its valid species in one transaction, or
 // nothing; leaving invalid rows out must be asked for. The crosswalk pairs the list's trait columns
 // with the study's codebook and is saved with the list; values it cannot read are listed.
-import { randomUUID } from "node:crypto";
-import { mkdir, rm, writeFile } from "node:fs/promises";
-import { join } from "node:path";
+import { chmod, readFile, rm } from "node:fs/promises";
 import { and, count, desc, eq, inArray, sql } from "drizzle-orm";
 import type { Database, DbOrTx } from "../db";
 import { activity, comparisons, imports, modernLists, modernSpecies, users } from "../../db/schema/index";
@@ -39,6 +37,7 @@ import {
 import type { Trait } from "../../shared/schemas/traits";
 import { badRequest, HttpError, notFound } from "../http/errors";
 import { DetailedHttpError } from "../http/detailed";
+import { removingOnFailure, type UploadedFile } from "../http/uploads";
 import { loadCodebook } from "./taxonState";
 import { readStoredUpload, refuseMappingProblems } from "./storedUploads";
 
@@ -214,36 +213,39 @@ export function createModernListService(db: Database) {
   }
 
   return {
-    async upload(studyId: string, user: { id: string }, file: { originalname: string; buffer: Buffer; size: number }, uploadDir: string): Promise<ModernListUpload> {
-      if (file.size > MODERN_LIST_MAX_BYTES) throw new HttpError(413, "too_large", `The file is larger than the upload limit of ${MODERN_LIST_MAX_LABEL}.`);
-      const bytes = new Uint8Array(file.buffer.buffer, file.buffer.byteOffset, file.buffer.byteLength);
-      const notText = csvTextProblem(bytes);
-      if (notText) throw new HttpError(415, "not_csv_text", notText, { file: notText });
-      const parsed = parseCsv(bytes);
-      if (parsed.header.length === 0) throw badRequest("The file is empty: it needs a header row and at least one species.", { file: "The file is empty" });
-      if (parsed.rows.length === 0) throw badRequest("The file has a header row but no species rows.", { file: "No data rows" });
-      await mkdir(uploadDir, { recursive: true, mode: 0o700 });
-      const storedPath = join(uploadDir, `${randomUUID()}.csv`);
-      await writeFile(storedPath, file.buffer, { mode: 0o600 });
-      const fileName = file.originalname.replace(/[\\/]/g, "_").slice(0, 255) || "modern-list.csv";
-      const info: StoredUploadInfo = { columns: parsed.header, delimiter: parsed.delimiter };
-      const [row] = await db
-        .insert(imports)
-        .values({ studyId, target: TARGET, fileName, storedPath, status: "previewed", mapping: info as never, rowCount: parsed.rows.length, createdBy: user.id })
-        .returning({ id: imports.id });
-      const { row: stored, creatorName } = await uploadRow(studyId, row.id);
-      return {
-        upload: uploadSummary(stored, creatorName),
-        columns: parsed.header,
-        delimiter: parsed.delimiter,
-        encoding: parsed.encoding,
-        hadBom: parsed.hadBom,
-        rowCount: parsed.rows.length,
-        sampleRows: parsed.rows.slice(0, SAMPLE_ROWS).map((r) => r.cells),
-        suggestedMapping: suggestModernListMapping(parsed.header),
-        suggestedName: fileName.replace(/\.(csv|tsv|txt)$/i, "").replace(/[-_]+/g, " ").trim().slice(0, 120) || "Modern list",
-        maxBytes: MODERN_LIST_MAX_BYTES,
-      };
+    /** Reads the file multer stored in UPLOAD_DIR and keeps it as the upload's file; removes it when anything fails. */
+    upload(studyId: string, user: { id: string }, file: UploadedFile): Promise<ModernListUpload> {
+      return removingOnFailure(file, async () => {
+        if (file.size > MODERN_LIST_MAX_BYTES) throw new HttpError(413, "too_large", `The file is larger than the upload limit of ${MODERN_LIST_MAX_LABEL}.`);
+        const content = await readFile(file.path);
+        const bytes = new Uint8Array(content.buffer, content.byteOffset, content.byteLength);
+        const notText = csvTextProblem(bytes);
+        if (notText) throw new HttpError(415, "not_csv_text", notText, { file: notText });
+        const parsed = parseCsv(bytes);
+        if (parsed.header.length === 0) throw badRequest("The file is empty: it needs a header row and at least one species.", { file: "The file is empty" });
+        if (parsed.rows.length === 0) throw badRequest("The file has a header row but no species rows.", { file: "No data rows" });
+        const storedPath = file.path;
+        await chmod(storedPath, 0o600);
+        const fileName = file.originalname.replace(/[\\/]/g, "_").slice(0, 255) || "modern-list.csv";
+        const info: StoredUploadInfo = { columns: parsed.header, delimiter: parsed.delimiter };
+        const [row] = await db
+          .insert(imports)
+          .values({ studyId, target: TARGET, fileName, storedPath, status: "previewed", mapping: info as never, rowCount: parsed.rows.length, createdBy: user.id })
+          .returning({ id: imports.id });
+        const { row: stored, creatorName } = await uploadRow(studyId, row.id);
+        return {
+          upload: uploadSummary(stored, creatorName),
+          columns: parsed.header,
+          delimiter: parsed.delimiter,
+          encoding: parsed.encoding,
+          hadBom: parsed.hadBom,
+          rowCount: parsed.rows.length,
+          sampleRows: parsed.rows.slice(0, SAMPLE_ROWS).map((r) => r.cells),
+          suggestedMapping: suggestModernListMapping(parsed.header),
+          suggestedName: fileName.replace(/\.(csv|tsv|txt)$/i, "").replace(/[-_]+/g, " ").trim().slice(0, 120) || "Modern list",
+          maxBytes: MODERN_LIST_MAX_BYTES,
+        };
+      });
     },
 
     async preview(studyId: string, uploadId: string, mapping: ModernListMapping): Promise<ModernListPreview> {

