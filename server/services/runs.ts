@@ -45,7 +45,7 @@ export const SWEEP_EVERY_MS = 30_000;
 /** Fewest milliseconds between two progress writes of one run. */
 const PROGRESS_WRITE_GAP_MS = 250;
 
-/** From DESIGN.md, shown wherever results are read or exported. */
+/** Shown wherever results are read or exported (docs/architecture.md, "Where a rule lives"). */
 export const SELECTIVITY_CAUTION =
   "Selectivity results are statistical associations across a boundary, not proof of a kill mechanism; a shared cause can produce them.";
 

@@ -7,6 +7,6 @@ export { compareWithThreatList, ROC_MAX_POINTS, type CompareInput } from "./comp
 export { crosswalkCoverage, crosswalkProblems, listColumns, readSpeciesTraits, readThroughPair, suggestCrosswalk, type CrosswalkReading } from "./crosswalk";
 export { modernMappingProblems, suggestModernListMapping, validateModernListRows, type ModernListRow, type ModernListValidation } from "./readModernList";
 
-/** From DESIGN.md: shown at the top of every comparison's results, and in every export and report. */
+/** Shown at the top of every comparison's results, and in every export and report (docs/architecture.md, "Where a rule lives"). */
 export const MODERN_COMPARISON_CAUTION =
   "A modern comparison is a screening aid: it does not replace a formal threat assessment, and the drivers of modern loss differ from those of past crises. Conservation decisions follow the relevant authority and local rules.";
