@@ -1,7 +1,7 @@
 import { describe, expect, it } from "vitest";
 import { classifyAcrossBoundary } from "@shared/outcomes";
 
-// The rules are the project's contract (CONTRACTS.md, shared/outcomes): survivor when fad > boundary > lad;
+// The rules are the project's own (outcomeOf in shared/outcomes/classifyAcrossBoundary.ts): survivor when fad > boundary > lad;
 // victim when fad > boundary and boundary <= lad <= boundary + window; everything else excluded.
 // All ranges below are invented and worked by hand against those rules.
 const BOUNDARY = 66; // invented test boundary (the K-Pg age, 66.0 Ma, ICS chart v2024/12, only for familiarity)

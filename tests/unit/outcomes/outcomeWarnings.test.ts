@@ -3,7 +3,7 @@ import { outcomeWarnings } from "@shared/outcomes";
 
 // Stages just below and above an invented boundary at 66 Ma, with the chart's ages for familiarity:
 // Maastrichtian base 72.2, Danian base 66.00, Selandian base 61.66 (ICS chart v2024/12, Cohen et al. 2025).
-// The taxa are invented; outcomes follow the contract rules (CONTRACTS.md, shared/outcomes).
+// The taxa are invented; outcomes follow the rules of shared/outcomes/classifyAcrossBoundary.ts.
 const stages = [
   { name: "Maastrichtian", base: 72.2, top: 66 },
   { name: "Danian", base: 66, top: 61.66 },
