@@ -6,6 +6,7 @@ import { join } from "node:path";
 import { OpenAPIRegistry, OpenApiGeneratorV31 } from "@asteasolutions/zod-to-openapi";
 import type { AppContext } from "./context";
 import { errorHandler, notFound } from "./http/errors";
+import { clientAssets } from "./http/clientAssets";
 import { sameOriginOnly } from "./http/origin";
 import type { ApiRouter, RegisteredRoute } from "./http/route";
 import { loadSession } from "./auth/session";
@@ -91,10 +92,7 @@ export function createApp(ctx: AppContext, opts: { clientDir?: string } = {}): B
 
   const clientDir = opts.clientDir;
   if (clientDir && existsSync(join(clientDir, "index.html"))) {
-    app.use(express.static(clientDir, { index: false, maxAge: "1h" }));
-    app.get("/{*splat}", (_req, res) => {
-      res.sendFile(join(clientDir, "index.html"));
-    });
+    app.use(clientAssets(clientDir));
   }
   app.use(errorHandler);
   return { app, openapi, routes: routers.flatMap((r) => r.routes) };

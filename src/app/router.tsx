@@ -1,81 +1,67 @@
+import type { ComponentType } from "react";
 import { createBrowserRouter } from "react-router-dom";
-import { AccountPage } from "../features/account/AccountPage";
-import { BoundaryPage } from "../features/boundary/BoundaryPage";
-import { CodebookPage } from "../features/codebook/CodebookPage";
-import { ImportsPage } from "../features/imports/ImportsPage";
-import { TraitTablePage } from "../features/trait-table/TraitTablePage";
-import { ThreadPage } from "../features/threads/ThreadPage";
-import { ThreadsPage } from "../features/threads/ThreadsPage";
-import { ForgotPasswordPage } from "../features/auth/ForgotPasswordPage";
-import { ResetPasswordPage } from "../features/auth/ResetPasswordPage";
-import { SignInPage } from "../features/auth/SignInPage";
-import { SignUpPage } from "../features/auth/SignUpPage";
-import { InvitationPage } from "../features/invitations/InvitationPage";
-import { MembersPage } from "../features/members/MembersPage";
-import { ComparisonPage } from "../features/modern-comparison/ComparisonPage";
-import { ComparisonReportPage } from "../features/modern-comparison/ComparisonReportPage";
-import { CrosswalkPage } from "../features/modern-comparison/CrosswalkPage";
-import { ModernComparisonPage } from "../features/modern-comparison/ModernComparisonPage";
-import { OutboxPage } from "../features/outbox/OutboxPage";
-import { RunComparePage } from "../features/runs/RunComparePage";
-import { RunsPage } from "../features/runs/RunsPage";
-import { RunReportPage } from "../features/selectivity/RunReportPage";
-import { SelectivityPage } from "../features/selectivity/SelectivityPage";
-import { NewStudyPage } from "../features/studies/NewStudyPage";
-import { StudiesPage } from "../features/studies/StudiesPage";
-import { StudyOverviewPage } from "../features/study-overview/StudyOverviewPage";
-import { AppShell } from "./AppShell";
+import { LoadingState } from "../components/LoadingState";
 import { NotFoundPage } from "./NotFoundPage";
 import { PUBLIC_ROUTES } from "./publicRoutes";
 import { PublicLayout } from "./PublicLayout";
 import { RouteErrorPage } from "./RouteErrorPage";
-import { StudyLayout } from "./StudyLayout";
+
+/**
+ * Every screen is a chunk of its own, fetched on the first visit, so the sign-in page carries neither
+ * the charts nor the grid. A navigation keeps the current page until the next screen's chunk is in.
+ */
+const screen =
+  <Name extends string>(load: () => Promise<Record<Name, ComponentType>>, name: Name) =>
+  () =>
+    load().then((module) => ({ Component: module[name] }));
 
 export const router = createBrowserRouter([
   {
     errorElement: <RouteErrorPage />,
+    // Shown once, while the first screen's chunk arrives.
+    hydrateFallbackElement: <LoadingState label="Opening Stratasieve" lines={0} className="mx-auto max-w-md px-4 py-16" />,
     children: [
       {
         element: <PublicLayout />,
         children: [
-          { path: PUBLIC_ROUTES.signIn, element: <SignInPage /> },
-          { path: PUBLIC_ROUTES.signUp, element: <SignUpPage /> },
-          { path: PUBLIC_ROUTES.forgotPassword, element: <ForgotPasswordPage /> },
-          { path: PUBLIC_ROUTES.resetPassword, element: <ResetPasswordPage /> },
-          { path: PUBLIC_ROUTES.invitation, element: <InvitationPage /> },
+          { path: PUBLIC_ROUTES.signIn, lazy: screen(() => import("../features/auth/SignInPage"), "SignInPage") },
+          { path: PUBLIC_ROUTES.signUp, lazy: screen(() => import("../features/auth/SignUpPage"), "SignUpPage") },
+          { path: PUBLIC_ROUTES.forgotPassword, lazy: screen(() => import("../features/auth/ForgotPasswordPage"), "ForgotPasswordPage") },
+          { path: PUBLIC_ROUTES.resetPassword, lazy: screen(() => import("../features/auth/ResetPasswordPage"), "ResetPasswordPage") },
+          { path: PUBLIC_ROUTES.invitation, lazy: screen(() => import("../features/invitations/InvitationPage"), "InvitationPage") },
           { path: "*", element: <NotFoundPage /> },
         ],
       },
       // A printable report stands on a page of its own, without the app's frame.
-      { path: "studies/:studyId/modern-comparison/comparisons/:comparisonId/report", element: <ComparisonReportPage /> },
-      { path: "studies/:studyId/runs/:runId/report", element: <RunReportPage /> },
+      { path: "studies/:studyId/modern-comparison/comparisons/:comparisonId/report", lazy: screen(() => import("../features/modern-comparison/ComparisonReportPage"), "ComparisonReportPage") },
+      { path: "studies/:studyId/runs/:runId/report", lazy: screen(() => import("../features/selectivity/RunReportPage"), "RunReportPage") },
       {
-        element: <AppShell />,
+        lazy: screen(() => import("./AppShell"), "AppShell"),
         children: [
-          { index: true, element: <StudiesPage /> },
-          { path: "studies/new", element: <NewStudyPage /> },
+          { index: true, lazy: screen(() => import("../features/studies/StudiesPage"), "StudiesPage") },
+          { path: "studies/new", lazy: screen(() => import("../features/studies/NewStudyPage"), "NewStudyPage") },
           {
             path: "studies/:studyId",
-            element: <StudyLayout />,
+            lazy: screen(() => import("./StudyLayout"), "StudyLayout"),
             children: [
-              { index: true, element: <StudyOverviewPage /> },
-              { path: "table", element: <TraitTablePage /> },
-              { path: "codebook", element: <CodebookPage /> },
-              { path: "imports", element: <ImportsPage /> },
-              { path: "boundary", element: <BoundaryPage /> },
-              { path: "selectivity", element: <SelectivityPage /> },
-              { path: "runs", element: <RunsPage /> },
-              { path: "runs/compare", element: <RunComparePage /> },
-              { path: "modern-comparison", element: <ModernComparisonPage /> },
-              { path: "modern-comparison/lists/:listId", element: <CrosswalkPage /> },
-              { path: "modern-comparison/comparisons/:comparisonId", element: <ComparisonPage /> },
-              { path: "threads", element: <ThreadsPage /> },
-              { path: "threads/:threadId", element: <ThreadPage /> },
-              { path: "members", element: <MembersPage /> },
+              { index: true, lazy: screen(() => import("../features/study-overview/StudyOverviewPage"), "StudyOverviewPage") },
+              { path: "table", lazy: screen(() => import("../features/trait-table/TraitTablePage"), "TraitTablePage") },
+              { path: "codebook", lazy: screen(() => import("../features/codebook/CodebookPage"), "CodebookPage") },
+              { path: "imports", lazy: screen(() => import("../features/imports/ImportsPage"), "ImportsPage") },
+              { path: "boundary", lazy: screen(() => import("../features/boundary/BoundaryPage"), "BoundaryPage") },
+              { path: "selectivity", lazy: screen(() => import("../features/selectivity/SelectivityPage"), "SelectivityPage") },
+              { path: "runs", lazy: screen(() => import("../features/runs/RunsPage"), "RunsPage") },
+              { path: "runs/compare", lazy: screen(() => import("../features/runs/RunComparePage"), "RunComparePage") },
+              { path: "modern-comparison", lazy: screen(() => import("../features/modern-comparison/ModernComparisonPage"), "ModernComparisonPage") },
+              { path: "modern-comparison/lists/:listId", lazy: screen(() => import("../features/modern-comparison/CrosswalkPage"), "CrosswalkPage") },
+              { path: "modern-comparison/comparisons/:comparisonId", lazy: screen(() => import("../features/modern-comparison/ComparisonPage"), "ComparisonPage") },
+              { path: "threads", lazy: screen(() => import("../features/threads/ThreadsPage"), "ThreadsPage") },
+              { path: "threads/:threadId", lazy: screen(() => import("../features/threads/ThreadPage"), "ThreadPage") },
+              { path: "members", lazy: screen(() => import("../features/members/MembersPage"), "MembersPage") },
             ],
           },
-          { path: "account", element: <AccountPage /> },
-          { path: "outbox", element: <OutboxPage /> },
+          { path: "account", lazy: screen(() => import("../features/account/AccountPage"), "AccountPage") },
+          { path: "outbox", lazy: screen(() => import("../features/outbox/OutboxPage"), "OutboxPage") },
         ],
       },
     ],
