@@ -9,6 +9,7 @@ import {
   runParamsPathSchema,
   runParamsSchema,
   runPreviewSchema,
+  replicationZipSchema,
   runRerunSchema,
   runSchema,
 } from "../../shared/schemas/runs";
@@ -118,6 +119,22 @@ export function runsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
       res.setHeader("Content-Disposition", `attachment; filename="${file}"`);
       if (query.format === "json") return run;
       res.type("text/csv; charset=utf-8").send(runCsv(run, query.table));
+    },
+  });
+
+  api.add({
+    method: "get",
+    path: "/studies/:studyId/runs/:runId/replication.zip",
+    summary: "Download a finished run for a re-run outside the app: the exact rows it analysed, its parameters and results, and an R script (base R only) that recomputes the numbers and prints them beside the app's",
+    tags,
+    access: "study.read",
+    params: runParamsPathSchema,
+    response: { status: 200, schema: replicationZipSchema, contentType: "application/zip", description: "A zip of one folder: rows.csv, traits.csv, model-columns.csv, app-results.csv, settings.csv, run.json, rerun.R, README.txt. 409 when the study's data changed since the run." },
+    handler: async ({ params, res }) => {
+      const { fileName, zip } = await ctx.services.runReplication.bundle(params.studyId, params.runId);
+      res.setHeader("Content-Disposition", `attachment; filename="${fileName}"`);
+      res.setHeader("Cache-Control", "no-store");
+      res.type("application/zip").send(Buffer.from(zip));
     },
   });
 

@@ -9,6 +9,7 @@ import { createUserService } from "./users";
 import { createTimescaleService } from "./timescale";
 import { createOutcomeService } from "./outcomes";
 import { createRunService } from "./runs";
+import { createRunReplicationService } from "./runReplication";
 import { createTraitService } from "./traits";
 import { createTaxonService } from "./taxa";
 import { createTaxaGrid } from "./taxaGrid";
@@ -20,6 +21,7 @@ import { createComparisonService } from "./comparisons";
 import { createNotificationService } from "./notifications";
 import { createThreadService } from "./threads";
 import { createActivityService } from "./activity";
+import { createTurnoverService } from "./turnover";
 
 /** What services need besides the database and mail: the job queue and the worker threads. */
 export interface Runtime {
@@ -32,14 +34,19 @@ export interface Runtime {
 export function createServices(db: Database, mailer: Mailer, appUrl: string, runtime: Runtime) {
   const notifications = createNotificationService(db, mailer, appUrl, runtime.jobs);
   const taxaGrid = createTaxaGrid(db, { maxTaxa: runtime.gridMaxTaxa });
+  const outcomes = createOutcomeService(db);
+  const runSources = { outcomes: createOutcomeService(db), traits: createTraitService(db) };
+  const runs = createRunService(db, runtime, runSources);
   return {
     users: createUserService(db),
     studies: createStudyService(db),
     invitations: createInvitationService(db, mailer, appUrl),
     outbox: createOutboxService(db),
     timescale: createTimescaleService(db),
-    outcomes: createOutcomeService(db),
-    runs: createRunService(db, runtime, { outcomes: createOutcomeService(db), traits: createTraitService(db) }),
+    outcomes,
+    turnover: createTurnoverService(db, outcomes),
+    runs,
+    runReplication: createRunReplicationService(db, runSources, runs),
     traits: createTraitService(db),
     taxa: createTaxonService(db, taxaGrid),
     taxaGrid,

@@ -80,7 +80,7 @@ export type SelectivityTaskOutput = SelectivityResult[];
 
 type TraitSpec = SelectivityTraitSpec & { traitId: string };
 
-interface BoundaryData {
+export interface BoundaryData {
   design: Omit<RunBoundaryDesign, "completeCases">;
   /** Victims and survivors, sorted by taxon id. */
   taxa: SelectivityTaxon[];
@@ -88,7 +88,7 @@ interface BoundaryData {
   warnings: string[];
 }
 
-interface StudyData {
+export interface StudyData {
   specs: TraitSpec[];
   boundaries: BoundaryData[];
   dataHash: string;
@@ -239,7 +239,7 @@ const errorText = (err: unknown): string => (err instanceof Error ? err.message 
 // ---------------------------------------------------------------- reading and computing (shared by run jobs and computeRunNow)
 
 /** Reads the codebook, the trait values and each boundary's victims and survivors. */
-async function readStudyData(
+export async function readStudyData(
   db: Database,
   sources: RunDataSources,
   studyId: string,

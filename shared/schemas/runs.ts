@@ -423,3 +423,8 @@ export const runExportQuerySchema = exportQuerySchema(
   "run: name, parameters, data hash and cautions as field and value; design, states: extinction proportions per trait state, tests, contrasts: odds ratios crude and adjusted, coefficients and terms of the multiple regression",
 );
 export type RunExportQuery = z.input<typeof runExportQuerySchema>;
+
+/** The re-run download of a finished run (binary). */
+export const replicationZipSchema = z
+  .string()
+  .meta({ id: "RunReplicationZip", format: "binary", description: "A zip of the rows a run analysed, its parameters and results, and an R script that recomputes them" });

@@ -10,6 +10,7 @@ import { memberships, notifications, outcomeOverrides, runs, taxa, threadPosts, 
 import { castOfRoles, EVERYONE, type Cast, type Who } from "./fixtures";
 import { codedImport, codedTaxon, codedTrait, uploadCsv } from "../support/traitTables";
 import { MATRIX_LIST_MAPPING, matrixComparison, matrixModernSetup, matrixModernUpload } from "../support/modernComparison";
+import { computeRunNow } from "../../server/services/runs";
 
 type Agent = Cast["anonymous"];
 interface Row {
@@ -57,6 +58,15 @@ async function matrixRun(studyId: string, status: "succeeded" | "failed" = "succ
     })
     .returning();
   return run;
+}
+
+/** A run of the study computed from its data (as the demo seed computes its runs), for rows that re-read that data. */
+async function matrixComputedRun(studyId: string) {
+  const params = await matrixRunStudy(studyId);
+  const [owner] = await app.ctx.db.select().from(memberships).where(and(eq(memberships.studyId, studyId), eq(memberships.role, "owner")));
+  const { services } = app.ctx;
+  const sources = { outcomes: services.outcomes, traits: services.traits };
+  return computeRunNow(app.ctx.db, sources, studyId, { id: owner.userId }, { ...params, stratifyBy: "higherTaxon", correction: "bh", forceFirth: false, level: 0.95, confoundingThreshold: 0.1 });
 }
 
 /** A new invented taxon in the study, for rows that need one to act on. */
@@ -200,6 +210,11 @@ const MATRIX: Record<string, Row> = {
     allowed: MEMBERS,
     freshStudy: true,
     call: async (a, { studyId }) => a.get(`/api/studies/${studyId}/runs/${(await matrixRun(studyId)).id}/export?format=csv`),
+  },
+  "GET /api/studies/{studyId}/runs/{runId}/replication.zip": {
+    allowed: MEMBERS,
+    freshStudy: true,
+    call: async (a, { studyId }) => a.get(`/api/studies/${studyId}/runs/${(await matrixComputedRun(studyId)).id}/replication.zip`),
   },
   // Trait tables: codebook, taxa, coding decisions, imports, exports. What a call needs (a trait, a
   // taxon with a decision, an upload) is written directly or by the owner, so only the call is judged.

@@ -13,7 +13,7 @@ import { useToast } from "../../components/Toast";
 import { ApiError, errorMessage } from "../../lib/api";
 import { formatDateTime, pluralize } from "../../lib/format";
 import { paths } from "../../lib/paths";
-import { isActive, runExportUrl, useRerun, useRetryRun, useRun } from "./api";
+import { isActive, runExportUrl, runReplicationUrl, useRerun, useRetryRun, useRun } from "./api";
 import { RerunChanges } from "./RerunChanges";
 import { RunParameters, RunResultsView } from "./RunResultsView";
 import { RunProgress } from "./RunProgress";
@@ -118,6 +118,14 @@ function RunHeader({ study, run, onRerun }: { study: Study; run: Run; onRerun: (
               </a>
               <a href={runExportUrl(study.id, run.id, "json")} download className={buttonClasses("secondary", "sm")}>
                 Download JSON
+              </a>
+              <a
+                href={runReplicationUrl(study.id, run.id)}
+                download
+                className={buttonClasses("secondary", "sm")}
+                title="The exact rows this run analysed, its numbers and an R script that recomputes them with base R and prints both side by side"
+              >
+                Re-run in R
               </a>
               <a href={reportPath(study.id, run.id)} target="_blank" rel="noopener" className={buttonClasses("secondary", "sm")}>
                 Printable report

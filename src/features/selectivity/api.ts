@@ -1,53 +1,15 @@
-// TanStack Query hooks of the Selectivity screen and the run report: one per endpoint, keys from
-// src/lib/queryKeys.ts.
-import { keepPreviousData, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
-import type { Run, RunDiff, RunParams, RunPreview, RunRerunInput } from "@shared/schemas/runs";
-import type { Study } from "@shared/schemas/studies";
-import type { Timescale } from "@shared/schemas/timescale";
-import type { TraitList } from "@shared/schemas/traits";
+// TanStack Query hooks of the Selectivity screen and the run report. The run itself, its actions
+// and the codebook come from the shared layer (src/lib/queries); only the design preview is this
+// screen's own.
+import { keepPreviousData, useQuery } from "@tanstack/react-query";
+import type { RunParams, RunPreview } from "@shared/schemas/runs";
 import { api } from "../../lib/api";
 import { queryKeys } from "../../lib/queryKeys";
+import { runApiPath, studyApiPath } from "../../lib/queries/paths";
 
-/** How often a queued or running run is read again. */
-const RUN_POLL_MS = 1000;
+export { isRunActive as isActive, runExportUrl, useRerunRun as useRerun, useRetryRun } from "../../lib/queries/runs";
 
-const studyPath = (studyId: string) => `/studies/${encodeURIComponent(studyId)}`;
-const runsPath = (studyId: string) => `${studyPath(studyId)}/runs`;
-const runPath = (studyId: string, runId: string) => `${runsPath(studyId)}/${encodeURIComponent(runId)}`;
-
-/** Where the browser downloads a run's export (same origin, the session cookie goes along). */
-export function runExportUrl(studyId: string, runId: string, format: "csv" | "json", table?: string): string {
-  const search = new URLSearchParams({ format });
-  if (table) search.set("table", table);
-  return `/api${runPath(studyId, runId)}/export?${search.toString()}`;
-}
-
-export const isActive = (run: Pick<Run, "status">) => run.status === "queued" || run.status === "running";
-
-/** GET /api/studies/:studyId: the report page opens outside the study layout, so it loads the study itself. */
-export function useStudyForReport(studyId: string) {
-  return useQuery({
-    queryKey: queryKeys.studies.detail(studyId),
-    queryFn: ({ signal }) => api.get<Study>(studyPath(studyId), signal),
-  });
-}
-
-/** GET /api/timescale: the chart's units, for placing boundaries. */
-export function useTimescale() {
-  return useQuery({
-    queryKey: queryKeys.timescale,
-    queryFn: ({ signal }) => api.get<Timescale>("/timescale", signal),
-    staleTime: Infinity,
-  });
-}
-
-/** GET /api/studies/:studyId/traits: the codebook, the traits a run can test. */
-export function useTraits(studyId: string) {
-  return useQuery({
-    queryKey: queryKeys.traits.list(studyId),
-    queryFn: ({ signal }) => api.get<TraitList>(`${studyPath(studyId)}/traits`, signal),
-  });
-}
+const runPath = (studyId: string, runId: string) => runApiPath(studyId, runId);
 
 /**
  * POST /api/studies/:studyId/runs/preview: what a run with these parameters would analyse. A read,
@@ -57,7 +19,7 @@ export function useRunPreview(studyId: string, params: RunParams | null) {
   const key = params ? JSON.stringify(params) : "none";
   return useQuery({
     queryKey: queryKeys.runs.preview(studyId, key),
-    queryFn: () => api.post<RunPreview>(`${runsPath(studyId)}/preview`, params),
+    queryFn: () => api.post<RunPreview>(studyApiPath(studyId, "/runs/preview"), params),
     enabled: params !== null,
     placeholderData: keepPreviousData,
     // The trait table may change between two looks at the design.
@@ -86,40 +48,5 @@ export function useRunDiff(studyId: string, runId: string, against: string | nul
     enabled: against !== null,
     staleTime: Infinity,
     retry: false,
-  });
-}
-
-function useRememberRun(studyId: string) {
-  const queryClient = useQueryClient();
-  return (run: Run) => {
-    queryClient.setQueryData(queryKeys.runs.detail(studyId, run.id), run);
-    return queryClient.invalidateQueries({ queryKey: queryKeys.runs.all(studyId), refetchType: "none" });
-  };
-}
-
-/** POST /api/studies/:studyId/runs: stored at once as queued, computed as a job. */
-export function useStartRun(studyId: string) {
-  const remember = useRememberRun(studyId);
-  return useMutation({
-    mutationFn: (params: RunParams) => api.post<Run>(runsPath(studyId), params),
-    onSuccess: remember,
-  });
-}
-
-/** POST /api/studies/:studyId/runs/:runId/retry: a failed run queued again. */
-export function useRetryRun(studyId: string) {
-  const remember = useRememberRun(studyId);
-  return useMutation({
-    mutationFn: (runId: string) => api.post<Run>(`${runPath(studyId, runId)}/retry`),
-    onSuccess: remember,
-  });
-}
-
-/** POST /api/studies/:studyId/runs/:runId/rerun: the same parameters on today's data, as a new run. */
-export function useRerun(studyId: string) {
-  const remember = useRememberRun(studyId);
-  return useMutation({
-    mutationFn: ({ runId, input }: { runId: string; input: RunRerunInput }) => api.post<Run>(`${runPath(studyId, runId)}/rerun`, input),
-    onSuccess: remember,
   });
 }
