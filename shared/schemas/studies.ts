@@ -5,15 +5,24 @@ import { isoDateSchema, uuidSchema } from "./common";
 
 export const studyRoleSchema = z.enum(STUDY_ROLES, { message: `Role must be one of ${STUDY_ROLES.join(", ")}` });
 
+const studyNameSchema = z.string({ message: "Name is required" }).trim().min(1, "Name is required").max(160, "Name must have at most 160 characters");
+const studyDescriptionSchema = z.string({ message: "Description must be text" }).trim().max(4000, "Description must have at most 4,000 characters");
+
 export const studyCreateSchema = z
   .strictObject({
-    name: z.string({ message: "Name is required" }).trim().min(1, "Name is required").max(160, "Name must have at most 160 characters"),
-    description: z.string().trim().max(4000, "Description must have at most 4,000 characters").default(""),
+    name: studyNameSchema,
+    description: studyDescriptionSchema.default(""),
   })
   .meta({ id: "StudyCreate" });
 export type StudyCreateInput = z.input<typeof studyCreateSchema>;
 
-export const studyUpdateSchema = studyCreateSchema.partial().meta({ id: "StudyUpdate" });
+/** Only the given fields change (no defaults here: `.partial()` of the create schema would empty a description left out). */
+export const studyUpdateSchema = z
+  .strictObject({
+    name: studyNameSchema.optional(),
+    description: studyDescriptionSchema.optional(),
+  })
+  .meta({ id: "StudyUpdate" });
 export type StudyUpdateInput = z.input<typeof studyUpdateSchema>;
 
 export const studySchema = z

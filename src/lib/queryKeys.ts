@@ -27,19 +27,18 @@ export const queryKeys = {
     list: (studyId: string, page: number) => ["studies", "detail", studyId, "imports", "list", page] as const,
     detail: (studyId: string, importId: string) => ["studies", "detail", studyId, "imports", "detail", importId] as const,
   },
-  // Modern comparison: lists, comparisons, and the runs a comparison can score with.
+  // Modern comparison: lists and comparisons (the runs it scores with are the runs' own keys).
   modernComparison: {
     lists: (studyId: string) => ["studies", "detail", studyId, "modern-lists"] as const,
     list: (studyId: string, listId: string) => ["studies", "detail", studyId, "modern-lists", listId] as const,
     comparisons: (studyId: string) => ["studies", "detail", studyId, "comparisons"] as const,
     comparison: (studyId: string, comparisonId: string) => ["studies", "detail", studyId, "comparisons", comparisonId] as const,
-    runs: (studyId: string) => ["studies", "detail", studyId, "runs", "for-comparison"] as const,
-    run: (studyId: string, runId: string) => ["studies", "detail", studyId, "runs", "detail", runId] as const,
   },
   // Selectivity runs: the list, one run (polled while it computes), a design preview and a comparison of two.
   runs: {
     all: (studyId: string) => ["studies", "detail", studyId, "runs"] as const,
-    list: (studyId: string, page: number) => ["studies", "detail", studyId, "runs", "list", page] as const,
+    lists: (studyId: string) => ["studies", "detail", studyId, "runs", "list"] as const,
+    list: (studyId: string, page: number, pageSize: number) => ["studies", "detail", studyId, "runs", "list", page, pageSize] as const,
     detail: (studyId: string, runId: string) => ["studies", "detail", studyId, "runs", "detail", runId] as const,
     preview: (studyId: string, params: string) => ["studies", "detail", studyId, "runs", "preview", params] as const,
     diff: (studyId: string, runId: string, against: string) => ["studies", "detail", studyId, "runs", "diff", runId, against] as const,

@@ -118,3 +118,63 @@ describe("uploads are refused before their body is read", () => {
   });
 });
 
+
+describe("PATCH changes only the fields it names", () => {
+  it("PATCH /studies/:id with a name keeps the description", async () => {
+    const owner = cast.people.owner.agent;
+    const created = await owner.post("/api/studies").send({ name: "Invented patch study", description: "Benthic basin, invented." });
+    expect(created.status).toBe(201);
+    const res = await owner.patch(`/api/studies/${created.body.id}`).send({ name: "Invented patch study, renamed" });
+    expect(res.status, JSON.stringify(res.body)).toBe(200);
+    expect(res.body).toMatchObject({ name: "Invented patch study, renamed", description: "Benthic basin, invented." });
+    const described = await owner.patch(`/api/studies/${created.body.id}`).send({ description: "Now longer, still invented." });
+    expect(described.body).toMatchObject({ name: "Invented patch study, renamed", description: "Now longer, still invented." });
+    expect((await owner.get(`/api/studies/${created.body.id}`)).body).toMatchObject({ name: "Invented patch study, renamed", description: "Now longer, still invented." });
+  });
+
+  it("PATCH /studies/:id/traits/:id with a label keeps states, unit, bounds and coding rule", async () => {
+    const created = await cast.people.coder.agent.post(`/api/studies/${study.studyId}/traits`).send({
+      key: "patch_width",
+      label: "Width",
+      kind: "numeric",
+      unit: "mm",
+      minValue: 0,
+      maxValue: 90,
+      codingRule: "Widest point of the invented shell.",
+    });
+    expect(created.status, JSON.stringify(created.body)).toBe(201);
+    const res = await cast.people.coder.agent.patch(`/api/studies/${study.studyId}/traits/${created.body.id}`).send({ label: "Shell width" });
+    expect(res.status, JSON.stringify(res.body)).toBe(200);
+    expect(res.body.trait).toMatchObject({ key: "patch_width", label: "Shell width", kind: "numeric", unit: "mm", minValue: 0, maxValue: 90, codingRule: "Widest point of the invented shell.", retired: false });
+  });
+
+  it("PATCH /studies/:id/taxa/:id with a name keeps higher taxon, notes, range and values", async () => {
+    const feeding = study.trait.feeding.id;
+    const created = await cast.people.coder.agent
+      .post(`/api/studies/${study.studyId}/taxa`)
+      .send({ name: "Patchella invented", higherTaxon: "Inventidae", notes: "Kept notes.", fad: { ma: 70 }, lad: { ma: 66 }, values: { [feeding]: "suspension" } });
+    expect(created.status, JSON.stringify(created.body)).toBe(201);
+    const t = created.body.taxon;
+    const res = await cast.people.coder.agent.patch(`/api/studies/${study.studyId}/taxa/${t.id}`).send({ version: t.version, changes: { name: "Patchella renamed" }, reason: "Spelling." });
+    expect(res.status, JSON.stringify(res.body)).toBe(200);
+    expect(res.body.taxon).toMatchObject({ name: "Patchella renamed", higherTaxon: "Inventidae", notes: "Kept notes.", fadMa: 70, ladMa: 66, values: { [feeding]: "suspension" } });
+  });
+
+  it("PATCH /studies/:id/members/:id with a role keeps the member's name, address and joining date", async () => {
+    const studyId = await cast.makeStudy("Invented member patch study");
+    const path = `/api/studies/${studyId}/members`;
+    const before = (await cast.people.owner.agent.get(path)).body.members.find((m: { userId: string }) => m.userId === cast.people.coder.user.id);
+    const res = await cast.people.owner.agent.patch(`${path}/${cast.people.coder.user.id}`).send({ role: "analyst" });
+    expect(res.status, JSON.stringify(res.body)).toBe(204);
+    const after = (await cast.people.owner.agent.get(path)).body.members.find((m: { userId: string }) => m.userId === cast.people.coder.user.id);
+    expect(after).toEqual({ ...before, role: "analyst" });
+  });
+
+  it("PATCH /auth/me with a name keeps the address", async () => {
+    const person = cast.people.stranger;
+    const res = await person.agent.patch("/api/auth/me").send({ name: "Renamed stranger" });
+    expect(res.status, JSON.stringify(res.body)).toBe(200);
+    const me = await person.agent.get("/api/auth/me");
+    expect(me.body.user).toMatchObject({ email: person.email, name: "Renamed stranger" });
+  });
+});

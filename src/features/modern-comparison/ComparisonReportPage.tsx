@@ -6,7 +6,8 @@ import { LoadingState } from "../../components/LoadingState";
 import { formatDateTime } from "../../lib/format";
 import { paths } from "../../lib/paths";
 import { useDocumentTitle } from "../../lib/useDocumentTitle";
-import { useComparison, useReportStudy } from "./api";
+import { useStudy } from "../../lib/queries/study";
+import { useComparison } from "./api";
 import { ComparisonResultsView } from "./ComparisonResultsView";
 
 // Paper: A4 with modest margins, no screen chrome, sections kept whole, links printed as text.
@@ -25,7 +26,8 @@ const PRINT_STYLES = `
 export function ComparisonReportPage() {
   const { studyId = "", comparisonId = "" } = useParams();
   const comparison = useComparison(studyId, comparisonId);
-  const study = useReportStudy(studyId);
+  // The report opens outside the study layout, so it loads the study itself.
+  const study = useStudy(studyId);
   useDocumentTitle(comparison.data ? `Report: ${comparison.data.name}` : "Report");
   const back = `${paths.study(studyId)}/modern-comparison/comparisons/${comparisonId}`;
 

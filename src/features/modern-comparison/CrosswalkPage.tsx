@@ -18,7 +18,8 @@ import { useCurrentStudy } from "../../lib/currentStudy";
 import { formatCount, pluralize } from "../../lib/format";
 import { paths } from "../../lib/paths";
 import { useDocumentTitle } from "../../lib/useDocumentTitle";
-import { useModernList, useSaveCrosswalk, useTraits } from "./api";
+import { useTraits } from "../../lib/queries/codebook";
+import { useModernList, useSaveCrosswalk } from "./api";
 
 /** One trait's pairing as the form holds it: "" column = not paired; a value absent from `states` = not decided yet. */
 interface DraftPair {

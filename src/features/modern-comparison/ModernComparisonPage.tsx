@@ -19,7 +19,8 @@ import { useCurrentStudy } from "../../lib/currentStudy";
 import { formatCount, formatDateTime, pluralize } from "../../lib/format";
 import { paths } from "../../lib/paths";
 import { useDocumentTitle } from "../../lib/useDocumentTitle";
-import { comparisonCsvUrl, useComparisons, useDeleteModernList, useModernLists, useRuns } from "./api";
+import { useRunList } from "../../lib/queries/runs";
+import { comparisonCsvUrl, useComparisons, useDeleteModernList, useModernLists } from "./api";
 import { CategoryBadge } from "./CategoryBadge";
 import { ListUploadWizard } from "./ListUploadWizard";
 import { NewComparisonForm } from "./NewComparisonForm";
@@ -34,7 +35,8 @@ export function ModernComparisonPage() {
   const canCompare = can(study.role, "comparisons.create");
   const base = `${paths.study(study.id)}/modern-comparison`;
   const lists = useModernLists(study.id);
-  const runs = useRuns(study.id);
+  // The newest runs, to choose the one whose model scores the list.
+  const runs = useRunList(study.id, 1, 100);
   const comparisons = useComparisons(study.id);
   const [uploading, setUploading] = useState(false);
   const [deleting, setDeleting] = useState<ModernListSummary | null>(null);

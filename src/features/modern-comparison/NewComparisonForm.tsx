@@ -11,7 +11,8 @@ import { ApiError, errorMessage } from "../../lib/api";
 import { issuesToFieldErrors, type FieldErrors } from "../../lib/forms";
 import { formatDate } from "../../lib/format";
 import { paths } from "../../lib/paths";
-import { useCreateComparison, useRun } from "./api";
+import { useRun } from "../../lib/queries/runs";
+import { useCreateComparison } from "./api";
 import { ProgressBar } from "../../components/ProgressBar";
 
 const LEVELS = [

@@ -2,35 +2,16 @@
 import { useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
 import type { Comparison, ComparisonExportTable, ComparisonList, ComparisonParamsInput } from "@shared/schemas/comparisons";
 import type { CrosswalkInput, CrosswalkSaved, ModernList, ModernListCommitInput, ModernListList, ModernListMapping, ModernListPreview, ModernListUpload } from "@shared/schemas/modernLists";
-import type { Run, RunList } from "@shared/schemas/runs";
-import type { Study } from "@shared/schemas/studies";
-import type { TraitList } from "@shared/schemas/traits";
 import { api } from "../../lib/api";
+import { studyApiPath } from "../../lib/queries/paths";
 import { queryKeys } from "../../lib/queryKeys";
 import { uploadWithProgress, type UploadProgress } from "../../lib/uploadWithProgress";
 
-const studyPath = (studyId: string) => `/studies/${encodeURIComponent(studyId)}`;
-const listsPath = (studyId: string) => `${studyPath(studyId)}/modern-lists`;
+const listsPath = (studyId: string) => studyApiPath(studyId, "/modern-lists");
 const listPath = (studyId: string, listId: string) => `${listsPath(studyId)}/${encodeURIComponent(listId)}`;
 const uploadPath = (studyId: string, uploadId: string) => `${listsPath(studyId)}/uploads/${encodeURIComponent(uploadId)}`;
-const comparisonsPath = (studyId: string) => `${studyPath(studyId)}/comparisons`;
+const comparisonsPath = (studyId: string) => studyApiPath(studyId, "/comparisons");
 const comparisonPath = (studyId: string, comparisonId: string) => `${comparisonsPath(studyId)}/${encodeURIComponent(comparisonId)}`;
-
-/** GET /api/studies/:studyId: the study's name for the printable report, which stands outside the study's pages. */
-export function useReportStudy(studyId: string) {
-  return useQuery({
-    queryKey: queryKeys.studies.detail(studyId),
-    queryFn: ({ signal }) => api.get<Study>(studyPath(studyId), signal),
-  });
-}
-
-/** GET /api/studies/:studyId/traits: the codebook the crosswalk pairs with. */
-export function useTraits(studyId: string) {
-  return useQuery({
-    queryKey: queryKeys.traits.list(studyId),
-    queryFn: ({ signal }) => api.get<TraitList>(`${studyPath(studyId)}/traits`, signal),
-  });
-}
 
 /** GET /api/studies/:studyId/modern-lists */
 export function useModernLists(studyId: string) {
@@ -95,23 +76,6 @@ export function useDeleteModernList(studyId: string) {
         queryClient.invalidateQueries({ queryKey: queryKeys.modernComparison.lists(studyId) }),
         queryClient.invalidateQueries({ queryKey: queryKeys.modernComparison.comparisons(studyId) }),
       ]),
-  });
-}
-
-/** GET /api/studies/:studyId/runs: the newest runs, to choose the one whose model scores the list. */
-export function useRuns(studyId: string) {
-  return useQuery({
-    queryKey: queryKeys.modernComparison.runs(studyId),
-    queryFn: ({ signal }) => api.get<RunList>(`${studyPath(studyId)}/runs?page=1&pageSize=100`, signal),
-  });
-}
-
-/** GET /api/studies/:studyId/runs/:runId: its boundaries and whether each has a fitted model. */
-export function useRun(studyId: string, runId: string | null) {
-  return useQuery({
-    queryKey: queryKeys.modernComparison.run(studyId, runId ?? "none"),
-    queryFn: ({ signal }) => api.get<Run>(`${studyPath(studyId)}/runs/${encodeURIComponent(runId ?? "")}`, signal),
-    enabled: runId !== null,
   });
 }
 

@@ -15,7 +15,7 @@ import { useCurrentStudy } from "../../lib/currentStudy";
 import { formatCount, formatDateTime } from "../../lib/format";
 import { paths } from "../../lib/paths";
 import { useDocumentTitle } from "../../lib/useDocumentTitle";
-import { useRunDiff } from "./api";
+import { useRunDiff } from "../../lib/queries/runs";
 import { selectivityLink } from "./RunsPage";
 
 type Pair = { base: number | null; run: number | null };

@@ -17,7 +17,9 @@ import { useCurrentStudy } from "../../lib/currentStudy";
 import { formatCount, formatDateTime, pluralize } from "../../lib/format";
 import { paths } from "../../lib/paths";
 import { useDocumentTitle } from "../../lib/useDocumentTitle";
-import { exportUrl, isActive, useRerun, useRetry, useRuns } from "./api";
+import { isRunActive, runExportUrl, useRerunRun, useRetryRun, useRunList } from "../../lib/queries/runs";
+
+const RUNS_PAGE_SIZE = 20;
 
 const STATUS: Record<RunSummary["status"], { label: string; dot: string }> = {
   queued: { label: "Queued", dot: "bg-stone-400" },
@@ -36,17 +38,17 @@ export function RunsPage() {
   useDocumentTitle(`Runs · ${study.name}`);
   const [search, setSearch] = useSearchParams();
   const page = Math.max(1, Number(search.get("page")) || 1);
-  const runs = useRuns(study.id, page);
+  const runs = useRunList(study.id, page, RUNS_PAGE_SIZE);
   const [chosen, setChosen] = useState<string[]>(() => (search.get("compare") ? [search.get("compare")!] : []));
   const [chosenRuns, setChosenRuns] = useState<Map<string, RunSummary>>(new Map());
   const navigate = useNavigate();
   const toast = useToast();
-  const rerun = useRerun(study.id);
-  const retry = useRetry(study.id);
+  const rerun = useRerunRun(study.id);
+  const retry = useRetryRun(study.id);
   const canRun = can(study.role, "runs.create");
 
   const total = runs.data?.total ?? 0;
-  const pages = Math.max(1, Math.ceil(total / (runs.data?.pageSize ?? 20)));
+  const pages = Math.max(1, Math.ceil(total / (runs.data?.pageSize ?? RUNS_PAGE_SIZE)));
 
   const toggle = (run: RunSummary, on: boolean) => {
     setChosen((current) => (on ? [...current.filter((id) => id !== run.id), run.id].slice(-2) : current.filter((id) => id !== run.id)));
@@ -62,7 +64,7 @@ export function RunsPage() {
   };
 
   const startRerun = (run: RunSummary) =>
-    rerun.mutate(run.id, {
+    rerun.mutate({ runId: run.id }, {
       onSuccess: (created) => {
         toast.show(`Re-running “${created.name}” on today’s data.`);
         void navigate(selectivityLink(study.id, created.id));
@@ -171,7 +173,7 @@ export function RunsPage() {
                       onToggle={(on) => toggle(run, on)}
                       onRerun={() => startRerun(run)}
                       onRetry={() => retry.mutate(run.id, { onSuccess: () => toast.show(`“${run.name}” is queued again.`) })}
-                      busy={(rerun.isPending && rerun.variables === run.id) || (retry.isPending && retry.variables === run.id)}
+                      busy={(rerun.isPending && rerun.variables?.runId === run.id) || (retry.isPending && retry.variables === run.id)}
                     />
                   ))}
                 </tbody>
@@ -237,9 +239,9 @@ function RunRow({ studyId, run, chosen, canRun, busy, onToggle, onRerun, onRetry
         <span className="inline-flex items-center gap-2 font-medium text-stone-800" data-status={run.status}>
           <span className={cx("size-2 rounded-full", status.dot)} aria-hidden="true" />
           {status.label}
-          {isActive(run) && <span className="text-stone-500 tabular-nums">{percent}%</span>}
+          {isRunActive(run) && <span className="text-stone-500 tabular-nums">{percent}%</span>}
         </span>
-        {isActive(run) && (
+        {isRunActive(run) && (
           <>
             <div
               role="progressbar"
@@ -269,11 +271,11 @@ function RunRow({ studyId, run, chosen, canRun, busy, onToggle, onRerun, onRetry
             {run.rowCount !== null && <p className="text-xs text-stone-500">{formatCount(run.rowCount)} taxon rows</p>}
             {run.status === "succeeded" && (
               <p className="mt-1 text-xs">
-                <a href={exportUrl(studyId, run.id, "csv")} download className={exportLink} aria-label={`Download “${run.name}” as CSV`}>
+                <a href={runExportUrl(studyId, run.id, "csv")} download className={exportLink} aria-label={`Download “${run.name}” as CSV`}>
                   CSV
                 </a>
                 <span className="text-stone-400"> · </span>
-                <a href={exportUrl(studyId, run.id, "json")} download className={exportLink} aria-label={`Download “${run.name}” as JSON`}>
+                <a href={runExportUrl(studyId, run.id, "json")} download className={exportLink} aria-label={`Download “${run.name}” as JSON`}>
                   JSON
                 </a>
               </p>
@@ -293,7 +295,7 @@ function RunRow({ studyId, run, chosen, canRun, busy, onToggle, onRerun, onRetry
               Retry
             </Button>
           )}
-          {canRun && !isActive(run) && (
+          {canRun && !isRunActive(run) && (
             <Button variant="ghost" size="sm" onClick={onRerun} busy={busy} aria-label={`Re-run “${run.name}” on today’s data`}>
               Re-run
             </Button>

@@ -6,7 +6,7 @@ import { LoadingState } from "../../components/LoadingState";
 import { TextLink } from "../../components/TextLink";
 import { formatCount, formatDateTime } from "../../lib/format";
 import { paths } from "../../lib/paths";
-import { useRunDiff } from "./api";
+import { useRunDiff } from "../../lib/queries/runs";
 import { formatEstimate, formatP } from "./words";
 
 type ChangedTrait = RunDiff["boundaries"][number]["traits"][number] & { boundary: string };

@@ -8,7 +8,8 @@ import { LoadingState } from "../../components/LoadingState";
 import { formatDateTime } from "../../lib/format";
 import { paths } from "../../lib/paths";
 import { useDocumentTitle } from "../../lib/useDocumentTitle";
-import { useRun, useStudyForReport } from "./api";
+import { useRun } from "../../lib/queries/runs";
+import { useStudy } from "../../lib/queries/study";
 import { BoundaryResults } from "./BoundaryResults";
 import { HeatMapCard } from "./HeatMapCard";
 import { RunProgress } from "./RunProgress";
@@ -31,7 +32,8 @@ const PRINT_RULES = `
 /** A run as a document to print or save as PDF: parameters, data hash, cautions, every figure and table. */
 export function RunReportPage() {
   const { studyId = "", runId = "" } = useParams();
-  const study = useStudyForReport(studyId);
+  // The report opens outside the study layout, so it loads the study itself.
+  const study = useStudy(studyId);
   const run = useRun(studyId, runId);
   useDocumentTitle(run.data ? `Report · ${run.data.name}` : "Run report");
 
