@@ -6,7 +6,7 @@ import { ErrorState } from "../components/ErrorState";
 import { cx, focusRing } from "../components/focus";
 import { LoadingState } from "../components/LoadingState";
 import { RoleBadge } from "../components/RoleBadge";
-import { useStudy } from "../features/studies/api";
+import { useStudy } from "../lib/queries/study";
 import { ApiError } from "../lib/api";
 import { CurrentStudyContext } from "../lib/currentStudy";
 import { paths } from "../lib/paths";

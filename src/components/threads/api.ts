@@ -1,16 +1,16 @@
 // The thread panel's API hooks (one per endpoint), shared by every screen that embeds threads.
 import { useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
-import type { memberListSchema } from "@shared/schemas/studies";
 import type { z } from "zod";
 import type { PostCreateInput, ThreadCreateInput, ThreadDetail, ThreadList, ThreadResolveInput } from "@shared/schemas/threads";
 import type { notificationsReadResultSchema } from "@shared/schemas/notifications";
 import { api } from "../../lib/api";
 import { queryKeys } from "../../lib/queryKeys";
+import { membersQuery } from "../../lib/queries/members";
+import { studyApiPath } from "../../lib/queries/paths";
 
-type MemberList = z.infer<typeof memberListSchema>;
 type ReadResult = z.infer<typeof notificationsReadResultSchema>;
 
-const threadsPath = (studyId: string) => `/studies/${encodeURIComponent(studyId)}/threads`;
+const threadsPath = (studyId: string) => studyApiPath(studyId, "/threads");
 
 export interface ThreadListFilters {
   status?: "open" | "resolved" | "all";
@@ -54,11 +54,7 @@ export function useThread(studyId: string, threadId: string) {
 
 /** GET /api/studies/:studyId/members: who can be mentioned (the same cache as the Members screen). */
 export function useMentionableMembers(studyId: string) {
-  return useQuery({
-    queryKey: queryKeys.studies.members(studyId),
-    queryFn: ({ signal }) => api.get<MemberList>(`/studies/${encodeURIComponent(studyId)}/members`, signal),
-    select: (data: MemberList) => data.members,
-  });
+  return useQuery({ ...membersQuery(studyId), select: (data) => data.members });
 }
 
 /** After any change to a thread: the lists, the trait table's marks and the activity feed follow. */

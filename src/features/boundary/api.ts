@@ -9,9 +9,9 @@ import type {
   OutcomesResult,
   RatesResult,
 } from "@shared/schemas/outcomes";
-import type { Timescale } from "@shared/schemas/timescale";
 import { api } from "../../lib/api";
 import { queryKeys } from "../../lib/queryKeys";
+import { studyApiPath } from "../../lib/queries/paths";
 
 export type OverrideList = z.infer<typeof outcomeOverrideListSchema>;
 export type OverrideStatus = "active" | "revoked" | "all";
@@ -26,21 +26,11 @@ export interface OutcomesRequest {
   pageSize: number;
 }
 
-const studyPath = (studyId: string) => `/studies/${encodeURIComponent(studyId)}`;
 
 function toSearch(params: Record<string, string | number | undefined>): string {
   const search = new URLSearchParams();
   for (const [key, value] of Object.entries(params)) if (value !== undefined) search.set(key, String(value));
   return search.toString();
-}
-
-/** GET /api/timescale: the ICS chart's units with their bases (reference data that never changes while the app runs). */
-export function useTimescale() {
-  return useQuery({
-    queryKey: queryKeys.timescale,
-    queryFn: ({ signal }) => api.get<Timescale>("/timescale", signal),
-    staleTime: Infinity,
-  });
 }
 
 /**
@@ -51,7 +41,7 @@ export function useOutcomes(studyId: string, request: OutcomesRequest | null) {
   const params = { ...request };
   return useQuery({
     queryKey: queryKeys.boundary.outcomes(studyId, params),
-    queryFn: ({ signal }) => api.get<OutcomesResult>(`${studyPath(studyId)}/outcomes?${toSearch(params)}`, signal),
+    queryFn: ({ signal }) => api.get<OutcomesResult>(`${studyApiPath(studyId)}/outcomes?${toSearch(params)}`, signal),
     enabled: request !== null,
     // Ranges are edited on other screens; a visit to this one should show the current outcomes.
     staleTime: 0,
@@ -64,7 +54,7 @@ export function useOverrides(studyId: string, status: OverrideStatus, page: numb
   const params = { status, page, pageSize };
   return useQuery({
     queryKey: queryKeys.boundary.overrides(studyId, params),
-    queryFn: ({ signal }) => api.get<OverrideList>(`${studyPath(studyId)}/outcome-overrides?${toSearch(params)}`, signal),
+    queryFn: ({ signal }) => api.get<OverrideList>(`${studyApiPath(studyId)}/outcome-overrides?${toSearch(params)}`, signal),
     staleTime: 0,
     placeholderData: keepPreviousData,
   });
@@ -74,7 +64,7 @@ export function useOverrides(studyId: string, status: OverrideStatus, page: numb
 export function useRates(studyId: string) {
   return useQuery({
     queryKey: queryKeys.boundary.rates(studyId),
-    queryFn: ({ signal }) => api.get<RatesResult>(`${studyPath(studyId)}/rates`, signal),
+    queryFn: ({ signal }) => api.get<RatesResult>(`${studyApiPath(studyId)}/rates`, signal),
     staleTime: 0,
   });
 }
@@ -93,7 +83,7 @@ export function useCreateOverride(studyId: string) {
   const refresh = useRefreshOutcomes(studyId);
   return useMutation({
     mutationFn: (input: OutcomeOverrideCreateInput) =>
-      api.post<{ override: OutcomeOverride; replacedOverrideId: string | null }>(`${studyPath(studyId)}/outcome-overrides`, input),
+      api.post<{ override: OutcomeOverride; replacedOverrideId: string | null }>(`${studyApiPath(studyId)}/outcome-overrides`, input),
     onSuccess: refresh,
   });
 }
@@ -103,7 +93,7 @@ export function useRevokeOverride(studyId: string) {
   const refresh = useRefreshOutcomes(studyId);
   return useMutation({
     mutationFn: ({ overrideId, reason }: { overrideId: string; reason: string }) =>
-      api.post<OutcomeOverride>(`${studyPath(studyId)}/outcome-overrides/${encodeURIComponent(overrideId)}/revoke`, { reason }),
+      api.post<OutcomeOverride>(`${studyApiPath(studyId)}/outcome-overrides/${encodeURIComponent(overrideId)}/revoke`, { reason }),
     onSuccess: refresh,
   });
 }

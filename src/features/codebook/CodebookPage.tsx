@@ -16,7 +16,9 @@ import { errorMessage } from "../../lib/api";
 import { useCurrentStudy } from "../../lib/currentStudy";
 import { formatDate, pluralize } from "../../lib/format";
 import { useDocumentTitle } from "../../lib/useDocumentTitle";
-import { codebookCsvUrl, useReorderTraits, useTraits, useUpdateTrait } from "./api";
+import { useTraits } from "../../lib/queries/codebook";
+import { codebookCsvUrl } from "../../lib/queries/paths";
+import { useReorderTraits, useUpdateTrait } from "./api";
 import { TraitEditor } from "./TraitEditor";
 import { TraitSummary } from "./TraitSummary";
 

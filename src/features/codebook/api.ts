@@ -3,17 +3,10 @@ import { useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
 import type { Trait, TraitCreateInput, TraitList, TraitReorderInput, TraitUpdateInput, TraitUpdateResult, TraitUsage } from "@shared/schemas/traits";
 import { api } from "../../lib/api";
 import { queryKeys } from "../../lib/queryKeys";
+import { studyApiPath } from "../../lib/queries/paths";
 
-const traitsPath = (studyId: string) => `/studies/${encodeURIComponent(studyId)}/traits`;
+const traitsPath = (studyId: string) => studyApiPath(studyId, "/traits");
 const traitPath = (studyId: string, traitId: string) => `${traitsPath(studyId)}/${encodeURIComponent(traitId)}`;
-
-/** GET /api/studies/:studyId/traits: the codebook in order, retired traits included. */
-export function useTraits(studyId: string) {
-  return useQuery({
-    queryKey: queryKeys.traits.list(studyId),
-    queryFn: ({ signal }) => api.get<TraitList>(traitsPath(studyId), signal),
-  });
-}
 
 /** GET /api/studies/:studyId/traits/:traitId/usage: how many taxa hold each state or value. */
 export function useTraitUsage(studyId: string, traitId: string | null) {
@@ -82,4 +75,3 @@ export function useReorderTraits(studyId: string) {
 }
 
 /** GET /api/studies/:studyId/exports/codebook.csv: the codebook as a file (a plain download link). */
-export const codebookCsvUrl = (studyId: string) => `/api/studies/${encodeURIComponent(studyId)}/exports/codebook.csv`;

@@ -6,7 +6,7 @@ import { Notice } from "../../components/Notice";
 import { PageHeader } from "../../components/PageHeader";
 import { useCurrentStudy } from "../../lib/currentStudy";
 import { useDocumentTitle } from "../../lib/useDocumentTitle";
-import { useTraits } from "./api";
+import { useTraits } from "../../lib/queries/codebook";
 import { ImportHistory } from "./ImportHistory";
 import { ImportWizard } from "./ImportWizard";
 

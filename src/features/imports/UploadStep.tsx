@@ -5,7 +5,8 @@ import { CsvFileField } from "../../components/CsvFileField";
 import { FormError } from "../../components/Notice";
 import { textLinkClasses } from "../../components/TextLink";
 import { ApiError, errorMessage } from "../../lib/api";
-import { useUploadImport, templateCsvUrl } from "./api";
+import { templateCsvUrl } from "../../lib/queries/paths";
+import { useUploadImport } from "./api";
 import { ProgressBar } from "../../components/ProgressBar";
 import type { UploadProgress } from "../../lib/uploadWithProgress";
 

@@ -11,25 +11,16 @@ import type {
   ImportSummary,
   ImportUpload,
 } from "@shared/schemas/imports";
-import type { TraitList } from "@shared/schemas/traits";
 import { api } from "../../lib/api";
 import { queryKeys } from "../../lib/queryKeys";
+import { studyApiPath } from "../../lib/queries/paths";
 import { uploadWithProgress, type UploadProgress } from "../../lib/uploadWithProgress";
 
-const studyPath = (studyId: string) => `/studies/${encodeURIComponent(studyId)}`;
-const importsPath = (studyId: string) => `${studyPath(studyId)}/imports`;
+const importsPath = (studyId: string) => `${studyApiPath(studyId)}/imports`;
 const importPath = (studyId: string, importId: string) => `${importsPath(studyId)}/${encodeURIComponent(importId)}`;
 
 /** How often a running commit's progress is read. */
 const COMMIT_POLL_MS = 500;
-
-/** GET /api/studies/:studyId/traits: the codebook's traits are the mapping's targets. */
-export function useTraits(studyId: string) {
-  return useQuery({
-    queryKey: queryKeys.traits.list(studyId),
-    queryFn: ({ signal }) => api.get<TraitList>(`${studyPath(studyId)}/traits`, signal),
-  });
-}
 
 /** GET /api/studies/:studyId/imports?page: who imported what and when, newest first. */
 export function useImports(studyId: string, page: number) {
@@ -109,10 +100,9 @@ export function useImportDecisions(studyId: string, importId: string, page: numb
   const query = `importId=${encodeURIComponent(importId)}&page=${page}&pageSize=25`;
   return useQuery({
     queryKey: queryKeys.decisions.list(studyId, query),
-    queryFn: ({ signal }) => api.get<DecisionList>(`${studyPath(studyId)}/decisions?${query}`, signal),
+    queryFn: ({ signal }) => api.get<DecisionList>(`${studyApiPath(studyId)}/decisions?${query}`, signal),
     placeholderData: keepPreviousData,
   });
 }
 
 /** GET /api/studies/:studyId/exports/template.csv: an empty file with the codebook's columns. */
-export const templateCsvUrl = (studyId: string) => `/api${studyPath(studyId)}/exports/template.csv`;

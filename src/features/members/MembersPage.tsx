@@ -8,7 +8,7 @@ import { useCurrentStudy } from "../../lib/currentStudy";
 import { formatDate } from "../../lib/format";
 import { useMe } from "../../lib/session";
 import { useDocumentTitle } from "../../lib/useDocumentTitle";
-import { useMembers, type PendingInvitation } from "./api";
+import { useMembers, type PendingInvitation } from "../../lib/queries/members";
 import { InviteCard } from "./InviteCard";
 import { MemberList } from "./MemberList";
 

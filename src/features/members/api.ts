@@ -1,31 +1,15 @@
-import { useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
+import { useMutation, useQueryClient } from "@tanstack/react-query";
 import type { StudyRole } from "@shared/roles";
-import type { z } from "zod";
-import type { InvitationCreateInput, Member, pendingInvitationSchema } from "@shared/schemas/studies";
+import type { InvitationCreateInput } from "@shared/schemas/studies";
 import { api } from "../../lib/api";
 import { queryKeys } from "../../lib/queryKeys";
-
-export type PendingInvitation = z.infer<typeof pendingInvitationSchema>;
-export interface MemberList {
-  members: Member[];
-  invitations: PendingInvitation[];
-}
-
-const studyPath = (studyId: string) => `/studies/${encodeURIComponent(studyId)}`;
-
-/** GET /api/studies/:studyId/members: members and pending invitations. */
-export function useMembers(studyId: string) {
-  return useQuery({
-    queryKey: queryKeys.studies.members(studyId),
-    queryFn: ({ signal }) => api.get<MemberList>(`${studyPath(studyId)}/members`, signal),
-  });
-}
+import { studyApiPath } from "../../lib/queries/paths";
 
 /** POST /api/studies/:studyId/invitations: e-mails a one-time link. */
 export function useInviteMember(studyId: string) {
   const queryClient = useQueryClient();
   return useMutation({
-    mutationFn: (input: InvitationCreateInput) => api.post<{ id: string }>(`${studyPath(studyId)}/invitations`, input),
+    mutationFn: (input: InvitationCreateInput) => api.post<{ id: string }>(`${studyApiPath(studyId)}/invitations`, input),
     onSuccess: () =>
       Promise.all([
         queryClient.invalidateQueries({ queryKey: queryKeys.studies.members(studyId) }),
@@ -40,7 +24,7 @@ export function useChangeMemberRole(studyId: string) {
   const queryClient = useQueryClient();
   return useMutation({
     mutationFn: ({ userId, role }: { userId: string; role: StudyRole }) =>
-      api.patch<void>(`${studyPath(studyId)}/members/${encodeURIComponent(userId)}`, { role }),
+      api.patch<void>(`${studyApiPath(studyId)}/members/${encodeURIComponent(userId)}`, { role }),
     // The caller's own role may have changed, so the study (and its role) is refreshed too.
     onSuccess: () => queryClient.invalidateQueries({ queryKey: queryKeys.studies.all }),
   });
@@ -54,7 +38,7 @@ export function useChangeMemberRole(studyId: string) {
 export function useRemoveMember(studyId: string) {
   const queryClient = useQueryClient();
   return useMutation({
-    mutationFn: ({ userId }: { userId: string; leaving: boolean }) => api.delete(`${studyPath(studyId)}/members/${encodeURIComponent(userId)}`),
+    mutationFn: ({ userId }: { userId: string; leaving: boolean }) => api.delete(`${studyApiPath(studyId)}/members/${encodeURIComponent(userId)}`),
     onSuccess: (_result, { leaving }) =>
       queryClient.invalidateQueries({ queryKey: queryKeys.studies.all, refetchType: leaving ? "none" : "active" }),
   });

@@ -5,10 +5,15 @@ import { keepPreviousData, useQuery } from "@tanstack/react-query";
 import type { RunParams, RunPreview } from "@shared/schemas/runs";
 import { api } from "../../lib/api";
 import { queryKeys } from "../../lib/queryKeys";
-import { studyApiPath } from "../../lib/queries/paths";
+import { runApiPath, studyApiPath } from "../../lib/queries/paths";
 
 // The run panel reads these under the names it has always used.
 export { isRunActive as isActive, runExportUrl, useRerunRun as useRerun, useRetryRun, useRun } from "../../lib/queries/runs";
+
+const runPath = (studyId: string, runId: string) => runApiPath(studyId, runId);
+
+/** The zip for re-checking a finished run outside the app: its rows, numbers and an R script. */
+export const runReplicationUrl = (studyId: string, runId: string) => `/api${runPath(studyId, runId)}/replication.zip`;
 
 /**
  * POST /api/studies/:studyId/runs/preview: what a run with these parameters would analyse. A read,

@@ -11,14 +11,6 @@ export function useStudies() {
   });
 }
 
-/** GET /api/studies/:studyId */
-export function useStudy(studyId: string) {
-  return useQuery({
-    queryKey: queryKeys.studies.detail(studyId),
-    queryFn: ({ signal }) => api.get<Study>(`/studies/${encodeURIComponent(studyId)}`, signal),
-  });
-}
-
 /** POST /api/studies: the caller becomes the study's owner. */
 export function useCreateStudy() {
   const queryClient = useQueryClient();

@@ -5,7 +5,9 @@ import { buttonClasses, ButtonLink } from "../../components/Button";
 import { Card } from "../../components/Card";
 import { pluralize } from "../../lib/format";
 import { paths } from "../../lib/paths";
-import { templateCsvUrl, useCodebook, useTaxaTotal } from "./api";
+import { useTraits } from "../../lib/queries/codebook";
+import { templateCsvUrl } from "../../lib/queries/paths";
+import { useTaxaTotal } from "./api";
 
 /**
  * The three steps from a new study to its first test, while the study has no taxa. Hidden once taxa
@@ -13,7 +15,7 @@ import { templateCsvUrl, useCodebook, useTaxaTotal } from "./api";
  */
 export function FirstSteps({ study }: { study: Study }) {
   const taxaTotal = useTaxaTotal(study.id);
-  const codebook = useCodebook(study.id);
+  const codebook = useTraits(study.id);
   if (taxaTotal.data !== 0) return null;
 
   const activeTraits = codebook.data?.traits.filter((t) => !t.retired).length;

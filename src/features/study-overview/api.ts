@@ -3,15 +3,15 @@ import type { ActivityList } from "@shared/schemas/activity";
 import type { NotificationPreference, NotificationPreferenceList, NotificationPreferenceUpdateInput } from "@shared/schemas/notifications";
 import type { Study, StudyUpdateInput } from "@shared/schemas/studies";
 import type { TaxaPage } from "@shared/schemas/taxa";
-import type { TraitList } from "@shared/schemas/traits";
 import { api } from "../../lib/api";
 import { queryKeys } from "../../lib/queryKeys";
+import { studyApiPath } from "../../lib/queries/paths";
 
 /** PATCH /api/studies/:studyId (owners). */
 export function useUpdateStudy(studyId: string) {
   const queryClient = useQueryClient();
   return useMutation({
-    mutationFn: (input: StudyUpdateInput) => api.patch<Study>(`/studies/${encodeURIComponent(studyId)}`, input),
+    mutationFn: (input: StudyUpdateInput) => api.patch<Study>(studyApiPath(studyId), input),
     onSuccess: (study) => {
       queryClient.setQueryData(queryKeys.studies.detail(studyId), study);
       return queryClient.invalidateQueries({ queryKey: queryKeys.studies.list() });
@@ -23,7 +23,7 @@ export function useUpdateStudy(studyId: string) {
 export function useDeleteStudy(studyId: string) {
   const queryClient = useQueryClient();
   return useMutation({
-    mutationFn: () => api.delete(`/studies/${encodeURIComponent(studyId)}`),
+    mutationFn: () => api.delete(studyApiPath(studyId)),
     onSuccess: () =>
       Promise.all([
         // Not refetched now (it would answer "not a member" while the page is still open);
@@ -38,7 +38,7 @@ export function useDeleteStudy(studyId: string) {
 export function useActivity(studyId: string, page: number, pageSize: number) {
   return useQuery({
     queryKey: queryKeys.activity.page(studyId, page),
-    queryFn: ({ signal }) => api.get<ActivityList>(`/studies/${encodeURIComponent(studyId)}/activity?page=${page}&pageSize=${pageSize}`, signal),
+    queryFn: ({ signal }) => api.get<ActivityList>(studyApiPath(studyId, `/activity?page=${page}&pageSize=${pageSize}`), signal),
     placeholderData: keepPreviousData,
   });
 }
@@ -63,23 +63,14 @@ export function useSetMentionPreference(studyId: string) {
   });
 }
 
-/** GET /api/studies/:studyId/traits: the codebook, for the first steps of a new study. */
-export function useCodebook(studyId: string) {
-  return useQuery({
-    queryKey: queryKeys.traits.list(studyId),
-    queryFn: ({ signal }) => api.get<TraitList>(`/studies/${encodeURIComponent(studyId)}/traits`, signal),
-  });
-}
-
 /** GET /api/studies/:studyId/taxa?page=1&pageSize=1: only the total, to tell whether the study has taxa yet. */
 export function useTaxaTotal(studyId: string) {
   const query = "page=1&pageSize=1";
   return useQuery({
     queryKey: queryKeys.taxa.page(studyId, query),
-    queryFn: ({ signal }) => api.get<TaxaPage>(`/studies/${encodeURIComponent(studyId)}/taxa?${query}`, signal),
+    queryFn: ({ signal }) => api.get<TaxaPage>(studyApiPath(studyId, `/taxa?${query}`), signal),
     select: (page) => page.total,
   });
 }
 
 /** GET /api/studies/:studyId/exports/template.csv: the study's import template (a plain download link). */
-export const templateCsvUrl = (studyId: string) => `/api/studies/${encodeURIComponent(studyId)}/exports/template.csv`;

@@ -2,20 +2,11 @@
 import { keepPreviousData, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
 import type { DecisionRevertInput, RevertResult } from "@shared/schemas/decisions";
 import type { TaxaBulkEditInput, TaxaBulkResult, TaxaIds, TaxaPage, TaxonHistory, TaxonRow, TaxonSaved, TaxonUpdateInput } from "@shared/schemas/taxa";
-import type { TraitList } from "@shared/schemas/traits";
 import type { EXPORT_FORMS } from "@shared/schemas/exports";
 import { api } from "../../lib/api";
 import { queryKeys } from "../../lib/queryKeys";
+import { studyApiPath } from "../../lib/queries/paths";
 
-const studyPath = (studyId: string) => `/studies/${encodeURIComponent(studyId)}`;
-
-/** GET /api/studies/:studyId/traits: the codebook gives the grid its trait columns. */
-export function useTraits(studyId: string) {
-  return useQuery({
-    queryKey: queryKeys.traits.list(studyId),
-    queryFn: ({ signal }) => api.get<TraitList>(`${studyPath(studyId)}/traits`, signal),
-  });
-}
 
 /**
  * GET /api/studies/:studyId/taxa?page&pageSize&sort&dir&filter&missing&hasOpenThread: one page of
@@ -24,7 +15,7 @@ export function useTraits(studyId: string) {
 export function useTaxaPage(studyId: string, query: string) {
   return useQuery({
     queryKey: queryKeys.taxa.page(studyId, query),
-    queryFn: ({ signal }) => api.get<TaxaPage>(`${studyPath(studyId)}/taxa?${query}`, signal),
+    queryFn: ({ signal }) => api.get<TaxaPage>(`${studyApiPath(studyId)}/taxa?${query}`, signal),
     placeholderData: keepPreviousData,
   });
 }
@@ -32,7 +23,7 @@ export function useTaxaPage(studyId: string, query: string) {
 /** GET /api/studies/:studyId/taxa/ids?sort&dir&filter&missing&hasOpenThread: every matching taxon, to select them all. */
 export function useMatchingTaxonIds(studyId: string) {
   return useMutation({
-    mutationFn: (matchingQuery: string) => api.get<TaxaIds>(`${studyPath(studyId)}/taxa/ids?${matchingQuery}`),
+    mutationFn: (matchingQuery: string) => api.get<TaxaIds>(`${studyApiPath(studyId)}/taxa/ids?${matchingQuery}`),
   });
 }
 
@@ -58,7 +49,7 @@ export function useUpdateTaxon(studyId: string) {
   const replaceRow = useReplaceRow(studyId);
   return useMutation({
     mutationFn: ({ taxonId, input }: { taxonId: string; input: TaxonUpdateInput }) =>
-      api.patch<TaxonSaved>(`${studyPath(studyId)}/taxa/${encodeURIComponent(taxonId)}`, input),
+      api.patch<TaxonSaved>(`${studyApiPath(studyId)}/taxa/${encodeURIComponent(taxonId)}`, input),
     onSuccess: (saved) => {
       replaceRow(saved.taxon);
       return Promise.all([
@@ -75,7 +66,7 @@ export function useUpdateTaxon(studyId: string) {
 export function useBulkEditTaxa(studyId: string) {
   const queryClient = useQueryClient();
   return useMutation({
-    mutationFn: (input: TaxaBulkEditInput) => api.post<TaxaBulkResult>(`${studyPath(studyId)}/taxa/bulk`, input),
+    mutationFn: (input: TaxaBulkEditInput) => api.post<TaxaBulkResult>(`${studyApiPath(studyId)}/taxa/bulk`, input),
     onSuccess: () =>
       Promise.all([
         queryClient.invalidateQueries({ queryKey: queryKeys.taxa.all(studyId) }),
@@ -94,7 +85,7 @@ export function useTaxonHistory(studyId: string, taxonId: string, cell: HistoryC
   const param = cellParam(cell);
   return useQuery({
     queryKey: queryKeys.taxa.history(studyId, taxonId, param),
-    queryFn: ({ signal }) => api.get<TaxonHistory>(`${studyPath(studyId)}/taxa/${encodeURIComponent(taxonId)}/history?${param}`, signal),
+    queryFn: ({ signal }) => api.get<TaxonHistory>(`${studyApiPath(studyId)}/taxa/${encodeURIComponent(taxonId)}/history?${param}`, signal),
   });
 }
 
@@ -103,7 +94,7 @@ export function useRevertDecision(studyId: string) {
   const queryClient = useQueryClient();
   return useMutation({
     mutationFn: ({ decisionId, input }: { decisionId: string; input: DecisionRevertInput }) =>
-      api.post<RevertResult>(`${studyPath(studyId)}/decisions/${encodeURIComponent(decisionId)}/revert`, input),
+      api.post<RevertResult>(`${studyApiPath(studyId)}/decisions/${encodeURIComponent(decisionId)}/revert`, input),
     onSuccess: () =>
       Promise.all([
         queryClient.invalidateQueries({ queryKey: queryKeys.taxa.all(studyId) }),
@@ -114,7 +105,6 @@ export function useRevertDecision(studyId: string) {
 
 /** GET /api/studies/:studyId/exports/taxa.csv?form&includeRetired: the table as a file (a plain download link). */
 export const taxaCsvUrl = (studyId: string, form: (typeof EXPORT_FORMS)[number], includeRetired: boolean) =>
-  `/api${studyPath(studyId)}/exports/taxa.csv?form=${form}&includeRetired=${includeRetired}`;
+  `/api${studyApiPath(studyId)}/exports/taxa.csv?form=${form}&includeRetired=${includeRetired}`;
 
 /** GET /api/studies/:studyId/exports/codebook.csv: the companion file of an export. */
-export const codebookCsvUrl = (studyId: string) => `/api${studyPath(studyId)}/exports/codebook.csv`;
