@@ -25,6 +25,7 @@ import { traitsRouter } from "./routes/traits";
 import { taxaRouter } from "./routes/taxa";
 import { decisionsRouter } from "./routes/decisions";
 import { importsRouter } from "./routes/imports";
+import { occurrencesRouter } from "./routes/occurrences";
 import { exportsRouter } from "./routes/exports";
 import { modernListsRouter } from "./routes/modernLists";
 import { comparisonsRouter } from "./routes/comparisons";
@@ -38,7 +39,7 @@ export interface BuiltApp {
   routes: RegisteredRoute[];
 }
 
-const RESOURCE_ROUTERS = [healthRouter, authRouter, studiesRouter, membersRouter, invitationsRouter, outboxRouter, timescaleRouter, outcomesRouter, overridesRouter, ratesRouter, runsRouter, traitsRouter, taxaRouter, decisionsRouter, importsRouter, exportsRouter, threadsRouter, notificationsRouter, activityRouter, modernListsRouter, comparisonsRouter];
+const RESOURCE_ROUTERS = [healthRouter, authRouter, studiesRouter, membersRouter, invitationsRouter, outboxRouter, timescaleRouter, outcomesRouter, overridesRouter, ratesRouter, runsRouter, traitsRouter, taxaRouter, decisionsRouter, importsRouter, occurrencesRouter, exportsRouter, threadsRouter, notificationsRouter, activityRouter, modernListsRouter, comparisonsRouter];
 
 export function buildOpenApi(registry: OpenAPIRegistry) {
   registry.registerComponent("securitySchemes", "session", { type: "apiKey", in: "cookie", name: "ss_session" });

@@ -15,6 +15,7 @@ import { createTaxonService } from "./taxa";
 import { createTaxaGrid } from "./taxaGrid";
 import { createDecisionService } from "./decisions";
 import { createImportService } from "./imports";
+import { createOccurrenceService } from "./occurrences";
 import { createExportService } from "./exports";
 import { createModernListService } from "./modernLists";
 import { createComparisonService } from "./comparisons";
@@ -52,6 +53,7 @@ export function createServices(db: Database, mailer: Mailer, appUrl: string, run
     taxaGrid,
     decisions: createDecisionService(db),
     imports: createImportService(db),
+    occurrences: createOccurrenceService(db),
     exports: createExportService(db),
     modernLists: createModernListService(db),
     comparisons: createComparisonService(db),

@@ -11,6 +11,8 @@ export interface RateContrast extends BackgroundContrast {
   value: number | null;
   /** |z| >= DEPARTURE_Z; null when z is null. */
   departs: boolean | null;
+  /** Why z is null, in words (null when there is a z). */
+  reason: string | null;
 }
 
 export interface CrisisTurnover {
@@ -22,19 +24,21 @@ export interface CrisisTurnover {
   sentence: string;
 }
 
-function contrastOf(values: Array<number | null>, index: number): RateContrast {
-  const contrast = backgroundContrast(values, index);
-  const value = values[index] ?? null;
-  return { ...contrast, value: value !== null && Number.isFinite(value) ? value : null, departs: contrast.z === null ? null : Math.abs(contrast.z) >= DEPARTURE_Z };
-}
-
-const zWords = (z: number) => `z = ${z.toFixed(1)}`;
-
-function whyNoZ(c: RateContrast): string {
-  if (c.value === null) return "its rate is undefined in this stage";
+function whyNoZ(c: BackgroundContrast, value: number | null): string {
+  if (value === null) return "its rate is undefined in this stage";
   if (c.n < 5) return `only ${c.n} other stage${c.n === 1 ? " has" : "s have"} a rate (5 are needed)`;
   return "the other stages' rates do not vary (their MAD is 0)";
 }
+
+function contrastOf(values: Array<number | null>, index: number): RateContrast {
+  const contrast = backgroundContrast(values, index);
+  const own = values[index] ?? null;
+  const value = own !== null && Number.isFinite(own) ? own : null;
+  const noZ = contrast.z === null;
+  return { ...contrast, value, departs: noZ ? null : Math.abs(contrast.z!) >= DEPARTURE_Z, reason: noZ ? whyNoZ(contrast, value) : null };
+}
+
+const zWords = (z: number) => `z = ${z.toFixed(1)}`;
 
 /**
  * How far the crisis stage's per-capita extinction (q) and origination (p) rates stand out from the study's
@@ -60,7 +64,7 @@ export function crisisTurnover(stages: Array<{ q: number | null; p: number | nul
   else departing = "neither";
 
   const part = (name: string, c: RateContrast) => {
-    if (c.z === null) return `${name} cannot be compared with its background (${whyNoZ(c)})`;
+    if (c.z === null) return `${name} cannot be compared with its background (${c.reason})`;
     const direction = c.z > 0 ? "above" : "below";
     return c.departs
       ? `${name} departs from its background (${zWords(c.z)}, ${direction} the median of ${c.n} other stages)`

@@ -16,3 +16,4 @@ export * from "./notifications";
 export * from "./activity";
 export * from "./modernLists";
 export * from "./comparisons";
+export * from "./turnover";

@@ -26,8 +26,8 @@ const pageSizeSchema = z.coerce
  * A number given as a query parameter (a string in the URL); an empty parameter counts as not given.
  * `check` states the allowed values; `what` says them in words for the message.
  */
-const blankAsMissing = (v: unknown) => (typeof v === "string" && v.trim() === "" ? undefined : v);
-const numberParam = (field: string, what: string, check: (v: number) => boolean) =>
+export const blankAsMissing = (v: unknown) => (typeof v === "string" && v.trim() === "" ? undefined : v);
+export const numberParam = (field: string, what: string, check: (v: number) => boolean) =>
   z.preprocess(
     blankAsMissing,
     z.coerce
@@ -50,32 +50,40 @@ const reasonSchema = z
 
 // ---------------------------------------------------------------- GET outcomes
 
+/** The boundary and window of a query (outcomes, turnover): an age or a unit of the time scale, and a window in Myr. */
+export const boundaryQueryFields = {
+  boundary: numberParam("boundary", "an age in Ma (a number greater than 0)", (v) => v > 0).meta({ description: "Boundary age in Ma (a custom age); give this or boundaryUnit" }),
+  boundaryUnit: z
+    .preprocess(
+      blankAsMissing,
+      z
+        .string({ message: "boundaryUnit must name a unit of the time scale" })
+        .trim()
+        .refine((name) => findUnit(name) !== undefined, "boundaryUnit is not a unit of the time scale (e.g. Paleogene, Danian, Triassic)")
+        .optional(),
+    )
+    .meta({ description: 'A unit of the time scale whose base is the boundary, e.g. "Paleogene" for 66.0 Ma' }),
+  window: numberParam("window", "a duration in Myr (a number of 0 or more)", (v) => v >= 0).meta({ description: "Window below the boundary in Myr; default: the duration of the stage just below the boundary" }),
+};
+
+/** Exactly one of boundary and boundaryUnit. */
+export function requireOneBoundary(q: { boundary?: number; boundaryUnit?: string }, ctx: z.RefinementCtx): void {
+  if (q.boundary === undefined && q.boundaryUnit === undefined) {
+    ctx.addIssue({ code: "custom", path: ["boundary"], message: "Choose a boundary: give boundary (an age in Ma) or boundaryUnit (a unit of the time scale)" });
+  }
+  if (q.boundary !== undefined && q.boundaryUnit !== undefined) {
+    ctx.addIssue({ code: "custom", path: ["boundary"], message: "Give either boundary or boundaryUnit, not both" });
+  }
+}
+
 export const outcomesQuerySchema = z
   .object({
-    boundary: numberParam("boundary", "an age in Ma (a number greater than 0)", (v) => v > 0).meta({ description: "Boundary age in Ma (a custom age); give this or boundaryUnit" }),
-    boundaryUnit: z
-      .preprocess(
-        blankAsMissing,
-        z
-          .string({ message: "boundaryUnit must name a unit of the time scale" })
-          .trim()
-          .refine((name) => findUnit(name) !== undefined, "boundaryUnit is not a unit of the time scale (e.g. Paleogene, Danian, Triassic)")
-          .optional(),
-      )
-      .meta({ description: 'A unit of the time scale whose base is the boundary, e.g. "Paleogene" for 66.0 Ma' }),
-    window: numberParam("window", "a duration in Myr (a number of 0 or more)", (v) => v >= 0).meta({ description: "Window below the boundary in Myr; default: the duration of the stage just below the boundary" }),
+    ...boundaryQueryFields,
     group: z.preprocess(blankAsMissing, boundaryOutcomeSchema.optional()).meta({ description: "Return the list of this group only (for paging through it); default: the first page of each group" }),
     page: pageSchema,
     pageSize: pageSizeSchema,
   })
-  .superRefine((q, ctx) => {
-    if (q.boundary === undefined && q.boundaryUnit === undefined) {
-      ctx.addIssue({ code: "custom", path: ["boundary"], message: "Choose a boundary: give boundary (an age in Ma) or boundaryUnit (a unit of the time scale)" });
-    }
-    if (q.boundary !== undefined && q.boundaryUnit !== undefined) {
-      ctx.addIssue({ code: "custom", path: ["boundary"], message: "Give either boundary or boundaryUnit, not both" });
-    }
-  });
+  .superRefine(requireOneBoundary);
 export type OutcomesQuery = z.input<typeof outcomesQuerySchema>;
 
 export const OUTCOME_FLAGS = ["singleInterval", "lastSeenBelowBoundary", "missingRange", "invalidRange"] as const;

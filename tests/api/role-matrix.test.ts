@@ -148,6 +148,11 @@ const MATRIX: Record<string, Row> = {
   // Fresh studies from here on: the invitation rows above made the stranger a member of the shared one.
   "GET /api/studies/{studyId}/outcomes": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/outcomes?boundary=66`) },
   "GET /api/studies/{studyId}/rates": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/rates`) },
+  "GET /api/studies/{studyId}/turnover": {
+    allowed: MEMBERS,
+    freshStudy: true,
+    call: (a, { studyId }) => a.get(`/api/studies/${studyId}/turnover?boundaryUnit=Turonian&splitBy=higherTaxon`),
+  },
   "GET /api/studies/{studyId}/outcome-overrides": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/outcome-overrides`) },
   "POST /api/studies/{studyId}/outcome-overrides": {
     allowed: OUTCOME_EDITORS,
