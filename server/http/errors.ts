@@ -61,6 +61,34 @@ function isNulRefusal(err: unknown): boolean {
   return false;
 }
 
+/**
+ * A body that cannot be read as sent is the client's fault, never a 500: an unknown
+ * Content-Encoding or charset (415), data that does not match its Content-Encoding (zlib refuses
+ * it, 400), or a multipart body that breaks off or is malformed (multer passes busboy's error on
+ * after removing what it stored, marked by `storageErrors`).
+ */
+function unreadableBody(err: unknown): { status: number; code: string; message: string } | null {
+  const e = err as { type?: string; status?: number; code?: unknown; message?: string; storageErrors?: unknown; encoding?: string; charset?: string };
+  if (e.type === "encoding.unsupported") {
+    return { status: 415, code: "unsupported_content_encoding", message: `The request body's Content-Encoding${e.encoding ? ` "${e.encoding}"` : ""} is not supported: send it uncompressed, or compressed with gzip, deflate or br.` };
+  }
+  if (e.type === "charset.unsupported") {
+    return { status: 415, code: "unsupported_charset", message: `The request body's charset${e.charset ? ` "${e.charset}"` : ""} is not supported: send JSON as UTF-8.` };
+  }
+  if (e.status === 400 && typeof e.code === "string" && e.code.startsWith("Z_")) {
+    return { status: 400, code: "bad_content_encoding", message: "The request body does not match its Content-Encoding: it could not be decompressed." };
+  }
+  if (Array.isArray(e.storageErrors) && !(err instanceof multer.MulterError)) {
+    return { status: 400, code: "unreadable_upload", message: `The uploaded form could not be read (${e.message ?? "malformed"}); send the file again as multipart/form-data.` };
+  }
+  // Any other refusal of the body parser (http-errors marks those safe to show with `expose`).
+  const exposed = (err as { expose?: boolean }).expose === true;
+  if (exposed && typeof e.status === "number" && e.status >= 400 && e.status < 500) {
+    return { status: e.status, code: typeof e.type === "string" ? e.type.replace(/\W+/g, "_") : "unreadable_body", message: `The request body could not be read: ${e.message ?? "malformed"}.` };
+  }
+  return null;
+}
+
 export const errorHandler: ErrorRequestHandler = (err, _req, res, _next) => {
   void _next;
   if (err instanceof HttpError) {
@@ -85,6 +113,11 @@ export const errorHandler: ErrorRequestHandler = (err, _req, res, _next) => {
   }
   if ((err as { type?: string }).type === "entity.too.large") {
     res.status(413).json({ error: { code: "too_large", message: "The request body is too large." } });
+    return;
+  }
+  const unreadable = unreadableBody(err);
+  if (unreadable) {
+    res.status(unreadable.status).json({ error: { code: unreadable.code, message: unreadable.message } });
     return;
   }
   if (isNulRefusal(err)) {

@@ -7,6 +7,7 @@ import { mkdtempSync, readdirSync, rmSync } from "node:fs";
 import { request as httpRequest, type IncomingMessage } from "node:http";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
+import { gzipSync } from "node:zlib";
 import request from "supertest";
 import { PASSWORD, startTestServer, type TestApp } from "../support/server";
 import { studyWithCodebook, uploadCsv, type CodebookStudy } from "../support/traitTables";
@@ -176,5 +177,59 @@ describe("PATCH changes only the fields it names", () => {
     expect(res.status, JSON.stringify(res.body)).toBe(200);
     const me = await person.agent.get("/api/auth/me");
     expect(me.body.user).toMatchObject({ email: person.email, name: "Renamed stranger" });
+  });
+});
+
+describe("a body that cannot be read as sent gets a 4xx", () => {
+  const json = JSON.stringify({ name: "Invented encoding study" });
+
+  it("an unknown Content-Encoding gets 415 naming it", async () => {
+    const res = await cast.people.owner.agent.post("/api/studies").set("Content-Type", "application/json").set("Content-Encoding", "x-invented").send(json);
+    expect(res.status, JSON.stringify(res.body)).toBe(415);
+    expect(res.body.error.code).toBe("unsupported_content_encoding");
+    expect(res.body.error.message).toContain('"x-invented"');
+  });
+
+  it("a body that is not what its Content-Encoding says (plain JSON sent as gzip, deflate or br) gets 400", async () => {
+    for (const encoding of ["gzip", "deflate", "br"]) {
+      const res = await cast.people.owner.agent.post("/api/studies").set("Content-Type", "application/json").set("Content-Encoding", encoding).send(json);
+      expect(res.status, `${encoding}: ${JSON.stringify(res.body)}`).toBe(400);
+      expect(res.body.error.message, encoding).toMatch(/could not be (read|decompressed)/);
+    }
+  });
+
+  it("a correctly gzipped body is still read", async () => {
+    const body = gzipSync(json);
+    const cookie = await cookieOf(cast.people.owner);
+    const res = await new Promise<{ status: number; body: { name?: string } }>((resolve, reject) => {
+      const req = httpRequest(`${app.url}/api/studies`, { method: "POST", headers: { cookie, "content-type": "application/json", "content-encoding": "gzip", "content-length": String(body.length) } });
+      req.on("response", (r: IncomingMessage) => {
+        const chunks: Buffer[] = [];
+        r.on("data", (c: Buffer) => chunks.push(c));
+        r.on("end", () => resolve({ status: r.statusCode ?? 0, body: JSON.parse(Buffer.concat(chunks).toString("utf8")) }));
+      });
+      req.on("error", reject);
+      req.end(body);
+    });
+    expect(res.status, JSON.stringify(res.body)).toBe(201);
+    expect(res.body.name).toBe("Invented encoding study");
+  });
+
+  it("an unknown charset gets 415", async () => {
+    const res = await cast.people.owner.agent.post("/api/studies").set("Content-Type", "application/json; charset=x-invented").send(json);
+    expect(res.status, JSON.stringify(res.body)).toBe(415);
+    expect(res.body.error.code).toBe("unsupported_charset");
+  });
+
+  it("a multipart upload that breaks off in the middle gets 400 and leaves no file", async () => {
+    const before = filesInUploadDir();
+    const boundary = "----invented-boundary";
+    const res = await cast.people.coder.agent
+      .post(`/api/studies/${study.studyId}/imports`)
+      .set("Content-Type", `multipart/form-data; boundary=${boundary}`)
+      .send(`--${boundary}\r\nContent-Disposition: form-data; name="file"; filename="cut.csv"\r\nContent-Type: text/csv\r\n\r\nname\r\nAlphella`);
+    expect(res.status, JSON.stringify(res.body)).toBe(400);
+    expect(res.body.error.code).toBe("unreadable_upload");
+    expect(filesInUploadDir()).toBe(before);
   });
 });
