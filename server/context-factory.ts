@@ -19,7 +19,8 @@ export async function createContext(config: AppConfig): Promise<RunningContext> 
   let smtpUrl = config.smtpUrl;
   if (!smtpUrl) {
     if (config.environment === "production") throw new Error("SMTP_URL must be set in production.");
-    fakeSmtp = await startFakeSmtp(database.db);
+    // The console copy is how a person alone on their machine follows a link; tests stay quiet.
+    fakeSmtp = await startFakeSmtp(database.db, config.environment === "test" ? undefined : (lines) => console.info(lines));
     smtpUrl = `smtp://127.0.0.1:${fakeSmtp.port}`;
   }
   const mailer = createMailer(smtpUrl, config.mailFrom, fakeSmtp !== null);

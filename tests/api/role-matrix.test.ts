@@ -11,6 +11,7 @@ import { castOfRoles, EVERYONE, type Cast, type Who } from "./fixtures";
 import { codedImport, codedTaxon, codedTrait, uploadCsv } from "../support/traitTables";
 import { MATRIX_LIST_MAPPING, matrixComparison, matrixModernSetup, matrixModernUpload } from "../support/modernComparison";
 import { computeRunNow } from "../../server/services/runs";
+import { commitOccurrences, MATRIX_OCCURRENCES, uploadOccurrences } from "../support/occurrences";
 
 type Agent = Cast["anonymous"];
 interface Row {
@@ -300,6 +301,46 @@ const MATRIX: Record<string, Row> = {
     allowed: ["owner", "coder"],
     call: async (a, { studyId, cast }) => a.delete(`/api/studies/${studyId}/imports/${await codedImport(cast.people.owner.agent, studyId, false)}`),
   },
+  // Occurrences: uploads through the import steps, one taxon's finds, ranges derived from them, three-timer sampling.
+  "POST /api/studies/{studyId}/occurrence-uploads": { allowed: ["owner", "coder"], call: (a, { studyId }) => uploadOccurrences(a, studyId, MATRIX_OCCURRENCES) },
+  "GET /api/studies/{studyId}/occurrence-uploads": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/occurrence-uploads`) },
+  "GET /api/studies/{studyId}/occurrence-uploads/{uploadId}": {
+    allowed: MEMBERS,
+    call: async (a, { studyId, cast }) => a.get(`/api/studies/${studyId}/occurrence-uploads/${(await uploadOccurrences(cast.people.owner.agent, studyId, MATRIX_OCCURRENCES)).body.upload.id}`),
+  },
+  "POST /api/studies/{studyId}/occurrence-uploads/{uploadId}/preview": {
+    allowed: ["owner", "coder"],
+    call: async (a, { studyId, cast }) =>
+      a
+        .post(`/api/studies/${studyId}/occurrence-uploads/${(await uploadOccurrences(cast.people.owner.agent, studyId, MATRIX_OCCURRENCES)).body.upload.id}/preview`)
+        .send({ mapping: { taxon: "taxon", maxMa: "max_ma", minMa: "min_ma" } }),
+  },
+  "POST /api/studies/{studyId}/occurrence-uploads/{uploadId}/commit": {
+    allowed: ["owner", "coder"],
+    call: async (a, { studyId, cast }) =>
+      a
+        .post(`/api/studies/${studyId}/occurrence-uploads/${(await uploadOccurrences(cast.people.owner.agent, studyId, MATRIX_OCCURRENCES)).body.upload.id}/commit`)
+        .send({ mapping: { taxon: "taxon", maxMa: "max_ma", minMa: "min_ma" }, skipInvalid: false }),
+  },
+  "POST /api/studies/{studyId}/occurrence-uploads/{uploadId}/revert": {
+    allowed: ["owner", "coder"],
+    call: async (a, { studyId, cast }) => a.post(`/api/studies/${studyId}/occurrence-uploads/${(await commitOccurrences(cast.people.owner.agent, studyId, MATRIX_OCCURRENCES)).uploadId}/revert`).send({}),
+  },
+  "DELETE /api/studies/{studyId}/occurrence-uploads/{uploadId}": {
+    allowed: ["owner", "coder"],
+    call: async (a, { studyId, cast }) => a.delete(`/api/studies/${studyId}/occurrence-uploads/${(await uploadOccurrences(cast.people.owner.agent, studyId, MATRIX_OCCURRENCES)).body.upload.id}`),
+  },
+  "GET /api/studies/{studyId}/occurrences": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/occurrences?taxon=Matrixia`) },
+  "POST /api/studies/{studyId}/occurrences/ranges/preview": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.post(`/api/studies/${studyId}/occurrences/ranges/preview`).send({}) },
+  "POST /api/studies/{studyId}/occurrences/ranges/apply": {
+    allowed: ["owner", "coder"],
+    freshStudy: true,
+    call: async (a, { studyId, cast }) => {
+      await commitOccurrences(cast.people.owner.agent, studyId, MATRIX_OCCURRENCES);
+      return a.post(`/api/studies/${studyId}/occurrences/ranges/apply`).send({ taxa: ["Matrixia"] });
+    },
+  },
+  "GET /api/studies/{studyId}/occurrences/three-timer": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/occurrences/three-timer?boundaryMa=66`) },
   "GET /api/studies/{studyId}/exports/template.csv": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/exports/template.csv`) },
   "GET /api/studies/{studyId}/exports/taxa.csv": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/exports/taxa.csv?form=long`) },
   "GET /api/studies/{studyId}/exports/codebook.csv": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/exports/codebook.csv`) },

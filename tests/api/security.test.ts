@@ -119,7 +119,10 @@ describe("secrets never reach the log", () => {
   const db = new pg.Pool({ connectionString: process.env.DATABASE_URL, max: 1 });
 
   beforeAll(async () => {
-    proc = await startAppProcess({ SESSION_SECRET: sessionSecret });
+    // Mail goes to a relay, as in production (here the test's fake server, which keeps it in the
+    // shared outbox table). Without SMTP_URL, outside tests, the local fake prints every message's
+    // links on the console on purpose: see security-accounts.test.ts.
+    proc = await startAppProcess({ SESSION_SECRET: sessionSecret, SMTP_URL: `smtp://127.0.0.1:${app.ctx.fakeSmtp!.port}` });
   }, 60_000);
 
   afterAll(async () => {

@@ -36,11 +36,12 @@ export function InviteCard({ studyId, outboxAvailable }: { studyId: string; outb
           {outboxAvailable && (
             <>
               {" "}
-              This copy of Stratasieve keeps e-mail in the{" "}
+              This copy of Stratasieve has no mail server: the link is printed on the server&rsquo;s console, and the person it is for finds the
+              message in their own{" "}
               <Link to={paths.outbox} className={textLinkClasses}>
                 Outbox
-              </Link>
-              .
+              </Link>{" "}
+              if they already had an account here when it was sent.
             </>
           )}
         </Notice>

@@ -10,12 +10,8 @@ export function useInviteMember(studyId: string) {
   const queryClient = useQueryClient();
   return useMutation({
     mutationFn: (input: InvitationCreateInput) => api.post<{ id: string }>(`${studyApiPath(studyId)}/invitations`, input),
-    onSuccess: () =>
-      Promise.all([
-        queryClient.invalidateQueries({ queryKey: queryKeys.studies.members(studyId) }),
-        // The invitation mail lands in the local outbox.
-        queryClient.invalidateQueries({ queryKey: queryKeys.outbox }),
-      ]),
+    // The mail goes to the invited person's own outbox, never the lead's: only the list changes here.
+    onSuccess: () => queryClient.invalidateQueries({ queryKey: queryKeys.studies.members(studyId) }),
   });
 }
 

@@ -10,7 +10,7 @@ import { useDocumentTitle } from "../../lib/useDocumentTitle";
 import { useOutbox } from "./api";
 import { LinkifiedText } from "./LinkifiedText";
 
-/** The local fake mailbox: every e-mail this copy of Stratasieve sent, caught before delivery. */
+/** The local fake mailbox: the e-mail this copy of Stratasieve sent to the signed-in person, caught before delivery. */
 export function OutboxPage() {
   useDocumentTitle("Outbox");
   const outbox = useOutbox();
@@ -21,8 +21,10 @@ export function OutboxPage() {
         title="Outbox"
         description={
           <>
-            This copy of Stratasieve runs without a real mail server. Every e-mail it sends (invitations, password resets) is caught by a
-            local fake mailbox and listed here instead of being delivered. A production installation has no outbox.
+            This copy of Stratasieve runs without a real mail server. The e-mail it sends to your address (invitations, mentions, password
+            resets) since you created your account is caught by a local fake mailbox and listed here instead of being delivered. Nobody
+            else sees it here; the server&rsquo;s console prints every message&rsquo;s links for whoever runs it. A production installation
+            has no outbox.
           </>
         }
         actions={
@@ -40,7 +42,10 @@ export function OutboxPage() {
         />
       )}
       {outbox.isSuccess && outbox.data.length === 0 && (
-        <EmptyState title="No e-mail yet" description="Invite someone to a study or ask for a password reset, and the message appears here." />
+        <EmptyState
+          title="No e-mail for you yet"
+          description="Messages to your address appear here: an invitation to a study, a mention in a thread, a notice about your account."
+        />
       )}
       {outbox.isSuccess && outbox.data.length > 0 && (
         <>
