@@ -10,6 +10,7 @@ export function invitationsRouter(ctx: AppContext, registry: OpenAPIRegistry): A
   api.add({
     method: "get",
     path: "/invitations/:token",
+    operationId: "getInvitation",
     summary: "What an invitation offers, before accepting it",
     tags: ["members"],
     access: "public",
@@ -21,12 +22,13 @@ export function invitationsRouter(ctx: AppContext, registry: OpenAPIRegistry): A
   api.add({
     method: "post",
     path: "/invitations/:token/accept",
-    summary: "Accept an invitation as the signed-in account",
+    operationId: "acceptInvitation",
+    summary: "Accept an invitation as the signed-in account (403 unless the account's e-mail is the invited one)",
     tags: ["members"],
     access: "user",
     params: invitationTokenParamsSchema,
     response: { status: 200, schema: invitationAcceptedSchema },
-    handler: ({ params, user }) => invitations.accept(params.token, user!.id),
+    handler: ({ params, user }) => invitations.accept(params.token, { id: user!.id, email: user!.email }),
   });
 
   return api;

@@ -54,13 +54,27 @@ export function createInvitationService(db: Database, mailer: Mailer, appUrl: st
       };
     },
 
-    /** Adds the membership (or raises an existing one to the invited role) and spends the token. */
-    async accept(token: string, userId: string): Promise<{ studyId: string; role: StudyRole }> {
+    /**
+     * Adds the membership (or keeps an existing one) and spends the token, for the account the
+     * invitation was sent to only: a link forwarded or read by someone else is refused untouched.
+     */
+    async accept(token: string, account: { id: string; email: string }): Promise<{ studyId: string; role: StudyRole }> {
+      const userId = account.id;
       return db.transaction(async (tx) => {
+        const live = and(eq(invitations.tokenHash, hashToken(token)), isNull(invitations.acceptedAt), gt(invitations.expiresAt, new Date()));
+        const [pending] = await tx.select().from(invitations).where(live).for("update");
+        if (!pending) throw invalid();
+        if (pending.email.toLowerCase() !== account.email.toLowerCase()) {
+          throw new HttpError(
+            403,
+            "invitation_for_another_address",
+            `This invitation is for ${pending.email}, and you are signed in as ${account.email}. Sign in with ${pending.email} (or create an account with it) to accept it.`,
+          );
+        }
         const [invitation] = await tx
           .update(invitations)
           .set({ acceptedAt: new Date(), acceptedBy: userId })
-          .where(and(eq(invitations.tokenHash, hashToken(token)), isNull(invitations.acceptedAt), gt(invitations.expiresAt, new Date())))
+          .where(and(eq(invitations.id, pending.id), live))
           .returning();
         if (!invitation) throw invalid();
         const existing = await tx.query.memberships.findFirst({

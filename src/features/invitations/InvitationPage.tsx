@@ -89,25 +89,29 @@ function AcceptInvitation({ token, invitation, me }: { token: string; invitation
         Signed in as <strong className="font-medium text-stone-900">{me.user.name}</strong> ({me.user.email}).
       </p>
       {otherAddress && (
-        <Notice className="mt-4">
-          This invitation was sent to {invitation.email}. Accepting adds the account you are signed in with, {me.user.email}, to the study.
+        // The server accepts an invitation only from the account it was sent to.
+        <Notice className="mt-4" title="This invitation is for another address">
+          It was sent to <strong className="font-semibold">{invitation.email}</strong>; you are signed in as {me.user.email}. Sign out from
+          the Account menu, then open this link again and sign in (or create an account) with {invitation.email}.
         </Notice>
       )}
       <FormError message={accept.error ? errorMessage(accept.error) : null} className="mt-4" />
-      <Button
-        className="mt-5 w-full"
-        busy={accept.isPending}
-        onClick={() =>
-          accept.mutate(undefined, {
-            onSuccess: (result) => {
-              toast.show(`You joined “${invitation.studyName}” as ${ROLE_LABELS[result.role]}.`);
-              navigate(paths.study(result.studyId), { replace: true });
-            },
-          })
-        }
-      >
-        Accept and open the study
-      </Button>
+      {!otherAddress && (
+        <Button
+          className="mt-5 w-full"
+          busy={accept.isPending}
+          onClick={() =>
+            accept.mutate(undefined, {
+              onSuccess: (result) => {
+                toast.show(`You joined “${invitation.studyName}” as ${ROLE_LABELS[result.role]}.`);
+                navigate(paths.study(result.studyId), { replace: true });
+              },
+            })
+          }
+        >
+          Accept and open the study
+        </Button>
+      )}
     </div>
   );
 }
