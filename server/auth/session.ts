@@ -1,4 +1,4 @@
-import { SignJWT, jwtVerify } from "jose";
+import { SignJWT, errors as joseErrors, jwtVerify } from "jose";
 import type { CookieOptions, NextFunction, Request, RequestHandler, Response } from "express";
 import type { AppContext } from "../context";
 import type { SessionUser } from "../http/route";
@@ -39,9 +39,12 @@ export function clearSessionCookie(ctx: AppContext, res: Response): void {
 /**
  * Reads the session cookie: a valid signature is not enough, the session row must still be
  * live, so sign-out and password changes take effect at once in every app process.
+ * Every API answer it runs before is marked `Cache-Control: no-store`: nearly all of them depend
+ * on who is signed in, and no browser or proxy cache may hand one person's answer to another.
  */
 export function loadSession(ctx: AppContext): RequestHandler {
   return async (req: Request, res: Response, next: NextFunction) => {
+    res.set("Cache-Control", "no-store");
     const token = (req.cookies as Record<string, string> | undefined)?.[SESSION_COOKIE];
     // The health check answers for the database itself, signed in or not.
     if (!token || req.path === "/health") return next();
@@ -54,9 +57,10 @@ export function loadSession(ctx: AppContext): RequestHandler {
       else clearSessionCookie(ctx, res);
       next();
     } catch (err) {
-      const name = (err as { code?: string }).code ?? "";
-      if (name.startsWith("ERR_JW")) {
-        clearSessionCookie(ctx, res); // expired or forged: treat as signed out
+      // Expired, forged, garbled or signed with another algorithm (alg "none", RS256...): every
+      // refusal by jose means no session, and the cookie is cleared so the browser stops sending it.
+      if (err instanceof joseErrors.JOSEError) {
+        clearSessionCookie(ctx, res);
         return next();
       }
       next(err);
