@@ -3,18 +3,41 @@ import { HttpError } from "./errors";
 
 const SAFE_METHODS = new Set(["GET", "HEAD", "OPTIONS"]);
 
+/** Host names that only this machine can be reached by: no outside page can make a browser send them. */
+const LOOPBACK_HOSTNAMES = new Set(["localhost", "127.0.0.1", "[::1]"]);
+
+function hostnameOf(host: string): string {
+  try {
+    return new URL(`http://${host}`).hostname;
+  } catch {
+    return "";
+  }
+}
+
 /**
- * Refuses state-changing requests sent from another site: a browser names the page's origin in
- * the Origin header, which must be the app's own (APP_URL or the host the request came to).
+ * Guards the API against other sites, with APP_URL as the app's only public name:
+ * - a request naming another Host is refused (421), so a name an attacker points at this server
+ *   (DNS rebinding) cannot read or change anything; loopback names stay allowed, since no page
+ *   elsewhere can make a browser send them (the app opened as localhost, a proxy on the machine);
+ * - a state-changing request must come from APP_URL's origin (the Origin header), or from the
+ *   loopback origin it was sent to.
+ * The health check answers whatever the Host, for load balancers that call it by address.
  */
 export function sameOriginOnly(appUrl: string, extraOrigins: string[] = []): RequestHandler {
-  const allowed = new Set([new URL(appUrl).origin, ...extraOrigins]);
+  const app = new URL(appUrl);
+  const allowedOrigins = new Set([app.origin, ...extraOrigins]);
+  const allowedHosts = new Set([app.host, ...extraOrigins.map((o) => new URL(o).host)]);
   return (req, _res, next) => {
+    const host = req.host ?? ""; // the Host header, or X-Forwarded-Host when the proxy is trusted
+    const loopback = LOOPBACK_HOSTNAMES.has(hostnameOf(host));
+    if (!allowedHosts.has(host) && !loopback && req.path !== "/health") {
+      return next(new HttpError(421, "unknown_host", `This server answers as ${app.host} only, not as ${host || "an unnamed host"}. Use the app at ${appUrl}.`));
+    }
     if (SAFE_METHODS.has(req.method)) return next();
     const origin = req.get("origin");
     const fetchSite = req.get("sec-fetch-site");
-    const ownOrigin = `${req.protocol}://${req.get("host")}`;
-    if (origin && origin !== ownOrigin && !allowed.has(origin)) {
+    const ownLoopbackOrigin = loopback && origin === `${req.protocol}://${host}`;
+    if (origin && !allowedOrigins.has(origin) && !ownLoopbackOrigin) {
       return next(new HttpError(403, "cross_origin", `Requests from ${origin} are not accepted; use the app at ${appUrl}.`));
     }
     if (!origin && fetchSite === "cross-site") {
