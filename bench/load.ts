@@ -63,6 +63,7 @@ async function startApp(databaseUrl: string, uploadDir: string): Promise<{ url: 
       JOB_WORKERS: "0",
       LOGIN_LIMIT_PER_IP: "100000",
       LOGIN_LIMIT_PER_ACCOUNT: "100000",
+      SIGNUP_LIMIT_PER_IP: "100000",
     },
     stdio: ["ignore", "pipe", "pipe"],
   });

@@ -15,7 +15,14 @@ export interface AppConfig {
   sessionTtlSeconds: number;
   smtpUrl: string | null;
   mailFrom: string;
-  loginLimit: { windowMs: number; perIp: number; perAccount: number };
+  /**
+   * Sign-in, reset and password-change limits per window: `perIp` failed sign-ins per client
+   * address; `perAccount` free failed sign-ins per account before each answer waits `delayMs`,
+   * doubling (reset requests and password changes: a cap per account).
+   */
+  loginLimit: { windowMs: number; perIp: number; perAccount: number; delayMs?: number };
+  /** Sign-ups per window, per client address and per e-mail. */
+  signupLimit: { windowMs: number; perIp: number; perAddress: number };
   uploadDir: string;
   /** Whether this process takes jobs from the shared queue (JOB_WORKERS=0 makes a web-only process). */
   jobWorkers: boolean;
@@ -59,6 +66,12 @@ export function loadConfig(overrides: Partial<AppConfig> = {}): AppConfig {
       windowMs: 15 * 60 * 1000,
       perIp: Number(env.LOGIN_LIMIT_PER_IP ?? 50),
       perAccount: Number(env.LOGIN_LIMIT_PER_ACCOUNT ?? 10),
+      delayMs: 1000,
+    },
+    signupLimit: {
+      windowMs: 60 * 60 * 1000,
+      perIp: Number(env.SIGNUP_LIMIT_PER_IP ?? 20),
+      perAddress: 5,
     },
     uploadDir: env.UPLOAD_DIR ?? join(DATA_DIR, "uploads"),
     jobWorkers: env.JOB_WORKERS !== "0",

@@ -27,6 +27,22 @@ export function passwordResetMail(args: { link: string }) {
   };
 }
 
+/** To the owner of an address someone tried to sign up with: nothing changed, here is the way in. */
+export function signupAttemptMail(args: { signInLink: string; resetLink: string }) {
+  return {
+    subject: "Someone tried to create a Stratasieve account with your address",
+    text: [
+      "Someone (perhaps you) tried to create a new Stratasieve account with this e-mail address, which already has one.",
+      "No new account was made and yours is unchanged.",
+      "",
+      `If it was you, sign in: ${args.signInLink}`,
+      `Forgot the password? Choose a new one: ${args.resetLink}`,
+      "",
+      "If it was not you, ignore this message.",
+    ].join("\n"),
+  };
+}
+
 /** One mention, sent at once to a member whose preference for the study is "immediate". */
 export function mentionMail(args: { author: string; studyName: string; threadTitle: string; targetLabel: string; excerpt: string; link: string; settingsLink: string }) {
   return {

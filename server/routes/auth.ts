@@ -6,6 +6,7 @@ import {
   passwordChangeSchema,
   passwordResetConfirmSchema,
   passwordResetRequestSchema,
+  signupAnswerSchema,
   signupSchema,
   userSchema,
 } from "../../shared/schemas/auth";
@@ -13,8 +14,8 @@ import { okSchema } from "../../shared/schemas/common";
 import type { AppContext } from "../context";
 import { ApiRouter } from "../http/route";
 import { clearSessionCookie, startSession } from "../auth/session";
-import { loginLimiters } from "../auth/loginLimiter";
-import { passwordResetMail } from "../mail/templates";
+import { loginLimiters, passwordChangeLimiters, resetLimiters, signupLimiters } from "../auth/loginLimiter";
+import { passwordResetMail, signupAttemptMail } from "../mail/templates";
 
 export function authRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRouter {
   const api = new ApiRouter(registry, ctx);
@@ -23,22 +24,29 @@ export function authRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
   api.add({
     method: "post",
     path: "/auth/signup",
-    summary: "Create an account and sign in",
+    summary: "Create an account and sign in; an e-mail that already has an account gets `check_mail` (no session) and its owner a notice",
     tags: ["auth"],
     access: "public",
+    before: signupLimiters(ctx),
     body: signupSchema,
-    response: { status: 201, schema: userSchema },
+    response: { status: 201, schema: signupAnswerSchema },
     async handler({ body, res }) {
       const user = await users.signup(body);
-      await startSession(ctx, res, user.id);
-      return user;
+      if (user) {
+        await startSession(ctx, res, user.id);
+        return user;
+      }
+      // Never "already exists": the owner of the address learns of the attempt by mail instead.
+      const mail = signupAttemptMail({ signInLink: `${ctx.config.appUrl}/sign-in`, resetLink: `${ctx.config.appUrl}/forgot-password` });
+      await ctx.mailer.send({ to: body.email, ...mail }).catch((err: unknown) => console.error("The sign-up notice could not be sent:", err));
+      return { status: "check_mail" as const, email: body.email };
     },
   });
 
   api.add({
     method: "post",
     path: "/auth/login",
-    summary: "Sign in (rate-limited per address and per account)",
+    summary: "Sign in (failures capped per client address; an account's failures slow its next answers down)",
     tags: ["auth"],
     access: "public",
     before: loginLimiters(ctx),
@@ -90,9 +98,10 @@ export function authRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
   api.add({
     method: "post",
     path: "/auth/password",
-    summary: "Change the password; ends every other session of the account",
+    summary: "Change the password; ends every other session of the account (failed tries rate-limited)",
     tags: ["auth"],
     access: "user",
+    before: passwordChangeLimiters(ctx),
     body: passwordChangeSchema,
     response: { status: 204 },
     async handler({ user, body }) {
@@ -106,7 +115,7 @@ export function authRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
     summary: "E-mail a one-time reset link (answers the same whether or not the account exists)",
     tags: ["auth"],
     access: "public",
-    before: loginLimiters(ctx, "reset"),
+    before: resetLimiters(ctx),
     body: passwordResetRequestSchema,
     response: { status: 202, schema: okSchema },
     async handler({ body }) {

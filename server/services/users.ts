@@ -2,7 +2,7 @@ import { and, eq, gt, isNull, ne } from "drizzle-orm";
 import type { Database } from "../db";
 import { passwordResets, sessions, users } from "../../db/schema/index";
 import type { SignupInput, User } from "../../shared/schemas/auth";
-import { conflict, HttpError, notFound, unauthorized } from "../http/errors";
+import { HttpError, notFound, unauthorized } from "../http/errors";
 import { dummyVerify, hashPassword, verifyPassword } from "../auth/password";
 import { hashToken, newToken } from "./tokens";
 
@@ -14,21 +14,18 @@ export function toUser(row: typeof users.$inferSelect): User {
 
 export function createUserService(db: Database) {
   return {
-    async signup(input: SignupInput): Promise<User> {
-      const existing = await db.query.users.findFirst({ where: eq(users.email, input.email) });
-      if (existing) {
-        throw conflict("An account with this e-mail already exists. Sign in, or reset the password if you forgot it.", {
-          email: "An account with this e-mail already exists",
-        });
-      }
+    /**
+     * Creates the account, or returns null when the e-mail already has one: the caller answers
+     * the same either way (the password is hashed either way too, so both take as long).
+     */
+    async signup(input: SignupInput): Promise<User | null> {
       const passwordHash = await hashPassword(input.password);
       const [row] = await db
         .insert(users)
         .values({ email: input.email, name: input.name, passwordHash })
         .onConflictDoNothing()
         .returning();
-      if (!row) throw conflict("An account with this e-mail already exists.", { email: "An account with this e-mail already exists" });
-      return toUser(row);
+      return row ? toUser(row) : null;
     },
 
     async authenticate(email: string, password: string): Promise<User> {

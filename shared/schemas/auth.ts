@@ -48,5 +48,19 @@ export const userSchema = z
   .meta({ id: "User" });
 export type User = z.infer<typeof userSchema>;
 
+/**
+ * The answer to a sign-up whose e-mail already has an account: no session, and a notice mailed to
+ * that address. Same status (201) as a new account, so the form cannot be used to ask whether an
+ * address is registered without being told to look in that address's mail.
+ */
+export const signupCheckMailSchema = z
+  .object({ status: z.literal("check_mail"), email: z.string() })
+  .meta({ id: "SignupCheckMail" });
+export type SignupCheckMail = z.infer<typeof signupCheckMailSchema>;
+
+/** A new address gets its account and a session at once (a User); a registered one, `check_mail`. */
+export const signupAnswerSchema = z.union([userSchema, signupCheckMailSchema]).meta({ id: "SignupAnswer" });
+export type SignupAnswer = z.infer<typeof signupAnswerSchema>;
+
 export const meSchema = z.object({ user: userSchema, environment: z.enum(["production", "development", "test"]) }).meta({ id: "Me" });
 export type Me = z.infer<typeof meSchema>;

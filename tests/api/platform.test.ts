@@ -56,17 +56,15 @@ describe("cross-origin requests", () => {
 });
 
 describe("sign-in rate limiting", () => {
-  it("limits attempts per account with 429 and Retry-After", async () => {
-    const limited = await createTestApp({ loginLimit: { windowMs: 60_000, perIp: 1000, perAccount: 3 } });
+  it("slows an account's sign-ins down after failed ones instead of locking it (details in security-accounts.test.ts)", async () => {
+    const limited = await createTestApp({ loginLimit: { windowMs: 60_000, perIp: 1000, perAccount: 3, delayMs: 50 } });
     try {
       const { email } = await signedInAgent(limited, "target");
-      for (let i = 0; i < 3; i++) {
+      for (let i = 0; i < 6; i++) {
         expect((await request(limited.app).post("/api/auth/login").send({ email, password: "wrong guess!" })).status).toBe(401);
       }
-      const blocked = await request(limited.app).post("/api/auth/login").send({ email, password: PASSWORD });
-      expect(blocked.status).toBe(429);
-      expect(Number(blocked.headers["retry-after"])).toBeGreaterThan(0);
-      expect(blocked.body.error.message).toMatch(/Too many sign-in attempts/);
+      const owner = await request(limited.app).post("/api/auth/login").send({ email, password: PASSWORD });
+      expect(owner.status).toBe(200);
     } finally {
       await limited.close();
     }

@@ -20,6 +20,7 @@ export async function createTestApp(overrides: Partial<AppConfig> = {}): Promise
   const config = loadConfig({
     appUrl: "http://127.0.0.1:5180",
     loginLimit: { windowMs: 15 * 60 * 1000, perIp: 100000, perAccount: 100000 },
+    signupLimit: { windowMs: 60 * 60 * 1000, perIp: 100000, perAddress: 100000 },
     ...overrides,
   });
   const ctx = await createContext(config);

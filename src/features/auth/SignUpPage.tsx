@@ -1,9 +1,9 @@
 import { useNavigate, useSearchParams } from "react-router-dom";
 import { PASSWORD_MIN_LENGTH, signupSchema } from "@shared/schemas/auth";
 import { Button } from "../../components/Button";
-import { FormError } from "../../components/Notice";
+import { FormError, Notice } from "../../components/Notice";
 import { PasswordField, TextField } from "../../components/TextField";
-import { TextLink } from "../../components/TextLink";
+import { TextLink, textLinkClasses } from "../../components/TextLink";
 import { useToast } from "../../components/Toast";
 import { formLevelMessage, useZodForm } from "../../lib/forms";
 import { paths, safeNextPath, withNext } from "../../lib/paths";
@@ -22,13 +22,36 @@ export function SignUpPage() {
 
   const submit = form.handleSubmit((input) => {
     signUp.mutate(input, {
-      onSuccess: (user) => {
-        toast.show(`Welcome to Stratasieve, ${user.name}.`);
+      onSuccess: (answer) => {
+        if ("status" in answer) return; // no session: the page turns to "check your e-mail"
+        toast.show(`Welcome to Stratasieve, ${answer.name}.`);
         navigate(next, { replace: true });
       },
       onError: form.showServerErrors,
     });
   });
+
+  if (signUp.isSuccess && "status" in signUp.data) {
+    return (
+      <>
+        <AuthHeading title="Check your e-mail" />
+        <Notice tone="success">
+          We sent a message to <strong className="font-semibold">{signUp.data.email}</strong> that tells you how to continue.
+        </Notice>
+        <p className="mt-6 text-[15px] text-stone-600">
+          Nothing arrived? Look in the spam folder, or{" "}
+          <button type="button" onClick={() => signUp.reset()} className={textLinkClasses}>
+            check the address and try again
+          </button>
+          .
+        </p>
+        <p className="mt-6 border-t border-stone-100 pt-5 text-center text-[15px] text-stone-600">
+          <TextLink to={withNext(paths.signIn, next, { email: signUp.data.email })}>Sign in</TextLink> or{" "}
+          <TextLink to={paths.forgotPassword}>reset your password</TextLink>
+        </p>
+      </>
+    );
+  }
 
   return (
     <>

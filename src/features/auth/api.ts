@@ -1,5 +1,5 @@
 import { useMutation, useQueryClient } from "@tanstack/react-query";
-import type { LoginInput, SignupInput, User } from "@shared/schemas/auth";
+import type { LoginInput, SignupAnswer, SignupInput, User } from "@shared/schemas/auth";
 import { api } from "../../lib/api";
 
 /**
@@ -20,12 +20,17 @@ export function useSignIn() {
   });
 }
 
-/** POST /api/auth/signup: creates the account and signs it in. */
+/**
+ * POST /api/auth/signup: a new address gets its account and a session (a User); an address that
+ * already has an account gets `{ status: "check_mail" }` and no session, its owner a notice by mail.
+ */
 export function useSignUp() {
   const forget = useForgetCachedData();
   return useMutation({
-    mutationFn: (input: SignupInput) => api.post<User>("/auth/signup", input),
-    onSuccess: forget,
+    mutationFn: (input: SignupInput) => api.post<SignupAnswer>("/auth/signup", input),
+    onSuccess: (answer) => {
+      if (!("status" in answer)) forget();
+    },
   });
 }
 
