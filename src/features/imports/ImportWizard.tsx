@@ -3,7 +3,7 @@ import type { ImportMapping, ImportPreview, ImportSummary, ImportUpload } from "
 import type { Trait } from "@shared/schemas/traits";
 import { ButtonLink, Button } from "../../components/Button";
 import { Card } from "../../components/Card";
-import { cx } from "../../components/focus";
+import { WizardSteps } from "../../components/WizardSteps";
 import { Notice } from "../../components/Notice";
 import { pluralize } from "../../lib/format";
 import { paths } from "../../lib/paths";
@@ -24,26 +24,6 @@ const STEPS = [
   { key: "done", label: "Commit" },
 ] as const;
 
-function StepList({ current }: { current: Stage["step"] }) {
-  const index = current === "upload" ? -1 : STEPS.findIndex((s) => s.key === current);
-  return (
-    <ol className="mb-6 flex flex-wrap gap-2 text-sm" aria-label="Steps of the import">
-      {STEPS.map((s, i) => (
-        <li
-          key={s.key}
-          aria-current={i === index ? "step" : undefined}
-          className={cx(
-            "flex items-center gap-2 rounded-full px-3 py-1 ring-1",
-            i === index ? "bg-accent-50 font-semibold text-accent-900 ring-accent-200" : i < index ? "text-stone-700 ring-stone-200" : "text-stone-500 ring-stone-200",
-          )}
-        >
-          <span className="tabular-nums">{i + 1}</span> {s.label}
-          {i < index && <span className="sr-only">(done)</span>}
-        </li>
-      ))}
-    </ol>
-  );
-}
 
 /** Upload, map, preview and commit one CSV file. */
 export function ImportWizard({ studyId, traits }: { studyId: string; traits: Trait[] }) {
@@ -59,7 +39,7 @@ export function ImportWizard({ studyId, traits }: { studyId: string; traits: Tra
 
   return (
     <Card title="Import a CSV file" description="Each row is a taxon: its name, higher taxon, range and trait values.">
-      <StepList current={stage.step} />
+      <WizardSteps label="Steps of the import" steps={STEPS} current={stage.step === "upload" ? -1 : STEPS.findIndex((s) => s.key === stage.step)} />
       {stage.step === "upload" && <UploadStep studyId={studyId} onUploaded={(upload) => setStage({ step: "map", upload })} />}
       {stage.step === "map" && (
         <MappingStep

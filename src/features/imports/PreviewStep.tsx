@@ -3,6 +3,7 @@ import { importCommitSchema, type ImportMapping, type ImportPreview, type Import
 import type { Trait } from "@shared/schemas/traits";
 import { Button } from "../../components/Button";
 import { cx } from "../../components/focus";
+import { ProblemTable } from "../../components/ProblemTable";
 import { FormError, Notice } from "../../components/Notice";
 import { TextField } from "../../components/TextField";
 import { ApiError, errorMessage } from "../../lib/api";
@@ -91,32 +92,7 @@ export function PreviewStep({ studyId, mapping, preview, traits, onBack, onCommi
       )}
 
       {problems.length > 0 ? (
-        <section aria-labelledby="import-problems">
-          <h3 id="import-problems" className="font-semibold text-red-800">
-            {pluralize(preview.problemCount, "problem")} in {pluralize(counts.invalid, "row")}
-          </h3>
-          {preview.problemCount > problems.length && <p className="text-sm text-stone-600">The first {formatCount(problems.length)} are listed.</p>}
-          <div className="mt-2 max-h-80 overflow-auto rounded-lg border border-red-200">
-            <table className="min-w-full text-left text-sm">
-              <thead className="sticky top-0 bg-red-50 text-red-900">
-                <tr>
-                  <th scope="col" className="px-3 py-2 font-semibold">Row</th>
-                  <th scope="col" className="px-3 py-2 font-semibold">Column</th>
-                  <th scope="col" className="px-3 py-2 font-semibold">Problem</th>
-                </tr>
-              </thead>
-              <tbody className="divide-y divide-red-100 bg-white">
-                {problems.map((p, i) => (
-                  <tr key={`${p.row}-${p.column}-${i}`} data-problem-row={p.row}>
-                    <td className="px-3 py-1.5 tabular-nums">{p.row}</td>
-                    <td className="px-3 py-1.5 font-medium">{p.column ?? "—"}</td>
-                    <td className="px-3 py-1.5 text-stone-800">{p.message}</td>
-                  </tr>
-                ))}
-              </tbody>
-            </table>
-          </div>
-        </section>
+        <ProblemTable problems={problems} problemCount={preview.problemCount} invalidRows={counts.invalid} />
       ) : (
         <Notice tone="success">Every row can be read: no problems found.</Notice>
       )}

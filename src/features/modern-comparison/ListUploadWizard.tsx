@@ -13,6 +13,8 @@ import {
 import { Button } from "../../components/Button";
 import { CsvFileField } from "../../components/CsvFileField";
 import { cx } from "../../components/focus";
+import { ProblemTable } from "../../components/ProblemTable";
+import { WizardSteps } from "../../components/WizardSteps";
 import { FormError, Notice } from "../../components/Notice";
 import { Select } from "../../components/Select";
 import { TextField } from "../../components/TextField";
@@ -51,20 +53,7 @@ export function ListUploadWizard({ studyId, onSaved, onCancel }: { studyId: stri
   const current = stage.step === "upload" ? -1 : stage.step === "map" ? 0 : 1;
   return (
     <div>
-      <ol className="mb-6 flex flex-wrap gap-2 text-sm" aria-label="Steps of the upload">
-        {STEPS.map((s, i) => (
-          <li
-            key={s.key}
-            aria-current={i === current ? "step" : undefined}
-            className={cx(
-              "flex items-center gap-2 rounded-full px-3 py-1 ring-1",
-              i === current ? "bg-accent-50 font-semibold text-accent-900 ring-accent-200" : i < current ? "text-stone-700 ring-stone-200" : "text-stone-500 ring-stone-200",
-            )}
-          >
-            <span className="tabular-nums">{i + 1}</span> {s.label}
-          </li>
-        ))}
-      </ol>
+      <WizardSteps label="Steps of the upload" steps={STEPS} current={current} />
       {stage.step === "upload" && <UploadStep studyId={studyId} onUploaded={(upload) => setStage({ step: "map", upload })} onCancel={onCancel} />}
       {stage.step === "map" && (
         <MapStep
@@ -287,34 +276,7 @@ function PreviewStep({ studyId, mapping, name, preview, onBack, onSaved }: Previ
         </ul>
         <p className="mt-1 text-xs text-stone-500">Categories as defined in {IUCN_SOURCE}.</p>
       </div>
-      {problems.length > 0 && (
-        <div>
-          <h3 className="text-sm font-semibold text-red-800">
-            {pluralize(preview.problemCount, "problem")} in {pluralize(counts.invalid, "row")}
-          </h3>
-          <div className="mt-2 max-h-72 overflow-auto rounded-lg border border-red-200">
-            <table className="min-w-full text-sm">
-              <caption className="sr-only">Problems by row and column</caption>
-              <thead className="sticky top-0 bg-red-50 text-left text-red-900">
-                <tr>
-                  <th scope="col" className="px-3 py-2 font-medium">Row</th>
-                  <th scope="col" className="px-3 py-2 font-medium">Column</th>
-                  <th scope="col" className="px-3 py-2 font-medium">Problem</th>
-                </tr>
-              </thead>
-              <tbody className="divide-y divide-red-100 bg-white">
-                {problems.map((p, i) => (
-                  <tr key={i}>
-                    <td className="px-3 py-1.5 tabular-nums">{p.row}</td>
-                    <td className="px-3 py-1.5 whitespace-nowrap">{p.column ?? "—"}</td>
-                    <td className="px-3 py-1.5">{p.message}</td>
-                  </tr>
-                ))}
-              </tbody>
-            </table>
-          </div>
-        </div>
-      )}
+      {problems.length > 0 && <ProblemTable problems={problems} problemCount={preview.problemCount} invalidRows={counts.invalid} />}
       {preview.sample.length > 0 && (
         <details className="rounded-lg border border-stone-200 px-4 py-2 text-sm">
           <summary className="cursor-pointer font-medium text-stone-800">The first {Math.min(preview.sample.length, 50)} species as they will be saved</summary>

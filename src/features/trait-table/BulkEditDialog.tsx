@@ -13,7 +13,7 @@ import { ApiError } from "../../lib/api";
 import { useBulkEditTaxa } from "./api";
 import { INTERVAL_LIST_ID } from "./CellEditor";
 import { decimalCommaProblem } from "./cellValues";
-import { ModalDialog } from "./ModalDialog";
+import { ModalDialog } from "../../components/ModalDialog";
 
 const CLEAR = "__clear__";
 const TAXON_FIELDS = [

@@ -5,7 +5,7 @@ import { Button } from "../../components/Button";
 import { TextField } from "../../components/TextField";
 import { formatDateTime } from "../../lib/format";
 import { isEmptyValue } from "./cellValues";
-import { ModalDialog } from "./ModalDialog";
+import { ModalDialog } from "../../components/ModalDialog";
 import { ValueText } from "./ValueText";
 
 const FIELD_LABELS: Record<string, string> = { name: "Name", higherTaxon: "Higher taxon", notes: "Notes", fad: "First appearance", lad: "Last appearance" };

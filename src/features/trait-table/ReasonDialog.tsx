@@ -3,7 +3,7 @@ import { requiredReasonSchema } from "@shared/schemas/taxa";
 import { Button } from "../../components/Button";
 import { FormError } from "../../components/Notice";
 import { TextField } from "../../components/TextField";
-import { ModalDialog } from "./ModalDialog";
+import { ModalDialog } from "../../components/ModalDialog";
 
 interface ReasonDialogProps {
   open: boolean;

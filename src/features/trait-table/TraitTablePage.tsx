@@ -25,7 +25,7 @@ import { gridColumns, type GridColumn } from "./cellValues";
 import { FilterBar } from "./FilterBar";
 import { addFilter, gridQueryString, initialGridQuery, matchingQueryString, PAGE_SIZES, type GridQuery } from "./gridQuery";
 import { HistoryPanel } from "./HistoryPanel";
-import { Popover } from "./Popover";
+import { Popover } from "../../components/Popover";
 import { TaxaGrid } from "./TaxaGrid";
 import { useCellEdits } from "./useCellEdits";
 

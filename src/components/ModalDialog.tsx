@@ -1,6 +1,6 @@
 import type { ReactNode } from "react";
-import { cx } from "../../components/focus";
-import { useModalDialog } from "../../components/useModalDialog";
+import { cx } from "./focus";
+import { useModalDialog } from "./useModalDialog";
 
 interface ModalDialogProps {
   open: boolean;
