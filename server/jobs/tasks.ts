@@ -1,6 +1,6 @@
 // Computations that run off the request thread. Each is a pure function of plain data (the
 // statistics never touch the database); `progress` reports a fraction in [0, 1] and a note.
-import { analyzeSelectivity } from "../../shared/selectivity/index";
+import { analyzeSelectivity, crisisComparison, type CrisisComparisonInput } from "../../shared/selectivity/index";
 import type { SelectivityTaskInput, SelectivityTaskOutput } from "../services/runs";
 
 export type ProgressReporter = (fraction: number, note?: string) => void;
@@ -27,4 +27,7 @@ export const WORKER_TASKS: Record<string, WorkerTask> = {
       return result;
     });
   },
+
+  /** Crisis against background over a run's boundaries (server/services/runChecks.ts). */
+  crisisComparison: (input: CrisisComparisonInput) => crisisComparison(input),
 };

@@ -4,6 +4,7 @@
 // injection by the shared CSV writer.
 import { csvRow } from "../../shared/csv/write";
 import { CORRECTION_LABELS, RUN_EXPORT_TABLES, type Run, type RunExportTable } from "../../shared/schemas/runs";
+import { CRISIS_COLUMNS, crisisRows } from "./runChecksExport";
 
 type Cell = string | number | boolean | null | undefined;
 type Record_ = Record<string, Cell>;
@@ -42,6 +43,7 @@ const COLUMNS: Record<RunExportTable, string[]> = {
   ],
   coefficients: [...BOUNDARY_COLUMNS, "term", "estimate", "se", "z", "p_value", "ci_low", "ci_high", "odds_ratio", "firth"],
   terms: [...BOUNDARY_COLUMNS, "term", "df", "chi_square", "p_value"],
+  crisis: CRISIS_COLUMNS,
 };
 
 function runRows(run: Run): Record_[] {
@@ -72,6 +74,7 @@ function runRows(run: Run): Record_[] {
     ["force_firth", p.forceFirth],
     ["level", p.level],
     ["confounding_threshold", p.confoundingThreshold],
+    ["crisis_boundary", p.crisisBoundary !== undefined ? (run.results?.boundaries[p.crisisBoundary]?.label ?? `boundary ${p.crisisBoundary + 1}`) : null],
     ...(run.results?.cautions ?? []).map((c): [string, Cell] => ["caution", c]),
   ];
   return rows.map(([field, value]) => ({ field, value }));
@@ -79,6 +82,7 @@ function runRows(run: Run): Record_[] {
 
 function tableRows(run: Run, table: RunExportTable): Record_[] {
   if (table === "run") return runRows(run);
+  if (table === "crisis") return crisisRows(run);
   const out: Record_[] = [];
   for (const b of run.results?.boundaries ?? []) {
     const where = { boundary_ma: b.boundaryMa, window_myr: b.windowMyr, boundary_label: b.label };

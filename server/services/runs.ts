@@ -29,6 +29,8 @@ import type { ClassifiedTaxon } from "./outcomes";
 import type { Trait } from "../../shared/schemas/traits";
 import { badRequest, conflict, HttpError, notFound } from "../http/errors";
 import type { JobQueue } from "../jobs/queue";
+import { crisisCheck, crisisComparison } from "./runChecks";
+import type { CrisisComparisonResult } from "../../shared/selectivity/index";
 import type { WorkerPool } from "../jobs/workerPool";
 
 /** The job kind every app process works. */
@@ -336,6 +338,7 @@ export async function computeRunNow(
   const read = await readStudyData(db, sources, studyId, params);
   const computed: SelectivityTaskOutput = read.boundaries.map((b) => analyzeSelectivity(analysisInput(read, b, params)));
   const results = runResults(read, computed);
+  results.crisisVersusBackground = await crisisCheck(read, params, crisisComparison);
   const at = options.at ?? new Date();
   return db.transaction(async (tx) => {
     const [row] = await tx
@@ -489,6 +492,8 @@ export function createRunService(db: Database, runtime: RunRuntime, sources: Run
         report(0.1 + 0.85 * fraction, note ?? "Testing selectivity"),
       );
       const results = runResults(read, computed);
+      report(0.95, "Testing crisis against background");
+      results.crisisVersusBackground = await crisisCheck(read, params, (input) => runtime.workers.run<CrisisComparisonResult>("crisisComparison", input, () => undefined));
       await writing;
       const [stored] = await db
         .update(runs)

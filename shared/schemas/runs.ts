@@ -5,6 +5,7 @@ import { z } from "zod";
 import type { SelectivityResult } from "../selectivity/types";
 import { exportQuerySchema, isoDateSchema, uuidSchema, personOrNoneSchema, type Same, cautionsSchema } from "./common";
 import { numericTransformSchema, traitKindSchema } from "./traits";
+import { crisisBoundaryParamSchema, runCrisisSchema } from "./runChecks";
 
 /** Most boundaries one run tests. */
 export const RUN_MAX_BOUNDARIES = 8;
@@ -101,8 +102,13 @@ export const runParamsSchema = z
       .max(1, "confoundingThreshold must be at most 1")
       .default(DEFAULT_CONFOUNDING_THRESHOLD)
       .meta({ description: "Relative change of an odds ratio on adjustment that flags possible confounding (0.1 = 10%)" }),
+    crisisBoundary: crisisBoundaryParamSchema,
   })
   .superRefine((p, ctx) => {
+    if (p.crisisBoundary !== undefined) {
+      if (p.boundaries.length < 2) ctx.addIssue({ code: "custom", path: ["crisisBoundary"], message: "Crisis against background needs at least two boundaries: add a background boundary or leave the crisis unset" });
+      else if (p.crisisBoundary >= p.boundaries.length) ctx.addIssue({ code: "custom", path: ["crisisBoundary"], message: `crisisBoundary must name one of the ${p.boundaries.length} boundaries (0 to ${p.boundaries.length - 1})` });
+    }
     const seenBoundary = new Map<string, number>();
     p.boundaries.forEach((b, i) => {
       const key = `${b.boundaryMa}|${b.windowMyr ?? "default"}`;
@@ -306,6 +312,7 @@ export const runResultsSchema = z
       .array(z.object({ traitId: z.uuid(), key: z.string(), label: z.string() }))
       .meta({ description: "The traits tested, as the codebook named them when the run read it" }),
     cautions: cautionsSchema,
+    crisisVersusBackground: runCrisisSchema.optional().meta({ description: "Crisis against background per trait, when the run names a crisis among several boundaries; absent in runs stored before this existed" }),
   })
   .meta({ id: "RunResults" });
 export type RunResults = z.infer<typeof runResultsSchema>;
@@ -414,13 +421,13 @@ export const runDiffQuerySchema = z.object({ against: uuidSchema.meta({ descript
 
 // ---------------------------------------------------------------- export
 
-export const RUN_EXPORT_TABLES = ["run", "design", "states", "tests", "contrasts", "coefficients", "terms"] as const;
+export const RUN_EXPORT_TABLES = ["run", "design", "states", "tests", "contrasts", "coefficients", "terms", "crisis"] as const;
 export type RunExportTable = (typeof RUN_EXPORT_TABLES)[number];
 
 export const runExportQuerySchema = exportQuerySchema(
   RUN_EXPORT_TABLES,
   "json",
-  "run: name, parameters, data hash and cautions as field and value; design, states: extinction proportions per trait state, tests, contrasts: odds ratios crude and adjusted, coefficients and terms of the multiple regression",
+  "run: name, parameters, data hash and cautions as field and value; design, states: extinction proportions per trait state, tests, contrasts: odds ratios crude and adjusted, coefficients and terms of the multiple regression; crisis: crisis against background per trait contrast (background, crisis and ratio of odds ratios, the adjusted likelihood-ratio test)",
 );
 export type RunExportQuery = z.input<typeof runExportQuerySchema>;
 

@@ -79,7 +79,7 @@ export async function seedDemoAnalyses(
   const sources: RunDataSources = { outcomes: createOutcomeService(db), traits: createTraitService(db) };
   // Every trait of the codebook with the screen's defaults: the most common state as reference, the codebook's transform.
   const traits = data.traits.map((t) => ({ traitId: input.traitIdByKey.get(t.key)! }));
-  const params = (name: string, boundaries: RunParams["boundaries"]): RunParams => runParamsSchema.parse({ name, boundaries, traits });
+  const params = (name: string, boundaries: RunParams["boundaries"], extra: Partial<RunParams> = {}): RunParams => runParamsSchema.parse({ name, boundaries, traits, ...extra });
 
   // The crisis with the default window (the Cenomanian, the stage below the boundary).
   const crisis = await computeRunNow(db, sources, studyId, analyst, params(DEMO_CRISIS_RUN_NAME, [{ boundaryMa: data.plantedEffects.boundary.ageMa }]), { at: at(6) });
@@ -91,6 +91,8 @@ export async function seedDemoAnalyses(
     params(
       DEMO_SWEEP_RUN_NAME,
       DEMO_SWEEP_STAGES.map((stage) => ({ boundaryMa: stageBase(stage) })),
+      // The base of the Turonian is the crisis; the other three boundaries are background.
+      { crisisBoundary: DEMO_SWEEP_STAGES.indexOf("Turonian") },
     ),
     { at: at(5) },
   );

@@ -31,6 +31,9 @@ export interface BoundariesCardProps {
   /** Messages from the run schema or the server, keyed like "boundaries.0.windowMyr". */
   errors: FieldErrors;
   onChange: (boundaries: DraftBoundary[]) => void;
+  /** The boundary named as the crisis, for crisis against background (two or more boundaries). */
+  crisisKey?: string;
+  onCrisisChange?: (key: string | undefined) => void;
 }
 
 /** Default window words: "the Maastrichtian, 6.1 Myr". */
@@ -40,7 +43,7 @@ function defaultWindowWords(scale: ScaleIndex, age: number): string {
 }
 
 /** The boundaries a run tests: one crisis, or a crisis beside background boundaries to set it against. */
-export function BoundariesCard({ timescale, scale, boundaries, errors, onChange }: BoundariesCardProps) {
+export function BoundariesCard({ timescale, scale, boundaries, errors, onChange, crisisKey, onCrisisChange }: BoundariesCardProps) {
   const full = boundaries.length >= RUN_MAX_BOUNDARIES;
   return (
     <Card
@@ -80,6 +83,9 @@ export function BoundariesCard({ timescale, scale, boundaries, errors, onChange 
         </ol>
       )}
       {errors.boundaries && <p className="mt-2 text-sm font-medium text-red-700">{errors.boundaries}</p>}
+      {onCrisisChange && boundaries.length > 1 && (
+        <CrisisChoice scale={scale} boundaries={boundaries} crisisKey={crisisKey} error={errors.crisisBoundary} onChange={onCrisisChange} />
+      )}
 
       {full ? (
         <p className="mt-5 text-sm text-stone-600">A run tests at most {RUN_MAX_BOUNDARIES} boundaries; remove one to add another.</p>
@@ -93,6 +99,45 @@ export function BoundariesCard({ timescale, scale, boundaries, errors, onChange 
         Boundary screen apply.
       </p>
     </Card>
+  );
+}
+
+/** Which boundary is the crisis: its selectivity is then tested against the others' (background). */
+function CrisisChoice({
+  scale,
+  boundaries,
+  crisisKey,
+  error,
+  onChange,
+}: {
+  scale: ScaleIndex;
+  boundaries: DraftBoundary[];
+  crisisKey?: string;
+  error?: string;
+  onChange: (key: string | undefined) => void;
+}) {
+  const chosen = boundaries.some((b) => b.key === crisisKey) ? crisisKey : undefined;
+  const option = "flex items-center gap-2 rounded-md px-2 py-1 text-[15px] text-stone-800 hover:bg-stone-50";
+  return (
+    <fieldset className="mt-5 rounded-lg border border-stone-200 px-4 py-3" data-testid="crisis-choice">
+      <legend className="px-1 text-sm font-semibold text-stone-900">Crisis against background</legend>
+      <p className="mb-2 text-sm text-stone-600">
+        Name the crisis to test, trait by trait, whether its selectivity differs from that at the other boundaries (an interaction in one logistic model; Jablonski 1986).
+      </p>
+      <div className="grid gap-1 sm:grid-cols-2">
+        <label className={option}>
+          <input type="radio" name="crisis-boundary" checked={chosen === undefined} onChange={() => onChange(undefined)} />
+          No crisis named (no such test)
+        </label>
+        {boundaries.map((b, i) => (
+          <label key={b.key} className={option}>
+            <input type="radio" name="crisis-boundary" checked={chosen === b.key} onChange={() => onChange(b.key)} />
+            {i + 1}. {boundaryName(scale, b)} is the crisis
+          </label>
+        ))}
+      </div>
+      {error && <p className="mt-2 text-sm font-medium text-red-700">{error}</p>}
+    </fieldset>
   );
 }
 

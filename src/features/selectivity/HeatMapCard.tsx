@@ -7,12 +7,25 @@ import { LogOddsHeatMap } from "./LogOddsHeatMap";
 import { boundaryColumns, heatRows, type BoundaryResult, type HeatMeasure } from "./resultRows";
 import { Body, ColHead, HeadRow, ResultTable, td, tdNum, thNum } from "./ResultTable";
 import { formatEstimate } from "./words";
+import { CRISIS_MARK } from "./CrisisCard";
 
 /** Traits by boundary: does a trait's odds ratio at the crisis stand out against the background intervals? */
-export function HeatMapCard({ boundaries, filePrefix, printable = false }: { boundaries: readonly BoundaryResult[]; filePrefix: string; printable?: boolean }) {
+export function HeatMapCard({
+  boundaries,
+  filePrefix,
+  printable = false,
+  differing,
+}: {
+  boundaries: readonly BoundaryResult[];
+  filePrefix: string;
+  printable?: boolean;
+  /** Trait keys whose crisis selectivity differs from background: their rows carry the crisis marker. */
+  differing?: ReadonlySet<string>;
+}) {
   const [measure, setMeasure] = useState<HeatMeasure>("crude");
   const name = useId();
-  const rows = heatRows(boundaries, measure);
+  const marked = (id: string) => differing !== undefined && [...differing].some((key) => id.startsWith(`${key}:`));
+  const rows = heatRows(boundaries, measure).map((row) => (marked(row.id) ? { ...row, label: `${CRISIS_MARK} ${row.label}` } : row));
   const columns = boundaryColumns(boundaries);
   const measureLabel = ESTIMATE_STYLE[measure].label.toLowerCase();
 
@@ -48,6 +61,7 @@ export function HeatMapCard({ boundaries, filePrefix, printable = false }: { bou
             <>
               Heat map of natural log odds ratios ({measureLabel}) against each trait’s reference state, one column per boundary. The colour scale is centred on 0
               (an odds ratio of 1) and symmetric; grey cells could not be estimated. Numbers in the cells are ln odds ratios.
+              {differing !== undefined && differing.size > 0 && ` ${CRISIS_MARK} marks traits whose selectivity at the crisis differs from background (crisis against background, adjusted test).`}
             </>
           }
           numbers={

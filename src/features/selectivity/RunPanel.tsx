@@ -27,6 +27,7 @@ const TABLE_LABEL: Record<(typeof RUN_EXPORT_TABLES)[number], string> = {
   contrasts: "Contrasts: odds ratios crude and adjusted",
   coefficients: "Regression coefficients",
   terms: "Regression likelihood ratio tests",
+  crisis: "Crisis against background",
 };
 
 export const reportPath = (studyId: string, runId: string) => `${paths.study(studyId)}/runs/${runId}/report`;

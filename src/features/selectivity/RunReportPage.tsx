@@ -12,6 +12,7 @@ import { useRun } from "../../lib/queries/runs";
 import { useStudy } from "../../lib/queries/study";
 import { BoundaryResults } from "./BoundaryResults";
 import { HeatMapCard } from "./HeatMapCard";
+import { CrisisCard, differingTraits } from "./CrisisCard";
 import { RunProgress } from "./RunProgress";
 import { RunCautions, runFilePrefix, RunParameters } from "./RunResultsView";
 
@@ -102,7 +103,8 @@ function ReportBody({ run }: { run: Run & { results: RunResults } }) {
         <RunCautions results={run.results} printable />
       </section>
 
-      {run.results.boundaries.length > 1 && <HeatMapCard boundaries={run.results.boundaries} filePrefix={prefix} printable />}
+      {run.results.boundaries.length > 1 && <HeatMapCard boundaries={run.results.boundaries} filePrefix={prefix} printable differing={differingTraits(run.results)} />}
+      <CrisisCard run={run} printable />
 
       {run.results.boundaries.map((boundary) => (
         <section key={`${boundary.boundaryMa}-${boundary.windowMyr}`} aria-label={boundary.label} className="space-y-4 break-before-page first-of-type:break-before-auto">

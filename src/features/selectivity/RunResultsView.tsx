@@ -6,6 +6,7 @@ import { formatMa, formatMyr } from "../../components/timescale/ages";
 import { formatCount, formatDateTime } from "../../lib/format";
 import { BoundaryResults } from "./BoundaryResults";
 import { HeatMapCard } from "./HeatMapCard";
+import { CrisisCard, differingTraits } from "./CrisisCard";
 import { boundaryColumns } from "./resultRows";
 import { CORRECTION_LABELS, fileSlug, formatWholePercent, levelWords } from "./words";
 
@@ -129,7 +130,8 @@ export function RunResultsView({ run }: { run: Run & { results: RunResults } }) 
   return (
     <div className="space-y-6" data-testid="run-results">
       <RunCautions results={results} />
-      {results.boundaries.length > 1 && <HeatMapCard boundaries={results.boundaries} filePrefix={prefix} />}
+      {results.boundaries.length > 1 && <HeatMapCard boundaries={results.boundaries} filePrefix={prefix} differing={differingTraits(results)} />}
+      <CrisisCard run={run} />
 
       {results.boundaries.length > 1 && (
         <div role="tablist" aria-label="Boundary shown" className="flex flex-wrap gap-1 border-b border-stone-200">

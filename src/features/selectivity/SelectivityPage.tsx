@@ -187,7 +187,15 @@ function Workspace({ study, codebook, timescale, scale, runId, openedRun, onOpen
               {initial.missingTraits > 0 && ` ${initial.missingTraits === 1 ? "One of its traits is" : `${initial.missingTraits} of its traits are`} no longer in the codebook and left out.`}
             </Notice>
           )}
-          <BoundariesCard timescale={timescale} scale={scale} boundaries={draft.boundaries} errors={errors} onChange={(boundaries) => setDraft({ ...draft, boundaries })} />
+          <BoundariesCard
+            timescale={timescale}
+            scale={scale}
+            boundaries={draft.boundaries}
+            errors={errors}
+            onChange={(boundaries) => setDraft({ ...draft, boundaries })}
+            crisisKey={draft.crisisKey}
+            onCrisisChange={(crisisKey) => setDraft({ ...draft, crisisKey })}
+          />
           <TraitsCard
             studyId={study.id}
             traits={inForce}

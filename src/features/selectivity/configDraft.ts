@@ -35,6 +35,8 @@ export interface Draft {
   forceFirth: boolean;
   level: number;
   confoundingThreshold: number;
+  /** Key of the boundary named as the crisis (crisis against background); undefined: none. */
+  crisisKey?: string;
 }
 
 let nextKey = 1;
@@ -86,7 +88,14 @@ export function paramsInput(scale: ScaleIndex | null, draft: Draft): RunParamsIn
     forceFirth: draft.forceFirth,
     level: draft.level,
     confoundingThreshold: draft.confoundingThreshold,
+    ...crisisParam(draft),
   };
+}
+
+/** The crisis as the run parameter: the index of the boundary marked as the crisis, while it is still chosen. */
+function crisisParam(draft: Draft): { crisisBoundary?: number } {
+  const index = draft.crisisKey === undefined ? -1 : draft.boundaries.findIndex((b) => b.key === draft.crisisKey);
+  return index >= 0 ? { crisisBoundary: index } : {};
 }
 
 export type DraftCheck = { ok: true; params: RunParams } | { ok: false; errors: FieldErrors };
@@ -102,10 +111,12 @@ export function checkDraft(scale: ScaleIndex | null, draft: Draft): DraftCheck {
 export function draftFromParams(params: RunParams, codebook: readonly Trait[]): { draft: Draft; missingTraits: number } {
   const live = new Set(codebook.filter((t) => !t.retired).map((t) => t.id));
   const traits = params.traits.filter((t) => live.has(t.traitId));
+  const boundaries = params.boundaries.map((b) => ({ key: boundaryKey(), boundaryMa: b.boundaryMa, windowMyr: b.windowMyr, label: b.label }));
   return {
     draft: {
       name: params.name,
-      boundaries: params.boundaries.map((b) => ({ key: boundaryKey(), boundaryMa: b.boundaryMa, windowMyr: b.windowMyr, label: b.label })),
+      boundaries,
+      crisisKey: params.crisisBoundary !== undefined ? boundaries[params.crisisBoundary]?.key : undefined,
       traits: traits.map((t) => ({ traitId: t.traitId, reference: t.reference, transform: t.transform, standardise: t.standardise })),
       correction: params.correction,
       forceFirth: params.forceFirth,
