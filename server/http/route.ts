@@ -6,7 +6,7 @@ import { Router as ExpressRouter, type NextFunction, type Request, type RequestH
 import { z, type ZodType } from "zod";
 import type { StudyAction, StudyRole } from "../../shared/roles";
 import { can } from "../../shared/roles";
-import { apiErrorSchema } from "../../shared/schemas/common";
+import { apiErrorSchema, findLoneSurrogate, loneSurrogateMessage } from "../../shared/schemas/common";
 import { forbidden, HttpError, unauthorized, validationError } from "./errors";
 import type { AppContext } from "../context";
 
@@ -103,6 +103,8 @@ export class ApiRouter {
     const handler = async (req: Request, res: Response, next: NextFunction) => {
       try {
         const { params, user, role } = res.locals.routeAccess as RouteAccess;
+        refuseLoneSurrogates(req.query, "query");
+        refuseLoneSurrogates(req.body, "request body");
         const query = spec.query ? spec.query.safeParse(req.query) : { success: true as const, data: req.query };
         if (!query.success) throw validationError(query.error, "query");
         const body = spec.body ? spec.body.safeParse(req.body ?? {}) : { success: true as const, data: undefined };
@@ -155,6 +157,15 @@ export class ApiRouter {
       },
       responses: { [spec.response.status]: success, ...errors(errorCodes) },
     });
+  }
+}
+
+/** Text with a lone UTF-16 surrogate anywhere in the input is refused here, for every route (400 naming the field). */
+function refuseLoneSurrogates(input: unknown, where: string): void {
+  const found = findLoneSurrogate(input);
+  if (found) {
+    const message = loneSurrogateMessage(found.path === "_" ? "The text" : found.path, found.codePoint);
+    throw new HttpError(400, "validation_failed", `Invalid ${where}: ${message}`, { [found.path]: message });
   }
 }
 

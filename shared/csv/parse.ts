@@ -46,16 +46,56 @@ export function decodeCsvBytes(bytes: Uint8Array): DecodedText {
     return { text: new TextDecoder("utf-8").decode(bytes.subarray(3)), encoding: "utf-8", hadBom: true };
   }
   if (bytes.length >= 2 && bytes[0] === 0xff && bytes[1] === 0xfe) {
-    return { text: new TextDecoder("utf-16le").decode(bytes.subarray(2)), encoding: "utf-16le", hadBom: true };
+    return { text: decodeUtf16(bytes.subarray(2), true), encoding: "utf-16le", hadBom: true };
   }
   if (bytes.length >= 2 && bytes[0] === 0xfe && bytes[1] === 0xff) {
-    return { text: new TextDecoder("utf-16be").decode(bytes.subarray(2)), encoding: "utf-16be", hadBom: true };
+    return { text: decodeUtf16(bytes.subarray(2), false), encoding: "utf-16be", hadBom: true };
   }
   try {
     return { text: new TextDecoder("utf-8", { fatal: true }).decode(bytes), encoding: "utf-8", hadBom: false };
   } catch {
+    const withSurrogates = decodeUtf8KeepingSurrogates(bytes);
+    if (withSurrogates !== null) return { text: withSurrogates, encoding: "utf-8", hadBom: false };
     return { text: new TextDecoder("windows-1252").decode(bytes), encoding: "windows-1252", hadBom: false };
   }
+}
+
+/**
+ * UTF-16 code units as they are, lone surrogates included: TextDecoder would silently turn those
+ * into U+FFFD, and the row checks refuse them by row and column instead. A last odd byte is U+FFFD.
+ */
+function decodeUtf16(bytes: Uint8Array, littleEndian: boolean): string {
+  const units = new Uint16Array(bytes.length >> 1);
+  for (let i = 0; i < units.length; i++) units[i] = littleEndian ? bytes[2 * i] | (bytes[2 * i + 1] << 8) : (bytes[2 * i] << 8) | bytes[2 * i + 1];
+  const parts: string[] = [];
+  for (let i = 0; i < units.length; i += 8192) parts.push(String.fromCharCode(...units.subarray(i, i + 8192)));
+  return parts.join("") + (bytes.length % 2 ? "\uFFFD" : "");
+}
+
+/**
+ * UTF-8 that is invalid only because it encodes surrogates one by one (ED A0..BF 80..BF, as some
+ * programs write UTF-16 text byte for byte): decoded with those surrogates kept, so a lone one is
+ * refused by row and column rather than read as windows-1252. Null when anything else is invalid.
+ */
+function decodeUtf8KeepingSurrogates(bytes: Uint8Array): string | null {
+  const strict = new TextDecoder("utf-8", { fatal: true });
+  const parts: string[] = [];
+  let start = 0;
+  let found = false;
+  try {
+    for (let i = 0; i + 2 < bytes.length; i++) {
+      if (bytes[i] !== 0xed || bytes[i + 1] < 0xa0 || bytes[i + 1] > 0xbf || (bytes[i + 2] & 0xc0) !== 0x80) continue;
+      parts.push(strict.decode(bytes.subarray(start, i)), String.fromCharCode(0xd000 | ((bytes[i + 1] & 0x3f) << 6) | (bytes[i + 2] & 0x3f)));
+      start = i + 3;
+      i += 2;
+      found = true;
+    }
+    if (!found) return null;
+    parts.push(strict.decode(bytes.subarray(start)));
+  } catch {
+    return null;
+  }
+  return parts.join("");
 }
 
 /** Drops a leading byte-order mark (U+FEFF) from text that was decoded without removing it. */

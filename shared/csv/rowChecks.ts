@@ -1,6 +1,8 @@
 // The part every mapped-CSV validator shares: rows with a structural problem count as invalid, each
-// row needs a name that is not too long and not given on an earlier row, problems are kept by row
-// and then by column in file order, and only rows without a problem are kept.
+// row needs a one-line name that is not too long and not given on an earlier row, no cell may hold
+// a lone UTF-16 surrogate, problems are kept by row and then by column in file order, and only
+// rows without a problem are kept.
+import { loneSurrogateIn, loneSurrogateMessage, oneLineProblem } from "../schemas/common";
 import type { CsvProblem, ParsedCsv } from "./parse";
 
 /** Longest name a row may give. */
@@ -43,13 +45,20 @@ export function checkRows<T>(
       valid = false;
     };
     const name = nameColumn >= 0 ? cells[nameColumn].trim() : "";
+    const nameProblem = name ? oneLineProblem(what.label, name) : null;
     if (!name) problem(nameColumn, `${what.label} is missing`);
     else if (name.length > MAX_NAME_LENGTH) problem(nameColumn, `${what.label} has ${name.length} characters; at most ${MAX_NAME_LENGTH}`);
+    else if (nameProblem) problem(nameColumn, nameProblem);
     else {
       const earlier = firstRowOfName.get(name);
       if (earlier !== undefined) problem(nameColumn, `Duplicate ${what.kind} "${name}": also on row ${earlier}`);
       else firstRowOfName.set(name, row);
     }
+    // Text that is not valid Unicode (a lone surrogate, e.g. from a damaged UTF-16 file) is refused in any cell.
+    cells.forEach((cell, index) => {
+      const codePoint = index === nameColumn ? null : loneSurrogateIn(cell);
+      if (codePoint) problem(index, loneSurrogateMessage("The cell", codePoint));
+    });
     const read = readRow(row, cells, name, problem);
     if (valid && read !== null) rows.push(read);
     else invalidRowCount++;

@@ -1,5 +1,6 @@
 // Checking every row of a mapped CSV file against the codebook and the time scale, so the
 // preview lists each problem by row and column before anything is written.
+import { oneLineProblem } from "../schemas/common";
 import type { ImportMapping } from "../schemas/imports";
 import type { RangeEnd } from "../schemas/taxa";
 import type { ParsedCsv } from "./parse";
@@ -58,7 +59,9 @@ export function validateImportRows(
       if (index < 0) return;
       const t = cells[index].trim();
       if (!t) return;
+      const oneLine = key === "higherTaxon" ? oneLineProblem("Higher taxon", t) : null;
       if (t.length > MAX_TEXT[key]) problem(index, `${key === "notes" ? "Notes have" : "Higher taxon has"} ${t.length} characters; at most ${MAX_TEXT[key]}`);
+      else if (oneLine) problem(index, oneLine);
       else changes[key] = t;
     };
     text(higherCol, "higherTaxon");

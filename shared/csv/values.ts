@@ -3,6 +3,7 @@
 // say what is allowed, so the grid and the import preview can show them as they are.
 import type { NumericTransform, TraitKind, TraitState } from "../codebook";
 import { findUnit } from "../timescale/lookup";
+import { AGE_LIMIT_MA, AGE_LIMIT_MESSAGE } from "../schemas/common";
 import type { RangeEnd, RangeEndInput } from "../schemas/taxa";
 
 /** The parts of a trait definition that decide which values it accepts. */
@@ -97,6 +98,7 @@ export function resolveRangeEnd(input: RangeEndInput, end: "fad" | "lad"): Check
   if (input === null) return ok(null);
   if ("ma" in input) {
     if (!Number.isFinite(input.ma) || input.ma < 0) return fail("Age must be a number of Ma, 0 or more");
+    if (input.ma > AGE_LIMIT_MA) return fail(AGE_LIMIT_MESSAGE);
     return ok({ ma: input.ma, interval: null });
   }
   const unit = findUnit(input.interval);
@@ -112,6 +114,7 @@ export function readRangeCell(text: string, end: "fad" | "lad", opts: { decimalC
     const n = parseNumberCell(t, opts);
     if (!n.ok) return n;
     if (n.value < 0) return fail(`${t} is not an age: ages are in Ma before present and cannot be negative`);
+    if (n.value > AGE_LIMIT_MA) return fail(`${t} is not an age: ${AGE_LIMIT_MESSAGE.charAt(0).toLowerCase()}${AGE_LIMIT_MESSAGE.slice(1)}`);
     return ok({ ma: n.value, interval: null });
   }
   const unit = findUnit(t);

@@ -1,5 +1,5 @@
 import { z } from "zod";
-import { isoDateSchema } from "./common";
+import { isoDateSchema, oneLine } from "./common";
 
 export const PASSWORD_MIN_LENGTH = 10;
 
@@ -19,7 +19,8 @@ export const personNameSchema = z
   .string({ message: "Name is required" })
   .trim()
   .min(1, "Name is required")
-  .max(120, "Name must have at most 120 characters");
+  .max(120, "Name must have at most 120 characters")
+  .check(oneLine("Name"));
 
 export const signupSchema = z
   .strictObject({ email: emailSchema, password: passwordSchema, name: personNameSchema })

@@ -14,6 +14,14 @@ export type ApiError = z.infer<typeof apiErrorSchema>;
 
 export const uuidSchema = z.uuid({ message: "must be a valid id (UUID)" });
 
+/**
+ * No age is older than the Earth: 4,567 Ma, the age of the Solar System's oldest solids
+ * (Connelly et al. 2012, Science 338: 651-655, from memory), the usual upper bound of geological
+ * ages (common practice). Taxon ranges given in the API, in imports and in the grid are held to it.
+ */
+export const AGE_LIMIT_MA = 4567;
+export const AGE_LIMIT_MESSAGE = `Age must be at most ${AGE_LIMIT_MA.toLocaleString("en-US")} Ma: nothing is older than the Earth`;
+
 export const studyParamsSchema = z.object({ studyId: uuidSchema });
 
 export const okSchema = z.object({ ok: z.literal(true) }).meta({ id: "Ok" });
@@ -40,5 +48,87 @@ export function exportQuerySchema<const T extends readonly [string, ...string[]]
       .enum(tables, { message: `table must be one of ${tables.join(", ")}` })
       .optional()
       .meta({ description: `CSV only: one table (${tablesDescription}); default: all, each row naming its table in the first column` }),
+  });
+}
+
+// ---------------------------------------------------------------- text that comes in
+
+/**
+ * A lone UTF-16 surrogate: a high half (U+D800-U+DBFF) without the low half after it, or a low
+ * half (U+DC00-U+DFFF) without the high half before it. JSON can carry one ("\ud800"); it is not
+ * Unicode text (PostgreSQL's jsonb refuses it, text columns would store U+FFFD instead).
+ */
+const LONE_SURROGATE = /[\uD800-\uDBFF](?![\uDC00-\uDFFF])|(?<![\uD800-\uDBFF])[\uDC00-\uDFFF]/;
+
+/** The first lone surrogate of the text as "U+D83D", or null when the text is well-formed. */
+export function loneSurrogateIn(text: string): string | null {
+  const match = LONE_SURROGATE.exec(text);
+  return match ? `U+${match[0].charCodeAt(0).toString(16).toUpperCase()}` : null;
+}
+
+export const loneSurrogateMessage = (where: string, codePoint: string) =>
+  `${where} holds a lone UTF-16 surrogate (${codePoint}), half of a character that is not valid text; retype the character`;
+
+/**
+ * The first string (or object key) anywhere in a request's input that holds a lone surrogate, with
+ * its path ("changes.name", "values.0"): the one place every route refuses such text, before its
+ * own schema reads the input.
+ */
+export function findLoneSurrogate(value: unknown, path: Array<string | number> = []): { path: string; codePoint: string } | null {
+  if (typeof value === "string") {
+    const codePoint = loneSurrogateIn(value);
+    return codePoint ? { path: path.join(".") || "_", codePoint } : null;
+  }
+  if (Array.isArray(value)) {
+    for (let i = 0; i < value.length; i++) {
+      const found = findLoneSurrogate(value[i], [...path, i]);
+      if (found) return found;
+    }
+    return null;
+  }
+  if (value && typeof value === "object") {
+    for (const [key, inner] of Object.entries(value)) {
+      const keyPoint = loneSurrogateIn(key);
+      if (keyPoint) return { path: [...path, key].join("."), codePoint: keyPoint };
+      const found = findLoneSurrogate(inner, [...path, key]);
+      if (found) return found;
+    }
+  }
+  return null;
+}
+
+/** Line breaks, tabs and other control characters (C0, DEL, C1) and the Unicode line and paragraph separators. */
+// eslint-disable-next-line no-control-regex -- finding control characters is the point
+const CONTROL_CHARACTER = /[\u0000-\u001F\u007F-\u009F\u2028\u2029]/;
+
+/** Why the text cannot be one line of `label` (a line break or other control character, or a lone surrogate), or null. */
+export function oneLineProblem(label: string, text: string): string | null {
+  const control = CONTROL_CHARACTER.exec(text);
+  if (control) {
+    const code = `U+${control[0].charCodeAt(0).toString(16).toUpperCase().padStart(4, "0")}`;
+    const what = control[0] === "\n" || control[0] === "\r" ? "a line break" : control[0] === "\t" ? "a tab" : `a control character (${code})`;
+    return `${label} must be one line of text: it holds ${what}`;
+  }
+  const surrogate = loneSurrogateIn(text);
+  return surrogate ? loneSurrogateMessage(label, surrogate) : null;
+}
+
+/**
+ * Checks of a one-line text field (a person's, study's, taxon's or list's name, a label, a
+ * title): no line break or other control character, which would break the line it is shown on
+ * (an e-mail header or body, a table cell), and no lone surrogate. Used as `.check(oneLine("Name"))`.
+ */
+export function oneLine(label: string) {
+  return z.superRefine((text: string, ctx) => {
+    const problem = oneLineProblem(label, text);
+    if (problem) ctx.addIssue({ code: "custom", message: problem });
+  });
+}
+
+/** Checks of free text that may span lines (notes, descriptions, posts): no lone surrogate. Used as `.check(wellFormed("Notes"))`. */
+export function wellFormed(label: string) {
+  return z.superRefine((text: string, ctx) => {
+    const surrogate = loneSurrogateIn(text);
+    if (surrogate) ctx.addIssue({ code: "custom", message: loneSurrogateMessage(label, surrogate) });
   });
 }

@@ -4,7 +4,7 @@
 import { z } from "zod";
 import type { Crosswalk, CrosswalkCoverage, ListColumn } from "../comparison/types";
 import { IUCN_CATEGORIES } from "../iucn";
-import { isoDateSchema, uuidSchema, personOrNoneSchema, type Same } from "./common";
+import { isoDateSchema, oneLine, uuidSchema, personOrNoneSchema, type Same } from "./common";
 import { csvDelimiterSchema, importProblemSchema, IMPORT_MAX_PROBLEMS_LISTED } from "./imports";
 import { traitKindSchema } from "./traits";
 
@@ -109,7 +109,7 @@ export const modernListPreviewSchema = z
   .meta({ id: "ModernListPreview" });
 export type ModernListPreview = z.infer<typeof modernListPreviewSchema>;
 
-export const listNameSchema = z.string({ message: "Name is required" }).trim().min(1, "Name is required").max(120, "Name must have at most 120 characters");
+export const listNameSchema = z.string({ message: "Name is required" }).trim().min(1, "Name is required").max(120, "Name must have at most 120 characters").check(oneLine("Name"));
 
 export const modernListCommitSchema = z
   .strictObject({

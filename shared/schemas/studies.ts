@@ -1,12 +1,12 @@
 import { z } from "zod";
 import { STUDY_ROLES } from "../roles";
 import { emailSchema } from "./auth";
-import { isoDateSchema, uuidSchema } from "./common";
+import { isoDateSchema, oneLine, uuidSchema, wellFormed } from "./common";
 
 export const studyRoleSchema = z.enum(STUDY_ROLES, { message: `Role must be one of ${STUDY_ROLES.join(", ")}` });
 
-const studyNameSchema = z.string({ message: "Name is required" }).trim().min(1, "Name is required").max(160, "Name must have at most 160 characters");
-const studyDescriptionSchema = z.string({ message: "Description must be text" }).trim().max(4000, "Description must have at most 4,000 characters");
+const studyNameSchema = z.string({ message: "Name is required" }).trim().min(1, "Name is required").max(160, "Name must have at most 160 characters").check(oneLine("Name"));
+const studyDescriptionSchema = z.string({ message: "Description must be text" }).trim().max(4000, "Description must have at most 4,000 characters").check(wellFormed("Description"));
 
 export const studyCreateSchema = z
   .strictObject({

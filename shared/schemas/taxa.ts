@@ -3,7 +3,7 @@
 // history of every cell.
 import { z } from "zod";
 import { findUnit } from "../timescale/lookup";
-import { isoDateSchema, uuidSchema } from "./common";
+import { AGE_LIMIT_MA, AGE_LIMIT_MESSAGE, isoDateSchema, oneLine, uuidSchema, wellFormed } from "./common";
 
 /** Largest page of the grid one request returns. */
 export const TAXA_MAX_PAGE_SIZE = 500;
@@ -19,16 +19,18 @@ const nameSchema = z
   .string({ message: "Name is required" })
   .trim()
   .min(1, "Name is required")
-  .max(300, "Name must have at most 300 characters");
-const higherTaxonSchema = z.string().trim().max(300, "Higher taxon must have at most 300 characters");
-const notesSchema = z.string().trim().max(8000, "Notes must have at most 8,000 characters");
+  .max(300, "Name must have at most 300 characters")
+  .check(oneLine("Name"));
+const higherTaxonSchema = z.string().trim().max(300, "Higher taxon must have at most 300 characters").check(oneLine("Higher taxon"));
+const notesSchema = z.string().trim().max(8000, "Notes must have at most 8,000 characters").check(wellFormed("Notes"));
 
-export const reasonSchema = z.string().trim().max(2000, "Reason must have at most 2,000 characters");
+export const reasonSchema = z.string().trim().max(2000, "Reason must have at most 2,000 characters").check(wellFormed("Reason"));
 export const requiredReasonSchema = z
   .string({ message: "A reason is required" })
   .trim()
   .min(1, "A reason is required: say why this change is made")
-  .max(2000, "Reason must have at most 2,000 characters");
+  .max(2000, "Reason must have at most 2,000 characters")
+  .check(wellFormed("Reason"));
 
 /**
  * One end of a stratigraphic range as a person gives it: an age in Ma, or the name of a unit of the
@@ -41,7 +43,8 @@ export const rangeEndInputSchema = z
       ma: z
         .number({ message: "Age must be a number of Ma" })
         .refine(Number.isFinite, "Age must be a finite number of Ma")
-        .refine((v) => v >= 0, "Age must not be negative (ages are in Ma before present)"),
+        .refine((v) => v >= 0, "Age must not be negative (ages are in Ma before present)")
+        .refine((v) => v <= AGE_LIMIT_MA, AGE_LIMIT_MESSAGE),
     }),
     z.strictObject({
       interval: z

@@ -4,7 +4,7 @@
 import { z } from "zod";
 import { MARKDOWN_MAX_LENGTH } from "../markdown";
 import { can, type StudyRole } from "../roles";
-import { isoDateSchema, uuidSchema } from "./common";
+import { isoDateSchema, oneLine, uuidSchema, wellFormed } from "./common";
 
 export const THREAD_TARGET_TYPES = ["trait", "taxon", "value", "override", "run", "comparison"] as const;
 export type ThreadTargetType = (typeof THREAD_TARGET_TYPES)[number];
@@ -32,7 +32,8 @@ export const postBodySchema = z
   .string({ message: "Write the post before sending it" })
   .trim()
   .min(1, "Write the post before sending it")
-  .max(MARKDOWN_MAX_LENGTH, `A post may have at most ${MARKDOWN_MAX_LENGTH.toLocaleString("en-US")} characters`);
+  .max(MARKDOWN_MAX_LENGTH, `A post may have at most ${MARKDOWN_MAX_LENGTH.toLocaleString("en-US")} characters`)
+  .check(wellFormed("The post"));
 
 export const mentionsSchema = z
   .array(uuidSchema, { message: "mentions must be a list of member ids" })
@@ -60,6 +61,7 @@ export const threadCreateSchema = z
       .string()
       .trim()
       .max(THREAD_TITLE_MAX, `The title may have at most ${THREAD_TITLE_MAX} characters`)
+      .check(oneLine("The title"))
       .optional()
       .meta({ description: "Defaults to the first line of the body" }),
     body: postBodySchema,

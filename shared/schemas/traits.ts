@@ -2,7 +2,7 @@
 // `traitDefinitionProblems`, so the codebook screen and the server give the same messages.
 import { z } from "zod";
 import { NUMERIC_TRANSFORMS, TRAIT_ASPECTS, TRAIT_KINDS, type NumericTransform, type TraitKind } from "../codebook";
-import { isoDateSchema, uuidSchema } from "./common";
+import { isoDateSchema, oneLine, uuidSchema, wellFormed } from "./common";
 
 export const traitKindSchema = z
   .enum(TRAIT_KINDS, { message: `Kind must be one of ${TRAIT_KINDS.join(", ")}` })
@@ -24,7 +24,7 @@ export const traitKeySchema = z
   .max(60, "Key must have at most 60 characters")
   .regex(TRAIT_KEY_PATTERN, "Key must start with a lower-case letter and hold only lower-case letters, digits and _ (e.g. body_size)");
 
-const labelSchema = z.string({ message: "Label is required" }).trim().min(1, "Label is required").max(120, "Label must have at most 120 characters");
+const labelSchema = z.string({ message: "Label is required" }).trim().min(1, "Label is required").max(120, "Label must have at most 120 characters").check(oneLine("Label"));
 
 export const traitStateSchema = z
   .object({ code: z.string(), label: z.string(), order: z.number().int() })
@@ -42,10 +42,10 @@ export const traitStateInputSchema = z
   })
   .meta({ id: "TraitStateInput", description: "The order of states is their order in the list" });
 
-const unitSchema = z.string().trim().max(40, "Unit must have at most 40 characters").nullable();
+const unitSchema = z.string().trim().max(40, "Unit must have at most 40 characters").check(oneLine("Unit")).nullable();
 const boundSchema = (what: string) =>
   z.number({ message: `${what} must be a number` }).refine(Number.isFinite, `${what} must be a finite number`).nullable();
-const codingRuleSchema = z.string().trim().max(8000, "Coding rule must have at most 8,000 characters");
+const codingRuleSchema = z.string().trim().max(8000, "Coding rule must have at most 8,000 characters").check(wellFormed("Coding rule"));
 
 export interface TraitDefinition {
   kind: TraitKind;

@@ -71,7 +71,7 @@ function partialUpload(path: string, cookie: string | null): Promise<{ status: n
 }
 
 describe("uploads are refused before their body is read", () => {
-  const routes = () => [`/api/studies/${study.studyId}/imports`, `/api/studies/${study.studyId}/modern-lists/uploads`];
+  const routes = () => [`/api/studies/${study.studyId}/imports`, `/api/studies/${study.studyId}/modern-list-uploads`];
 
   it("an anonymous upload gets 401 while its body is still on the way, and no file is stored", async () => {
     for (const path of routes()) {
@@ -101,7 +101,7 @@ describe("uploads are refused before their body is read", () => {
     expect(res.status, JSON.stringify(res.body)).toBe(201);
     expect(filesInUploadDir()).toBe(before + 1);
     const modern = await cast.people.analyst.agent
-      .post(`/api/studies/${study.studyId}/modern-lists/uploads`)
+      .post(`/api/studies/${study.studyId}/modern-list-uploads`)
       .attach("file", Buffer.from("species,category\nInventa modernis,EN\n", "utf8"), "invented-modern.csv");
     expect(modern.status, JSON.stringify(modern.body)).toBe(201);
     expect(filesInUploadDir()).toBe(before + 2);
@@ -113,7 +113,7 @@ describe("uploads are refused before their body is read", () => {
     expect(binary.status).toBe(415);
     const headerOnly = await uploadCsv(cast.people.coder.agent, study.studyId, "name,higher_taxon\n", "header-only.csv");
     expect(headerOnly.status).toBe(400);
-    const modernEmpty = await cast.people.analyst.agent.post(`/api/studies/${study.studyId}/modern-lists/uploads`).attach("file", Buffer.from("", "utf8"), "empty.csv");
+    const modernEmpty = await cast.people.analyst.agent.post(`/api/studies/${study.studyId}/modern-list-uploads`).attach("file", Buffer.from("", "utf8"), "empty.csv");
     expect(modernEmpty.status).toBe(400);
     expect(filesInUploadDir()).toBe(before);
   });
@@ -231,5 +231,120 @@ describe("a body that cannot be read as sent gets a 4xx", () => {
     expect(res.status, JSON.stringify(res.body)).toBe(400);
     expect(res.body.error.code).toBe("unreadable_upload");
     expect(filesInUploadDir()).toBe(before);
+  });
+});
+
+describe("lone UTF-16 surrogates are refused with 400 wherever text comes in", () => {
+  // JSON.stringify writes a lone surrogate as the escape \ud800 (ES2019 well-formed JSON.stringify), as an attacker would send it.
+  const send = (agent: Person["agent"], method: "post" | "patch", path: string, body: unknown) =>
+    agent[method](path).set("Content-Type", "application/json").send(JSON.stringify(body));
+
+  it("in a taxon's name and notes (once a 500 from PostgreSQL's jsonb), in a PATCH, a post and a study; nothing is written", async () => {
+    const coder = cast.people.coder.agent;
+    const taxa = `/api/studies/${study.studyId}/taxa`;
+    const countBefore = (await coder.get(taxa)).body.total;
+    for (const body of [{ name: "Alphella\ud800" }, { name: "Alphella surrogate", notes: "broken \udc00 notes" }]) {
+      const res = await send(coder, "post", taxa, body);
+      expect(res.status, JSON.stringify(res.body)).toBe(400);
+      expect(res.body.error.code).toBe("validation_failed");
+      expect(Object.values(res.body.error.fields as Record<string, string>)[0]).toMatch(/lone UTF-16 surrogate \(U\+D(800|C00)\)/);
+    }
+    expect((await coder.get(taxa)).body.total).toBe(countBefore);
+
+    const created = await coder.post(taxa).send({ name: "Surrogatella invented" });
+    const patched = await send(coder, "patch", `${taxa}/${created.body.taxon.id}`, { version: 1, changes: { values: { [study.trait.feeding.id]: "sus\ud83dpension" } } });
+    expect(patched.status, JSON.stringify(patched.body)).toBe(400);
+    expect(patched.body.error.fields[`changes.values.${study.trait.feeding.id}`]).toMatch(/lone UTF-16 surrogate \(U\+D83D\)/);
+
+    const thread = await send(coder, "post", `/api/studies/${study.studyId}/threads`, { target: { type: "taxon", id: created.body.taxon.id }, body: "A question \udfff" });
+    expect(thread.status, JSON.stringify(thread.body)).toBe(400);
+    expect(thread.body.error.fields.body).toMatch(/lone UTF-16 surrogate \(U\+DFFF\)/);
+
+    const studyRes = await send(cast.people.owner.agent, "post", "/api/studies", { name: "Invented", description: "\ud800" });
+    expect(studyRes.status).toBe(400);
+    expect(studyRes.body.error.fields.description).toMatch(/lone UTF-16 surrogate/);
+  });
+
+  it("a well-formed pair (an emoji) is stored as it is", async () => {
+    const res = await cast.people.coder.agent.post(`/api/studies/${study.studyId}/taxa`).send({ name: "Emojella \ud83e\udeb8 invented", notes: "\u00e9t\u00e9 \ud83d\ude00" });
+    expect(res.status, JSON.stringify(res.body)).toBe(201);
+    expect(res.body.taxon).toMatchObject({ name: "Emojella \u{1FAB8} invented", notes: "\u00e9t\u00e9 \u{1F600}" });
+  });
+
+  it("in an uploaded CSV file (UTF-16 with a byte-order mark), as a row problem naming row and column", async () => {
+    const text = "name,higher_taxon,notes\r\nAlphella utf16,Inventidae,fine\r\nBetella utf16,Inventidae,bro\ud800ken\r\n";
+    const bytes = Buffer.alloc(2 + text.length * 2);
+    bytes.writeUInt16LE(0xfeff, 0);
+    for (let i = 0; i < text.length; i++) bytes.writeUInt16LE(text.charCodeAt(i), 2 + 2 * i);
+    const upload = await uploadCsv(cast.people.coder.agent, study.studyId, bytes, "utf16.csv");
+    expect(upload.status, JSON.stringify(upload.body)).toBe(201);
+    const preview = await cast.people.coder.agent
+      .post(`/api/studies/${study.studyId}/imports/${upload.body.import.id}/preview`)
+      .send({ mapping: { name: "name", higherTaxon: "higher_taxon", firstAppearance: null, lastAppearance: null, notes: "notes", traits: {} } });
+    expect(preview.status, JSON.stringify(preview.body)).toBe(200);
+    expect(preview.body.problems).toEqual([{ row: 3, column: "notes", message: expect.stringMatching(/^The cell holds a lone UTF-16 surrogate \(U\+D800\)/) }]);
+  });
+});
+
+describe("one-line fields refuse line breaks and control characters, naming the field", () => {
+  it("a person's name at sign-up and on the account, a study's name, a taxon's name and higher taxon, a trait's label", async () => {
+    const signup = await request(app.app).post("/api/auth/signup").send({ email: "linebreak@example.test", password: PASSWORD, name: "Invented\r\nBcc: victim@example.test" });
+    expect(signup.status).toBe(400);
+    expect(signup.body.error.fields.name).toBe("Name must be one line of text: it holds a line break");
+
+    const me = await cast.people.viewer.agent.patch("/api/auth/me").send({ name: "Viewer\nSecond line" });
+    expect(me.status).toBe(400);
+    expect(me.body.error.fields.name).toBe("Name must be one line of text: it holds a line break");
+
+    const newStudy = await cast.people.owner.agent.post("/api/studies").send({ name: "Invented\u0085study" });
+    expect(newStudy.status).toBe(400);
+    expect(newStudy.body.error.fields.name).toBe("Name must be one line of text: it holds a control character (U+0085)");
+    const renamed = await cast.people.owner.agent.patch(`/api/studies/${study.studyId}`).send({ name: "Invented\tstudy" });
+    expect(renamed.status).toBe(400);
+    expect(renamed.body.error.fields.name).toBe("Name must be one line of text: it holds a tab");
+    const described = await cast.people.owner.agent.patch(`/api/studies/${study.studyId}`).send({ description: "Descriptions\nmay span lines." });
+    expect(described.status).toBe(200);
+
+    const taxon = await cast.people.coder.agent.post(`/api/studies/${study.studyId}/taxa`).send({ name: "Line\nbreakella", higherTaxon: "Inven\u2028tidae" });
+    expect(taxon.status).toBe(400);
+    expect(taxon.body.error.fields).toEqual({ name: "Name must be one line of text: it holds a line break", higherTaxon: "Higher taxon must be one line of text: it holds a control character (U+2028)" });
+
+    const trait = await cast.people.coder.agent.patch(`/api/studies/${study.studyId}/traits/${study.trait.feeding.id}`).send({ label: "Feeding\r\nmode" });
+    expect(trait.status).toBe(400);
+    expect(trait.body.error.fields.label).toBe("Label must be one line of text: it holds a line break");
+  });
+});
+
+describe("ages older than the Earth (4,567 Ma, common practice) are refused", () => {
+  it("when a taxon is created, edited in the grid (PATCH) and bulk-edited; nothing is stored", async () => {
+    const coder = cast.people.coder.agent;
+    const taxa = `/api/studies/${study.studyId}/taxa`;
+    const created = await coder.post(taxa).send({ name: "Ancientella invented", fad: { ma: 1e300 } });
+    expect(created.status).toBe(400);
+    expect(created.body.error.fields["fad.ma"]).toBe("Age must be at most 4,567 Ma: nothing is older than the Earth");
+
+    const ok = await coder.post(taxa).send({ name: "Ancientella invented", fad: { ma: 4567 }, lad: { ma: 4000 } });
+    expect(ok.status, JSON.stringify(ok.body)).toBe(201);
+    const id = ok.body.taxon.id as string;
+    const grid = await coder.patch(`${taxa}/${id}`).send({ version: 1, changes: { fad: { ma: 4600 } }, reason: "Older." });
+    expect(grid.status).toBe(400);
+    expect(grid.body.error.fields["changes.fad.ma"]).toBe("Age must be at most 4,567 Ma: nothing is older than the Earth");
+
+    const bulk = await coder.post(`${taxa}/bulk`).send({ taxonIds: [id], field: "lad", value: { ma: 5000 }, reason: "Older." });
+    expect(bulk.status, JSON.stringify(bulk.body)).toBe(400);
+    expect(JSON.stringify(bulk.body.error)).toContain("4,567 Ma");
+
+    const stored = (await coder.get(`${taxa}/${id}`)).body;
+    expect(stored.taxon ?? stored).toMatchObject({ fadMa: 4567, ladMa: 4000 });
+  });
+
+  it("in an imported CSV file, as a row problem naming row and column", async () => {
+    const upload = await uploadCsv(cast.people.coder.agent, study.studyId, "name,higher_taxon,first_appearance\nOldella,Inventidae,1e300\nYoungella,Inventidae,70\n", "ages.csv");
+    expect(upload.status).toBe(201);
+    const preview = await cast.people.coder.agent
+      .post(`/api/studies/${study.studyId}/imports/${upload.body.import.id}/preview`)
+      .send({ mapping: { name: "name", higherTaxon: "higher_taxon", firstAppearance: "first_appearance", lastAppearance: null, notes: null, traits: {} } });
+    expect(preview.status, JSON.stringify(preview.body)).toBe(200);
+    expect(preview.body.problems).toEqual([{ row: 2, column: "first_appearance", message: "First appearance: 1e300 is not an age: age must be at most 4,567 Ma: nothing is older than the Earth" }]);
   });
 });
