@@ -52,6 +52,8 @@ export const queryKeys = {
     overridesAll: (studyId: string) => ["studies", "detail", studyId, "boundary", "overrides"] as const,
     overrides: (studyId: string, query: Record<string, string | number>) => ["studies", "detail", studyId, "boundary", "overrides", query] as const,
     rates: (studyId: string) => ["studies", "detail", studyId, "boundary", "rates"] as const,
+    // Below the outcomes so that an override (which changes the scorecard's magnitude) refreshes it too.
+    turnover: (studyId: string, query: Record<string, string | number | undefined>) => ["studies", "detail", studyId, "boundary", "outcomes", "turnover", query] as const,
   },
   // Threads below the study (taxa marks and the activity feed change with them); notifications are the person's own.
   threads: {

@@ -13,7 +13,9 @@ import { useCurrentStudy } from "../../lib/currentStudy";
 import { paths } from "../../lib/paths";
 import { useDocumentTitle } from "../../lib/useDocumentTitle";
 import { useTimescale } from "../../lib/queries/timescale";
-import { useOutcomes, type OutcomesRequest } from "./api";
+import { useOutcomes, useTurnover, type OutcomesRequest } from "./api";
+import { BoundaryScorecard } from "./BoundaryScorecard";
+import { TurnoverSection } from "./TurnoverSection";
 import { BoundaryPicker } from "./BoundaryPicker";
 import { readBoundaryView, withChoice, withList, withWindow, type BoundaryView } from "./boundaryParams";
 import { ClassificationRules } from "./ClassificationRules";
@@ -44,6 +46,8 @@ export function BoundaryPage() {
   const canOverride = can(study.role, "outcomes.override");
   const [setting, setSetting] = useState<OutcomeTaxon | null>(null);
   const [revoking, setRevoking] = useState<RevokeTarget | null>(null);
+  const [splitBy, setSplitBy] = useState("");
+  const turnover = useTurnover(study.id, request ? { boundaryUnit: request.boundaryUnit, boundary: request.boundary, window: request.window, splitBy: splitBy || undefined } : null);
 
   const chosenUnit = view.choice?.kind === "unit" && scale ? scale.resolve(view.choice.name) : undefined;
   const boundary = view.choice?.kind === "age" ? view.choice.age : (chosenUnit?.base ?? null);
@@ -105,6 +109,8 @@ export function BoundaryPage() {
             request={request}
             view={view}
             chart={chart}
+            scorecard={<BoundaryScorecard turnover={turnover} />}
+            turnover={<TurnoverSection turnover={turnover} splitBy={splitBy} onSplitBy={setSplitBy} />}
             canOverride={canOverride}
             onList={(list, page) => setSearch(withList(search, list, page), { preventScrollReset: true })}
             onSetOutcome={setSetting}
@@ -131,13 +137,17 @@ interface ResultsProps {
   view: BoundaryView;
   /** Extinction through time, shown after the counts so the crisis is read against the background. */
   chart: ReactNode;
+  /** The mass-extinction criteria, read beside the outcome tiles. */
+  scorecard: ReactNode;
+  /** Origination beside extinction, the crisis against background, and diversity through time. */
+  turnover: ReactNode;
   canOverride: boolean;
   onList: (list: BoundaryView["list"], page: number) => void;
   onSetOutcome: (taxon: OutcomeTaxon) => void;
   onRevoke: (target: RevokeTarget) => void;
 }
 
-function Results({ studyId, result, refreshing, request, view, chart, canOverride, onList, onSetOutcome, onRevoke }: ResultsProps) {
+function Results({ studyId, result, refreshing, request, view, chart, scorecard, turnover, canOverride, onList, onSetOutcome, onRevoke }: ResultsProps) {
   if (result.counts.total === 0) {
     return (
       <EmptyState
@@ -154,6 +164,7 @@ function Results({ studyId, result, refreshing, request, view, chart, canOverrid
   return (
     <>
       <OutcomeSummary result={result} refreshing={refreshing} />
+      {scorecard}
       <div className="space-y-3">
         <Caution title="The counts rest on the ranges as coded">
           Who counts as a survivor or a victim depends on the first and last appearances as coded and on how well each stage was sampled. A last find
@@ -165,6 +176,7 @@ function Results({ studyId, result, refreshing, request, view, chart, canOverrid
         </Caution>
       </div>
       {chart}
+      {turnover}
       <div className="grid gap-6 xl:grid-cols-2">
         <OutcomeWarnings warnings={result.warnings} />
         <ClassificationRules boundary={result.boundary} window={result.window} />

@@ -9,6 +9,7 @@ import type {
   OutcomesResult,
   RatesResult,
 } from "@shared/schemas/outcomes";
+import type { TurnoverResult } from "@shared/schemas/turnover";
 import { api } from "../../lib/api";
 import { queryKeys } from "../../lib/queryKeys";
 import { studyApiPath } from "../../lib/queries/paths";
@@ -66,6 +67,29 @@ export function useRates(studyId: string) {
     queryKey: queryKeys.boundary.rates(studyId),
     queryFn: ({ signal }) => api.get<RatesResult>(`${studyApiPath(studyId)}/rates`, signal),
     staleTime: 0,
+  });
+}
+
+/** What the screen asks the turnover endpoint: the boundary and window of the outcomes, and how to split the diversity curve. */
+export interface TurnoverRequest {
+  boundaryUnit?: string;
+  boundary?: number;
+  window?: number;
+  splitBy?: string;
+}
+
+/**
+ * GET /api/studies/:studyId/turnover: origination and extinction per stage, standing diversity, the crisis
+ * stage against its background and the boundary scorecard. `request` null: no boundary chosen (nothing fetched).
+ */
+export function useTurnover(studyId: string, request: TurnoverRequest | null) {
+  const params = { ...request };
+  return useQuery({
+    queryKey: queryKeys.boundary.turnover(studyId, params),
+    queryFn: ({ signal }) => api.get<TurnoverResult>(`${studyApiPath(studyId)}/turnover?${toSearch(params)}`, signal),
+    enabled: request !== null,
+    staleTime: 0,
+    placeholderData: keepPreviousData,
   });
 }
 
