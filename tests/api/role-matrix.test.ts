@@ -307,6 +307,7 @@ const MATRIX: Record<string, Row> = {
   "GET /api/studies/{studyId}/occurrence-uploads": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/occurrence-uploads`) },
   "GET /api/studies/{studyId}/occurrence-uploads/{uploadId}": {
     allowed: MEMBERS,
+    freshStudy: true,
     call: async (a, { studyId, cast }) => a.get(`/api/studies/${studyId}/occurrence-uploads/${(await uploadOccurrences(cast.people.owner.agent, studyId, MATRIX_OCCURRENCES)).body.upload.id}`),
   },
   "POST /api/studies/{studyId}/occurrence-uploads/{uploadId}/preview": {
