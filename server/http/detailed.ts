@@ -1,9 +1,7 @@
 // Error answers that carry more than a message: a 409 naming the current value and who set it, a
 // 400 listing every problem of an import by row and column. The body keeps the usual
 // `{ error: { code, message } }` and adds the details beside it.
-import type { OpenAPIRegistry } from "@asteasolutions/zod-to-openapi";
 import type { Response } from "express";
-import { z, type ZodType } from "zod";
 import { HttpError } from "./errors";
 
 export class DetailedHttpError extends HttpError {
@@ -31,15 +29,4 @@ export async function answeringDetails<T>(res: Response, work: () => Promise<T>)
     }
     throw err;
   }
-}
-
-/**
- * Lists the schema of a detailed error body (and the named schemas inside it) among the OpenAPI
- * document's components, so the client's types and the document agree. A route names it in the
- * description of its answer (e.g. "409: TaxonConflict").
- */
-export function documentErrorBody(registry: OpenAPIRegistry, schema: ZodType): void {
-  const json = z.toJSONSchema(schema, { io: "output", unrepresentable: "any" }) as { $defs?: Record<string, unknown> };
-  const defs = JSON.parse(JSON.stringify(json.$defs ?? {}).replaceAll('"#/$defs/', '"#/components/schemas/')) as Record<string, object>;
-  for (const [name, def] of Object.entries(defs)) registry.registerComponent("schemas", name, def as never);
 }

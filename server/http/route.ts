@@ -34,6 +34,8 @@ export interface RouteSpec<B extends ZodType, Q extends ZodType, P extends ZodTy
   method: "get" | "post" | "patch" | "put" | "delete";
   /** Express path below /api, e.g. "/studies/:studyId/members". */
   path: string;
+  /** Stable lowerCamelCase name of the operation in the OpenAPI document (generated clients name their methods after it). */
+  operationId: string;
   summary: string;
   tags: string[];
   access: Access;
@@ -42,6 +44,8 @@ export interface RouteSpec<B extends ZodType, Q extends ZodType, P extends ZodTy
   params?: P;
   /** Status and schema of the success answer; `raw` handlers send the answer themselves. */
   response: { status: number; schema?: ZodType; description?: string; contentType?: string };
+  /** An error answer that carries more than a message (see http/detailed.ts): documented with its own schema. */
+  errorBody?: { status: number; schema: ZodType; description: string };
   /** Extra middleware that runs after the access check and before validation (e.g. multer for uploads). */
   before?: RequestHandler[];
   /** For OpenAPI only, when `before` parses a multipart body. */
@@ -61,6 +65,9 @@ export interface RegisteredRoute {
   access: Access;
 }
 
+/** operationIds already declared in each OpenAPI document: a second route with the same id is a mistake. */
+const declaredOperationIds = new WeakMap<OpenAPIRegistry, Set<string>>();
+
 /** One resource's Express router, whose endpoints are declared with `add`. */
 export class ApiRouter {
   readonly routes: RegisteredRoute[] = [];
@@ -72,6 +79,10 @@ export class ApiRouter {
 
   add<B extends ZodType = ZodType, Q extends ZodType = ZodType, P extends ZodType = ZodType>(spec: RouteSpec<B, Q, P>): void {
     const openApiPath = "/api" + spec.path.replace(/:(\w+)/g, "{$1}");
+    const declared = declaredOperationIds.get(this.registry) ?? new Set<string>();
+    declaredOperationIds.set(this.registry, declared);
+    if (declared.has(spec.operationId)) throw new Error(`Two routes declare the operationId "${spec.operationId}" (the second: ${spec.method.toUpperCase()} ${spec.path})`);
+    declared.add(spec.operationId);
     this.routes.push({ method: spec.method, path: openApiPath, access: spec.access });
     this.registerOpenApi(spec, openApiPath);
     const ctx = this.ctx;
@@ -146,6 +157,7 @@ export class ApiRouter {
     this.registry.registerPath({
       method: spec.method,
       path,
+      operationId: spec.operationId,
       summary: spec.summary,
       tags: spec.tags,
       security: spec.access === "public" ? [] : [{ session: [] }],
@@ -155,7 +167,11 @@ export class ApiRouter {
         ...(spec.query ? { query: spec.query as never } : {}),
         ...body,
       },
-      responses: { [spec.response.status]: success, ...errors(errorCodes) },
+      responses: {
+        [spec.response.status]: success,
+        ...errors(errorCodes),
+        ...(spec.errorBody ? { [spec.errorBody.status]: { description: spec.errorBody.description, content: { "application/json": { schema: spec.errorBody.schema } } } } : {}),
+      },
     });
   }
 }

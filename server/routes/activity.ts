@@ -9,6 +9,7 @@ export function activityRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiR
   api.add({
     method: "get",
     path: "/studies/:studyId/activity",
+    operationId: "listActivity",
     summary: "The study's activity feed, newest first: imports, bulk decisions, runs, comparisons, threads and membership changes",
     tags: ["activity"],
     access: "study.read",

@@ -24,6 +24,7 @@ export function authRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
   api.add({
     method: "post",
     path: "/auth/signup",
+    operationId: "signUp",
     summary: "Create an account and sign in; an e-mail that already has an account gets `check_mail` (no session) and its owner a notice",
     tags: ["auth"],
     access: "public",
@@ -46,6 +47,7 @@ export function authRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
   api.add({
     method: "post",
     path: "/auth/login",
+    operationId: "signIn",
     summary: "Sign in (failures capped per client address; an account's failures slow its next answers down)",
     tags: ["auth"],
     access: "public",
@@ -62,6 +64,7 @@ export function authRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
   api.add({
     method: "post",
     path: "/auth/logout",
+    operationId: "signOut",
     summary: "Sign out of this browser",
     tags: ["auth"],
     access: "public",
@@ -75,6 +78,7 @@ export function authRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
   api.add({
     method: "get",
     path: "/auth/me",
+    operationId: "getCurrentUser",
     summary: "The signed-in account",
     tags: ["auth"],
     access: "user",
@@ -87,6 +91,7 @@ export function authRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
   api.add({
     method: "patch",
     path: "/auth/me",
+    operationId: "updateCurrentUser",
     summary: "Change the account's name",
     tags: ["auth"],
     access: "user",
@@ -98,6 +103,7 @@ export function authRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
   api.add({
     method: "post",
     path: "/auth/password",
+    operationId: "changePassword",
     summary: "Change the password; ends every other session of the account (failed tries rate-limited)",
     tags: ["auth"],
     access: "user",
@@ -112,6 +118,7 @@ export function authRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
   api.add({
     method: "post",
     path: "/auth/password-reset/request",
+    operationId: "requestPasswordReset",
     summary: "E-mail a one-time reset link (answers the same whether or not the account exists)",
     tags: ["auth"],
     access: "public",
@@ -130,6 +137,7 @@ export function authRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
   api.add({
     method: "post",
     path: "/auth/password-reset/confirm",
+    operationId: "confirmPasswordReset",
     summary: "Set a new password with the e-mailed token",
     tags: ["auth"],
     access: "public",

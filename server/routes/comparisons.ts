@@ -13,6 +13,7 @@ export function comparisonsRouter(ctx: AppContext, registry: OpenAPIRegistry): A
   api.add({
     method: "post",
     path: "/studies/:studyId/comparisons",
+    operationId: "createComparison",
     summary: "Score a modern list with a finished run's fitted model (through the list's saved crosswalk), hold the scores against the threat categories, and save the comparison",
     tags,
     access: "comparisons.create",
@@ -25,6 +26,7 @@ export function comparisonsRouter(ctx: AppContext, registry: OpenAPIRegistry): A
   api.add({
     method: "get",
     path: "/studies/:studyId/comparisons",
+    operationId: "listComparisons",
     summary: "The study's saved comparisons, newest first, with the run and list they read, the data hash, the AUC and how many species are worth a look",
     tags,
     access: "study.read",
@@ -36,6 +38,7 @@ export function comparisonsRouter(ctx: AppContext, registry: OpenAPIRegistry): A
   api.add({
     method: "get",
     path: "/studies/:studyId/comparisons/:comparisonId",
+    operationId: "getComparison",
     summary: "One saved comparison with its results as stored (never recomputed)",
     tags,
     access: "study.read",
@@ -47,6 +50,7 @@ export function comparisonsRouter(ctx: AppContext, registry: OpenAPIRegistry): A
   api.add({
     method: "get",
     path: "/studies/:studyId/comparisons/:comparisonId/export",
+    operationId: "exportComparison",
     summary: "Download a comparison: format=csv its tables (all, each row naming its table, or one chosen with table=); format=json the stored comparison",
     tags,
     access: "study.read",
@@ -65,6 +69,7 @@ export function comparisonsRouter(ctx: AppContext, registry: OpenAPIRegistry): A
   api.add({
     method: "delete",
     path: "/studies/:studyId/comparisons/:comparisonId",
+    operationId: "deleteComparison",
     summary: "Delete a saved comparison",
     tags,
     access: "comparisons.create",

@@ -10,17 +10,17 @@ import {
   revertResultSchema,
 } from "../../shared/schemas/decisions";
 import type { AppContext } from "../context";
-import { answeringDetails, documentErrorBody } from "../http/detailed";
+import { answeringDetails } from "../http/detailed";
 import { ApiRouter } from "../http/route";
 
 export function decisionsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRouter {
   const api = new ApiRouter(registry, ctx);
   const { decisions } = ctx.services;
-  documentErrorBody(registry, revertConflictSchema);
 
   api.add({
     method: "get",
     path: "/studies/:studyId/decisions",
+    operationId: "listDecisions",
     summary: "The coding decisions of a study, newest first, filtered by taxon, trait, import, person or batch",
     tags: ["decisions"],
     access: "study.read",
@@ -33,11 +33,13 @@ export function decisionsRouter(ctx: AppContext, registry: OpenAPIRegistry): Api
   api.add({
     method: "post",
     path: "/studies/:studyId/decisions/:decisionId/revert",
+    operationId: "revertDecision",
     summary: "Put back the value a decision replaced (the revert is itself a decision)",
     tags: ["decisions"],
     access: "taxa.edit",
     params: decisionParamsSchema,
     body: decisionRevertSchema,
+    errorBody: { status: 409, schema: revertConflictSchema, description: "The value changed since, naming the current value" },
     response: { status: 200, schema: revertResultSchema, description: "Reverted. 409 RevertConflict: the value changed since, naming the current value" },
     handler: ({ params, body, user, res }) => answeringDetails(res, () => decisions.revert(params.studyId, params.decisionId, user!, body.reason)),
   });
@@ -45,11 +47,13 @@ export function decisionsRouter(ctx: AppContext, registry: OpenAPIRegistry): Api
   api.add({
     method: "post",
     path: "/studies/:studyId/decisions/batches/:batchId/revert",
+    operationId: "revertDecisionBatch",
     summary: "Revert every decision of one edit (a bulk edit, a codebook remap) at once",
     tags: ["decisions"],
     access: "taxa.edit",
     params: batchParamsSchema,
     body: decisionRevertSchema,
+    errorBody: { status: 409, schema: revertConflictSchema, description: "Values changed since; nothing was reverted" },
     response: { status: 200, schema: revertResultSchema, description: "Reverted. 409 RevertConflict: values changed since; nothing was reverted" },
     handler: ({ params, body, user, res }) => answeringDetails(res, () => decisions.revertBatch(params.studyId, params.batchId, user!, body.reason)),
   });

@@ -21,6 +21,7 @@ export function exportsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
   api.add({
     method: "get",
     path: "/studies/:studyId/exports/template.csv",
+    operationId: "exportImportTemplate",
     summary: "An import template: the header row of the taxon columns and one column per active trait",
     tags: ["exports"],
     access: "study.read",
@@ -36,6 +37,7 @@ export function exportsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
   api.add({
     method: "get",
     path: "/studies/:studyId/exports/taxa.csv",
+    operationId: "exportTaxa",
     summary: "The trait table as CSV: wide (a row per taxon) or long (a row per taxon and trait)",
     tags: ["exports"],
     access: "study.read",
@@ -56,6 +58,7 @@ export function exportsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
   api.add({
     method: "get",
     path: "/studies/:studyId/exports/codebook.csv",
+    operationId: "exportCodebook",
     summary: "The codebook as CSV, one row per state, to read beside the table",
     tags: ["exports"],
     access: "study.read",

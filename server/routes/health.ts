@@ -9,6 +9,7 @@ export function healthRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRou
   api.add({
     method: "get",
     path: "/health",
+    operationId: "getHealth",
     summary: "Is the app up and its database reachable?",
     tags: ["health"],
     access: "public",

@@ -17,19 +17,18 @@ import {
 } from "../../shared/schemas/imports";
 import { revertConflictSchema } from "../../shared/schemas/decisions";
 import type { AppContext } from "../context";
-import { answeringDetails, documentErrorBody } from "../http/detailed";
+import { answeringDetails } from "../http/detailed";
 import { ApiRouter } from "../http/route";
 import { csvUpload, uploadedFile } from "../http/uploads";
 
 export function importsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRouter {
   const api = new ApiRouter(registry, ctx);
   const { imports } = ctx.services;
-  documentErrorBody(registry, importProblemsErrorSchema);
-  documentErrorBody(registry, revertConflictSchema);
 
   api.add({
     method: "post",
     path: "/studies/:studyId/imports",
+    operationId: "uploadTraitTable",
     summary: "Upload a CSV file (at most 50 MB): columns, a suggested mapping and sample rows",
     tags: ["imports"],
     access: "imports.run",
@@ -43,6 +42,7 @@ export function importsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
   api.add({
     method: "get",
     path: "/studies/:studyId/imports",
+    operationId: "listImports",
     summary: "Import history: who imported what and when, with counts",
     tags: ["imports"],
     access: "study.read",
@@ -55,6 +55,7 @@ export function importsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
   api.add({
     method: "get",
     path: "/studies/:studyId/imports/:importId",
+    operationId: "getImport",
     summary: "One import, with the progress of a running commit (poll it)",
     tags: ["imports"],
     access: "study.read",
@@ -66,6 +67,7 @@ export function importsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
   api.add({
     method: "post",
     path: "/studies/:studyId/imports/:importId/preview",
+    operationId: "previewImport",
     summary: "Read the file through a mapping: every problem by row and column, and what a commit would change",
     tags: ["imports"],
     access: "imports.run",
@@ -78,11 +80,13 @@ export function importsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
   api.add({
     method: "post",
     path: "/studies/:studyId/imports/:importId/commit",
+    operationId: "commitImport",
     summary: "Write the valid rows in one transaction, or nothing; skipping invalid rows must be asked for",
     tags: ["imports"],
     access: "imports.run",
     params: importParamsSchema,
     body: importCommitSchema,
+    errorBody: { status: 400, schema: importProblemsErrorSchema, description: "Rows have problems and skipInvalid is false; nothing was written" },
     response: { status: 200, schema: importSummarySchema, description: "Committed. 400 ImportProblemsError: rows have problems and skipInvalid is false; nothing was written" },
     handler: ({ params, body, user, res }) => answeringDetails(res, () => imports.commit(params.studyId, params.importId, user!, body)),
   });
@@ -90,11 +94,13 @@ export function importsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
   api.add({
     method: "post",
     path: "/studies/:studyId/imports/:importId/revert",
+    operationId: "revertImport",
     summary: "Put back the values an import replaced and remove the taxa it added",
     tags: ["imports"],
     access: "imports.run",
     params: importParamsSchema,
     body: importRevertSchema,
+    errorBody: { status: 409, schema: revertConflictSchema, description: "Values changed since the import (send skipChanged to leave those)" },
     response: { status: 200, schema: importRevertResultSchema, description: "Reverted. 409 RevertConflict: values changed since the import (send skipChanged to leave those)" },
     handler: ({ params, body, user, res }) => answeringDetails(res, () => imports.revert(params.studyId, params.importId, user!, body)),
   });
@@ -102,6 +108,7 @@ export function importsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
   api.add({
     method: "delete",
     path: "/studies/:studyId/imports/:importId",
+    operationId: "discardImport",
     summary: "Discard an upload that was not committed, and its stored file",
     tags: ["imports"],
     access: "imports.run",

@@ -12,6 +12,7 @@ export function membersRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
   api.add({
     method: "get",
     path: "/studies/:studyId/members",
+    operationId: "listMembers",
     summary: "Members of a study and pending invitations",
     tags: ["members"],
     access: "members.read",
@@ -23,6 +24,7 @@ export function membersRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
   api.add({
     method: "post",
     path: "/studies/:studyId/invitations",
+    operationId: "inviteMember",
     summary: "Invite a person by e-mail with a role",
     tags: ["members"],
     access: "members.manage",
@@ -35,6 +37,7 @@ export function membersRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
   api.add({
     method: "patch",
     path: "/studies/:studyId/members/:userId",
+    operationId: "updateMember",
     summary: "Change a member's role (a study keeps at least one owner)",
     tags: ["members"],
     access: "members.manage",
@@ -47,6 +50,7 @@ export function membersRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
   api.add({
     method: "delete",
     path: "/studies/:studyId/members/:userId",
+    operationId: "removeMember",
     summary: "Remove a member (a study keeps at least one owner)",
     tags: ["members"],
     access: "members.manage",

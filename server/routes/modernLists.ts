@@ -17,7 +17,7 @@ import {
   modernUploadParamsSchema,
 } from "../../shared/schemas/modernLists";
 import type { AppContext } from "../context";
-import { answeringDetails, documentErrorBody } from "../http/detailed";
+import { answeringDetails } from "../http/detailed";
 import { ApiRouter } from "../http/route";
 import { csvUpload, uploadedFile } from "../http/uploads";
 
@@ -25,11 +25,11 @@ export function modernListsRouter(ctx: AppContext, registry: OpenAPIRegistry): A
   const api = new ApiRouter(registry, ctx);
   const { modernLists } = ctx.services;
   const tags = ["modern lists"];
-  documentErrorBody(registry, modernListProblemsErrorSchema);
 
   api.add({
     method: "post",
-    path: "/studies/:studyId/modern-lists/uploads",
+    path: "/studies/:studyId/modern-list-uploads",
+    operationId: "uploadModernList",
     summary: `Upload a modern species list as CSV (at most ${MODERN_LIST_MAX_LABEL}): its columns, a suggested mapping and sample rows`,
     tags,
     access: "comparisons.create",
@@ -42,7 +42,8 @@ export function modernListsRouter(ctx: AppContext, registry: OpenAPIRegistry): A
 
   api.add({
     method: "post",
-    path: "/studies/:studyId/modern-lists/uploads/:uploadId/preview",
+    path: "/studies/:studyId/modern-list-uploads/:uploadId/preview",
+    operationId: "previewModernList",
     summary: "Read the uploaded list through a mapping: every problem by row and column, species per threat category, and the first rows as they would be stored",
     tags,
     access: "comparisons.create",
@@ -54,19 +55,22 @@ export function modernListsRouter(ctx: AppContext, registry: OpenAPIRegistry): A
 
   api.add({
     method: "post",
-    path: "/studies/:studyId/modern-lists/uploads/:uploadId/commit",
+    path: "/studies/:studyId/modern-list-uploads/:uploadId/commit",
+    operationId: "commitModernList",
     summary: "Save the list with its valid species in one transaction, or nothing; leaving invalid rows out must be asked for",
     tags,
     access: "comparisons.create",
     params: modernUploadParamsSchema,
     body: modernListCommitSchema,
+    errorBody: { status: 400, schema: modernListProblemsErrorSchema, description: "Rows have problems and skipInvalid is false; nothing was written" },
     response: { status: 201, schema: modernListSchema, description: "Saved. 400 ModernListProblemsError: rows have problems and skipInvalid is false; nothing was written" },
     handler: ({ params, body, user, res }) => answeringDetails(res, () => modernLists.commit(params.studyId, params.uploadId, user!, body)),
   });
 
   api.add({
     method: "delete",
-    path: "/studies/:studyId/modern-lists/uploads/:uploadId",
+    path: "/studies/:studyId/modern-list-uploads/:uploadId",
+    operationId: "discardModernListUpload",
     summary: "Discard an upload that was not saved, and its stored file",
     tags,
     access: "comparisons.create",
@@ -78,6 +82,7 @@ export function modernListsRouter(ctx: AppContext, registry: OpenAPIRegistry): A
   api.add({
     method: "get",
     path: "/studies/:studyId/modern-lists",
+    operationId: "listModernLists",
     summary: "The study's modern lists, newest first, with species per threat category and whether a crosswalk is saved",
     tags,
     access: "study.read",
@@ -89,6 +94,7 @@ export function modernListsRouter(ctx: AppContext, registry: OpenAPIRegistry): A
   api.add({
     method: "get",
     path: "/studies/:studyId/modern-lists/:listId",
+    operationId: "getModernList",
     summary: "One list: its trait columns with their values and counts, the saved crosswalk (or a suggestion) and what it reads of the list, unusable values listed",
     tags,
     access: "study.read",
@@ -100,6 +106,7 @@ export function modernListsRouter(ctx: AppContext, registry: OpenAPIRegistry): A
   api.add({
     method: "put",
     path: "/studies/:studyId/modern-lists/:listId/crosswalk",
+    operationId: "saveCrosswalk",
     summary: "Save the crosswalk: which list column holds which trait, which list value means which state (numbers: a multiplier to the trait's unit)",
     tags,
     access: "comparisons.create",
@@ -112,6 +119,7 @@ export function modernListsRouter(ctx: AppContext, registry: OpenAPIRegistry): A
   api.add({
     method: "delete",
     path: "/studies/:studyId/modern-lists/:listId",
+    operationId: "deleteModernList",
     summary: "Delete a list, its species and the comparisons made with it",
     tags,
     access: "comparisons.create",

@@ -20,6 +20,7 @@ export function notificationsRouter(ctx: AppContext, registry: OpenAPIRegistry):
   api.add({
     method: "get",
     path: "/notifications",
+    operationId: "listNotifications",
     summary: "The caller's notifications (mentions) in the studies they belong to, newest first, with the unread count",
     tags: ["notifications"],
     access: "user",
@@ -31,6 +32,7 @@ export function notificationsRouter(ctx: AppContext, registry: OpenAPIRegistry):
   api.add({
     method: "post",
     path: "/notifications/:notificationId/read",
+    operationId: "markNotificationRead",
     summary: "Mark one of the caller's notifications read",
     tags: ["notifications"],
     access: "user",
@@ -42,6 +44,7 @@ export function notificationsRouter(ctx: AppContext, registry: OpenAPIRegistry):
   api.add({
     method: "post",
     path: "/notifications/read-all",
+    operationId: "markAllNotificationsRead",
     summary: "Mark the caller's notifications read: all, one study's or one thread's",
     tags: ["notifications"],
     access: "user",
@@ -52,7 +55,8 @@ export function notificationsRouter(ctx: AppContext, registry: OpenAPIRegistry):
 
   api.add({
     method: "get",
-    path: "/notifications/preferences",
+    path: "/notification-preferences",
+    operationId: "getNotificationPreferences",
     summary: "How the caller hears of mentions by e-mail, per study: at once, a daily digest, or none",
     tags: ["notifications"],
     access: "user",
@@ -62,7 +66,8 @@ export function notificationsRouter(ctx: AppContext, registry: OpenAPIRegistry):
 
   api.add({
     method: "put",
-    path: "/notifications/preferences/:studyId",
+    path: "/notification-preferences/:studyId",
+    operationId: "setNotificationPreferences",
     summary: "Choose how mentions in one study reach the caller by e-mail",
     tags: ["notifications"],
     access: "study.read",

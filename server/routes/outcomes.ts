@@ -11,6 +11,7 @@ export function outcomesRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiR
   api.add({
     method: "get",
     path: "/studies/:studyId/outcomes",
+    operationId: "getOutcomes",
     summary: "Survivors, victims and taxa not at risk across a boundary, with the proportional extinction, data warnings and the lists (overrides applied)",
     tags: ["outcomes"],
     access: "study.read",

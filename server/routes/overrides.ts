@@ -21,6 +21,7 @@ export function overridesRouter(ctx: AppContext, registry: OpenAPIRegistry): Api
   api.add({
     method: "get",
     path: "/studies/:studyId/outcome-overrides",
+    operationId: "listOutcomeOverrides",
     summary: "Outcomes set by hand, active and revoked, with who set them, when and why",
     tags: ["outcomes"],
     access: "study.read",
@@ -33,6 +34,7 @@ export function overridesRouter(ctx: AppContext, registry: OpenAPIRegistry): Api
   api.add({
     method: "post",
     path: "/studies/:studyId/outcome-overrides",
+    operationId: "createOutcomeOverride",
     summary: "Set a taxon's outcome by hand with a reason (replaces an active override of the same taxon and boundary); recorded as a coding decision",
     tags: ["outcomes"],
     access: "outcomes.override",
@@ -45,6 +47,7 @@ export function overridesRouter(ctx: AppContext, registry: OpenAPIRegistry): Api
   api.add({
     method: "post",
     path: "/studies/:studyId/outcome-overrides/bulk",
+    operationId: "createOutcomeOverrides",
     summary: "Apply an imported outcome column (taxon name and outcome per row) in one transaction: all rows or none",
     tags: ["outcomes"],
     access: "outcomes.override",
@@ -57,6 +60,7 @@ export function overridesRouter(ctx: AppContext, registry: OpenAPIRegistry): Api
   api.add({
     method: "post",
     path: "/studies/:studyId/outcome-overrides/:overrideId/revoke",
+    operationId: "revokeOutcomeOverride",
     summary: "Revoke an override with a reason: the taxon's computed outcome applies again; recorded as a coding decision",
     tags: ["outcomes"],
     access: "outcomes.override",

@@ -25,6 +25,7 @@ export function runsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
   api.add({
     method: "post",
     path: "/studies/:studyId/runs/preview",
+    operationId: "previewRun",
     summary: "What a run with these parameters would analyse: survivors, victims and taxa dropped for missing values, per boundary and trait; nothing is tested or stored",
     tags,
     access: "study.read",
@@ -37,6 +38,7 @@ export function runsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
   api.add({
     method: "post",
     path: "/studies/:studyId/runs",
+    operationId: "startRun",
     summary: "Start a selectivity run: stored at once as queued and computed as a job; poll GET runs/{runId} for its status and progress",
     tags,
     access: "runs.create",
@@ -49,6 +51,7 @@ export function runsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
   api.add({
     method: "get",
     path: "/studies/:studyId/runs",
+    operationId: "listRuns",
     summary: "The study's runs, newest first, with status, who started them, when, and the hash of the data they read (results left out)",
     tags,
     access: "study.read",
@@ -61,6 +64,7 @@ export function runsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
   api.add({
     method: "get",
     path: "/studies/:studyId/runs/:runId",
+    operationId: "getRun",
     summary: "One run as stored: parameters, data hash and row count, status and progress, and its results once it has succeeded (never recomputed)",
     tags,
     access: "study.read",
@@ -72,6 +76,7 @@ export function runsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
   api.add({
     method: "post",
     path: "/studies/:studyId/runs/:runId/retry",
+    operationId: "retryRun",
     summary: "Queue a failed run again with the same parameters (409 unless it failed)",
     tags,
     access: "runs.create",
@@ -83,6 +88,7 @@ export function runsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
   api.add({
     method: "post",
     path: "/studies/:studyId/runs/:runId/rerun",
+    operationId: "rerunRun",
     summary: "A new run with the same parameters on today's data, linked to this one by rerunOf",
     tags,
     access: "runs.create",
@@ -95,6 +101,7 @@ export function runsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
   api.add({
     method: "get",
     path: "/studies/:studyId/runs/:runId/diff",
+    operationId: "diffRuns",
     summary: "Two finished runs side by side: whether the data changed (hash, row count), which parameters differ, and each trait's and contrast's odds ratios and p-values",
     tags,
     access: "study.read",
@@ -107,6 +114,7 @@ export function runsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
   api.add({
     method: "get",
     path: "/studies/:studyId/runs/:runId/export",
+    operationId: "exportRun",
     summary: "Download a run: format=json is the stored run as is; format=csv its tables (all, each row naming its table, or one chosen with table=)",
     tags,
     access: "study.read",
@@ -125,6 +133,7 @@ export function runsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
   api.add({
     method: "get",
     path: "/studies/:studyId/runs/:runId/replication.zip",
+    operationId: "downloadRunReplication",
     summary: "Download a finished run for a re-run outside the app: the exact rows it analysed, its parameters and results, and an R script (base R only) that recomputes the numbers and prints them beside the app's",
     tags,
     access: "study.read",

@@ -11,6 +11,7 @@ export function studiesRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
   api.add({
     method: "get",
     path: "/studies",
+    operationId: "listStudies",
     summary: "Studies the caller is a member of",
     tags: ["studies"],
     access: "user",
@@ -21,6 +22,7 @@ export function studiesRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
   api.add({
     method: "post",
     path: "/studies",
+    operationId: "createStudy",
     summary: "Create a study; the caller becomes its owner",
     tags: ["studies"],
     access: "user",
@@ -32,6 +34,7 @@ export function studiesRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
   api.add({
     method: "get",
     path: "/studies/:studyId",
+    operationId: "getStudy",
     summary: "One study",
     tags: ["studies"],
     access: "study.read",
@@ -43,6 +46,7 @@ export function studiesRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
   api.add({
     method: "patch",
     path: "/studies/:studyId",
+    operationId: "updateStudy",
     summary: "Rename or describe a study",
     tags: ["studies"],
     access: "study.update",
@@ -55,6 +59,7 @@ export function studiesRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
   api.add({
     method: "delete",
     path: "/studies/:studyId",
+    operationId: "deleteStudy",
     summary: "Delete a study and everything in it",
     tags: ["studies"],
     access: "study.delete",

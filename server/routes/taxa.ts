@@ -18,17 +18,17 @@ import {
   taxonUpdateSchema,
 } from "../../shared/schemas/taxa";
 import type { AppContext } from "../context";
-import { answeringDetails, documentErrorBody } from "../http/detailed";
+import { answeringDetails } from "../http/detailed";
 import { ApiRouter } from "../http/route";
 
 export function taxaRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRouter {
   const api = new ApiRouter(registry, ctx);
   const { taxa, decisions } = ctx.services;
-  documentErrorBody(registry, taxonConflictSchema);
 
   api.add({
     method: "get",
     path: "/studies/:studyId/taxa",
+    operationId: "listTaxa",
     summary: "A page of the trait table, sorted, filtered and counted on the study's grid copy (never stale), rows read fresh",
     tags: ["taxa"],
     access: "study.read",
@@ -41,6 +41,7 @@ export function taxaRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
   api.add({
     method: "post",
     path: "/studies/:studyId/taxa",
+    operationId: "createTaxon",
     summary: "Add a taxon (one coding decision); 409 when the name is taken",
     tags: ["taxa"],
     access: "taxa.edit",
@@ -54,6 +55,7 @@ export function taxaRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
   api.add({
     method: "get",
     path: "/studies/:studyId/taxa/ids",
+    operationId: "listMatchingTaxonIds",
     summary: "The ids of every taxon the filters match, in the grid's order (for selecting them all); 400 beyond one bulk edit's limit",
     tags: ["taxa"],
     access: "study.read",
@@ -66,6 +68,7 @@ export function taxaRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
   api.add({
     method: "post",
     path: "/studies/:studyId/taxa/bulk",
+    operationId: "bulkEditTaxa",
     summary: "Set one field of many taxa with one shared reason (one decision per changed taxon, one batch)",
     tags: ["taxa"],
     access: "taxa.edit",
@@ -78,6 +81,7 @@ export function taxaRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
   api.add({
     method: "get",
     path: "/studies/:studyId/taxa/:taxonId",
+    operationId: "getTaxon",
     summary: "One row of the trait table",
     tags: ["taxa"],
     access: "study.read",
@@ -89,11 +93,13 @@ export function taxaRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
   api.add({
     method: "patch",
     path: "/studies/:studyId/taxa/:taxonId",
+    operationId: "updateTaxon",
     summary: "Edit a taxon based on its version; a reason is required to replace or clear a value",
     tags: ["taxa"],
     access: "taxa.edit",
     params: taxonParamsSchema,
     body: taxonUpdateSchema,
+    errorBody: { status: 409, schema: taxonConflictSchema, description: "The row changed since that version; the body holds the current values and who set them" },
     response: { status: 200, schema: taxonSavedSchema, description: "Saved. 409 TaxonConflict: the row changed since that version; the body holds the current values and who set them" },
     handler: ({ params, body, user, res }) => answeringDetails(res, () => taxa.update(params.studyId, params.taxonId, user!, body)),
   });
@@ -101,11 +107,13 @@ export function taxaRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
   api.add({
     method: "delete",
     path: "/studies/:studyId/taxa/:taxonId",
+    operationId: "deleteTaxon",
     summary: "Remove a taxon (its history stays; reverting the decision restores it)",
     tags: ["taxa"],
     access: "taxa.edit",
     params: taxonParamsSchema,
     query: taxonDeleteQuerySchema,
+    errorBody: { status: 409, schema: taxonConflictSchema, description: "The row changed since that version" },
     response: { status: 204, description: "Removed. 409 TaxonConflict: the row changed since that version" },
     handler: ({ params, query, user, res }) => answeringDetails(res, () => taxa.remove(params.studyId, params.taxonId, user!, query)),
   });
@@ -113,6 +121,7 @@ export function taxaRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
   api.add({
     method: "get",
     path: "/studies/:studyId/taxa/:taxonId/history",
+    operationId: "getTaxonHistory",
     summary: "Every coding decision about a taxon, or about one of its cells (traitId or field)",
     tags: ["taxa", "decisions"],
     access: "study.read",

@@ -19,6 +19,7 @@ export function threadsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
   api.add({
     method: "get",
     path: "/studies/:studyId/threads",
+    operationId: "listThreads",
     summary: "Threads of a study, latest activity first, filtered by status, target, author or mentioned person",
     tags: ["threads"],
     access: "study.read",
@@ -31,6 +32,7 @@ export function threadsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
   api.add({
     method: "post",
     path: "/studies/:studyId/threads",
+    operationId: "createThread",
     summary: "Open a thread on a trait, a taxon, a trait value, an outcome override, a run or a comparison, with its first post",
     tags: ["threads"],
     access: "threads.post",
@@ -43,6 +45,7 @@ export function threadsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
   api.add({
     method: "get",
     path: "/studies/:studyId/threads/:threadId",
+    operationId: "getThread",
     summary: "A thread with its posts (bodies verbatim), its resolution and the decisions a resolution can link",
     tags: ["threads"],
     access: "study.read",
@@ -54,6 +57,7 @@ export function threadsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
   api.add({
     method: "post",
     path: "/studies/:studyId/threads/:threadId/posts",
+    operationId: "replyToThread",
     summary: "Reply in a thread; mentioned members are notified",
     tags: ["threads"],
     access: "threads.post",
@@ -66,6 +70,7 @@ export function threadsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
   api.add({
     method: "post",
     path: "/studies/:studyId/threads/:threadId/resolve",
+    operationId: "resolveThread",
     summary: "Resolve a thread, optionally linking the coding decision that settled it (coders, study leads and the thread's author)",
     tags: ["threads"],
     access: "threads.post",
@@ -78,6 +83,7 @@ export function threadsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
   api.add({
     method: "post",
     path: "/studies/:studyId/threads/:threadId/reopen",
+    operationId: "reopenThread",
     summary: "Reopen a resolved thread (coders, study leads and the thread's author)",
     tags: ["threads"],
     access: "threads.post",

@@ -10,6 +10,7 @@ export function timescaleRouter(ctx: AppContext, registry: OpenAPIRegistry): Api
   api.add({
     method: "get",
     path: "/timescale",
+    operationId: "getTimescale",
     summary: "The geologic time scale (ICS International Chronostratigraphic Chart): periods, epochs and stages with base ages and uncertainties",
     tags: ["timescale"],
     access: "user",

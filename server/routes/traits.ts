@@ -12,17 +12,17 @@ import {
   traitUsageSchema,
 } from "../../shared/schemas/traits";
 import type { AppContext } from "../context";
-import { answeringDetails, documentErrorBody } from "../http/detailed";
+import { answeringDetails } from "../http/detailed";
 import { ApiRouter } from "../http/route";
 
 export function traitsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRouter {
   const api = new ApiRouter(registry, ctx);
   const { traits } = ctx.services;
-  documentErrorBody(registry, traitChangeConflictSchema);
 
   api.add({
     method: "get",
     path: "/studies/:studyId/traits",
+    operationId: "listTraits",
     summary: "The codebook: every trait of the study in order, retired ones flagged",
     tags: ["codebook"],
     access: "study.read",
@@ -34,6 +34,7 @@ export function traitsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRou
   api.add({
     method: "post",
     path: "/studies/:studyId/traits",
+    operationId: "createTrait",
     summary: "Add a trait to the codebook (409 when the key is taken)",
     tags: ["codebook"],
     access: "codebook.edit",
@@ -46,11 +47,13 @@ export function traitsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRou
   api.add({
     method: "patch",
     path: "/studies/:studyId/traits/:traitId",
+    operationId: "updateTrait",
     summary: "Change, retire or restore a trait; removing states in use needs a remap",
     tags: ["codebook"],
     access: "codebook.edit",
     params: traitParamsSchema,
     body: traitUpdateSchema,
+    errorBody: { status: 409, schema: traitChangeConflictSchema, description: "Values would be orphaned (states_in_use: send remap), out of range, or of another kind" },
     response: {
       status: 200,
       schema: traitUpdateResultSchema,
@@ -62,6 +65,7 @@ export function traitsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRou
   api.add({
     method: "post",
     path: "/studies/:studyId/traits/reorder",
+    operationId: "reorderTraits",
     summary: "Put the codebook in a new order (every trait id once)",
     tags: ["codebook"],
     access: "codebook.edit",
@@ -74,6 +78,7 @@ export function traitsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRou
   api.add({
     method: "get",
     path: "/studies/:studyId/traits/:traitId/usage",
+    operationId: "getTraitUsage",
     summary: "How many taxa hold each state (with a sample), or the range of numbers held",
     tags: ["codebook"],
     access: "study.read",

@@ -197,12 +197,12 @@ describe("hostile files", () => {
     await refused("an image renamed .csv", () => uploadAs(fixture("image-renamed.csv"), "photo.csv"), { status: 415, code: "not_csv_text", message: "The file is a PNG image" });
     await refused(
       "an image as a modern list",
-      () => cast.people.owner.agent.post(`/api/studies/${study.studyId}/modern-lists/uploads`).attach("file", fixture("image-renamed.csv"), "list.csv"),
+      () => cast.people.owner.agent.post(`/api/studies/${study.studyId}/modern-list-uploads`).attach("file", fixture("image-renamed.csv"), "list.csv"),
       { status: 415, code: "not_csv_text", message: "The file is a PNG image" },
     );
     await refused(
       "UTF-16 without a byte-order mark as a modern list",
-      () => cast.people.owner.agent.post(`/api/studies/${study.studyId}/modern-lists/uploads`).attach("file", fixture("utf16le-no-bom.csv"), "list.csv"),
+      () => cast.people.owner.agent.post(`/api/studies/${study.studyId}/modern-list-uploads`).attach("file", fixture("utf16le-no-bom.csv"), "list.csv"),
       { status: 415, code: "not_csv_text", message: "UTF-16" },
     );
   });
@@ -365,10 +365,10 @@ describe("text that is hostile only when run is stored verbatim and stays inert"
     it("in a comparison's export", async () => {
       ran.push("formula cells in a comparison export");
       const owner = cast.people.owner.agent;
-      const upload = await owner.post(`/api/studies/${study.studyId}/modern-lists/uploads`).attach("file", fixture("modern-list-formula-species.csv"), "formula-species.csv");
+      const upload = await owner.post(`/api/studies/${study.studyId}/modern-list-uploads`).attach("file", fixture("modern-list-formula-species.csv"), "formula-species.csv");
       expect(upload.status, JSON.stringify(upload.body)).toBe(201);
       const list = await owner
-        .post(`/api/studies/${study.studyId}/modern-lists/uploads/${upload.body.upload.id}/commit`)
+        .post(`/api/studies/${study.studyId}/modern-list-uploads/${upload.body.upload.id}/commit`)
         .send({ mapping: { name: "species", category: "status", traitColumns: ["environment"] }, name: "+Formula species (invented)", skipInvalid: false });
       expect(list.status, JSON.stringify(list.body)).toBe(201);
       const crosswalk = await owner

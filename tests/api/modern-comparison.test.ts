@@ -86,7 +86,7 @@ async function buildCrisis(): Promise<void> {
 }
 
 const upload = (content = LIST_CSV, fileName = "invented-modern-list.csv") =>
-  cast.people.analyst.agent.post(`/api/studies/${studyId}/modern-lists/uploads`).attach("file", Buffer.from(content, "utf8"), fileName);
+  cast.people.analyst.agent.post(`/api/studies/${studyId}/modern-list-uploads`).attach("file", Buffer.from(content, "utf8"), fileName);
 
 async function listsInStudy(): Promise<number> {
   const [{ n }] = await app.ctx.db.select({ n: count() }).from(modernLists).where(eq(modernLists.studyId, studyId));
@@ -117,7 +117,7 @@ describe("uploading a modern list in three steps", () => {
   });
 
   it("lists the bad row by row and column in the preview, with species per category", async () => {
-    const res = await cast.people.analyst.agent.post(`/api/studies/${studyId}/modern-lists/uploads/${uploadId}/preview`).send({ mapping: MAPPING });
+    const res = await cast.people.analyst.agent.post(`/api/studies/${studyId}/modern-list-uploads/${uploadId}/preview`).send({ mapping: MAPPING });
     expect(res.status, JSON.stringify(res.body)).toBe(200);
     const preview = res.body as ModernListPreview;
     expect(preview.counts).toEqual({ rows: 13, valid: 12, invalid: 1 });
@@ -130,7 +130,7 @@ describe("uploading a modern list in three steps", () => {
 
   it("writes nothing while a row has a problem, unless leaving invalid rows out is chosen", async () => {
     const refused = await cast.people.analyst.agent
-      .post(`/api/studies/${studyId}/modern-lists/uploads/${uploadId}/commit`)
+      .post(`/api/studies/${studyId}/modern-list-uploads/${uploadId}/commit`)
       .send({ mapping: MAPPING, name: "Invented coasts: modern species", skipInvalid: false });
     expect(refused.status).toBe(400);
     expect(refused.body.error.code).toBe("list_has_problems");
@@ -141,13 +141,13 @@ describe("uploading a modern list in three steps", () => {
     expect(species).toBe(0);
 
     const missingChoice = await cast.people.analyst.agent
-      .post(`/api/studies/${studyId}/modern-lists/uploads/${uploadId}/commit`)
+      .post(`/api/studies/${studyId}/modern-list-uploads/${uploadId}/commit`)
       .send({ mapping: MAPPING, name: "Invented coasts: modern species" });
     expect(missingChoice.status).toBe(400);
     expect(missingChoice.body.error.fields.skipInvalid).toMatch(/skipInvalid is required/);
 
     const saved = await cast.people.analyst.agent
-      .post(`/api/studies/${studyId}/modern-lists/uploads/${uploadId}/commit`)
+      .post(`/api/studies/${studyId}/modern-list-uploads/${uploadId}/commit`)
       .send({ mapping: MAPPING, name: "Invented coasts: modern species", skipInvalid: true });
     expect(saved.status, JSON.stringify(saved.body)).toBe(201);
     const list = saved.body as ModernList;
@@ -159,7 +159,7 @@ describe("uploading a modern list in three steps", () => {
 
     // A saved upload cannot be saved twice.
     const again = await cast.people.analyst.agent
-      .post(`/api/studies/${studyId}/modern-lists/uploads/${uploadId}/commit`)
+      .post(`/api/studies/${studyId}/modern-list-uploads/${uploadId}/commit`)
       .send({ mapping: MAPPING, name: "Twice", skipInvalid: true });
     expect(again.status).toBe(409);
   });
@@ -171,7 +171,7 @@ describe("uploading a modern list in three steps", () => {
 
   it("discards an upload that is not wanted", async () => {
     const res = await upload("species,status\nNulla (invented),LC\n");
-    const discarded = await cast.people.analyst.agent.delete(`/api/studies/${studyId}/modern-lists/uploads/${res.body.upload.id}`);
+    const discarded = await cast.people.analyst.agent.delete(`/api/studies/${studyId}/modern-list-uploads/${res.body.upload.id}`);
     expect(discarded.status).toBe(204);
     const [stored] = await app.ctx.db.select().from(imports).where(eq(imports.id, res.body.upload.id));
     expect(stored).toMatchObject({ status: "discarded", storedPath: null });

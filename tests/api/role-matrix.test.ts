@@ -348,22 +348,22 @@ const MATRIX: Record<string, Row> = {
   "GET /api/studies/{studyId}/exports/codebook.csv": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/exports/codebook.csv`) },
   // Modern comparison: lists, their uploads and crosswalks, and comparisons. What a call needs (a
   // list with a run whose model scores it, an upload, a saved comparison) is written directly or by the owner.
-  "POST /api/studies/{studyId}/modern-lists/uploads": {
+  "POST /api/studies/{studyId}/modern-list-uploads": {
     allowed: COMPARERS,
-    call: (a, { studyId }) => a.post(`/api/studies/${studyId}/modern-lists/uploads`).attach("file", Buffer.from("species,status\nMatrixia (invented),LC\n", "utf8"), "matrix-list.csv"),
+    call: (a, { studyId }) => a.post(`/api/studies/${studyId}/modern-list-uploads`).attach("file", Buffer.from("species,status\nMatrixia (invented),LC\n", "utf8"), "matrix-list.csv"),
   },
-  "POST /api/studies/{studyId}/modern-lists/uploads/{uploadId}/preview": {
+  "POST /api/studies/{studyId}/modern-list-uploads/{uploadId}/preview": {
     allowed: COMPARERS,
-    call: async (a, { studyId, cast }) => a.post(`/api/studies/${studyId}/modern-lists/uploads/${await matrixModernUpload(cast.people.owner.agent, studyId)}/preview`).send({ mapping: MATRIX_LIST_MAPPING }),
+    call: async (a, { studyId, cast }) => a.post(`/api/studies/${studyId}/modern-list-uploads/${await matrixModernUpload(cast.people.owner.agent, studyId)}/preview`).send({ mapping: MATRIX_LIST_MAPPING }),
   },
-  "POST /api/studies/{studyId}/modern-lists/uploads/{uploadId}/commit": {
+  "POST /api/studies/{studyId}/modern-list-uploads/{uploadId}/commit": {
     allowed: COMPARERS,
     call: async (a, { studyId, cast }) =>
-      a.post(`/api/studies/${studyId}/modern-lists/uploads/${await matrixModernUpload(cast.people.owner.agent, studyId)}/commit`).send({ mapping: MATRIX_LIST_MAPPING, name: "Matrix list", skipInvalid: false }),
+      a.post(`/api/studies/${studyId}/modern-list-uploads/${await matrixModernUpload(cast.people.owner.agent, studyId)}/commit`).send({ mapping: MATRIX_LIST_MAPPING, name: "Matrix list", skipInvalid: false }),
   },
-  "DELETE /api/studies/{studyId}/modern-lists/uploads/{uploadId}": {
+  "DELETE /api/studies/{studyId}/modern-list-uploads/{uploadId}": {
     allowed: COMPARERS,
-    call: async (a, { studyId, cast }) => a.delete(`/api/studies/${studyId}/modern-lists/uploads/${await matrixModernUpload(cast.people.owner.agent, studyId)}`),
+    call: async (a, { studyId, cast }) => a.delete(`/api/studies/${studyId}/modern-list-uploads/${await matrixModernUpload(cast.people.owner.agent, studyId)}`),
   },
   "GET /api/studies/{studyId}/modern-lists": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/modern-lists`) },
   "GET /api/studies/{studyId}/modern-lists/{listId}": {
@@ -444,11 +444,11 @@ const MATRIX: Record<string, Row> = {
     },
   },
   "POST /api/notifications/read-all": { allowed: SIGNED_IN, call: (a) => a.post("/api/notifications/read-all").send({}) },
-  "GET /api/notifications/preferences": { allowed: SIGNED_IN, call: (a) => a.get("/api/notifications/preferences") },
-  "PUT /api/notifications/preferences/{studyId}": {
+  "GET /api/notification-preferences": { allowed: SIGNED_IN, call: (a) => a.get("/api/notification-preferences") },
+  "PUT /api/notification-preferences/{studyId}": {
     allowed: MEMBERS,
     freshStudy: true,
-    call: (a, { studyId }) => a.put(`/api/notifications/preferences/${studyId}`).send({ mode: "digest" }),
+    call: (a, { studyId }) => a.put(`/api/notification-preferences/${studyId}`).send({ mode: "digest" }),
   },
   // The fake mailbox: everyone signed in reads their own mail (security-accounts checks whose).
   "GET /api/outbox": { allowed: SIGNED_IN, call: (a) => a.get("/api/outbox") },

@@ -246,11 +246,11 @@ describe("mentions", () => {
     const path = `/api/studies/${digestStudy.studyId}/threads`;
     const coder = cast.people.coder;
     const analyst = cast.people.analyst;
-    expect((await coder.agent.put(`/api/notifications/preferences/${digestStudy.studyId}`).send({ mode: "digest" })).body).toMatchObject({ mode: "digest" });
-    expect((await analyst.agent.put(`/api/notifications/preferences/${digestStudy.studyId}`).send({ mode: "none" })).status).toBe(200);
-    const prefs = await coder.agent.get("/api/notifications/preferences");
+    expect((await coder.agent.put(`/api/notification-preferences/${digestStudy.studyId}`).send({ mode: "digest" })).body).toMatchObject({ mode: "digest" });
+    expect((await analyst.agent.put(`/api/notification-preferences/${digestStudy.studyId}`).send({ mode: "none" })).status).toBe(200);
+    const prefs = await coder.agent.get("/api/notification-preferences");
     expect(prefs.body.preferences.find((p: { studyId: string }) => p.studyId === digestStudy.studyId)).toEqual({ studyId: digestStudy.studyId, studyName: "Invented digest study", mode: "digest" });
-    expect((await coder.agent.put(`/api/notifications/preferences/${digestStudy.studyId}`).send({ mode: "weekly" })).body.error.fields.mode).toMatch(/immediate, digest, none/);
+    expect((await coder.agent.put(`/api/notification-preferences/${digestStudy.studyId}`).send({ mode: "weekly" })).body.error.fields.mode).toMatch(/immediate, digest, none/);
 
     const before = new Date();
     const mention = [coder.user.id, analyst.user.id];
@@ -341,7 +341,7 @@ describe("the OpenAPI document", () => {
       "/api/studies/{studyId}/threads/{threadId}/resolve",
       "/api/studies/{studyId}/threads/{threadId}/reopen",
       "/api/notifications",
-      "/api/notifications/preferences/{studyId}",
+      "/api/notification-preferences/{studyId}",
       "/api/studies/{studyId}/activity",
     ]) {
       expect(paths).toContain(p);

@@ -135,7 +135,7 @@ export async function matrixComparison(app: TestApp, studyId: string): Promise<s
 /** An upload of a small invented list by `agent` (the owner in the matrix); returns its id. */
 export async function matrixModernUpload(agent: Agent, studyId: string): Promise<string> {
   const res = await agent
-    .post(`/api/studies/${studyId}/modern-lists/uploads`)
+    .post(`/api/studies/${studyId}/modern-list-uploads`)
     .attach("file", Buffer.from(`species,status,water\nMatrixia ${randomUUID().slice(0, 6)} (invented),LC,sea\n`, "utf8"), "matrix-list.csv");
   if (res.status !== 201) throw new Error(`test setup: modern list upload ${res.status} ${JSON.stringify(res.body)}`);
   return res.body.upload.id;

@@ -9,7 +9,8 @@ import { uploadWithProgress, type UploadProgress } from "../../lib/uploadWithPro
 
 const listsPath = (studyId: string) => studyApiPath(studyId, "/modern-lists");
 const listPath = (studyId: string, listId: string) => `${listsPath(studyId)}/${encodeURIComponent(listId)}`;
-const uploadPath = (studyId: string, uploadId: string) => `${listsPath(studyId)}/uploads/${encodeURIComponent(uploadId)}`;
+const uploadsPath = (studyId: string) => studyApiPath(studyId, "/modern-list-uploads");
+const uploadPath = (studyId: string, uploadId: string) => `${uploadsPath(studyId)}/${encodeURIComponent(uploadId)}`;
 const comparisonsPath = (studyId: string) => studyApiPath(studyId, "/comparisons");
 const comparisonPath = (studyId: string, comparisonId: string) => `${comparisonsPath(studyId)}/${encodeURIComponent(comparisonId)}`;
 
@@ -29,21 +30,21 @@ export function useModernList(studyId: string, listId: string) {
   });
 }
 
-/** POST /api/studies/:studyId/modern-lists/uploads (multipart, field `file`). */
+/** POST /api/studies/:studyId/modern-list-uploads (multipart, field `file`). */
 export function useUploadModernList(studyId: string) {
   return useMutation({
-    mutationFn: ({ file, onProgress }: { file: File; onProgress: (p: UploadProgress) => void }) => uploadWithProgress<ModernListUpload>(`${listsPath(studyId)}/uploads`, "file", file, onProgress),
+    mutationFn: ({ file, onProgress }: { file: File; onProgress: (p: UploadProgress) => void }) => uploadWithProgress<ModernListUpload>(uploadsPath(studyId), "file", file, onProgress),
   });
 }
 
-/** POST /api/studies/:studyId/modern-lists/uploads/:uploadId/preview */
+/** POST /api/studies/:studyId/modern-list-uploads/:uploadId/preview */
 export function usePreviewModernList(studyId: string) {
   return useMutation({
     mutationFn: ({ uploadId, mapping }: { uploadId: string; mapping: ModernListMapping }) => api.post<ModernListPreview>(`${uploadPath(studyId, uploadId)}/preview`, { mapping }),
   });
 }
 
-/** POST /api/studies/:studyId/modern-lists/uploads/:uploadId/commit: the list and its valid species, or nothing. */
+/** POST /api/studies/:studyId/modern-list-uploads/:uploadId/commit: the list and its valid species, or nothing. */
 export function useCommitModernList(studyId: string) {
   const queryClient = useQueryClient();
   return useMutation({
@@ -52,7 +53,7 @@ export function useCommitModernList(studyId: string) {
   });
 }
 
-/** DELETE /api/studies/:studyId/modern-lists/uploads/:uploadId: drops an upload that was never saved. */
+/** DELETE /api/studies/:studyId/modern-list-uploads/:uploadId: drops an upload that was never saved. */
 export function useDiscardModernUpload(studyId: string) {
   return useMutation({ mutationFn: (uploadId: string) => api.delete(uploadPath(studyId, uploadId)) });
 }

@@ -43,19 +43,19 @@ export function useActivity(studyId: string, page: number, pageSize: number) {
   });
 }
 
-/** GET /api/notifications/preferences: the caller's e-mail choice for mentions, per study. */
+/** GET /api/notification-preferences: the caller's e-mail choice for mentions, per study. */
 export function useMentionPreferences() {
   return useQuery({
     queryKey: queryKeys.notifications.preferences,
-    queryFn: ({ signal }) => api.get<NotificationPreferenceList>("/notifications/preferences", signal),
+    queryFn: ({ signal }) => api.get<NotificationPreferenceList>("/notification-preferences", signal),
   });
 }
 
-/** PUT /api/notifications/preferences/:studyId */
+/** PUT /api/notification-preferences/:studyId */
 export function useSetMentionPreference(studyId: string) {
   const queryClient = useQueryClient();
   return useMutation({
-    mutationFn: (input: NotificationPreferenceUpdateInput) => api.put<NotificationPreference>(`/notifications/preferences/${encodeURIComponent(studyId)}`, input),
+    mutationFn: (input: NotificationPreferenceUpdateInput) => api.put<NotificationPreference>(`/notification-preferences/${encodeURIComponent(studyId)}`, input),
     onSuccess: (saved) =>
       queryClient.setQueryData<NotificationPreferenceList>(queryKeys.notifications.preferences, (list) =>
         list ? { preferences: list.preferences.map((p) => (p.studyId === saved.studyId ? saved : p)) } : list,
