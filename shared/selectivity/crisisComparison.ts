@@ -171,7 +171,7 @@ function compareTrait(spec: SelectivityTraitSpec, boundaries: CrisisComparisonIn
     trait = { kind: "numeric" };
   } else {
     // Reference: the run's choice, else the most common state over all boundaries.
-    const counts = { victims: new Array<number>(spec.states.length).fill(0), survivors: new Array<number>(spec.states.length).fill(0) };
+    const counts = { victims: new Int32Array(spec.states.length), survivors: new Int32Array(spec.states.length) };
     const atCrisis = new Set<number>();
     const atBackground = new Set<number>();
     encoded.forEach((b, j) => {
