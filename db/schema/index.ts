@@ -7,3 +7,4 @@ export * from "./outcomes";
 export * from "./analysis";
 export * from "./discussion";
 export * from "./occurrences";
+export * from "./apiTokens";
