@@ -1,4 +1,10 @@
-// How dates and counts read everywhere in the app.
+// How dates, counts, numbers, p-values, ages and units read everywhere in the app: one module, so
+// one number reads the same on every screen, in reports and in chart labels.
+import { formatCompact, formatNumber } from "@shared/selectivity/formatNumber";
+
+// Three significant figures ("2.80", "0.0123"), and the same without trailing zeros for short
+// labels ("2", "0.453"); shared with the server, which writes them into sentences.
+export { formatCompact, formatNumber };
 
 const dateFormat = new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "short", year: "numeric" });
 const dateTimeFormat = new Intl.DateTimeFormat("en-GB", {
@@ -44,4 +50,52 @@ export function initials(name: string): string {
   const first = parts[0][0] ?? "";
   const last = parts.length > 1 ? (parts[parts.length - 1][0] ?? "") : "";
   return (first + last).toUpperCase();
+}
+
+/** Below this a p-value is shown as a bound: the tail computations are not exact further out. */
+const SMALLEST_P = 1e-15;
+
+/** A p-value: "0.0213", "0.43", "3.2e-7", "< 1e-15", "1.00"; "—" when no test was possible. */
+export function formatP(p: number | null | undefined): string {
+  if (p === null || p === undefined || !Number.isFinite(p)) return "—";
+  if (p < SMALLEST_P) return "< 1e-15";
+  if (p >= 0.9995) return "1.00";
+  if (p >= 0.001) return p.toFixed(p >= 0.1 ? 2 : 3);
+  return p.toPrecision(2);
+}
+
+/** A p-value in a sentence: "p = 0.0213", "p < 1e-15". */
+export function formatPStatement(p: number | null | undefined): string {
+  const text = formatP(p);
+  return text.startsWith("<") ? `p ${text}` : `p = ${text}`;
+}
+
+const percentFormat = new Intl.NumberFormat("en-GB", { style: "percent", minimumFractionDigits: 1, maximumFractionDigits: 1 });
+
+/** A proportion as a percentage with one decimal: 0.4286 -> "42.9%"; "—" when there is none. */
+export function formatPercent(value: number | null | undefined): string {
+  return value === null || value === undefined || !Number.isFinite(value) ? "—" : percentFormat.format(value);
+}
+
+const ageFormat = new Intl.NumberFormat("en-GB", { maximumFractionDigits: 4 });
+
+/** "93.9 Ma" (an age before present, in millions of years). */
+export function formatMa(age: number): string {
+  return `${ageFormat.format(age)} Ma`;
+}
+
+/** "6.6 Myr" (a duration in millions of years). */
+export function formatMyr(duration: number): string {
+  return `${ageFormat.format(duration)} Myr`;
+}
+
+/** A plain number as ages are written, without the unit: "93.9". */
+export function formatAgeNumber(age: number): string {
+  return ageFormat.format(age);
+}
+
+/** A recorded measurement as entered (up to ten significant figures, no exponent for everyday sizes), with its unit: "12.5 mm". */
+export function formatMeasurement(value: number, unit?: string | null): string {
+  const text = Number.isInteger(value) ? String(value) : String(Number(value.toPrecision(10)));
+  return unit ? `${text} ${unit}` : text;
 }

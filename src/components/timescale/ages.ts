@@ -10,22 +10,8 @@ export const RANK_WORD: Record<TimescaleRankName, string> = {
   Age: "stage",
 };
 
-const ageFormat = new Intl.NumberFormat("en-GB", { maximumFractionDigits: 4 });
-
-/** "93.9 Ma" (ages before present, in millions of years). */
-export function formatMa(age: number): string {
-  return `${ageFormat.format(age)} Ma`;
-}
-
-/** "6.6 Myr" (a duration in millions of years). */
-export function formatMyr(duration: number): string {
-  return `${ageFormat.format(duration)} Myr`;
-}
-
-/** A plain number as ages are written, without the unit: "93.9". */
-export function formatAgeNumber(age: number): string {
-  return ageFormat.format(age);
-}
+// The age formats live with every other number format; re-exported for the time scale widgets.
+export { formatAgeNumber, formatMa, formatMyr } from "../../lib/format";
 
 /** The boundary plus the window, rounded to a year so 93.9 + 6.6 reads 100.5, not 100.49999999999999. */
 export function windowEdge(boundary: number, window: number): number {

@@ -17,12 +17,7 @@ export const OUTCOME_GROUP_LABEL: Record<BoundaryOutcomeName, string> = {
 export const GROUP_ORDER: readonly BoundaryOutcomeName[] = ["survivor", "victim", "excluded"];
 
 const rateFormat = new Intl.NumberFormat("en-GB", { minimumFractionDigits: 2, maximumFractionDigits: 3 });
-const percentFormat = new Intl.NumberFormat("en-GB", { style: "percent", minimumFractionDigits: 1, maximumFractionDigits: 1 });
-
-/** "42.9%" */
-export function formatPercent(value: number): string {
-  return percentFormat.format(value);
-}
+export { formatPercent } from "../../lib/format";
 
 /** "30%" */
 export function formatWholePercent(value: number): string {

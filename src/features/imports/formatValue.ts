@@ -1,5 +1,6 @@
 // How imported values read on the imports screen: states by label, ranges as ages or intervals.
 import type { Trait } from "@shared/schemas/traits";
+import { formatMeasurement } from "../../lib/format";
 
 const FIELD_LABELS: Record<string, string> = {
   name: "Name",
@@ -24,6 +25,6 @@ export function formatImportValue(value: unknown, trait: Trait | undefined): str
     return JSON.stringify(value);
   }
   if (trait && trait.kind !== "numeric") return trait.states.find((s) => s.code === value)?.label ?? String(value);
-  if (trait?.unit && typeof value === "number") return `${value} ${trait.unit}`;
+  if (typeof value === "number") return formatMeasurement(value, trait?.unit);
   return String(value);
 }

@@ -1,6 +1,6 @@
 // How the modern comparison screens write numbers and categories.
 import { IUCN_CATEGORY_NAMES, threatGroup, type IucnCategory } from "@shared/iucn";
-import { formatCompact } from "@shared/selectivity/formatNumber";
+import { formatCompact, formatPStatement } from "../../lib/format";
 
 /** "0.73": a predicted probability, two decimals. */
 export const formatProbability = (p: number | null | undefined) => (p === null || p === undefined ? "—" : p.toFixed(2));
@@ -15,8 +15,8 @@ export const formatOdds = (v: number | null | undefined) => (v === null || v ===
 export const formatInterval = (ci: [number, number] | null | undefined, format: (v: number) => string = formatCompact) =>
   ci ? `${format(ci[0])} – ${format(ci[1])}` : "—";
 
-/** "p = 0.012", "p < 0.001" */
-export const formatP = (p: number) => (p < 0.001 ? "p < 0.001" : `p = ${p < 0.01 ? p.toFixed(3) : p.toFixed(2)}`);
+/** "p = 0.012", "p < 1e-15": the same digits as every other p-value of the app. */
+export const formatP = formatPStatement;
 
 export const categoryTitle = (c: IucnCategory) => `${c} · ${IUCN_CATEGORY_NAMES[c]}`;
 

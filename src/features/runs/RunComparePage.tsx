@@ -1,18 +1,16 @@
 import { Fragment, useId, useState } from "react";
 import { Link, useSearchParams } from "react-router-dom";
 import type { RunDiff, RunSummary } from "@shared/schemas/runs";
-import { formatNumber } from "@shared/selectivity/formatNumber";
 import { Button, ButtonLink } from "../../components/Button";
 import { Card } from "../../components/Card";
 import { EmptyState } from "../../components/EmptyState";
 import { ErrorState } from "../../components/ErrorState";
 import { cx, focusRing } from "../../components/focus";
 import { LoadingState } from "../../components/LoadingState";
-import { formatAgeNumber } from "../../components/timescale/ages";
 import { PageHeader } from "../../components/PageHeader";
 import { TextLink } from "../../components/TextLink";
 import { useCurrentStudy } from "../../lib/currentStudy";
-import { formatCount, formatDateTime } from "../../lib/format";
+import { formatAgeNumber, formatCount, formatDateTime, formatNumber, formatP } from "../../lib/format";
 import { paths } from "../../lib/paths";
 import { useDocumentTitle } from "../../lib/useDocumentTitle";
 import { useRunDiff } from "../../lib/queries/runs";
@@ -21,7 +19,6 @@ import { selectivityLink } from "./RunsPage";
 type Pair = { base: number | null; run: number | null };
 
 const number = (v: number | null) => (v === null ? "—" : v === Infinity ? "∞" : formatNumber(v));
-const pValue = (v: number | null) => (v === null ? "—" : v < 1e-15 ? "< 1e-15" : v >= 0.001 ? v.toFixed(v >= 0.1 ? 2 : 3) : v.toPrecision(2));
 
 /** Two runs side by side: whether the data and the parameters changed, and every number that moved. */
 export function RunComparePage() {
@@ -243,8 +240,8 @@ function TraitComparison({ trait, onlyChanged }: { trait: RunDiff["boundaries"][
   const contrasts = onlyChanged ? trait.contrasts.filter((c) => c.changed) : trait.contrasts;
   const traitMetrics: Metric[] = [
     { label: "Taxa tested", pair: trait.used, format: count },
-    { label: "p", pair: trait.pValue, format: pValue },
-    { label: "Adjusted p", pair: trait.adjustedPValue, format: pValue },
+    { label: "p", pair: trait.pValue, format: formatP },
+    { label: "Adjusted p", pair: trait.adjustedPValue, format: formatP },
   ];
   const keep = (m: Metric) => !onlyChanged || m.pair.base !== m.pair.run;
   return (

@@ -1,5 +1,5 @@
 import { useId } from "react";
-import { formatCompact } from "@shared/selectivity/formatNumber";
+import { formatCompact } from "../../lib/format";
 import { formatEstimate } from "./words";
 
 export type EstimateKind = "crude" | "clade" | "model";

@@ -1,5 +1,5 @@
 import { ResponsiveHeatMap, type HeatMapSvgProps } from "@nivo/heatmap";
-import { formatCompact } from "@shared/selectivity/formatNumber";
+import { formatCompact } from "../../lib/format";
 import type { HeatRow } from "./resultRows";
 
 const FONT = '"Inter Tight", system-ui, sans-serif';

@@ -1,5 +1,5 @@
 // How the numbers of a selectivity run read on screen, in the report and in chart labels.
-import { formatNumber } from "@shared/selectivity/formatNumber";
+import { formatNumber } from "../../lib/format";
 import { CORRECTION_LABELS, type RunParams } from "@shared/schemas/runs";
 import type { TraitKind } from "@shared/codebook";
 
@@ -17,18 +17,8 @@ export const CORRECTION_SHORT: Record<RunParams["correction"], string> = {
 };
 
 export { CORRECTION_LABELS };
-
-/** Below this a p-value is shown as a bound: the tail computations are not exact further out. */
-const SMALLEST_P = 1e-15;
-
-/** "0.0213", "3.2e-7", "< 1e-15"; "—" when no test was possible. */
-export function formatP(p: number | null | undefined): string {
-  if (p === null || p === undefined || !Number.isFinite(p)) return "—";
-  if (p < SMALLEST_P) return "< 1e-15";
-  if (p >= 0.9995) return "1.00";
-  if (p >= 0.001) return p.toFixed(p >= 0.1 ? 2 : 3);
-  return p.toPrecision(2);
-}
+// p-values and percentages read as everywhere else in the app.
+export { formatP, formatPercent } from "../../lib/format";
 
 /** An odds ratio, an estimate or a statistic: three significant figures ("2.67", "0.412", "Infinity" as "∞"). */
 export function formatEstimate(value: number | null | undefined): string {
@@ -44,13 +34,7 @@ export function formatInterval(ci: readonly [number, number] | null | undefined)
   return `${formatEstimate(ci[0])} to ${formatEstimate(ci[1])}`;
 }
 
-const percentFormat = new Intl.NumberFormat("en-GB", { style: "percent", minimumFractionDigits: 1, maximumFractionDigits: 1 });
 const wholePercentFormat = new Intl.NumberFormat("en-GB", { style: "percent", maximumFractionDigits: 0 });
-
-/** "42.9%" */
-export function formatPercent(value: number | null | undefined): string {
-  return value === null || value === undefined || !Number.isFinite(value) ? "—" : percentFormat.format(value);
-}
 
 /** "10%" */
 export function formatWholePercent(value: number): string {

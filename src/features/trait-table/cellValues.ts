@@ -4,6 +4,7 @@
 import { checkTraitValue, rangeProblem, readRangeCell, readTraitCell, sameValue, type Checked } from "@shared/csv/values";
 import type { RangeEnd, RangeEndInput, TaxonChanges, TaxonRow } from "@shared/schemas/taxa";
 import type { Trait } from "@shared/schemas/traits";
+import { formatMeasurement } from "../../lib/format";
 
 export type TaxonField = "name" | "higherTaxon" | "fad" | "lad" | "notes";
 
@@ -32,13 +33,11 @@ export function isEmptyValue(value: unknown): boolean {
   return value === null || value === undefined || value === "";
 }
 
-const formatNumber = (n: number) => (Number.isInteger(n) ? String(n) : String(Number(n.toPrecision(10))));
-
 /** A trait value for people: a state's label, or a number with its unit. */
 export function formatTraitValue(trait: Trait | undefined, value: unknown): string {
   if (isEmptyValue(value)) return "";
   if (!trait) return String(value);
-  if (trait.kind === "numeric") return typeof value === "number" ? `${formatNumber(value)}${trait.unit ? ` ${trait.unit}` : ""}` : String(value);
+  if (trait.kind === "numeric") return typeof value === "number" ? formatMeasurement(value, trait.unit) : String(value);
   const state = trait.states.find((s) => s.code === value);
   return state ? state.label : `${String(value)} (not in the codebook)`;
 }
@@ -46,7 +45,7 @@ export function formatTraitValue(trait: Trait | undefined, value: unknown): stri
 /** A range end for people: "Maastrichtian (top, 66 Ma)" or "72.1 Ma". */
 export function formatRangeEnd(end: RangeEnd | { ma?: number; interval?: string | null } | null | undefined): string {
   if (!end || typeof end !== "object") return "";
-  const ma = typeof end.ma === "number" ? `${formatNumber(end.ma)} Ma` : "";
+  const ma = typeof end.ma === "number" ? formatMeasurement(end.ma, "Ma") : "";
   if (end.interval) return ma ? `${end.interval} · ${ma}` : end.interval;
   return ma;
 }
