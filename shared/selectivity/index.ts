@@ -33,3 +33,14 @@ export {
   type CrisisComparisonResult,
   type CrisisComparisonTrait,
 } from "./crisisComparison";
+export {
+  robustnessPanel,
+  type JackknifeSummary,
+  type RobustnessContrast,
+  type RobustnessInput,
+  type RobustnessPanel,
+  type RobustnessVariant,
+  type RobustnessVerdict,
+  type VariantKind,
+  type VerdictStatus,
+} from "./robustnessPanel";
