@@ -2,7 +2,8 @@ import { useEffect, useId, useRef, useState } from "react";
 import { Link, useLocation } from "react-router-dom";
 import type { User } from "@shared/schemas/auth";
 import { Avatar } from "../components/Avatar";
-import { cx, focusRing } from "../components/focus";
+import { focusRing } from "../components/focus";
+import { cx } from "../lib/cx";
 import { Spinner } from "../components/Spinner";
 import { paths } from "../lib/paths";
 

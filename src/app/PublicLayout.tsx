@@ -1,5 +1,6 @@
 import { Link, Outlet } from "react-router-dom";
-import { cx, focusRing } from "../components/focus";
+import { focusRing } from "../components/focus";
+import { cx } from "../lib/cx";
 import { paths } from "../lib/paths";
 import { Wordmark } from "./Wordmark";
 

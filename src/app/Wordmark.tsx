@@ -1,4 +1,4 @@
-import { cx } from "../components/focus";
+import { cx } from "../lib/cx";
 
 /** The product's mark: strata with gaps, the layers a sieve lets through. */
 export function Wordmark({ className, size = "md" }: { className?: string; size?: "md" | "lg" }) {

@@ -1,5 +1,5 @@
 import { initials } from "../lib/format";
-import { cx } from "./focus";
+import { cx } from "../lib/cx";
 
 /** Initials in a circle; decorative, the name is always written next to it. */
 export function Avatar({ name, className }: { name: string; className?: string }) {

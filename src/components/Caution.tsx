@@ -1,5 +1,5 @@
 import type { ReactNode } from "react";
-import { cx } from "./focus";
+import { cx } from "../lib/cx";
 
 /** A standing caution about how to read a result (not an error): calm, but hard to miss. */
 export function Caution({ title, children, className }: { title: ReactNode; children: ReactNode; className?: string }) {

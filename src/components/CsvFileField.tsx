@@ -1,5 +1,5 @@
 import { FieldShell, controlClasses } from "./Field";
-import { cx } from "./focus";
+import { cx } from "../lib/cx";
 
 interface CsvFileFieldProps {
   label: string;

@@ -1,5 +1,5 @@
 import type { ReactNode } from "react";
-import { cx } from "./focus";
+import { cx } from "../lib/cx";
 
 export interface EmptyStateProps {
   title: ReactNode;

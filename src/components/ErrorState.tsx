@@ -1,7 +1,7 @@
 import type { ReactNode } from "react";
 import { ApiError, errorMessage, NETWORK_ERROR_CODE } from "../lib/api";
 import { Button } from "./Button";
-import { cx } from "./focus";
+import { cx } from "../lib/cx";
 
 export interface ErrorStateProps {
   error: unknown;

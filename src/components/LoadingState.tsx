@@ -1,4 +1,4 @@
-import { cx } from "./focus";
+import { cx } from "../lib/cx";
 import { Spinner } from "./Spinner";
 
 export interface LoadingStateProps {

@@ -1,6 +1,6 @@
 import { useEffect, useId, useRef, useState, type ReactNode } from "react";
 import { buttonClasses } from "./Button";
-import { cx } from "./focus";
+import { cx } from "../lib/cx";
 
 interface PopoverProps {
   /** What the button shows. */

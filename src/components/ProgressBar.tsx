@@ -1,4 +1,4 @@
-import { cx } from "./focus";
+import { cx } from "../lib/cx";
 
 /** A labelled bar for long work; `value` from 0 to 1, or null while the share is unknown. */
 export function ProgressBar({ label, value, detail }: { label: string; value: number | null; detail?: string }) {

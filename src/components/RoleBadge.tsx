@@ -1,5 +1,5 @@
 import { ROLE_LABELS, ROLE_SUMMARIES, type StudyRole } from "@shared/roles";
-import { cx } from "./focus";
+import { cx } from "../lib/cx";
 
 /** A person's role in a study, named as the app names it; hover or focus shows what it allows. */
 export function RoleBadge({ role, className }: { role: StudyRole; className?: string }) {

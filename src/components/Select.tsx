@@ -1,6 +1,6 @@
 import type { ReactNode, SelectHTMLAttributes } from "react";
 import { controlClasses, FieldShell } from "./Field";
-import { cx } from "./focus";
+import { cx } from "../lib/cx";
 
 export interface SelectOption {
   value: string;

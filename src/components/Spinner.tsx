@@ -1,4 +1,4 @@
-import { cx } from "./focus";
+import { cx } from "../lib/cx";
 
 /** A small rotating ring; decorative, so the surrounding text must say what is happening. */
 export function Spinner({ className }: { className?: string }) {

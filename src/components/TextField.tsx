@@ -1,6 +1,7 @@
 import { useState, type InputHTMLAttributes, type ReactNode, type TextareaHTMLAttributes } from "react";
 import { controlClasses, FieldShell } from "./Field";
-import { cx, focusRing } from "./focus";
+import { focusRing } from "./focus";
+import { cx } from "../lib/cx";
 
 interface CommonFieldProps {
   label: ReactNode;

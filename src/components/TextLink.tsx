@@ -1,5 +1,6 @@
 import { Link, type LinkProps } from "react-router-dom";
-import { cx, focusRing } from "./focus";
+import { focusRing } from "./focus";
+import { cx } from "../lib/cx";
 
 export const textLinkClasses = cx(
   "rounded-sm font-medium text-accent-700 underline decoration-accent-200 decoration-2 underline-offset-2 hover:text-accent-900 hover:decoration-accent-500",

@@ -1,5 +1,6 @@
 import { createContext, useCallback, useContext, useMemo, useRef, useState, type ReactNode } from "react";
-import { cx, focusRing } from "./focus";
+import { focusRing } from "./focus";
+import { cx } from "../lib/cx";
 
 export type ToastTone = "success" | "info" | "error";
 

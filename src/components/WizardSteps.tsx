@@ -1,4 +1,4 @@
-import { cx } from "./focus";
+import { cx } from "../lib/cx";
 
 interface WizardStepsProps {
   /** Names the list for screen readers, e.g. "Steps of the import". */

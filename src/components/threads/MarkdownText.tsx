@@ -1,6 +1,6 @@
 import { Fragment, useMemo, type ReactNode } from "react";
 import { parseMarkdown, type MarkdownInline } from "@shared/markdown";
-import { cx } from "../focus";
+import { cx } from "../../lib/cx";
 import { textLinkClasses } from "../TextLink";
 
 function renderInline(nodes: MarkdownInline[], keyPrefix: string): ReactNode[] {

@@ -1,7 +1,7 @@
 import { useId, useLayoutEffect, useRef, useState, type KeyboardEvent } from "react";
 import { MARKDOWN_MAX_LENGTH } from "@shared/markdown";
 import { controlClasses, FieldShell } from "../Field";
-import { cx } from "../focus";
+import { cx } from "../../lib/cx";
 import { Avatar } from "../Avatar";
 import { formatCount } from "../../lib/format";
 import { matchMembers, mentionQueryAt, type Mentionable } from "./mentions";

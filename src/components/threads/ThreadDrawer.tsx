@@ -1,6 +1,7 @@
 import { useEffect, useId, useRef } from "react";
 import { Button } from "../Button";
-import { cx, focusRing } from "../focus";
+import { focusRing } from "../focus";
+import { cx } from "../../lib/cx";
 import { ThreadPanel, type ThreadPanelProps } from "./ThreadPanel";
 
 interface ThreadDrawerProps extends ThreadPanelProps {

@@ -2,7 +2,7 @@
 // thread's line in a list.
 import type { ReactNode } from "react";
 import type { DecisionBrief, ThreadStatus, ThreadSummary } from "@shared/schemas/threads";
-import { cx } from "../focus";
+import { cx } from "../../lib/cx";
 import { formatDateTime, pluralize } from "../../lib/format";
 
 export function ThreadStatusBadge({ status, className }: { status: ThreadStatus; className?: string }) {

@@ -4,7 +4,7 @@ import { canResolveThread, postCreateSchema, type ThreadDetail, type ThreadTarge
 import { Avatar } from "../Avatar";
 import { Button } from "../Button";
 import { ErrorState } from "../ErrorState";
-import { cx } from "../focus";
+import { cx } from "../../lib/cx";
 import { LoadingState } from "../LoadingState";
 import { FormError, Notice } from "../Notice";
 import { useToast } from "../Toast";

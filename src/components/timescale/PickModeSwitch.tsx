@@ -1,5 +1,5 @@
 import { useId } from "react";
-import { cx } from "../focus";
+import { cx } from "../../lib/cx";
 
 export type BoundaryPickMode = "unit" | "age";
 

@@ -1,9 +1,10 @@
 import type { ScorecardItemResult, TurnoverResult } from "@shared/schemas/turnover";
 import { Card } from "../../components/Card";
+import { textLinkClasses } from "../../components/TextLink";
 import { Caution } from "../../components/Caution";
 import { ErrorState } from "../../components/ErrorState";
 import { LoadingState } from "../../components/LoadingState";
-import { cx } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { formatCount } from "../../lib/format";
 import type { useTurnover } from "./api";
 import { formatPercent, formatWholePercent } from "./words";
@@ -34,13 +35,26 @@ const CRITERION_QUESTION: Record<ScorecardItemResult["criterion"], string> = {
 };
 
 /** The boundary scorecard: the criteria the trade reads for a mass extinction, each from this study's data or marked not assessable. */
-export function BoundaryScorecard({ turnover }: { turnover: ReturnType<typeof useTurnover> }) {
+export function BoundaryScorecard({ turnover, csvUrl }: { turnover: ReturnType<typeof useTurnover>; csvUrl: string | null }) {
   const data = turnover.data;
   return (
     <Card
       title="Boundary scorecard"
       description="The criteria by which an event is usually called a mass extinction, each read from this study’s taxa where it can be."
-      actions={turnover.isFetching && data ? <span className="text-sm text-stone-500" role="status">Updating…</span> : undefined}
+      actions={
+        <>
+          {turnover.isFetching && data && (
+            <span className="text-sm text-stone-500" role="status">
+              Updating…
+            </span>
+          )}
+          {csvUrl && data && (
+            <a className={cx(textLinkClasses, "text-sm")} href={csvUrl} download>
+              Download the scorecard (CSV)
+            </a>
+          )}
+        </>
+      }
     >
       <div data-testid="scorecard">
         {turnover.isPending && <LoadingState label="Reading the criteria" lines={3} />}

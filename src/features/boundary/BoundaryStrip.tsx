@@ -1,5 +1,6 @@
 import type { TimescaleRankName, TimescaleUnitDto } from "@shared/schemas/timescale";
-import { cx, focusRing } from "../../components/focus";
+import { focusRing } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import type { ScaleIndex } from "../../components/timescale/scaleIndex";
 import { formatAgeNumber, formatMa, formatMyr, RANK_WORD, windowEdge } from "../../components/timescale/ages";
 

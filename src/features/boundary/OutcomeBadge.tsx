@@ -1,5 +1,5 @@
 import type { BoundaryOutcomeName } from "@shared/schemas/outcomes";
-import { cx } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { OUTCOME_LABEL } from "./words";
 
 const TONE: Record<BoundaryOutcomeName, string> = {

@@ -3,7 +3,8 @@ import type { BoundaryOutcomeName, OutcomesResult, OutcomeTaxon } from "@shared/
 import { Button } from "../../components/Button";
 import { Card } from "../../components/Card";
 import { ErrorState } from "../../components/ErrorState";
-import { cx, focusRing } from "../../components/focus";
+import { focusRing } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { LoadingState } from "../../components/LoadingState";
 import { formatCount } from "../../lib/format";
 import { useOutcomes, type OutcomesRequest } from "./api";

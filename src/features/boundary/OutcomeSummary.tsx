@@ -1,6 +1,6 @@
 import type { BoundaryOutcomeName, OutcomesResult } from "@shared/schemas/outcomes";
 import { Card } from "../../components/Card";
-import { cx } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { formatCount, pluralize } from "../../lib/format";
 import { formatMa, formatMyr, windowEdge } from "../../components/timescale/ages";
 import { formatPercent, GROUP_ORDER, OUTCOME_GROUP_LABEL } from "./words";

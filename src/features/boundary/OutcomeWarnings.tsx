@@ -1,6 +1,6 @@
 import type { OutcomesResult } from "@shared/schemas/outcomes";
 import { Card } from "../../components/Card";
-import { cx } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { formatCount, pluralize } from "../../lib/format";
 
 type WarningKey = keyof OutcomesResult["warnings"];

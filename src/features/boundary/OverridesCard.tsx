@@ -3,7 +3,7 @@ import type { OutcomeOverride } from "@shared/schemas/outcomes";
 import { Button } from "../../components/Button";
 import { Card } from "../../components/Card";
 import { ErrorState } from "../../components/ErrorState";
-import { cx } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { LoadingState } from "../../components/LoadingState";
 import { Select } from "../../components/Select";
 import { ThreadDrawer } from "../../components/threads/ThreadDrawer";

@@ -3,7 +3,7 @@ import { ResponsiveBar, type BarCustomLayerProps, type BarSvgProps, type BarTool
 import type { RatesResult, StageRates } from "@shared/schemas/outcomes";
 import { Card } from "../../components/Card";
 import { ErrorState } from "../../components/ErrorState";
-import { cx } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { LoadingState } from "../../components/LoadingState";
 import { formatCount, pluralize } from "../../lib/format";
 import { useRates } from "./api";

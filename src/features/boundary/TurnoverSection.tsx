@@ -2,11 +2,12 @@ import { useId } from "react";
 import { ResponsiveLine, type LineCustomSvgLayerProps, type LineSvgProps } from "@nivo/line";
 import type { TurnoverResult, TurnoverStage } from "@shared/schemas/turnover";
 import { Card } from "../../components/Card";
+import { textLinkClasses } from "../../components/TextLink";
 import { Caution } from "../../components/Caution";
 import { ErrorState } from "../../components/ErrorState";
 import { LoadingState } from "../../components/LoadingState";
 import { Select } from "../../components/Select";
-import { cx } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { formatCount, pluralize } from "../../lib/format";
 import { formatAgeNumber, formatMa } from "../../components/timescale/ages";
 import type { useTurnover } from "./api";
@@ -43,13 +44,36 @@ type TurnoverQuery = ReturnType<typeof useTurnover>;
  * Turnover through time: per-capita origination beside extinction on one time axis with the boundary marked,
  * how far the crisis stage departs from the other stages, and standing diversity overall or split.
  */
-export function TurnoverSection({ turnover, splitBy, onSplitBy }: { turnover: TurnoverQuery; splitBy: string; onSplitBy: (value: string) => void }) {
+export function TurnoverSection({
+  turnover,
+  splitBy,
+  onSplitBy,
+  csvUrl,
+}: {
+  turnover: TurnoverQuery;
+  splitBy: string;
+  onSplitBy: (value: string) => void;
+  csvUrl: string | null;
+}) {
   const data = turnover.data;
   return (
     <Card
       title="Turnover through time"
       description="Origination beside extinction per stage, how far the stage the boundary closes stands out from the others, and how many taxa stood in each stage. Ranges as coded; outcomes set by hand do not change these."
-      actions={turnover.isFetching && data ? <span className="text-sm text-stone-500" role="status">Updating…</span> : undefined}
+      actions={
+        <>
+          {turnover.isFetching && data && (
+            <span className="text-sm text-stone-500" role="status">
+              Updating…
+            </span>
+          )}
+          {csvUrl && data && data.stages.length > 0 && (
+            <a className={cx(textLinkClasses, "text-sm")} href={csvUrl} download>
+              Download the numbers (CSV)
+            </a>
+          )}
+        </>
+      }
     >
       <div data-testid="turnover">
         {turnover.isPending && <LoadingState label="Working out origination, extinction and diversity per stage" lines={5} />}

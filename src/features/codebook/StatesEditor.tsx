@@ -1,6 +1,6 @@
 import type { TraitKind } from "@shared/codebook";
 import { Button } from "../../components/Button";
-import { cx } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { TextField } from "../../components/TextField";
 import type { FieldErrors } from "../../lib/forms";
 import { pluralize } from "../../lib/format";

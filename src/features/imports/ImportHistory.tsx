@@ -7,7 +7,7 @@ import { Card } from "../../components/Card";
 import { ConfirmDialog } from "../../components/ConfirmDialog";
 import { EmptyState } from "../../components/EmptyState";
 import { ErrorState } from "../../components/ErrorState";
-import { cx } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { LoadingState } from "../../components/LoadingState";
 import { TextField } from "../../components/TextField";
 import { useToast } from "../../components/Toast";

@@ -2,7 +2,7 @@ import { useState, type FormEvent } from "react";
 import { importCommitSchema, type ImportMapping, type ImportPreview, type ImportSummary } from "@shared/schemas/imports";
 import type { Trait } from "@shared/schemas/traits";
 import { Button } from "../../components/Button";
-import { cx } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { ProblemTable } from "../../components/ProblemTable";
 import { FormError, Notice } from "../../components/Notice";
 import { TextField } from "../../components/TextField";

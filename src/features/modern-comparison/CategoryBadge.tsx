@@ -1,6 +1,6 @@
 import type { IucnCategory } from "@shared/iucn";
 import { IUCN_CATEGORY_NAMES } from "@shared/iucn";
-import { cx } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { categoryTone } from "./words";
 
 /** A threat category as a small code with its full name for screen readers and on hover. */

@@ -1,7 +1,8 @@
 import { Link, useParams } from "react-router-dom";
 import { Button } from "../../components/Button";
 import { ErrorState } from "../../components/ErrorState";
-import { cx, focusRing } from "../../components/focus";
+import { focusRing } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { LoadingState } from "../../components/LoadingState";
 import { formatDateTime } from "../../lib/format";
 import { paths } from "../../lib/paths";

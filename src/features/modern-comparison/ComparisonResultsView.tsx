@@ -2,7 +2,7 @@ import type { ReactNode } from "react";
 import { IUCN_CATEGORY_NAMES, IUCN_SOURCE } from "@shared/iucn";
 import type { Comparison } from "@shared/schemas/comparisons";
 import { Caution } from "../../components/Caution";
-import { cx } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { formatCount, formatDateTime, pluralize } from "../../lib/format";
 import { CategoryBadge } from "./CategoryBadge";
 import { RocChart } from "./RocChart";

@@ -7,7 +7,7 @@ import type { Trait } from "@shared/schemas/traits";
 import { Button, ButtonLink } from "../../components/Button";
 import { Card } from "../../components/Card";
 import { controlClasses } from "../../components/Field";
-import { cx } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { ErrorState } from "../../components/ErrorState";
 import { LoadingState } from "../../components/LoadingState";
 import { FormError, Notice } from "../../components/Notice";

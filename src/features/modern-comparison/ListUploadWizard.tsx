@@ -12,7 +12,7 @@ import {
 } from "@shared/schemas/modernLists";
 import { Button } from "../../components/Button";
 import { CsvFileField } from "../../components/CsvFileField";
-import { cx } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { ProblemTable } from "../../components/ProblemTable";
 import { WizardSteps } from "../../components/WizardSteps";
 import { FormError, Notice } from "../../components/Notice";

@@ -1,6 +1,7 @@
 import { useLocation, useNavigate } from "react-router-dom";
 import { Button } from "../../components/Button";
-import { cx, focusRing } from "../../components/focus";
+import { focusRing } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { Popover } from "../../components/Popover";
 import { Spinner } from "../../components/Spinner";
 import { errorMessage } from "../../lib/api";

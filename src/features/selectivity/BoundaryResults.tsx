@@ -1,6 +1,6 @@
 import type { RunParams } from "@shared/schemas/runs";
 import { Card } from "../../components/Card";
-import { cx } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { formatMa, formatMyr } from "../../components/timescale/ages";
 import { formatCount, pluralize } from "../../lib/format";
 import { ChartFigure } from "./ChartFigure";

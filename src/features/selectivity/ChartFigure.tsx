@@ -1,6 +1,6 @@
 import { useId, useRef, useState, type ReactNode } from "react";
 import { Button } from "../../components/Button";
-import { cx } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { useToast } from "../../components/Toast";
 import { downloadPng, downloadSvg } from "./chartDownload";
 

@@ -1,5 +1,5 @@
 import { Card } from "../../components/Card";
-import { cx } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { contrastWords, type ContrastData, type SelectivityResultData } from "./resultRows";
 import { Body, ColHead, HeadRow, ResultTable, td, tdNum, thNum } from "./ResultTable";
 import { formatChange, formatEstimate, formatInterval, formatP, formatWholePercent, levelWords } from "./words";

@@ -1,7 +1,7 @@
 import type { Run, RunResults } from "@shared/schemas/runs";
 import { Card } from "../../components/Card";
 import { Caution } from "../../components/Caution";
-import { cx } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { Body, ColHead, HeadRow, ResultTable, td, tdNum } from "./ResultTable";
 import { CORRECTION_SHORT, formatEstimate, formatInterval, formatP } from "./words";
 

@@ -1,7 +1,7 @@
 import type { RunPreview } from "@shared/schemas/runs";
 import { Card } from "../../components/Card";
 import { ErrorState } from "../../components/ErrorState";
-import { cx } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { LoadingState } from "../../components/LoadingState";
 import { formatMa, formatMyr } from "../../components/timescale/ages";
 import { ApiError } from "../../lib/api";

@@ -1,6 +1,6 @@
 import { useId, useState } from "react";
 import { Card } from "../../components/Card";
-import { cx } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { ChartFigure } from "./ChartFigure";
 import { ESTIMATE_KINDS, ESTIMATE_STYLE } from "./ForestPlot";
 import { LogOddsHeatMap } from "./LogOddsHeatMap";

@@ -1,5 +1,5 @@
 import { Card } from "../../components/Card";
-import { cx } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { Notice } from "../../components/Notice";
 import { formatCount } from "../../lib/format";
 import type { SelectivityResultData } from "./resultRows";

@@ -1,7 +1,7 @@
 import type { RunDiff } from "@shared/schemas/runs";
 import { Card } from "../../components/Card";
 import { ErrorState } from "../../components/ErrorState";
-import { cx } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { LoadingState } from "../../components/LoadingState";
 import { TextLink } from "../../components/TextLink";
 import { formatCount, formatDateTime } from "../../lib/format";

@@ -1,5 +1,5 @@
 import type { ReactNode } from "react";
-import { cx } from "../../components/focus";
+import { cx } from "../../lib/cx";
 
 export const th = "px-3 py-2 text-left text-xs font-semibold tracking-wide text-stone-500 uppercase";
 export const thNum = "px-3 py-2 text-right text-xs font-semibold tracking-wide text-stone-500 uppercase";

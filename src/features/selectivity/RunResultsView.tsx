@@ -1,7 +1,8 @@
 import { useId, useState, type ReactNode } from "react";
 import type { Run, RunResults } from "@shared/schemas/runs";
 import { Caution } from "../../components/Caution";
-import { cx, focusRing } from "../../components/focus";
+import { focusRing } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { formatMa, formatMyr } from "../../components/timescale/ages";
 import { formatCount, formatDateTime } from "../../lib/format";
 import { BoundaryResults } from "./BoundaryResults";

@@ -1,5 +1,5 @@
 import type { RunStatus } from "@shared/schemas/runs";
-import { cx } from "../../components/focus";
+import { cx } from "../../lib/cx";
 
 const LOOK: Record<RunStatus, { label: string; className: string }> = {
   queued: { label: "Queued", className: "bg-stone-100 text-stone-700 ring-stone-200" },

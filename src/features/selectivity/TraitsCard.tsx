@@ -4,7 +4,7 @@ import type { Trait } from "@shared/schemas/traits";
 import type { NumericTransform } from "@shared/codebook";
 import { Button, ButtonLink } from "../../components/Button";
 import { Card } from "../../components/Card";
-import { cx } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { Select } from "../../components/Select";
 import type { FieldErrors } from "../../lib/forms";
 import { paths } from "../../lib/paths";

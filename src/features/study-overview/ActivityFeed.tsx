@@ -3,7 +3,7 @@ import type { ActivityItem } from "@shared/schemas/activity";
 import { Button } from "../../components/Button";
 import { Card } from "../../components/Card";
 import { ErrorState } from "../../components/ErrorState";
-import { cx } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { LoadingState } from "../../components/LoadingState";
 import { TextLink } from "../../components/TextLink";
 import { formatCount, formatDateTime } from "../../lib/format";

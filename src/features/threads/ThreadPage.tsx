@@ -1,7 +1,8 @@
 import { Link, useParams } from "react-router-dom";
 import { ThreadView } from "../../components/threads/ThreadView";
 import { useThread } from "../../components/threads/api";
-import { cx, focusRing } from "../../components/focus";
+import { focusRing } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { useCurrentStudy } from "../../lib/currentStudy";
 import { paths } from "../../lib/paths";
 import { useDocumentTitle } from "../../lib/useDocumentTitle";

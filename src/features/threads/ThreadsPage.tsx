@@ -3,7 +3,8 @@ import { THREAD_TARGET_LABELS, THREAD_TARGET_TYPES, type ThreadTargetType } from
 import { Button } from "../../components/Button";
 import { EmptyState } from "../../components/EmptyState";
 import { ErrorState } from "../../components/ErrorState";
-import { cx, focusRing } from "../../components/focus";
+import { focusRing } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { LoadingState } from "../../components/LoadingState";
 import { PageHeader } from "../../components/PageHeader";
 import { Select } from "../../components/Select";

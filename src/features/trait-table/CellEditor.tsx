@@ -1,6 +1,6 @@
 import { useEffect, useRef, useState, type KeyboardEvent } from "react";
 import type { TaxonRow } from "@shared/schemas/taxa";
-import { cx } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { readCellEdit, type CellChange, type GridColumn } from "./cellValues";
 
 export const INTERVAL_LIST_ID = "grid-interval-names";

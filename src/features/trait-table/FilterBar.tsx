@@ -1,7 +1,8 @@
 import { useState, type FormEvent } from "react";
 import { formatTaxaFilter, parseTaxaFilter, type FilterOp, type TaxaColumnFilter } from "@shared/schemas/taxa";
 import { Button } from "../../components/Button";
-import { cx, focusRing } from "../../components/focus";
+import { focusRing } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { Select } from "../../components/Select";
 import { TextField } from "../../components/TextField";
 import { formatTraitValue, type GridColumn } from "./cellValues";

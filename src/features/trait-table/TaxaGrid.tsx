@@ -18,7 +18,7 @@ import {
 import { useVirtualizer } from "@tanstack/react-virtual";
 import type { TaxonRow } from "@shared/schemas/taxa";
 import { timescaleUnits } from "@shared/timescale/units";
-import { cx } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { CellEditor, INTERVAL_LIST_ID, stateListId } from "./CellEditor";
 import { cellValue, displayText, editText, isEmptyValue, type CellChange, type GridColumn } from "./cellValues";
 
