@@ -13,4 +13,5 @@ export const BENCHMARKS: Record<string, () => Promise<BenchFigure[]>> = {
   traitTables: async () => (await import("./traitTables")).benchTraitTables(),
   occurrences: async () => (await import("./occurrences")).benchOccurrences(),
   load: async () => (await import("./load")).benchLoad(),
+  firstVisit: async () => (await import("./firstVisit")).benchFirstVisit(),
 };
