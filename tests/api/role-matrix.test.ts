@@ -346,6 +346,16 @@ const MATRIX: Record<string, Row> = {
   "GET /api/studies/{studyId}/exports/template.csv": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/exports/template.csv`) },
   "GET /api/studies/{studyId}/exports/taxa.csv": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/exports/taxa.csv?form=long`) },
   "GET /api/studies/{studyId}/exports/codebook.csv": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/exports/codebook.csv`) },
+  "GET /api/studies/{studyId}/exports/turnover.csv": {
+    allowed: MEMBERS,
+    freshStudy: true,
+    call: (a, { studyId }) => a.get(`/api/studies/${studyId}/exports/turnover.csv?boundaryUnit=Turonian`),
+  },
+  "GET /api/studies/{studyId}/exports/scorecard.csv": {
+    allowed: MEMBERS,
+    freshStudy: true,
+    call: (a, { studyId }) => a.get(`/api/studies/${studyId}/exports/scorecard.csv?boundaryUnit=Turonian`),
+  },
   // Modern comparison: lists, their uploads and crosswalks, and comparisons. What a call needs (a
   // list with a run whose model scores it, an upload, a saved comparison) is written directly or by the owner.
   "POST /api/studies/{studyId}/modern-list-uploads": {

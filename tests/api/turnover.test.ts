@@ -172,3 +172,43 @@ describe("GET /api/studies/:studyId/turnover on a small invented study", () => {
     expect(body.scorecard.items.find((i) => i.criterion === "realms")!.status).toBe("not assessable");
   });
 });
+
+describe("turnover and scorecard CSV exports on the demo study", () => {
+  it("downloads one row per stage with q, p, counts and a column per life habit", async () => {
+    const res = await viewer.get(`/api/studies/${seeded.studyId}/exports/turnover.csv?boundaryUnit=Turonian&splitBy=life_habit`);
+    expect(res.status).toBe(200);
+    expect(res.headers["content-type"]).toMatch(/text\/csv/);
+    expect(res.headers["content-disposition"]).toMatch(/attachment; filename=".*-turnover\.csv"/);
+    const json = await turnover("boundaryUnit=Turonian&splitBy=life_habit");
+    const lines = res.text.trim().split("\r\n");
+    const header = lines[0].split(",");
+    expect(header.slice(0, 6)).toEqual(["stage", "base_ma", "top_ma", "duration_myr", "crisis_stage", "edge_stage"]);
+    expect(header).toContain("range_through_infaunal");
+    expect(lines).toHaveLength(json.stages.length + 1);
+    const cenomanian = lines.find((l) => l.startsWith("Cenomanian,"))!.split(",");
+    const stage = json.stages.find((s) => s.crisis)!;
+    const cell = (name: string) => cenomanian[header.indexOf(name)];
+    expect(cell("crisis_stage")).toBe("true");
+    expect(Number(cell("q_per_stage"))).toBe(stage.q);
+    expect(Number(cell("p_per_stage"))).toBe(stage.p);
+    expect(Number(cell("range_through"))).toBe(stage.rangeThrough);
+    const infaunal = json.diversity.groups.find((g) => g.key === "infaunal")!;
+    expect(Number(cell("range_through_infaunal"))).toBe(infaunal.stages[json.stages.indexOf(stage)].rangeThrough);
+  });
+
+  it("downloads the scorecard with the contrasts, every criterion, the groups read and the caution", async () => {
+    const res = await viewer.get(`/api/studies/${seeded.studyId}/exports/scorecard.csv?boundaryUnit=Turonian`);
+    expect(res.status).toBe(200);
+    const lines = res.text.trim().split("\r\n");
+    expect(lines[0]).toBe("row,criterion,status,dimension,group,value,ci_low,ci_high,victims,at_risk,z,median,mad,n,note");
+    expect(lines.some((l) => l.startsWith("contrast,extinction_q,departs,,Cenomanian,"))).toBe(true);
+    expect(lines.some((l) => l.startsWith("contrast,origination_p,within background,,Cenomanian,"))).toBe(true);
+    for (const criterion of ["magnitude", "breadth", "realms", "geography", "brevity", "standingOut"]) {
+      expect(lines.some((l) => l.startsWith(`criterion,${criterion},`))).toBe(true);
+    }
+    expect(lines.find((l) => l.startsWith("criterion,geography,"))).toMatch(/^criterion,geography,not assessable,/);
+    expect(lines.some((l) => l.startsWith("group,realms,") && l.includes(",environment,"))).toBe(true);
+    expect(res.text).toMatch(/not a global verdict/);
+    expect(res.text).toMatch(/common practice, no single source/);
+  });
+});

@@ -71,6 +71,10 @@ describe("turnover on the Boundary screen", () => {
       expect(await scorecard.innerText()).toMatch(/not a global verdict/);
       expect(await scorecard.innerText()).toMatch(/common practice, no single source/);
 
+      // Both come as files for the same boundary and split.
+      expect(await section.getByRole("link", { name: "Download the numbers (CSV)" }).getAttribute("href")).toMatch(/\/exports\/turnover\.csv\?boundaryUnit=Turonian&splitBy=life_habit$/);
+      expect(await scorecard.getByRole("link", { name: "Download the scorecard (CSV)" }).getAttribute("href")).toMatch(/\/exports\/scorecard\.csv\?boundaryUnit=Turonian/);
+
       await page.evaluate(() => window.scrollTo(0, 0));
       await screenshot(page, "turnover");
     });

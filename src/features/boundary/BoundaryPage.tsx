@@ -13,7 +13,7 @@ import { useCurrentStudy } from "../../lib/currentStudy";
 import { paths } from "../../lib/paths";
 import { useDocumentTitle } from "../../lib/useDocumentTitle";
 import { useTimescale } from "../../lib/queries/timescale";
-import { useOutcomes, useTurnover, type OutcomesRequest } from "./api";
+import { turnoverCsvUrl, useOutcomes, useTurnover, type OutcomesRequest } from "./api";
 import { BoundaryScorecard } from "./BoundaryScorecard";
 import { TurnoverSection } from "./TurnoverSection";
 import { BoundaryPicker } from "./BoundaryPicker";
@@ -47,7 +47,8 @@ export function BoundaryPage() {
   const [setting, setSetting] = useState<OutcomeTaxon | null>(null);
   const [revoking, setRevoking] = useState<RevokeTarget | null>(null);
   const [splitBy, setSplitBy] = useState("");
-  const turnover = useTurnover(study.id, request ? { boundaryUnit: request.boundaryUnit, boundary: request.boundary, window: request.window, splitBy: splitBy || undefined } : null);
+  const turnoverRequest = request ? { boundaryUnit: request.boundaryUnit, boundary: request.boundary, window: request.window, splitBy: splitBy || undefined } : null;
+  const turnover = useTurnover(study.id, turnoverRequest);
 
   const chosenUnit = view.choice?.kind === "unit" && scale ? scale.resolve(view.choice.name) : undefined;
   const boundary = view.choice?.kind === "age" ? view.choice.age : (chosenUnit?.base ?? null);
@@ -109,8 +110,15 @@ export function BoundaryPage() {
             request={request}
             view={view}
             chart={chart}
-            scorecard={<BoundaryScorecard turnover={turnover} />}
-            turnover={<TurnoverSection turnover={turnover} splitBy={splitBy} onSplitBy={setSplitBy} />}
+            scorecard={<BoundaryScorecard turnover={turnover} csvUrl={turnoverRequest ? turnoverCsvUrl(study.id, "scorecard", turnoverRequest) : null} />}
+            turnover={
+              <TurnoverSection
+                turnover={turnover}
+                splitBy={splitBy}
+                onSplitBy={setSplitBy}
+                csvUrl={turnoverRequest ? turnoverCsvUrl(study.id, "turnover", turnoverRequest) : null}
+              />
+            }
             canOverride={canOverride}
             onList={(list, page) => setSearch(withList(search, list, page), { preventScrollReset: true })}
             onSetOutcome={setSetting}

@@ -93,6 +93,11 @@ export function useTurnover(studyId: string, request: TurnoverRequest | null) {
   });
 }
 
+/** GET /api/studies/:studyId/exports/turnover.csv or scorecard.csv for the same request (a plain download link). */
+export function turnoverCsvUrl(studyId: string, file: "turnover" | "scorecard", request: TurnoverRequest): string {
+  return `/api${studyApiPath(studyId)}/exports/${file}.csv?${toSearch({ ...request })}`;
+}
+
 function useRefreshOutcomes(studyId: string) {
   const queryClient = useQueryClient();
   return () =>
