@@ -4,7 +4,7 @@ import { textLinkClasses } from "../../components/TextLink";
 import { Caution } from "../../components/Caution";
 import { ErrorState } from "../../components/ErrorState";
 import { LoadingState } from "../../components/LoadingState";
-import { cx } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { formatCount } from "../../lib/format";
 import type { useTurnover } from "./api";
 import { formatPercent, formatWholePercent } from "./words";

@@ -7,7 +7,7 @@ import { Caution } from "../../components/Caution";
 import { ErrorState } from "../../components/ErrorState";
 import { LoadingState } from "../../components/LoadingState";
 import { Select } from "../../components/Select";
-import { cx } from "../../components/focus";
+import { cx } from "../../lib/cx";
 import { formatCount, pluralize } from "../../lib/format";
 import { formatAgeNumber, formatMa } from "../../components/timescale/ages";
 import type { useTurnover } from "./api";
