@@ -209,6 +209,11 @@ describe("accessibility of every screen (axe-core)", () => {
       await page.getByRole("link", { name: /Vessiran/ }).first().waitFor();
       await expectAccessible(page, "Studies, with a study");
 
+      // The Outbox shows the lead's own mail only: a reset link asked for their address gives it one.
+      const reset = await playwrightRequest.newContext({ baseURL: server.url });
+      expect((await reset.post("/api/auth/password-reset/request", { data: { email: demo.account.owner.email } })).status()).toBe(202);
+      await reset.dispose();
+      await waitForMail(server, demo.account.owner.email, { subject: "Reset" });
       await page.goto(`${server.url}/outbox`);
       await h1(page, "Outbox");
       await page.getByRole("article").first().waitFor();

@@ -1,7 +1,9 @@
 // Browser journey through the client foundation: a study lead signs up, creates a study and
 // invites an analyst by e-mail; the analyst opens the e-mailed link in another browser, creates
-// an account from the invitation page, accepts, and lands in the study as Analyst. Then the lead
-// meets the last-owner rule, signs out, and is brought back to the same page after signing in.
+// an account from the invitation page, accepts, and lands in the study as Analyst. Each Outbox
+// holds only its owner's mail. Then the lead meets the last-owner rule, signs out, tries to sign up
+// with the analyst's address (the analyst reads the notice), and is brought back to the same page
+// after signing in.
 // All names and addresses are invented.
 import { randomUUID } from "node:crypto";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
@@ -84,20 +86,17 @@ describe("client foundation", () => {
       expect(await pending.innerText()).toContain("Analyst");
     });
 
-    // The invitation reached the fake mail server...
+    // The invitation reached the analyst's mailbox (the fake mail server's table)...
     const mail = await waitForMail(server, analystEmail, { subject: studyName });
     invitationLink = linkIn(mail.text, "/invitations/");
     expect(invitationLink.startsWith(`${server.url}/invitations/`)).toBe(true);
 
-    // ...and the lead can read it on the Outbox screen, with the link clickable.
-    await withScreenshotOnFailure(leadBrowser.context, "foundation-outbox", async () => {
+    // ...and not the lead's: the Outbox shows each person only their own mail.
+    await withScreenshotOnFailure(leadBrowser.context, "foundation-outbox-lead", async () => {
       await lead.getByRole("navigation", { name: "Main" }).getByRole("link", { name: "Outbox" }).click();
       await lead.waitForURL(`${server.url}/outbox`);
-      const message = lead.getByRole("article").filter({ hasText: studyName });
-      await message.getByRole("heading", { name: `You are invited to the study "${studyName}" on Stratasieve` }).waitFor();
-      expect(await message.innerText()).toContain(analystEmail);
-      expect(await message.getByRole("link", { name: invitationLink }).getAttribute("href")).toBe(invitationLink);
-      await screenshot(lead, "foundation-outbox");
+      await lead.getByRole("heading", { name: "No e-mail for you yet" }).waitFor();
+      expect(await lead.getByRole("article").count()).toBe(0);
     });
 
     const analyst = await analystBrowser.context.newPage();
@@ -146,11 +145,36 @@ describe("client foundation", () => {
       expect(await lead.getByRole("combobox", { name: "Role of Invented Study Lead" }).inputValue()).toBe("owner");
     });
 
-    // Signed out, a study page asks to sign in and then returns to that same page.
-    await withScreenshotOnFailure(leadBrowser.context, "foundation-sign-in-and-back", async () => {
+    // Signed out, someone tries to sign up with the analyst's address: the page does not say the
+    // address is taken, and the analyst reads the notice in their own Outbox, links clickable.
+    await withScreenshotOnFailure(leadBrowser.context, "foundation-sign-up-taken", async () => {
       await lead.getByRole("button", { name: "Account" }).click();
       await lead.getByRole("button", { name: "Sign out" }).click();
       await lead.waitForURL(/\/sign-in$/);
+      await lead.goto(`${server.url}/sign-up`);
+      await lead.getByLabel("Name").fill("Invented Impostor");
+      await lead.getByLabel("E-mail").fill(analystEmail);
+      await lead.getByLabel("Password", { exact: true }).fill("an impostor passphrase");
+      await lead.getByRole("button", { name: "Create account" }).click();
+      await lead.getByRole("heading", { name: "Check your e-mail" }).waitFor();
+      await lead.getByRole("status").filter({ hasText: analystEmail }).waitFor();
+      expect(await lead.locator("body").innerText()).not.toMatch(/already (exists|has an account|registered)/i);
+    });
+    await withScreenshotOnFailure(analystBrowser.context, "foundation-outbox", async () => {
+      // Every signed-in person has the Outbox in the main navigation, not study leads only.
+      await analyst.getByRole("navigation", { name: "Main" }).getByRole("link", { name: "Outbox" }).click();
+      await analyst.waitForURL(`${server.url}/outbox`);
+      const message = analyst.getByRole("article").filter({ hasText: "Someone tried to create" });
+      await message.getByRole("heading", { name: "Someone tried to create a Stratasieve account with your address" }).waitFor();
+      expect(await message.innerText()).toContain(analystEmail);
+      expect(await message.getByRole("link", { name: `${server.url}/sign-in` }).getAttribute("href")).toBe(`${server.url}/sign-in`);
+      // The invitation, sent before this account existed, is not in it.
+      expect(await analyst.getByRole("article").filter({ hasText: studyName }).count()).toBe(0);
+      await screenshot(analyst, "foundation-outbox");
+    });
+
+    // Signed out, a study page asks to sign in and then returns to that same page.
+    await withScreenshotOnFailure(leadBrowser.context, "foundation-sign-in-and-back", async () => {
       await lead.goto(`${server.url}${studyPath}/members`);
       await lead.waitForURL(`${server.url}/sign-in?next=${encodeURIComponent(`${studyPath}/members`)}`);
       await lead.getByLabel("E-mail").fill(leadEmail);
