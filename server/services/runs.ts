@@ -14,6 +14,7 @@ import type { SelectivityInput, SelectivityResult, SelectivityTaxon, Selectivity
 import { stageBelow } from "../../shared/timescale/index";
 import {
   CORRECTION_LABELS,
+  DEFAULT_MIN_INFORMATIVE_CLADES,
   runParamsSchema,
   type Run,
   type RunBoundaryDesign,
@@ -308,7 +309,13 @@ function analysisInput(data: StudyData, b: BoundaryData, params: RunParams): Sel
   return {
     taxa: b.taxa,
     traits: data.specs.map(({ traitId: _traitId, ...spec }) => spec),
-    options: { correction: params.correction, forceFirth: params.forceFirth, level: params.level, confoundingThreshold: params.confoundingThreshold },
+    options: {
+      correction: params.correction,
+      forceFirth: params.forceFirth,
+      level: params.level,
+      confoundingThreshold: params.confoundingThreshold,
+      minInformativeClades: params.minInformativeClades ?? DEFAULT_MIN_INFORMATIVE_CLADES,
+    },
   };
 }
 

@@ -1,20 +1,21 @@
 import { adjustPValues } from "../stats";
 import { cladeAdjustedSlope } from "./cladeAdjustedSlope";
 import { chooseReference } from "./chooseReference";
-import { confoundingCheck } from "./confoundingCheck";
+import { judgeCladeConfounding, DEFAULT_MIN_INFORMATIVE_CLADES, type CladeGroup } from "./cladeConfounding";
+import { confoundingCheck, confoundingMethod } from "./confoundingCheck";
 import { encodeTrait, type DropReason } from "./encodeTrait";
-import { fitSelectivityModel, type ModelTraitInput } from "./fitSelectivityModel";
+import { fitSelectivityModel, type ModelTraitInput, type SelectivityModelFit } from "./fitSelectivityModel";
+import { judgeModelConfounding, type ModelContrast } from "./modelConfounding";
 import { formatNumber } from "./formatNumber";
 import { quartileBins } from "./quartileBins";
 import { numericStep, scaleNumericTrait } from "./scaleNumericTrait";
 import { countStates, stateRows } from "./stateTable";
-import { countCladeStates, stateContrasts } from "./stateContrasts";
+import { countCladeStates, stateContrasts, type CladeStateCounts } from "./stateContrasts";
 import { testNumericTrait } from "./testNumericTrait";
 import { testStateTrait, type TraitTest } from "./testStateTrait";
 import type { ContrastResult, SelectivityInput, SelectivityResult, SelectivityTaxon, StateRow, TraitResult } from "./types";
 
 const CORRECTIONS = ["bh", "holm", "bonferroni"];
-const NO_CLADE = "(no clade given)";
 
 /**
  * The selectivity analysis of one boundary: for every chosen trait, the table of states (or
@@ -38,6 +39,7 @@ export function analyzeSelectivity(input: SelectivityInput): SelectivityResult {
   const { taxa, traits, options } = input;
   validateInput(input);
   const level = options.level;
+  const minClades = options.minInformativeClades ?? DEFAULT_MIN_INFORMATIVE_CLADES;
   const n = taxa.length;
 
   const outcome = new Uint8Array(n);
@@ -45,11 +47,18 @@ export function analyzeSelectivity(input: SelectivityInput): SelectivityResult {
   const cladeIndex = new Map<string, number>();
   const cladeNames: string[] = [];
   let victims = 0;
+  let withoutClade = 0;
   for (let i = 0; i < n; i++) {
     const taxon = taxa[i];
     outcome[i] = taxon.outcome;
     victims += taxon.outcome;
-    const name = typeof taxon.clade === "string" && taxon.clade.trim() !== "" ? taxon.clade.trim() : NO_CLADE;
+    // Taxa without a clade stay out of every clade-adjusted estimate (no catch-all stratum).
+    const name = typeof taxon.clade === "string" ? taxon.clade.trim() : "";
+    if (name === "") {
+      clade[i] = -1;
+      withoutClade++;
+      continue;
+    }
     let c = cladeIndex.get(name);
     if (c === undefined) {
       c = cladeNames.length;
@@ -79,7 +88,10 @@ export function analyzeSelectivity(input: SelectivityInput): SelectivityResult {
       test = testStateTrait(spec, counts);
       if (test.pValue !== null) {
         const byClade = countCladeStates(encoded.codes, clade, outcome, cladeNames.length, spec.states.length);
-        contrasts = stateContrasts(spec, counts, chosen.index, byClade, cladeNames, level);
+        contrasts = stateContrasts(spec, counts, chosen.index, byClade, cladeNames, level, minClades).map((contrast) => ({
+          ...contrast,
+          cladeCheck: judgeStateContrast(contrast, spec, chosen.index, byClade, options, minClades),
+        }));
       }
       modelInputs.push({ spec, encoded, reference: chosen.index, scaling: null, untestable: test.pValue === null ? test.method : null });
     } else {
@@ -93,7 +105,17 @@ export function analyzeSelectivity(input: SelectivityInput): SelectivityResult {
         notes.push(`Odds ratios are per standard deviation (${formatNumber(scaling.scale)}) of the ${values}, centred on their mean (${formatNumber(scaling.center)}).`);
       }
       if (own.crude) {
-        const withinClades = cladeAdjustedSlope(spec, encoded.transformed, outcome, clade, cladeNames, scaling, level);
+        const withinClades = cladeAdjustedSlope(spec, encoded.transformed, outcome, clade, cladeNames, scaling, level, minClades);
+        const cladeCheck =
+          withinClades.conditionalLogOdds === null
+            ? null
+            : judgeCladeConfounding(withinClades.groups, {
+                kind: "numeric",
+                conditionalLogOdds: withinClades.conditionalLogOdds,
+                threshold: options.confoundingThreshold,
+                level,
+                minInformativeClades: minClades,
+              });
         contrasts = [
           {
             contrast: numericStep(spec),
@@ -104,6 +126,8 @@ export function analyzeSelectivity(input: SelectivityInput): SelectivityResult {
             modelAdjusted: null,
             changeOnCladeAdjustment: null,
             changeOnModelAdjustment: null,
+            cladeCheck,
+            modelCheck: null,
             flagged: false,
             notes: withinClades.notes,
           },
@@ -137,6 +161,7 @@ export function analyzeSelectivity(input: SelectivityInput): SelectivityResult {
 
   const fit = fitSelectivityModel(modelInputs, outcome, { forceFirth: options.forceFirth, level });
   const inModel = fit.model ? fit.model.encoding.traits.map((t) => t.key) : [];
+  const modelChecks = judgeAgainstModel(fit, options);
   for (const result of results) {
     const spec = traits.find((t) => t.key === result.key)!;
     const others = fit.model ? fit.model.encoding.traits.filter((t) => t.key !== result.key).map((t) => t.label) : [];
@@ -153,7 +178,9 @@ export function analyzeSelectivity(input: SelectivityInput): SelectivityResult {
         else if (fit.missingReasons.has(result.key)) notes.push(fit.missingReasons.get(result.key)!);
         else notes.push(`${contrast.contrast}: the state has no taxa among the complete cases of the multiple regression, so it has no model-adjusted odds ratio.`);
       }
-      return { ...contrast, modelAdjusted, notes };
+      const modelCheck = modelAdjusted ? (modelChecks?.get(result.key)?.get(contrast.state ?? "") ?? null) : null;
+      if (modelAdjusted && fit.model?.firth) notes.push("The multiple regression is Firth's (the data separate), so no confounding judgement rests on the adjustment for the other traits.");
+      return { ...contrast, modelAdjusted, modelCheck, notes };
     });
     const checked = confoundingCheck(withModel, {
       spec,
@@ -164,14 +191,70 @@ export function analyzeSelectivity(input: SelectivityInput): SelectivityResult {
     });
     result.contrasts = checked.contrasts;
     result.confoundingNote = checked.note;
+    if (withoutClade > 0 && result.contrasts.some((c) => c.cladeAdjusted)) {
+      result.notes.push(`${withoutClade} ${withoutClade === 1 ? "taxon has" : "taxa have"} no higher taxon and ${withoutClade === 1 ? "is" : "are"} left out of the clade-adjusted odds ratios.`);
+    }
   }
 
   return {
-    design: { victims, survivors: n - victims, droppedByTrait, completeCases: fit.completeCases },
+    design: { victims, survivors: n - victims, droppedByTrait, completeCases: fit.completeCases, withoutClade },
+    confoundingMethod: confoundingMethod(options.confoundingThreshold, level, minClades),
     traits: results,
     model: fit.model,
     modelNote: fit.modelNote,
   };
+}
+
+/** The confounding judgements against the multiple regression, for every contrast it holds (none for Firth's fit). */
+function judgeAgainstModel(fit: SelectivityModelFit, options: SelectivityInput["options"]): ReturnType<typeof judgeModelConfounding> | null {
+  if (!fit.model || fit.model.firth || !fit.design || !fit.y || fit.model.encoding.traits.length < 2) return null;
+  const contrasts: ModelContrast[] = [];
+  const columns = fit.model.encoding.columns;
+  columns.forEach((column, j) => {
+    if (column.kind === "numeric") contrasts.push({ key: column.trait, state: "", kind: "numeric", column: j });
+    else {
+      const traitColumns = columns.map((c, k) => (c.trait === column.trait && k !== j ? k : -1)).filter((k) => k >= 0);
+      contrasts.push({ key: column.trait, state: column.state, kind: "state", column: j, traitColumns });
+    }
+  });
+  return judgeModelConfounding(fit.design, fit.y, contrasts, { threshold: options.confoundingThreshold, level: options.level });
+}
+
+/** The clade confounding judgement of one state against the reference, from the clade-by-state counts. */
+function judgeStateContrast(
+  contrast: ContrastResult,
+  spec: SelectivityInput["traits"][number],
+  reference: number,
+  byClade: CladeStateCounts,
+  options: SelectivityInput["options"],
+  minClades: number,
+): ContrastResult["cladeCheck"] {
+  if (!contrast.cladeAdjusted || contrast.state === null) return null;
+  const s = spec.states.findIndex((state) => state.code === contrast.state);
+  const { cells, cladeCount, stateCount } = byClade;
+  const groups: CladeGroup[] = [];
+  for (let c = 0; c < cladeCount; c++) {
+    const counts = [cells[2 * (c * stateCount + s)], cells[2 * (c * stateCount + s) + 1], cells[2 * (c * stateCount + reference)], cells[2 * (c * stateCount + reference) + 1]];
+    const total = counts[0] + counts[1] + counts[2] + counts[3];
+    if (total === 0) continue;
+    const x = new Float64Array(total);
+    const y = new Uint8Array(total);
+    let k = 0;
+    counts.forEach((count, cell) => {
+      for (let j = 0; j < count; j++, k++) {
+        x[k] = cell < 2 ? 1 : 0;
+        y[k] = cell % 2 === 0 ? 1 : 0;
+      }
+    });
+    groups.push({ x, y });
+  }
+  return judgeCladeConfounding(groups, {
+    kind: "states",
+    conditionalLogOdds: Math.log(contrast.cladeAdjusted.estimate),
+    threshold: options.confoundingThreshold,
+    level: options.level,
+    minInformativeClades: minClades,
+  });
 }
 
 function dropNote(reason: DropReason, label: string): string {
@@ -193,6 +276,9 @@ function validateInput(input: SelectivityInput): void {
   }
   if (!(typeof options.confoundingThreshold === "number" && Number.isFinite(options.confoundingThreshold) && options.confoundingThreshold >= 0)) {
     throw new Error(`${fn}: options.confoundingThreshold is ${String(options.confoundingThreshold)}; it must be a number of 0 or more (0.1 = 10%)`);
+  }
+  if (options.minInformativeClades !== undefined && !(Number.isInteger(options.minInformativeClades) && options.minInformativeClades >= 1)) {
+    throw new Error(`${fn}: options.minInformativeClades is ${String(options.minInformativeClades)}; it must be a whole number of 1 or more`);
   }
   if (typeof options.forceFirth !== "boolean") throw new Error(`${fn}: options.forceFirth must be true or false`);
   const keys = new Set<string>();

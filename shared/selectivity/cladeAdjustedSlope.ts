@@ -1,24 +1,28 @@
 import { buildDesignMatrix, logisticRegression, type LogisticRegressionResult } from "../stats";
 import { twoSidedCriticalValue } from "../stats/distributions";
 import { numericPredictorLabel, type NumericScaling } from "./scaleNumericTrait";
-import { fitStratifiedSlope } from "./stratifiedSlope";
+import { fitPrepared, prepareConditionalStrata } from "../stats/conditionalLogistic";
+import type { CladeGroup } from "./cladeConfounding";
 import { plainMessage } from "./testNumericTrait";
 import type { ContrastResult, SelectivityTraitSpec } from "./types";
 
 /**
- * The odds ratio of a numeric trait adjusted for clade: a logistic regression of extinction on the
- * trait plus a term per clade, so the slope compares taxa within the same clade. It is fitted with
- * one intercept per clade by fitStratifiedSlope (the same estimate as dummy terms, in one pass over
- * the taxa per iteration however many clades there are), with a Wald interval. Clades whose taxa
- * all died or all survived carry no information on the slope within clade (their own terms would
- * run off to infinity), so they are left out and counted, just as the Mantel-Haenszel odds ratio
- * skips such strata. When the values separate the outcomes within clades the statistics engine's
- * logistic regression with clade dummies takes over, which switches to Firth's bias-reduced fit
- * (Firth 1993).
+ * The odds ratio of a numeric trait adjusted for clade: a conditional logistic regression of
+ * extinction on the trait with clade as strata (Breslow & Day 1980, vol. 1, ch. 7), with a Wald
+ * interval from the conditional information. Conditioning on each clade's number of victims removes
+ * the clade intercepts from the likelihood; an ordinary regression with one intercept per clade
+ * would give a slope biased away from zero over many small clades (the incidental-parameters
+ * problem). Only clades holding both outcomes and two or more values carry information; the others
+ * are left out and counted, and so are taxa without a clade. When the values separate the outcomes
+ * within every informative clade, the conditional estimate is infinite and the statistics engine's
+ * logistic regression with clade terms takes over with Firth's bias-reduced fit (Firth 1993).
+ *
+ * Also returns the clade groups (scaled values and outcomes per clade) and the conditional log
+ * odds ratio, which the confounding judgement reuses.
  *
  * @example
  * cladeAdjustedSlope(spec "Body size", transformed, outcomes, clade indices, clade names, scaling, 0.95)
- * // => { adjusted: { estimate: 1.04, ci: [0.81, 1.33], method: "logistic regression with one intercept per clade, over 6 clades ..." }, notes: [] }
+ * // => { adjusted: { estimate: 1.04, ci: [0.81, 1.33], method: "conditional logistic regression by clade over 6 informative clades ...", informativeClades: 6, thin: false }, notes: [] }
  */
 export function cladeAdjustedSlope(
   spec: SelectivityTraitSpec,
@@ -28,105 +32,116 @@ export function cladeAdjustedSlope(
   cladeNames: string[],
   scaling: NumericScaling,
   level: number,
-): { adjusted: ContrastResult["cladeAdjusted"]; notes: string[] } {
+  minInformativeClades = 3,
+): { adjusted: ContrastResult["cladeAdjusted"]; notes: string[]; groups: CladeGroup[]; conditionalLogOdds: number | null } {
   const cladeCount = cladeNames.length;
-  const victims = new Int32Array(cladeCount);
-  const totals = new Int32Array(cladeCount);
-  const lows = new Float64Array(cladeCount).fill(Infinity);
-  const highs = new Float64Array(cladeCount).fill(-Infinity);
+  const members: number[][] = Array.from({ length: cladeCount }, () => []);
   for (let i = 0; i < transformed.length; i++) {
-    const v = transformed[i];
-    if (Number.isNaN(v)) continue;
-    const c = clade[i];
-    totals[c]++;
-    victims[c] += outcome[i];
-    if (v < lows[c]) lows[c] = v;
-    if (v > highs[c]) highs[c] = v;
+    if (Number.isNaN(transformed[i]) || clade[i] < 0) continue;
+    members[clade[i]].push(i);
   }
-  const informative = new Int32Array(cladeCount).fill(-1);
-  const kept: number[] = [];
-  let withTaxa = 0;
-  let varying = false;
-  let rows = 0;
-  for (let c = 0; c < cladeCount; c++) {
-    if (totals[c] > 0) withTaxa++;
-    if (victims[c] > 0 && victims[c] < totals[c]) {
-      informative[c] = kept.length;
-      kept.push(c);
-      rows += totals[c];
-      if (highs[c] > lows[c]) varying = true;
-    }
-  }
-  if (kept.length === 0) {
-    return { adjusted: null, notes: [`No clade holds both victims and survivors with a value of ${spec.label}, so the odds ratio within clades cannot be estimated.`] };
-  }
-  if (!varying) {
-    return {
-      adjusted: null,
-      notes: [`${spec.label} does not vary within any clade that holds both victims and survivors, so its effect cannot be told apart from clade.`],
-    };
-  }
+  const groups: CladeGroup[] = [];
+  const groupClade: number[] = [];
+  members.forEach((rows, c) => {
+    if (rows.length === 0) return;
+    groups.push({
+      x: Float64Array.from(rows, (i) => (transformed[i] - scaling.center) / scaling.scale),
+      y: Uint8Array.from(rows, (i) => outcome[i]),
+    });
+    groupClade.push(c);
+  });
+  const prepared = groups.map((g) => prepareConditionalStrata(g.x, g.y, new Int32Array(g.x.length), 1)[0] ?? null);
+  const kept = prepared.map((p, k) => (p ? k : -1)).filter((k) => k >= 0);
+  const withTaxa = groups.length;
+  const none = (note: string) => ({ adjusted: null, notes: [note], groups, conditionalLogOdds: null });
+  if (withTaxa === 0) return none(`No taxon with a value of ${spec.label} has a clade, so the odds ratio within clades cannot be estimated.`);
+  const anyBothOutcomes = groups.some((g) => {
+    let v = 0;
+    for (const y of g.y) v += y;
+    return v > 0 && v < g.y.length;
+  });
+  if (!anyBothOutcomes) return none(`No clade holds both victims and survivors with a value of ${spec.label}, so the odds ratio within clades cannot be estimated.`);
+  if (kept.length === 0) return none(`${spec.label} does not vary within any clade that holds both victims and survivors, so its effect cannot be told apart from clade.`);
 
-  const x = new Float64Array(rows);
-  const stratum = new Int32Array(rows);
-  const y = new Uint8Array(rows);
-  for (let i = 0, k = 0; i < transformed.length; i++) {
-    const v = transformed[i];
-    if (Number.isNaN(v) || informative[clade[i]] < 0) continue;
-    x[k] = (v - scaling.center) / scaling.scale;
-    stratum[k] = informative[clade[i]];
-    y[k] = outcome[i];
-    k++;
-  }
   const predictor = numericPredictorLabel(spec);
   const left = withTaxa - kept.length;
+  const thin = kept.length < minInformativeClades;
   const over =
     kept.length === 1
-      ? `logistic regression within the only clade holding both outcomes (${cladeNames[kept[0]]})`
-      : `logistic regression with one intercept per clade, over ${kept.length} clades holding both outcomes`;
+      ? `conditional logistic regression within the only informative clade (${cladeNames[groupClade[kept[0]]]})`
+      : `conditional logistic regression by clade (conditional likelihood; Breslow & Day 1980, vol. 1, ch. 7) over ${kept.length} informative clades`;
   const skipped =
     left === 0
       ? ""
       : left === 1
-        ? "; 1 clade whose taxa all died or all survived carries no information within clade and is left out"
-        : `; ${left} clades whose taxa all died or all survived carry no information within clade and are left out`;
+        ? "; 1 clade whose taxa all died, all survived or share one value carries no information within clade and is left out"
+        : `; ${left} clades whose taxa all died, all survived or share one value carry no information within clade and are left out`;
+  const notes: string[] = [];
+  if (thin) {
+    notes.push(
+      `Thin: the clade-adjusted odds ratio rests on ${kept.length} informative clade${kept.length === 1 ? "" : "s"}, fewer than the ${minInformativeClades} the run asks for; it is shown but never flags confounding on its own.`,
+    );
+  }
 
-  const quick = fitStratifiedSlope(x, y, stratum, kept.length);
-  if (quick) {
+  const conditional = fitPrepared(prepared.filter((p): p is NonNullable<typeof p> => p !== null), 0);
+  if (conditional.converged && Number.isFinite(conditional.se)) {
     const z = twoSidedCriticalValue(level);
-    const ci: [number, number] = [Math.exp(quick.estimate - z * quick.se), Math.exp(quick.estimate + z * quick.se)];
-    const estimate = Math.exp(quick.estimate);
+    const ci: [number, number] = [Math.exp(conditional.estimate - z * conditional.se), Math.exp(conditional.estimate + z * conditional.se)];
+    const estimate = Math.exp(conditional.estimate);
     if (Number.isFinite(estimate) && estimate > 0 && ci.every((v) => Number.isFinite(v))) {
-      return { adjusted: { estimate, ci, method: `${over}${skipped}, Wald interval` }, notes: [] };
+      return {
+        adjusted: { estimate, ci, method: `${over}${skipped}, Wald interval`, informativeClades: kept.length, thin },
+        notes,
+        groups,
+        conditionalLogOdds: conditional.estimate,
+      };
     }
   }
+  if (!conditional.separated) {
+    return { adjusted: null, notes: [...notes, `The conditional regression on ${predictor} within clades did not converge: interval not reported.`], groups, conditionalLogOdds: null };
+  }
 
-  // The values separate the outcomes within clades: the engine's regression with clade terms, which
-  // detects the separation and fits Firth's penalized likelihood.
+  // The values separate the outcomes within every informative clade: the engine's regression with
+  // clade terms, which detects the separation and fits Firth's penalized likelihood.
+  const rows: number[] = [];
+  const stratum: number[] = [];
+  const ys: number[] = [];
+  kept.forEach((k, s) => {
+    groups[k].x.forEach((v, i) => {
+      rows.push(v);
+      stratum.push(s);
+      ys.push(groups[k].y[i]);
+    });
+  });
   let fit: LogisticRegressionResult;
   try {
-    const xs = Array.from(x);
     const design =
       kept.length === 1
-        ? buildDesignMatrix([{ name: spec.key, kind: "numeric", values: xs }])
+        ? buildDesignMatrix([{ name: spec.key, kind: "numeric", values: rows }])
         : buildDesignMatrix([
-            { name: spec.key, kind: "numeric", values: xs },
-            { name: "clade", kind: "categorical", values: Array.from(stratum) },
+            { name: spec.key, kind: "numeric", values: rows },
+            { name: "clade", kind: "categorical", values: stratum },
           ]);
-    fit = logisticRegression(design, Array.from(y), { names: design.names, level });
+    fit = logisticRegression(design, ys, { names: design.names, level });
   } catch (error) {
-    return { adjusted: null, notes: [`The regression of extinction on ${predictor} and clade could not be fitted (${plainMessage(error)}).`] };
+    return { adjusted: null, notes: [...notes, `The regression of extinction on ${predictor} and clade could not be fitted (${plainMessage(error)}).`], groups, conditionalLogOdds: null };
   }
   const slope = fit.coefficients[1];
+  if (!fit.converged) {
+    return { adjusted: null, notes: [...notes, `The clade-adjusted regression on ${predictor} did not converge: interval not reported.`], groups, conditionalLogOdds: null };
+  }
   if (!(slope.oddsRatio > 0 && Number.isFinite(slope.oddsRatio) && slope.oddsRatioCi.every((v) => Number.isFinite(v)))) {
-    return { adjusted: null, notes: [`The odds ratio of ${predictor} within clades is not finite, so no clade-adjusted value is given.`] };
+    return { adjusted: null, notes: [...notes, `The odds ratio of ${predictor} within clades is not finite, so no clade-adjusted value is given.`], groups, conditionalLogOdds: null };
   }
   const interval = fit.firth
-    ? `Firth's bias-reduced fit because the values separate the outcomes within clades, ${fit.ciMethod === "profile" ? "profile penalized likelihood" : "Wald"} interval`
+    ? `Firth's bias-reduced fit with one intercept per clade because the values separate the outcomes within clades (the conditional estimate is infinite), ${fit.ciMethod === "profile" ? "profile penalized likelihood" : "Wald"} interval`
     : "Wald interval";
-  const notes = fit.converged ? [] : [`The clade-adjusted regression on ${predictor} did not converge; treat its estimate with caution.`];
+  const overFirth = kept.length === 1 ? `logistic regression within the only informative clade (${cladeNames[groupClade[kept[0]]]})` : `logistic regression over ${kept.length} informative clades`;
   return {
-    adjusted: { estimate: slope.oddsRatio, ci: [slope.oddsRatioCi[0], slope.oddsRatioCi[1]], method: `${over}${skipped}, ${interval}` },
+    adjusted: { estimate: slope.oddsRatio, ci: [slope.oddsRatioCi[0], slope.oddsRatioCi[1]], method: `${overFirth}${skipped}, ${interval}`, informativeClades: kept.length, thin },
     notes,
+    groups,
+    // A Firth estimate is not a conditional one: no confounding judgement rests on it.
+    conditionalLogOdds: null,
   };
 }

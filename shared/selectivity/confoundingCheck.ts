@@ -1,3 +1,4 @@
+import { CLADE_CONFOUNDING_REPLICATES, CLADE_CONFOUNDING_SEED } from "./cladeConfounding";
 import { formatNumber } from "./formatNumber";
 import { numericStep } from "./scaleNumericTrait";
 import type { ContrastResult, SelectivityTraitSpec } from "./types";
@@ -14,45 +15,68 @@ export interface ConfoundingContext {
 }
 
 /**
- * The confounding check (change-in-estimate rule; common practice, no source): each contrast's
- * crude odds ratio is compared with its odds ratio adjusted for clade and for the other traits, as
- * the relative change |adjusted / crude - 1|; a contrast is flagged when either change exceeds the
- * threshold. The note says in plain words what the move may mean: a trait can track extinction only
- * because both share a cause (e.g. the trait is concentrated in hard-hit clades).
+ * The confounding check, calibrated: a contrast is flagged "possible confounding" when its crude
+ * odds ratio and the marginal odds ratio standardised over the adjustment (clade, or the other
+ * traits) differ by more than the analyst's threshold (the change-in-estimate rule; common
+ * practice, no source) and by more than their own uncertainty (a seeded bootstrap), and the
+ * estimate is not thin (see judgeCladeConfounding and judgeModelConfounding, which fill
+ * contrast.cladeCheck and contrast.modelCheck). The adjusted conditional odds ratios stay on screen
+ * as estimates; the changes reported are those the judgement weighed. The note says in plain words
+ * what a flagged move may mean; how the flag is decided is said once per result (confoundingMethod).
  *
  * @example
- * confoundingCheck(contrasts with crude 2.8 and clade-adjusted 1.1, { threshold: 0.1, ... })
+ * confoundingCheck(contrasts with cladeCheck { crude: 2.8, standardised: 1.1, flagged: true }, { threshold: 0.1, ... })
  * // => { contrasts: [{ ..., changeOnCladeAdjustment: 0.607, flagged: true }],
  * //      note: "The odds ratio of Life habit: infaunal (against epifaunal) moves from 2.80 to 1.10 once clade is taken into account: ..." }
  */
 export function confoundingCheck(contrasts: ContrastResult[], context: ConfoundingContext): { contrasts: ContrastResult[]; note: string | null } {
   const sentences: string[] = [];
   const checked = contrasts.map((contrast) => {
-    const crude = contrast.crude.estimate;
-    const cladeChange = contrast.cladeAdjusted ? relativeChange(crude, contrast.cladeAdjusted.estimate) : null;
-    const modelChange = contrast.modelAdjusted ? relativeChange(crude, contrast.modelAdjusted.estimate) : null;
-    const cladeFlag = cladeChange !== null && cladeChange > context.threshold;
-    const modelFlag = modelChange !== null && modelChange > context.threshold;
+    const cladeCheck = contrast.cladeCheck ?? null;
+    const modelCheck = contrast.modelCheck ?? null;
+    const cladeFlag = cladeCheck?.flagged === true;
+    const modelFlag = modelCheck?.flagged === true;
     const subject = subjectOf(contrast, context.spec);
-    if (cladeFlag && contrast.cladeAdjusted) {
-      sentences.push(`${subject} moves from ${formatNumber(crude)} to ${formatNumber(contrast.cladeAdjusted.estimate)} once clade is taken into account: ${cladeReading(contrast, context.spec, crude, contrast.cladeAdjusted.estimate)}`);
+    if (cladeFlag && cladeCheck) {
+      sentences.push(
+        `${subject} moves from ${formatNumber(cladeCheck.crude)} to ${formatNumber(cladeCheck.standardised)} (standardised over clades; within clades ${formatNumber(contrast.cladeAdjusted?.estimate ?? NaN)}) once clade is taken into account: ${cladeReading(contrast, context.spec, cladeCheck.crude, cladeCheck.standardised)}`,
+      );
     }
-    if (modelFlag && contrast.modelAdjusted) {
+    if (modelFlag && modelCheck) {
       const others = context.otherTraits.length > 0 ? `the other traits (${context.otherTraits.join(", ")})` : "the other traits";
       const smaller =
         context.modelTaxa !== null && context.modelTaxa < context.traitTaxa
-          ? ` The model uses the ${context.modelTaxa} taxa with every chosen trait known, fewer than the ${context.traitTaxa} here, so part of this change may come from the smaller sample.`
+          ? ` The model uses the ${context.modelTaxa} taxa with every chosen trait known, fewer than the ${context.traitTaxa} here.`
           : "";
-      sentences.push(`${subject} moves from ${formatNumber(crude)} to ${formatNumber(contrast.modelAdjusted.estimate)} once ${others} are taken into account: ${modelReading(crude, contrast.modelAdjusted.estimate)}${smaller}`);
+      sentences.push(
+        `${subject} moves from ${formatNumber(modelCheck.crude)} to ${formatNumber(modelCheck.standardised)} (standardised over ${others}) once they are taken into account: ${modelReading(modelCheck.crude, modelCheck.standardised)}${smaller}`,
+      );
     }
-    return { ...contrast, changeOnCladeAdjustment: cladeChange, changeOnModelAdjustment: modelChange, flagged: cladeFlag || modelFlag };
+    return {
+      ...contrast,
+      cladeCheck,
+      modelCheck,
+      changeOnCladeAdjustment: cladeCheck ? cladeCheck.change : null,
+      changeOnModelAdjustment: modelCheck ? modelCheck.change : null,
+      flagged: cladeFlag || modelFlag,
+    };
   });
-  if (sentences.length === 0) return { contrasts: checked, note: null };
-  const percent = String(Number((context.threshold * 100).toFixed(1)));
-  sentences.push(
-    `(Flagged because the odds ratio moves by more than ${percent}% on adjustment. A trait can track extinction only because both share a cause; the adjusted odds ratios show how much of the association remains within clades and beside the other traits.)`,
+  return { contrasts: checked, note: sentences.length === 0 ? null : sentences.join(" ") };
+}
+
+/** How the flag is decided, said once per result, with its citations. */
+export function confoundingMethod(threshold: number, level: number, minInformativeClades: number): string {
+  const percent = String(Number((threshold * 100).toFixed(1)));
+  return (
+    `"Possible confounding" flags a contrast whose crude odds ratio differs from the marginal odds ratio standardised over the adjustment (over clades, or over the other traits) ` +
+    `by more than ${percent}% (the change-in-estimate threshold; common practice, no source) and by more than its own uncertainty: the log difference over its standard error ` +
+    `from a seeded bootstrap (taxa resampled within clades; ${CLADE_CONFOUNDING_REPLICATES} replicates, seed ${CLADE_CONFOUNDING_SEED}), two-sided p below ${String(Number((1 - level).toFixed(4)))}. ` +
+    `Traits with states are standardised directly over the clades holding both states; numeric traits through the conditional (within-clade) slope. ` +
+    `The crude odds ratio is compared with a standardised marginal one, not with the within-clade (conditional) one shown as the estimate, because odds ratios are not collapsible: ` +
+    `when risk differs between clades the within-clade odds ratio lies further from 1 than the crude one even without confounding (Greenland, Robins & Pearl 1999, Statistical Science 14:29; Miettinen & Cook 1981). ` +
+    `Clade-adjusted estimates resting on fewer than ${minInformativeClades} informative clades are marked thin and never flag on their own. ` +
+    `A trait can track extinction only because both share a cause (e.g. the trait is concentrated in hard-hit clades); the adjusted odds ratios show how much of the association remains within clades and beside the other traits.`
   );
-  return { contrasts: checked, note: sentences.join(" ") };
 }
 
 /** |adjusted / crude - 1|, or null when either is not a positive finite number. */

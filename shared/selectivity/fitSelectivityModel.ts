@@ -26,6 +26,9 @@ export interface SelectivityModelFit {
   adjusted: Map<string, Map<string, Interval>>;
   /** Why a trait, or a state of it, has no model-adjusted odds ratio: by trait key. */
   missingReasons: Map<string, string>;
+  /** The design and outcomes of the fit (complete cases), for the confounding judgement; absent without a model. */
+  design?: DesignMatrix;
+  y?: number[];
 }
 
 /**
@@ -182,7 +185,7 @@ export function fitSelectivityModel(traits: ModelTraitInput[], outcome: Uint8Arr
     covariance: fit.covariance.map((row) => [...row]),
     notes,
   };
-  return { model, modelNote: null, completeCases, adjusted, missingReasons };
+  return { model, modelNote: null, completeCases, adjusted, missingReasons, design, y };
 }
 
 function completeRows(members: ModelTraitInput[], n: number): Uint8Array {

@@ -16,7 +16,8 @@ export { testNumericTrait, plainMessage, type NumericTraitTest } from "./testNum
 export { cladeAdjustedSlope } from "./cladeAdjustedSlope";
 export { fitStratifiedSlope, type StratifiedSlopeFit } from "./stratifiedSlope";
 export { fitSelectivityModel, type ModelTraitInput, type SelectivityModelFit } from "./fitSelectivityModel";
-export { confoundingCheck, relativeChange, type ConfoundingContext } from "./confoundingCheck";
+export { confoundingCheck, confoundingMethod, relativeChange, type ConfoundingContext } from "./confoundingCheck";
+export { judgeCladeConfounding, standardisedLogOdds, crudeLogOdds, cladeIntercept, CONFOUNDING_CITATION, DEFAULT_MIN_INFORMATIVE_CLADES, type CladeGroup, type CladeConfoundingOptions } from "./cladeConfounding";
 export { formatCompact, formatNumber } from "./formatNumber";
 export {
   crisisVersusBackground,

@@ -10,7 +10,8 @@ export interface CladeStateCounts {
 }
 
 /**
- * Counts victims and survivors per clade and state (negative state indices are skipped).
+ * Counts victims and survivors per clade and state (negative state indices are skipped, and so are
+ * taxa without a clade, clade index -1: they are left out of clade-adjusted estimates).
  *
  * @example
  * countCladeStates(Int32Array.of(0, 1, 0), Int32Array.of(0, 0, 1), Uint8Array.of(1, 0, 0), 2, 2).cells
@@ -20,7 +21,7 @@ export function countCladeStates(codes: Int32Array, clade: Int32Array, outcome: 
   const cells = new Int32Array(cladeCount * stateCount * 2);
   for (let i = 0; i < codes.length; i++) {
     const s = codes[i];
-    if (s < 0) continue;
+    if (s < 0 || clade[i] < 0) continue;
     cells[2 * (clade[i] * stateCount + s) + (outcome[i] === 1 ? 0 : 1)]++;
   }
   return { cells, cladeCount, stateCount };
@@ -50,6 +51,7 @@ export function stateContrasts(
   byClade: CladeStateCounts,
   cladeNames: string[],
   level: number,
+  minInformativeClades = 3,
 ): ContrastResult[] {
   const contrasts: ContrastResult[] = [];
   const refState = spec.states[reference];
@@ -91,9 +93,17 @@ export function stateContrasts(
       if (mh.oddsRatio > 0 && Number.isFinite(mh.oddsRatio) && Number.isFinite(mh.ci[0]) && Number.isFinite(mh.ci[1])) {
         const left = withTaxa - strata.length;
         const single = strata.length === 1 ? ` (only ${cladeNames[strataClades[0]]})` : "";
+        const thin = strata.length < minInformativeClades;
+        if (thin) {
+          notes.push(
+            `Thin: the clade-adjusted odds ratio rests on ${strata.length} informative clade${strata.length === 1 ? "" : "s"}${single}, fewer than the ${minInformativeClades} the run asks for; it is shown but never flags confounding on its own.`,
+          );
+        }
         cladeAdjusted = {
           estimate: mh.oddsRatio,
           ci: [mh.ci[0], mh.ci[1]],
+          informativeClades: strata.length,
+          thin,
           method:
             `Mantel-Haenszel over ${strata.length} clade${strata.length === 1 ? "" : "s"}${single} holding both states and both outcomes` +
             (left === 1 ? "; 1 other clade with these states carries no information and is left out" : "") +
@@ -122,6 +132,8 @@ export function stateContrasts(
       modelAdjusted: null,
       changeOnCladeAdjustment: null,
       changeOnModelAdjustment: null,
+      cladeCheck: null,
+      modelCheck: null,
       flagged: false,
       notes,
     });

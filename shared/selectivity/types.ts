@@ -37,6 +37,8 @@ export interface SelectivityOptions {
   level: number;
   /** Relative change of an odds ratio on adjustment that flags possible confounding (0.1 = 10%). */
   confoundingThreshold: number;
+  /** Clade-adjusted estimates from fewer informative clades than this are "thin" and never flag (default 3). */
+  minInformativeClades?: number;
 }
 
 export interface SelectivityInput {
@@ -67,16 +69,54 @@ export interface ContrastResult {
   reference: string | null;
   /** Crude odds ratio (2x2 sample OR with Woolf interval; univariate logistic for numbers). */
   crude: Interval & { method: string };
-  /** Adjusted for clade: Mantel-Haenszel over clades (categorical) or logistic with clade terms (numeric). */
-  cladeAdjusted: (Interval & { method: string; breslowDay?: { chiSquare: number; df: number; pValue: number } }) | null;
+  /**
+   * Adjusted for clade: Mantel-Haenszel over clades (states) or conditional logistic regression by
+   * clade (numbers). informativeClades counts the clades that carry information; thin is true when
+   * they are fewer than the minimum (options.minInformativeClades).
+   */
+  cladeAdjusted:
+    | (Interval & { method: string; informativeClades?: number; thin?: boolean; breslowDay?: { chiSquare: number; df: number; pValue: number } })
+    | null;
   /** Adjusted for the other traits in the multiple logistic regression. */
   modelAdjusted: Interval | null;
-  /** Relative changes |adjusted/crude - 1| on the odds-ratio scale. */
+  /**
+   * Relative changes on the odds-ratio scale that the confounding judgement weighs: for clade,
+   * |standardised marginal / crude - 1| (see cladeCheck); for the other traits, the same with the
+   * marginal odds ratio standardised over the multiple regression (see modelCheck).
+   */
   changeOnCladeAdjustment: number | null;
   changeOnModelAdjustment: number | null;
+  /** How the clade confounding judgement came out, with the method that decided it; null when not possible. */
+  cladeCheck?: ConfoundingJudgement | null;
+  /** The same judgement for the adjustment for the other traits; null when not possible. */
+  modelCheck?: ConfoundingJudgement | null;
+  /** Possible confounding: a change larger than the threshold and than its own uncertainty (see confoundingMethod). */
   flagged: boolean;
   /** Why an adjusted odds ratio is missing, or what limits it: short sentences. */
   notes: string[];
+}
+
+/** One confounding judgement: the crude odds ratio against a marginal odds ratio standardised over the adjustment. */
+export interface ConfoundingJudgement {
+  /** Crude odds ratio over the same taxa as the standardised one. */
+  crude: number;
+  /** Marginal odds ratio standardised over clades (or over the other traits): comparable with the crude one. */
+  standardised: number;
+  /** |standardised / crude - 1|. */
+  change: number;
+  /** Bootstrap standard error of ln(crude / standardised); null when the bootstrap failed. */
+  seLogDifference: number | null;
+  z: number | null;
+  /** Two-sided p-value of z on a t distribution (clades - 1 degrees of freedom); null without a standard error. */
+  pValue: number | null;
+  /** Clades that carry information on the within-clade odds ratio (null for the adjustment for the other traits). */
+  informativeClades: number | null;
+  thin: boolean;
+  flagged: boolean;
+  replicates: number;
+  seed: number;
+  /** The rule that decided, with its citation. */
+  method: string;
 }
 
 export interface TraitResult {
@@ -157,7 +197,11 @@ export interface SelectivityResult {
     droppedByTrait: Record<string, number>;
     /** Taxa with every chosen trait present: the multiple regression's sample. */
     completeCases: number;
+    /** Taxa without a clade (higher taxon): left out of every clade-adjusted estimate. */
+    withoutClade?: number;
   };
+  /** How the confounding flag is decided, with citations: said once per result, not per contrast. */
+  confoundingMethod?: string;
   traits: TraitResult[];
   model: ModelResult | null;
   /** Why no model could be fitted, when it could not. */

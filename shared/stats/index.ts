@@ -26,3 +26,4 @@ export { adjustPValues, type PValueAdjustment } from "./adjustPValues";
 export { rocAuc, type RocAucResult } from "./rocAuc";
 export { rocCurve, type RocPoint } from "./rocCurve";
 export { spearman, type SpearmanResult } from "./spearman";
+export { conditionalLogisticSlope, type ConditionalLogisticFit } from "./conditionalLogistic";

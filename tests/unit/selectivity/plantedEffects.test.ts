@@ -103,7 +103,7 @@ describe("simulation check: a trait concentrated in a hard-hit clade, with no ef
     expect(infaunal.changeOnCladeAdjustment!).toBeGreaterThan(0.4);
     expect(infaunal.flagged).toBe(true);
     expect(habit.confoundingNote).toMatch(
-      /^The odds ratio of Life habit: Infaunal \(against Epifaunal\) moves from \d\.\d\d to \d\.\d+ once clade is taken into account: it may track extinction only because Infaunal taxa are concentrated in hard-hit clades — a shared cause, not necessarily an effect of the trait\./,
+      /^The odds ratio of Life habit: Infaunal \(against Epifaunal\) moves from \d\.\d\d to \d\.\d+ \(standardised over clades; within clades \d\.\d+\) once clade is taken into account: it may track extinction only because Infaunal taxa are concentrated in hard-hit clades — a shared cause, not necessarily an effect of the trait\./,
     );
   });
 

@@ -224,6 +224,7 @@ describe("multiple-testing correction and the design summary", () => {
       survivors: 4,
       droppedByTrait: { setting: 1, feeding: 1, shell: 1, water: 0 },
       completeCases: 8,
+      withoutClade: 0,
     });
     expect(result.model!.n).toBe(8);
     expect(result.model!.droppedIncomplete).toBe(1);
