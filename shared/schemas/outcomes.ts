@@ -1,6 +1,6 @@
 import { z } from "zod";
 import { findUnit } from "../timescale/lookup";
-import { isoDateSchema, uuidSchema, personOrNoneSchema } from "./common";
+import { AGE_LIMIT_MA, isoDateSchema, uuidSchema, personOrNoneSchema } from "./common";
 import { timescaleRankSchema } from "./timescale";
 
 export const BOUNDARY_OUTCOMES = ["survivor", "victim", "excluded"] as const;
@@ -40,7 +40,8 @@ export const numberParam = (field: string, what: string, check: (v: number) => b
 export const boundaryMaSchema = z
   .number({ message: "Boundary must be an age in Ma (a number greater than 0)" })
   .refine(Number.isFinite, "Boundary must be an age in Ma (a number greater than 0)")
-  .refine((v) => v > 0, "Boundary must be an age in Ma greater than 0");
+  .refine((v) => v > 0, "Boundary must be an age in Ma greater than 0")
+  .refine((v) => v <= AGE_LIMIT_MA, `Boundary must be at most ${AGE_LIMIT_MA.toLocaleString("en-US")} Ma: nothing is older than the Earth`);
 
 const reasonSchema = z
   .string({ message: "A reason is required" })
@@ -52,7 +53,7 @@ const reasonSchema = z
 
 /** The boundary and window of a query (outcomes, turnover): an age or a unit of the time scale, and a window in Myr. */
 export const boundaryQueryFields = {
-  boundary: numberParam("boundary", "an age in Ma (a number greater than 0)", (v) => v > 0).meta({ description: "Boundary age in Ma (a custom age); give this or boundaryUnit" }),
+  boundary: numberParam("boundary", `an age in Ma (a number greater than 0, at most ${AGE_LIMIT_MA.toLocaleString("en-US")})`, (v) => v > 0 && v <= AGE_LIMIT_MA).meta({ description: "Boundary age in Ma (a custom age); give this or boundaryUnit" }),
   boundaryUnit: z
     .preprocess(
       blankAsMissing,

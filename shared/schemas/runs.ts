@@ -3,7 +3,7 @@
 // recomputing, re-run on today's data, compared side by side and exported.
 import { z } from "zod";
 import type { SelectivityResult } from "../selectivity/types";
-import { exportQuerySchema, isoDateSchema, uuidSchema, personOrNoneSchema, type Same, cautionsSchema } from "./common";
+import { AGE_LIMIT_MA, exportQuerySchema, isoDateSchema, oneLine, uuidSchema, personOrNoneSchema, type Same, cautionsSchema } from "./common";
 import { numericTransformSchema, traitKindSchema } from "./traits";
 import { crisisBoundaryParamSchema, runCrisisSchema } from "./runChecks";
 
@@ -18,7 +18,6 @@ export const RUN_MAX_PAGE_SIZE = 100;
  * "10% change-in-estimate" rule (Mickey & Greenland 1989, Am J Epidemiol 129:125; common practice).
  */
 export const DEFAULT_CONFOUNDING_THRESHOLD = 0.1;
-export const DEFAULT_MIN_INFORMATIVE_CLADES = 3;
 
 export const RUN_STATUSES = ["queued", "running", "succeeded", "failed"] as const;
 export const runStatusSchema = z
@@ -44,6 +43,7 @@ export const runBoundaryParamsSchema = z
       .number({ message: "Boundary must be an age in Ma (a number greater than 0)" })
       .refine(Number.isFinite, "Boundary must be a finite age in Ma")
       .refine((v) => v > 0, "Boundary must be an age in Ma greater than 0")
+      .refine((v) => v <= AGE_LIMIT_MA, `Boundary must be at most ${AGE_LIMIT_MA.toLocaleString("en-US")} Ma: nothing is older than the Earth`)
       .meta({ description: "Boundary age in Ma" }),
     windowMyr: z
       .number({ message: "Window must be a duration in Myr (a number of 0 or more)" })
@@ -51,7 +51,7 @@ export const runBoundaryParamsSchema = z
       .refine((v) => v >= 0, "Window must be a duration in Myr of 0 or more")
       .optional()
       .meta({ description: "Window below the boundary in Myr; default: the duration of the stage just below the boundary" }),
-    label: z.string().trim().max(120, "Label must have at most 120 characters").optional().meta({ description: "A name for the boundary in tables and figures; default from the time scale" }),
+    label: z.string().trim().max(120, "Label must have at most 120 characters").check(oneLine("Label")).optional().meta({ description: "A name for the boundary in tables and figures; default from the time scale" }),
   })
   .meta({ id: "RunBoundaryParams" });
 export type RunBoundaryParams = z.infer<typeof runBoundaryParamsSchema>;
@@ -73,7 +73,7 @@ export type RunTraitParams = z.infer<typeof runTraitParamsSchema>;
 
 export const runParamsSchema = z
   .strictObject({
-    name: z.string({ message: "Name is required" }).trim().min(1, "Name is required").max(120, "Name must have at most 120 characters"),
+    name: z.string({ message: "Name is required" }).trim().min(1, "Name is required").max(120, "Name must have at most 120 characters").check(oneLine("Name")),
     boundaries: z
       .array(runBoundaryParamsSchema, { message: "boundaries must be a list of { boundaryMa, windowMyr?, label? }" })
       .min(1, "Choose at least one boundary")
@@ -103,15 +103,7 @@ export const runParamsSchema = z
       .max(1, "confoundingThreshold must be at most 1")
       .default(DEFAULT_CONFOUNDING_THRESHOLD)
       .meta({ description: "Relative change of an odds ratio on adjustment that flags possible confounding (0.1 = 10%)" }),
-    minInformativeClades: z
-      .number({ message: "minInformativeClades must be a whole number between 1 and 50" })
-      .int("minInformativeClades must be a whole number")
-      .min(1, "minInformativeClades must be at least 1")
-      .max(50, "minInformativeClades must be at most 50")
-      .optional()
-      .meta({ description: "Clade-adjusted estimates resting on fewer informative clades than this are marked thin and never flag possible confounding (default 3 when left out)" }),
     crisisBoundary: crisisBoundaryParamSchema,
-    robustness: robustnessParamsSchema.optional().meta({ description: "Settings of the robustness panel; left out: the defaults (windows 0.5, 1.5 and 2 times each boundary's, truncation a quarter of the window)" }),
   })
   .superRefine((p, ctx) => {
     if (p.crisisBoundary !== undefined) {
@@ -140,7 +132,7 @@ export type RunParams = z.output<typeof runParamsSchema>;
 
 export const runRerunSchema = z
   .strictObject({
-    name: z.string().trim().min(1, "Name must not be empty").max(120, "Name must have at most 120 characters").optional().meta({ description: "Default: the name of the run re-run" }),
+    name: z.string().trim().min(1, "Name must not be empty").max(120, "Name must have at most 120 characters").check(oneLine("Name")).optional().meta({ description: "Default: the name of the run re-run" }),
   })
   .meta({ id: "RunRerun" });
 export type RunRerunInput = z.input<typeof runRerunSchema>;
@@ -202,22 +194,6 @@ export type RunPreview = z.infer<typeof runPreviewSchema>;
 
 const ciSchema = z.tuple([z.number(), z.number()]);
 const intervalSchema = z.object({ estimate: z.number(), ci: ciSchema });
-const confoundingJudgementSchema = z
-  .object({
-    crude: z.number(),
-    standardised: z.number(),
-    change: z.number(),
-    seLogDifference: z.number().nullable(),
-    z: z.number().nullable(),
-    pValue: z.number().nullable(),
-    informativeClades: z.number().int().nullable(),
-    thin: z.boolean(),
-    flagged: z.boolean(),
-    replicates: z.number().int(),
-    seed: z.number().int(),
-    method: z.string(),
-  })
-  .meta({ id: "SelectivityConfoundingJudgement", description: "Crude odds ratio against the marginal odds ratio standardised over the adjustment, with a bootstrap standard error of the log difference" });
 
 export const stateRowSchema = z
   .object({
@@ -237,19 +213,12 @@ export const contrastResultSchema = z
     reference: z.string().nullable(),
     crude: intervalSchema.extend({ method: z.string() }),
     cladeAdjusted: intervalSchema
-      .extend({
-        method: z.string(),
-        informativeClades: z.number().int().optional().meta({ description: "Clades that carry information on the within-clade odds ratio" }),
-        thin: z.boolean().optional().meta({ description: "Fewer informative clades than the run's minimum: shown, never flags" }),
-        breslowDay: z.object({ chiSquare: z.number(), df: z.number(), pValue: z.number() }).optional(),
-      })
+      .extend({ method: z.string(), breslowDay: z.object({ chiSquare: z.number(), df: z.number(), pValue: z.number() }).optional() })
       .nullable(),
     modelAdjusted: intervalSchema.nullable(),
     changeOnCladeAdjustment: z.number().nullable(),
     changeOnModelAdjustment: z.number().nullable(),
-    cladeCheck: confoundingJudgementSchema.nullable().optional(),
-    modelCheck: confoundingJudgementSchema.nullable().optional(),
-    flagged: z.boolean().meta({ description: "Possible confounding: the crude odds ratio differs from the standardised marginal one by more than the threshold and more than its own uncertainty" }),
+    flagged: z.boolean().meta({ description: "The confounding check: the odds ratio moves by more than the threshold on adjustment" }),
     notes: z.array(z.string()).meta({ description: "Why an adjusted odds ratio is missing, or what limits it" }),
   })
   .meta({ id: "SelectivityContrast" });
@@ -326,9 +295,7 @@ export const selectivityResultSchema = z
       survivors: z.number().int(),
       droppedByTrait: z.record(z.string(), z.number().int()),
       completeCases: z.number().int(),
-      withoutClade: z.number().int().optional().meta({ description: "Taxa without a higher taxon, left out of the clade-adjusted estimates" }),
     }),
-    confoundingMethod: z.string().optional().meta({ description: "How the confounding flag is decided, with citations" }),
     traits: z.array(traitResultSchema),
     model: modelResultSchema.nullable(),
     modelNote: z.string().nullable(),

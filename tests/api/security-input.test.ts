@@ -309,6 +309,12 @@ describe("one-line fields refuse line breaks and control characters, naming the 
     expect(taxon.status).toBe(400);
     expect(taxon.body.error.fields).toEqual({ name: "Name must be one line of text: it holds a line break", higherTaxon: "Higher taxon must be one line of text: it holds a control character (U+2028)" });
 
+    const run = await cast.people.analyst.agent
+      .post(`/api/studies/${study.studyId}/runs/preview`)
+      .send({ name: "Invented\nrun", boundaries: [{ boundaryMa: 66, label: "K\u2029Pg" }], traits: [{ traitId: study.trait.feeding.id }] });
+    expect(run.status, JSON.stringify(run.body)).toBe(400);
+    expect(run.body.error.fields).toMatchObject({ name: "Name must be one line of text: it holds a line break", "boundaries.0.label": "Label must be one line of text: it holds a control character (U+2029)" });
+
     const trait = await cast.people.coder.agent.patch(`/api/studies/${study.studyId}/traits/${study.trait.feeding.id}`).send({ label: "Feeding\r\nmode" });
     expect(trait.status).toBe(400);
     expect(trait.body.error.fields.label).toBe("Label must be one line of text: it holds a line break");
@@ -336,6 +342,17 @@ describe("ages older than the Earth (4,567 Ma, common practice) are refused", ()
 
     const stored = (await coder.get(`${taxa}/${id}`)).body;
     expect(stored.taxon ?? stored).toMatchObject({ fadMa: 4567, ladMa: 4000 });
+  });
+
+  it("as a boundary of an outcome query or a run", async () => {
+    const outcomes = await cast.people.analyst.agent.get(`/api/studies/${study.studyId}/outcomes?boundary=5000`);
+    expect(outcomes.status).toBe(400);
+    expect(outcomes.body.error.fields.boundary).toBe("boundary must be an age in Ma (a number greater than 0, at most 4,567)");
+    const run = await cast.people.analyst.agent
+      .post(`/api/studies/${study.studyId}/runs/preview`)
+      .send({ name: "Invented run", boundaries: [{ boundaryMa: 1e300 }], traits: [{ traitId: study.trait.feeding.id }] });
+    expect(run.status, JSON.stringify(run.body)).toBe(400);
+    expect(run.body.error.fields["boundaries.0.boundaryMa"]).toBe("Boundary must be at most 4,567 Ma: nothing is older than the Earth");
   });
 
   it("in an imported CSV file, as a row problem naming row and column", async () => {
