@@ -1,6 +1,14 @@
 // Timings of deriving ranges and three-timer rates from invented occurrences (seeded, so every run reads the
 // same finds). `npx tsx bench/occurrences.ts` prints them; bench/run.ts runs benchOccurrences().
+import { randomUUID } from "node:crypto";
+import { mkdtemp, rm, writeFile } from "node:fs/promises";
+import { loadavg, tmpdir } from "node:os";
+import { join } from "node:path";
 import { pathToFileURL } from "node:url";
+import { eq } from "drizzle-orm";
+import { memberships, studies, users } from "../db/schema/index";
+import { connectDatabase } from "../server/db";
+import { createOccurrenceService } from "../server/services/occurrences";
 import { mulberry32, type Random } from "../scripts/seed/demo/names";
 import { deriveRanges, threeTimerRates, type Occurrence } from "../shared/occurrences/index";
 import { timescaleStages } from "../shared/timescale/index";
@@ -55,6 +63,91 @@ function time(runs: number, work: () => void): { ms: number; cpuMs: number } {
   return { ms: median(wall), cpuMs: median(cpu) };
 }
 
+/** The invented finds as an occurrence CSV: every fifth dated by interval names instead of ages. */
+function occurrenceCsv(occurrences: Occurrence[], stageNameAt: Map<number, string>): string {
+  const lines = ["taxon,higher_taxon,max_ma,min_ma,early_interval,late_interval,collection"];
+  occurrences.forEach((o, i) => {
+    if (i % 5 === 4) lines.push(`${o.taxon},${o.higherTaxon},,,${stageNameAt.get(o.maxMa)},${stageNameAt.get(-o.minMa)},${o.collection}`);
+    else lines.push(`${o.taxon},${o.higherTaxon},${o.maxMa},${o.minMa},,,${o.collection}`);
+  });
+  return lines.join("\n") + "\n";
+}
+
+/** Upload (parse, store) and commit (read, check, write in one transaction) of 500,000 occurrences through the service. */
+async function benchUploadAndCommit(occurrences: Occurrence[]): Promise<BenchFigure[]> {
+  const url = process.env.DATABASE_URL;
+  if (!url) return [{ name: "occurrence upload + commit", value: 0, unit: "s", note: "skipped: DATABASE_URL is not set (npm run bench sets it)" }];
+  const database = connectDatabase(url);
+  const db = database.db;
+  const uploadDir = await mkdtemp(join(tmpdir(), "stratasieve-bench-occurrences-"));
+  let studyId: string | null = null;
+  let userId: string | null = null;
+  try {
+    const [user] = await db
+      .insert(users)
+      .values({ email: `bench-${randomUUID()}@example.test`, name: "Bench coder (invented)", passwordHash: "not-a-login" })
+      .returning({ id: users.id });
+    userId = user!.id;
+    const [study] = await db.insert(studies).values({ name: "Invented occurrence bench study", createdBy: userId }).returning({ id: studies.id });
+    studyId = study!.id;
+    await db.insert(memberships).values({ studyId, userId, role: "coder" });
+    const stageNameAt = new Map<number, string>();
+    for (const s of timescaleStages) {
+      stageNameAt.set(s.base, s.name);
+      stageNameAt.set(-s.top, s.name);
+    }
+    const csv = Buffer.from(occurrenceCsv(occurrences, stageNameAt), "utf8");
+    const service = createOccurrenceService(db);
+    const started = performance.now();
+    const storedPath = join(uploadDir, `${randomUUID()}.csv`);
+    await writeFile(storedPath, csv);
+    const uploaded = await service.upload(studyId, { id: userId }, { originalname: "invented-finds.csv", path: storedPath, size: csv.length });
+    const afterUpload = performance.now();
+    const mapping = {
+      taxon: "taxon",
+      higherTaxon: "higher_taxon",
+      maxMa: "max_ma",
+      minMa: "min_ma",
+      earlyInterval: "early_interval",
+      lateInterval: "late_interval",
+      collection: "collection",
+      count: null,
+    };
+    const committed = await service.commit(studyId, uploaded.upload.id, { id: userId }, { mapping, duplicates: "keep", skipInvalid: false });
+    const done = performance.now();
+    if (committed.createdCount !== occurrences.length) throw new Error(`bench: expected ${occurrences.length} occurrences, the commit wrote ${committed.createdCount}`);
+    const derivingStart = performance.now();
+    const preview = await service.previewRanges(studyId, { ageMode: "bounds", maxSpanMyr: null });
+    const derivingDone = performance.now();
+    const mb = (csv.length / 1024 / 1024).toFixed(1);
+    return [
+      {
+        name: "occurrences 500k: upload + commit",
+        value: round((done - started) / 1000),
+        unit: "s",
+        note: `a ${mb} MB CSV, one fifth dated by interval names; target < 30 s; load average ${loadavg()[0]!.toFixed(1)}`,
+      },
+      { name: "occurrences 500k: upload (parse, store)", value: round((afterUpload - started) / 1000), unit: "s" },
+      { name: "occurrences 500k: commit (read, check, write)", value: round((done - afterUpload) / 1000), unit: "s", note: "one transaction" },
+      {
+        name: "occurrences 500k: ranges preview from the database",
+        value: round((derivingDone - derivingStart) / 1000),
+        unit: "s",
+        note: `reads every occurrence, derives ${preview.newTaxa.length} ranges and compares with the table`,
+      },
+    ];
+  } finally {
+    if (studyId) await db.delete(studies).where(eq(studies.id, studyId));
+    if (userId) await db.delete(users).where(eq(users.id, userId));
+    await rm(uploadDir, { recursive: true, force: true });
+    await database.close();
+  }
+}
+
+function round(value: number): number {
+  return Math.round(value * 100) / 100;
+}
+
 export async function benchOccurrences(): Promise<BenchFigure[]> {
   const count = 500_000;
   const occurrences = inventedOccurrences(count, 20_000, 19);
@@ -68,6 +161,7 @@ export async function benchOccurrences(): Promise<BenchFigure[]> {
   });
   const rates = time(5, () => threeTimerRates(occurrences, bins));
   return [
+    ...(await benchUploadAndCommit(occurrences)),
     {
       name: "deriveRanges, 500,000 occurrences",
       value: Math.round(derive.ms),

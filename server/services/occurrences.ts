@@ -308,32 +308,12 @@ export function createOccurrenceService(db: Database) {
           if (read.rows.length === 0) throw badRequest("No valid rows to write.", { file: "No valid rows" });
           for (let i = 0; i < read.rows.length; i += INSERT_CHUNK) {
             const chunk = read.rows.slice(i, i + INSERT_CHUNK);
-            // Columns as parallel JSON arrays: one small document per statement, unpacked by PostgreSQL.
-            const columns = {
-              r: chunk.map((o) => o.row),
-              t: chunk.map((o) => o.taxon),
-              h: chunk.map((o) => o.higherTaxon),
-              x: chunk.map((o) => o.maxMa),
-              n: chunk.map((o) => o.minMa),
-              e: chunk.map((o) => o.earlyInterval),
-              l: chunk.map((o) => o.lateInterval),
-              c: chunk.map((o) => o.collection),
-              k: chunk.map((o) => o.count),
-            };
+            // One JSON document per statement with one-letter keys, unpacked by PostgreSQL (as taxonState writes taxa).
+            const records = chunk.map((o) => ({ r: o.row, t: o.taxon, h: o.higherTaxon, x: o.maxMa, n: o.minMa, e: o.earlyInterval, l: o.lateInterval, c: o.collection, k: o.count }));
             await tx.execute(sql`
-              WITH d AS (SELECT ${JSON.stringify(columns)}::jsonb AS j)
               INSERT INTO occurrences (study_id, upload_id, source_row, taxon, higher_taxon, max_ma, min_ma, early_interval, late_interval, collection, count)
-              SELECT ${studyId}::uuid, ${uploadId}::uuid, (r.value)::int, t.value, h.value, (x.value)::float8, (n.value)::float8, e.value, l.value, c.value, (k.value)::int
-              FROM d,
-                jsonb_array_elements_text(d.j -> 'r') WITH ORDINALITY AS r(value, i)
-                JOIN jsonb_array_elements_text(d.j -> 't') WITH ORDINALITY AS t(value, i) USING (i)
-                JOIN jsonb_array_elements_text(d.j -> 'h') WITH ORDINALITY AS h(value, i) USING (i)
-                JOIN jsonb_array_elements_text(d.j -> 'x') WITH ORDINALITY AS x(value, i) USING (i)
-                JOIN jsonb_array_elements_text(d.j -> 'n') WITH ORDINALITY AS n(value, i) USING (i)
-                JOIN jsonb_array_elements_text(d.j -> 'e') WITH ORDINALITY AS e(value, i) USING (i)
-                JOIN jsonb_array_elements_text(d.j -> 'l') WITH ORDINALITY AS l(value, i) USING (i)
-                JOIN jsonb_array_elements_text(d.j -> 'c') WITH ORDINALITY AS c(value, i) USING (i)
-                JOIN jsonb_array_elements_text(d.j -> 'k') WITH ORDINALITY AS k(value, i) USING (i)`);
+              SELECT ${studyId}::uuid, ${uploadId}::uuid, u.r, u.t, u.h, u.x, u.n, u.e, u.l, u.c, u.k
+              FROM jsonb_to_recordset(${JSON.stringify(records)}::jsonb) AS u(r int, t text, h text, x float8, n float8, e text, l text, c text, k int)`);
             await reportProgress((i + chunk.length) / read.rows.length);
           }
           await tx

@@ -48,6 +48,19 @@ export function readOccurrenceRows(parsed: ParsedCsv, mapping: OccurrenceMapping
   const decimalComma = parsed.delimiter !== ",";
   const broken = new Map<number, string>();
   for (const p of parsed.problems) if (!broken.has(p.row)) broken.set(p.row, p.message);
+  // Ages and interval names repeat across many rows (a chart's limits, a few stages): each text is read once.
+  const numbers = new Map<string, ReturnType<typeof parseNumberCell>>();
+  const readNumber = (text: string) => {
+    let n = numbers.get(text);
+    if (!n) numbers.set(text, (n = parseNumberCell(text, { decimalComma })));
+    return n;
+  };
+  const units = new Map<string, ReturnType<typeof findUnit> | null>();
+  const unitNamed = (name: string) => {
+    let unit = units.get(name);
+    if (unit === undefined) units.set(name, (unit = findUnit(name) ?? null));
+    return unit;
+  };
   const closest = new Map<string, string[]>();
   const closestTo = (name: string) => {
     let names = closest.get(name);
@@ -76,7 +89,7 @@ export function readOccurrenceRows(parsed: ParsedCsv, mapping: OccurrenceMapping
 
     // An interval name resolved to one of its limits, or null after reporting why not.
     const interval = (index: number, name: string, end: "base" | "top"): number | null => {
-      const unit = findUnit(name);
+      const unit = unitNamed(name);
       if (unit) return end === "base" ? unit.base : unit.top;
       const offer = closestTo(name);
       problem(index, `Unknown interval name "${name}": not a unit of the ICS chart ${TIMESCALE_VERSION}${offer.length ? `; closest: ${offer.join(", ")}` : ""}`, offer);
@@ -85,7 +98,7 @@ export function readOccurrenceRows(parsed: ParsedCsv, mapping: OccurrenceMapping
     // A Ma cell: a number, or an interval name read at the given limit.
     const age = (index: number, end: "base" | "top"): number | null => {
       const text = cell(index);
-      const n = parseNumberCell(text, { decimalComma });
+      const n = readNumber(text);
       if (n.ok) return n.value;
       if (/[a-z]/i.test(text) && !/^[+-]?[\d.,]+[eE]/.test(text)) return interval(index, text, end);
       problem(index, n.message);
@@ -109,7 +122,7 @@ export function readOccurrenceRows(parsed: ParsedCsv, mapping: OccurrenceMapping
       else minMa = age(at.minMa, "top");
     } else if (earlyGiven) {
       maxMa = interval(at.earlyInterval, earlyInterval!, "base");
-      minMa = lateInterval === null ? (maxMa === null ? null : findUnit(earlyInterval!)!.top) : interval(at.lateInterval, lateInterval, "top");
+      minMa = lateInterval === null ? (maxMa === null ? null : unitNamed(earlyInterval!)!.top) : interval(at.lateInterval, lateInterval, "top");
       if (maxMa !== null && minMa !== null && minMa >= maxMa) {
         problem(at.lateInterval, `The late interval "${lateInterval}" ends (${minMa} Ma) before the early interval "${earlyInterval}" begins (${maxMa} Ma): are the two swapped?`);
       }
@@ -150,7 +163,7 @@ export function readOccurrenceRows(parsed: ParsedCsv, mapping: OccurrenceMapping
       collection: collection && !isMissingCell(collection) ? collection : null,
       count,
     };
-    const key = [taxon, read.higherTaxon, maxMa, minMa, earlyInterval, lateInterval, read.collection, count].join("\u0000");
+    const key = `${taxon}\u0000${read.higherTaxon ?? ""}\u0000${maxMa}\u0000${minMa}\u0000${earlyInterval ?? ""}\u0000${lateInterval ?? ""}\u0000${read.collection ?? ""}\u0000${count ?? ""}`;
     const first = firstRowOf.get(key);
     if (first !== undefined) {
       duplicates.push({ row, firstRow: first, taxon });
