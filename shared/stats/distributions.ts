@@ -28,14 +28,6 @@ export function logGamma(x: number): number {
   return LOG_SQRT_2PI + (z + 0.5) * Math.log(t) - t + Math.log(sum);
 }
 
-const SMALL_LOG_FACTORIALS = logFactorialTable(1024);
-
-/** ln(n!) for a non-negative integer n. */
-export function logFactorial(n: number): number {
-  if (n < SMALL_LOG_FACTORIALS.length) return SMALL_LOG_FACTORIALS[n];
-  return logGamma(n + 1);
-}
-
 /**
  * ln(0!), ln(1!), ..., ln(n!) as one array, summed with Kahan compensation so the absolute error
  * stays near one rounding of the largest value even for n in the millions.
@@ -52,20 +44,6 @@ export function logFactorialTable(n: number): Float64Array {
     table[i] = sum;
   }
   return table;
-}
-
-/** ln of the binomial coefficient C(n, k). */
-export function logChoose(n: number, k: number): number {
-  return logFactorial(n) - logFactorial(k) - logFactorial(n - k);
-}
-
-/**
- * ln P(X = x) for the hypergeometric distribution: x white balls in k draws without replacement
- * from an urn of m white and n black balls (the parameterisation of R's dhyper).
- */
-export function logHypergeometricPmf(x: number, m: number, n: number, k: number): number {
-  if (x < Math.max(0, k - n) || x > Math.min(k, m)) return -Infinity;
-  return logChoose(m, x) + logChoose(n, k - x) - logChoose(m + n, k);
 }
 
 /** ln(sum of exp(values[i])) over from <= i < to, without overflow or underflow. */
@@ -226,12 +204,6 @@ export function chiSquareUpperTail(x: number, df: number): number {
   if (!(df > 0)) throw new Error(`chiSquareUpperTail: df is ${df}; it must be positive`);
   if (Number.isNaN(x)) return NaN;
   return regularizedGammaQ(df / 2, x / 2);
-}
-
-/** P(X <= x) for a chi-square variable X with df degrees of freedom. */
-export function chiSquareCdf(x: number, df: number): number {
-  if (!(df > 0)) throw new Error(`chiSquareCdf: df is ${df}; it must be positive`);
-  return regularizedGammaP(df / 2, x / 2);
 }
 
 // Continued fraction for the incomplete beta function, modified Lentz method.

@@ -6,7 +6,6 @@
 // the end of the Cenomanian (the base of the Turonian) the genera alive meet a crisis whose
 // extinction odds follow a logistic model with known ("planted") effects. An analysis of the data
 // should find those effects, and should flag the one trait that only looks selective.
-import { createHash } from "node:crypto";
 import { SUGGESTED_CODEBOOK, type SuggestedTrait } from "../../../shared/codebook";
 import { findUnit, type TimescaleUnit } from "../../../shared/timescale/index";
 import { epithet, genusName, mulberry32, uniqueNames, type Random } from "./names";
@@ -438,21 +437,4 @@ export function generateDemoStudy(seed: number = DEMO_SEED): DemoStudy {
     modernList,
     plantedEffects,
   };
-}
-
-/** Serialises with object keys sorted, so equal data always give the same text. */
-function canonicalJson(value: unknown): string {
-  if (Array.isArray(value)) return `[${value.map(canonicalJson).join(",")}]`;
-  if (value && typeof value === "object") {
-    const entries = Object.entries(value as Record<string, unknown>)
-      .filter(([, v]) => v !== undefined)
-      .sort(([a], [b]) => (a < b ? -1 : a > b ? 1 : 0));
-    return `{${entries.map(([k, v]) => `${JSON.stringify(k)}:${canonicalJson(v)}`).join(",")}}`;
-  }
-  return JSON.stringify(value ?? null);
-}
-
-/** SHA-256 (hex) of the data's canonical JSON: a fingerprint that changes when any value changes. */
-export function hashDemo(data: DemoStudy): string {
-  return createHash("sha256").update(canonicalJson(data)).digest("hex");
 }

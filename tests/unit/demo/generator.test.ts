@@ -1,12 +1,30 @@
 // The invented demo study: reproducible from its seed, marked as invented, shaped as the codebook
 // says, and carrying the planted effects: an analysis must find the narrow-range and deposit-feeding
 // effects, and must see that the infaunal habit only looks selective because of its clade.
+import { createHash } from "node:crypto";
 import { afterEach, describe, expect, it, vi } from "vitest";
-import { DEMO_SEED, generateDemoStudy, hashDemo, IUCN_CATEGORIES, MODERN_CROSSWALK, type DemoTaxon } from "../../../scripts/seed/demo/generator";
+import { DEMO_SEED, generateDemoStudy, IUCN_CATEGORIES, MODERN_CROSSWALK, type DemoStudy, type DemoTaxon } from "../../../scripts/seed/demo/generator";
 import { SUGGESTED_CODEBOOK } from "../../../shared/codebook";
 import { classifyAcrossBoundary, outcomeWarnings, ratesThroughTime } from "../../../shared/outcomes/index";
 import { logisticRegression, mantelHaenszel, oddsRatio, type Table2x2 } from "../../../shared/stats/index";
 import { findUnit, timescaleStages } from "../../../shared/timescale/index";
+
+/** Serialises with object keys sorted, so equal data always give the same text. */
+function canonicalJson(value: unknown): string {
+  if (Array.isArray(value)) return `[${value.map(canonicalJson).join(",")}]`;
+  if (value && typeof value === "object") {
+    const entries = Object.entries(value as Record<string, unknown>)
+      .filter(([, v]) => v !== undefined)
+      .sort(([a], [b]) => (a < b ? -1 : a > b ? 1 : 0));
+    return `{${entries.map(([k, v]) => `${JSON.stringify(k)}:${canonicalJson(v)}`).join(",")}}`;
+  }
+  return JSON.stringify(value ?? null);
+}
+
+/** SHA-256 (hex) of the data's canonical JSON: a fingerprint that changes when any value changes. */
+function hashDemo(data: DemoStudy): string {
+  return createHash("sha256").update(canonicalJson(data)).digest("hex");
+}
 
 const demo = generateDemoStudy();
 const planted = demo.plantedEffects;
