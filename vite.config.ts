@@ -10,7 +10,7 @@ const apiPort = Number(process.env.API_PORT ?? 5181);
 export default defineConfig({
   // Brotli and gzip copies of every text asset sit beside it in dist/; the server sends the one the
   // browser accepts (server/http/clientAssets.ts).
-  plugins: [react(), tailwindcss(), compression({ algorithms: ["brotliCompress", "gzip"], threshold: 1024 })],
+  plugins: [react(), tailwindcss(), compression({ algorithms: ["brotliCompress", "gzip"] })],
   resolve: {
     alias: {
       "@shared": fileURLToPath(new URL("./shared", import.meta.url)),

@@ -6,6 +6,7 @@ import {
   passwordChangeSchema,
   passwordResetConfirmSchema,
   passwordResetRequestSchema,
+  sessionSchema,
   signupAnswerSchema,
   signupSchema,
   userSchema,
@@ -72,6 +73,21 @@ export function authRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
     async handler({ user, res }) {
       if (user) await users.endSession(user.sessionId);
       clearSessionCookie(ctx, res);
+    },
+  });
+
+  // The client asks this on every first load: a signed-out visitor gets 200 with `user: null`, not
+  // a 401 that the browser would print as an error on the sign-in page.
+  api.add({
+    method: "get",
+    path: "/auth/session",
+    operationId: "getSession",
+    summary: "Who is signed in in this browser: the account, or null when nobody is",
+    tags: ["auth"],
+    access: "public",
+    response: { status: 200, schema: sessionSchema },
+    async handler({ user }) {
+      return { user: user ? await users.get(user.id) : null, environment: ctx.config.environment };
     },
   });
 

@@ -65,3 +65,7 @@ export type SignupAnswer = z.infer<typeof signupAnswerSchema>;
 
 export const meSchema = z.object({ user: userSchema, environment: z.enum(["production", "development", "test"]) }).meta({ id: "Me" });
 export type Me = z.infer<typeof meSchema>;
+
+/** Who is signed in in this browser, `user: null` when nobody is: asking is never an error. */
+export const sessionSchema = z.object({ user: userSchema.nullable(), environment: meSchema.shape.environment }).meta({ id: "Session" });
+export type Session = z.infer<typeof sessionSchema>;

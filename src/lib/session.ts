@@ -1,14 +1,25 @@
 // The signed-in account. Many screens need it (the top bar, the account form, the invitation
 // page), so its one query hook lives here rather than in a feature.
 import { useQuery } from "@tanstack/react-query";
-import type { Me } from "@shared/schemas/auth";
+import type { Me, Session } from "@shared/schemas/auth";
 import { api, ApiError } from "./api";
 import { queryKeys } from "./queryKeys";
+
+/**
+ * Asks GET /auth/session, which answers 200 even when nobody is signed in (a 401 would show as an
+ * error in the browser's console on every signed-out load); "nobody" becomes the same 401 ApiError
+ * a lapsed session gives, so the sign-in redirect and useOptionalMe treat both alike.
+ */
+async function fetchMe(signal: AbortSignal): Promise<Me> {
+  const session = await api.get<Session>("/auth/session", signal);
+  if (!session.user) throw new ApiError(401, "unauthorized", "Sign in to continue.");
+  return { user: session.user, environment: session.environment };
+}
 
 export function useMe() {
   return useQuery({
     queryKey: queryKeys.me,
-    queryFn: ({ signal }) => api.get<Me>("/auth/me", signal),
+    queryFn: ({ signal }) => fetchMe(signal),
     staleTime: 5 * 60 * 1000,
   });
 }

@@ -24,6 +24,25 @@ describe("accounts and sessions", () => {
     expect(me.body.user.email).toBe(email.toLowerCase());
   });
 
+  it("tells who is signed in without a 401 for nobody (a browser prints every 401 as a console error)", async () => {
+    const nobody = await request(app.app).get("/api/auth/session");
+    expect(nobody.status).toBe(200);
+    expect(nobody.body).toEqual({ user: null, environment: app.ctx.config.environment });
+    // A cookie that names no session is "nobody" too.
+    const forged = await request(app.app).get("/api/auth/session").set("Cookie", "ss_session=eyJhbGciOiJIUzI1NiJ9.eyJzaWQiOiJ4In0.forged");
+    expect(forged.status).toBe(200);
+    expect(forged.body.user).toBeNull();
+
+    const { agent, user } = await signedInAgent(app, "session");
+    const someone = await agent.get("/api/auth/session");
+    expect(someone.status).toBe(200);
+    expect(someone.body.user).toMatchObject({ id: user.id, email: user.email, name: user.name });
+    expect((await agent.post("/api/auth/logout")).status).toBe(204);
+    const after = await agent.get("/api/auth/session");
+    expect(after.status).toBe(200);
+    expect(after.body.user).toBeNull();
+  });
+
   it("answers a sign-up with a registered e-mail like any other, without a session (details in security-accounts.test.ts)", async () => {
     const { email } = await signedInAgent(app, "dup");
     const res = await request(app.app).post("/api/auth/signup").send({ email: email.toUpperCase(), password: PASSWORD, name: "Again" });
