@@ -10,8 +10,10 @@ import { clientAssets } from "./http/clientAssets";
 import { sameOriginOnly } from "./http/origin";
 import type { ApiRouter, RegisteredRoute } from "./http/route";
 import { loadSession } from "./auth/session";
+import { loadApiToken } from "./auth/apiToken";
 import { healthRouter } from "./routes/health";
 import { authRouter } from "./routes/auth";
+import { apiTokensRouter } from "./routes/apiTokens";
 import { studiesRouter } from "./routes/studies";
 import { membersRouter } from "./routes/members";
 import { invitationsRouter } from "./routes/invitations";
@@ -39,10 +41,11 @@ export interface BuiltApp {
   routes: RegisteredRoute[];
 }
 
-const RESOURCE_ROUTERS = [healthRouter, authRouter, studiesRouter, membersRouter, invitationsRouter, outboxRouter, timescaleRouter, outcomesRouter, overridesRouter, ratesRouter, runsRouter, traitsRouter, taxaRouter, decisionsRouter, importsRouter, occurrencesRouter, exportsRouter, threadsRouter, notificationsRouter, activityRouter, modernListsRouter, comparisonsRouter];
+const RESOURCE_ROUTERS = [healthRouter, authRouter, apiTokensRouter, studiesRouter, membersRouter, invitationsRouter, outboxRouter, timescaleRouter, outcomesRouter, overridesRouter, ratesRouter, runsRouter, traitsRouter, taxaRouter, decisionsRouter, importsRouter, occurrencesRouter, exportsRouter, threadsRouter, notificationsRouter, activityRouter, modernListsRouter, comparisonsRouter];
 
 export function buildOpenApi(registry: OpenAPIRegistry) {
   registry.registerComponent("securitySchemes", "session", { type: "apiKey", in: "cookie", name: "ss_session" });
+  registry.registerComponent("securitySchemes", "apiToken", { type: "http", scheme: "bearer", description: "A personal API token from the Account screen" });
   return new OpenApiGeneratorV31(registry.definitions).generateDocument({
     openapi: "3.1.0",
     info: {
@@ -83,6 +86,7 @@ export function createApp(ctx: AppContext, opts: { clientDir?: string } = {}): B
 
   const api = express.Router();
   api.use(sameOriginOnly(ctx.config.appUrl));
+  api.use(loadApiToken(ctx));
   api.use(loadSession(ctx));
   api.get("/openapi.json", (_req, res) => {
     res.json(openapi);

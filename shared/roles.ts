@@ -42,3 +42,17 @@ export function can(role: StudyRole | null | undefined, action: StudyAction): bo
   if (!role) return false;
   return (STUDY_ACTIONS[action] as readonly StudyRole[]).includes(role);
 }
+
+/** True when `holder` may do everything `other` may (owner covers every role; coder and analyst do not cover each other). */
+export function roleCovers(holder: StudyRole, other: StudyRole): boolean {
+  return (Object.keys(STUDY_ACTIONS) as StudyAction[]).every((action) => !can(other, action) || can(holder, action));
+}
+
+/**
+ * The highest role whose rights both roles hold, e.g. what an API token made as coder may still do
+ * once its owner is an analyst (reviewer: reading and posting). STUDY_ROLES runs from most to
+ * least rights, and the viewer's rights are in every role.
+ */
+export function sharedRole(a: StudyRole, b: StudyRole): StudyRole {
+  return STUDY_ROLES.find((r) => roleCovers(a, r) && roleCovers(b, r)) ?? "viewer";
+}

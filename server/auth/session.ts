@@ -1,7 +1,7 @@
 import { SignJWT, errors as joseErrors, jwtVerify } from "jose";
 import type { CookieOptions, NextFunction, Request, RequestHandler, Response } from "express";
 import type { AppContext } from "../context";
-import type { SessionUser } from "../http/route";
+import type { AuthenticatedRequest } from "../http/route";
 
 export const SESSION_COOKIE = "ss_session";
 
@@ -47,13 +47,14 @@ export function loadSession(ctx: AppContext): RequestHandler {
     res.set("Cache-Control", "no-store");
     const token = (req.cookies as Record<string, string> | undefined)?.[SESSION_COOKIE];
     // The health check answers for the database itself, signed in or not.
-    if (!token || req.path === "/health") return next();
+    // A request made with an API token (auth/apiToken.ts) is already signed in: the cookie is not read.
+    if (!token || req.path === "/health" || (req as AuthenticatedRequest).apiToken) return next();
     try {
       const { payload } = await jwtVerify(token, ctx.config.sessionSecret, { algorithms: ["HS256"] });
       const sessionId = typeof payload.sid === "string" ? payload.sid : null;
       if (!sessionId || !payload.sub) return next();
       const user = await ctx.services.users.liveSessionUser(sessionId, payload.sub);
-      if (user) (req as Request & { sessionUser?: SessionUser }).sessionUser = { ...user, sessionId };
+      if (user) (req as AuthenticatedRequest).sessionUser = { ...user, sessionId };
       else clearSessionCookie(ctx, res);
       next();
     } catch (err) {

@@ -5,7 +5,8 @@ import { OpenAPIRegistry } from "@asteasolutions/zod-to-openapi";
 import { Router as ExpressRouter, type NextFunction, type Request, type RequestHandler, type Response, type Router } from "express";
 import { z, type ZodType } from "zod";
 import type { StudyAction, StudyRole } from "../../shared/roles";
-import { can } from "../../shared/roles";
+import { can, sharedRole } from "../../shared/roles";
+import type { TokenGrant } from "../services/apiTokens";
 import { apiErrorSchema, findLoneSurrogate, loneSurrogateMessage } from "../../shared/schemas/common";
 import { forbidden, HttpError, unauthorized, validationError } from "./errors";
 import type { AppContext } from "../context";
@@ -19,12 +20,17 @@ export interface SessionUser {
   sessionId: string;
 }
 
+/** A request after the session cookie or an API token was read (server/auth). */
+export type AuthenticatedRequest = Request & { sessionUser?: SessionUser; apiToken?: TokenGrant };
+
 export interface HandlerArgs<B, Q, P> {
   body: B;
   query: Q;
   params: P;
   user: SessionUser | null;
   role: StudyRole | null;
+  /** The API token the request was made with, when it was not made with a session. */
+  apiToken: TokenGrant | null;
   req: Request;
   res: Response;
   ctx: AppContext;
@@ -39,6 +45,8 @@ export interface RouteSpec<B extends ZodType, Q extends ZodType, P extends ZodTy
   summary: string;
   tags: string[];
   access: Access;
+  /** Acts on the account itself (password, tokens, sign-out, new studies...): a session only, never an API token. */
+  sessionOnly?: true;
   body?: B;
   query?: Q;
   params?: P;
@@ -57,6 +65,7 @@ interface RouteAccess {
   params: unknown;
   user: SessionUser | null;
   role: StudyRole | null;
+  apiToken: TokenGrant | null;
 }
 
 export interface RegisteredRoute {
@@ -92,20 +101,28 @@ export class ApiRouter {
       try {
         const params = spec.params ? spec.params.safeParse(req.params) : { success: true as const, data: req.params };
         if (!params.success) throw validationError(params.error, "path");
-        const user = (req as Request & { sessionUser?: SessionUser }).sessionUser ?? null;
+        const user = (req as AuthenticatedRequest).sessionUser ?? null;
+        const apiToken = (req as AuthenticatedRequest).apiToken ?? null;
         let role: StudyRole | null = null;
         if (spec.access !== "public") {
           if (!user) throw unauthorized();
+          if (apiToken && spec.sessionOnly) throw forbidden("An API token cannot do this: sign in to the app to change the account, its tokens or its studies.");
           if (spec.access !== "user") {
             const studyId = (params.data as { studyId?: string }).studyId;
             if (!studyId) throw new Error(`Route ${spec.path} checks a study action but has no studyId`);
             role = await ctx.services.studies.roleOf(studyId, user.id);
+            if (apiToken) {
+              // Both bounds hold on every request: the token's role and the owner's role today.
+              const granted = apiToken.studies.get(studyId);
+              if (!granted) throw forbidden("This API token does not cover this study.");
+              role = role ? sharedRole(role, granted) : null;
+            }
             if (!can(role, spec.access)) {
               throw role ? forbidden() : forbidden("You are not a member of this study.");
             }
           }
         }
-        res.locals.routeAccess = { params: params.data, user, role } satisfies RouteAccess;
+        res.locals.routeAccess = { params: params.data, user, role, apiToken } satisfies RouteAccess;
         next();
       } catch (err) {
         next(err);
@@ -113,7 +130,7 @@ export class ApiRouter {
     };
     const handler = async (req: Request, res: Response, next: NextFunction) => {
       try {
-        const { params, user, role } = res.locals.routeAccess as RouteAccess;
+        const { params, user, role, apiToken } = res.locals.routeAccess as RouteAccess;
         refuseLoneSurrogates(req.query, "query");
         refuseLoneSurrogates(req.body, "request body");
         const query = spec.query ? spec.query.safeParse(req.query) : { success: true as const, data: req.query };
@@ -126,6 +143,7 @@ export class ApiRouter {
           params: params as never,
           user,
           role,
+          apiToken,
           req,
           res,
           ctx,
@@ -160,7 +178,7 @@ export class ApiRouter {
       operationId: spec.operationId,
       summary: spec.summary,
       tags: spec.tags,
-      security: spec.access === "public" ? [] : [{ session: [] }],
+      security: spec.access === "public" ? [] : spec.sessionOnly ? [{ session: [] }] : [{ session: [] }, { apiToken: [] }],
       description: spec.access !== "public" && spec.access !== "user" ? `Study action: \`${spec.access}\`` : undefined,
       request: {
         ...(spec.params ? { params: spec.params as never } : {}),

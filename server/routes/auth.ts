@@ -69,6 +69,7 @@ export function authRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
     summary: "Sign out of this browser",
     tags: ["auth"],
     access: "public",
+    sessionOnly: true,
     response: { status: 204 },
     async handler({ user, res }) {
       if (user) await users.endSession(user.sessionId);
@@ -111,6 +112,7 @@ export function authRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
     summary: "Change the account's name",
     tags: ["auth"],
     access: "user",
+    sessionOnly: true,
     body: accountUpdateSchema,
     response: { status: 200, schema: userSchema },
     handler: ({ user, body }) => users.updateName(user!.id, body.name),
@@ -123,6 +125,7 @@ export function authRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
     summary: "Change the password; ends every other session of the account (failed tries rate-limited)",
     tags: ["auth"],
     access: "user",
+    sessionOnly: true,
     before: passwordChangeLimiters(ctx),
     body: passwordChangeSchema,
     response: { status: 204 },

@@ -26,6 +26,7 @@ export function invitationsRouter(ctx: AppContext, registry: OpenAPIRegistry): A
     summary: "Accept an invitation as the signed-in account (403 unless the account's e-mail is the invited one)",
     tags: ["members"],
     access: "user",
+    sessionOnly: true,
     params: invitationTokenParamsSchema,
     response: { status: 200, schema: invitationAcceptedSchema },
     handler: ({ params, user }) => invitations.accept(params.token, { id: user!.id, email: user!.email }),

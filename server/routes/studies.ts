@@ -3,6 +3,7 @@ import { studyParamsSchema } from "../../shared/schemas/common";
 import { studyCreateSchema, studyListSchema, studySchema, studyUpdateSchema } from "../../shared/schemas/studies";
 import type { AppContext } from "../context";
 import { ApiRouter } from "../http/route";
+import { sharedRole } from "../../shared/roles";
 
 export function studiesRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRouter {
   const api = new ApiRouter(registry, ctx);
@@ -12,11 +13,20 @@ export function studiesRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
     method: "get",
     path: "/studies",
     operationId: "listStudies",
-    summary: "Studies the caller is a member of",
+    summary: "Studies the caller is a member of (with an API token: those the token covers, each with the role the token may act with)",
     tags: ["studies"],
     access: "user",
     response: { status: 200, schema: studyListSchema },
-    handler: async ({ user }) => ({ studies: await studies.listFor(user!.id) }),
+    handler: async ({ user, apiToken }) => {
+      const mine = await studies.listFor(user!.id);
+      if (!apiToken) return { studies: mine };
+      return {
+        studies: mine.flatMap((study) => {
+          const granted = apiToken.studies.get(study.id);
+          return granted ? [{ ...study, role: sharedRole(study.role, granted) }] : [];
+        }),
+      };
+    },
   });
 
   api.add({
@@ -26,6 +36,7 @@ export function studiesRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
     summary: "Create a study; the caller becomes its owner",
     tags: ["studies"],
     access: "user",
+    sessionOnly: true,
     body: studyCreateSchema,
     response: { status: 201, schema: studySchema },
     handler: ({ user, body }) => studies.create(user!.id, body),

@@ -10,6 +10,7 @@ import { createTimescaleService } from "./timescale";
 import { createOutcomeService } from "./outcomes";
 import { createRunService } from "./runs";
 import { createRunReplicationService } from "./runReplication";
+import { createApiTokenService } from "./apiTokens";
 import { createTraitService } from "./traits";
 import { createTaxonService } from "./taxa";
 import { createTaxaGrid } from "./taxaGrid";
@@ -40,6 +41,7 @@ export function createServices(db: Database, mailer: Mailer, appUrl: string, run
   const runs = createRunService(db, runtime, runSources);
   return {
     users: createUserService(db),
+    apiTokens: createApiTokenService(db),
     studies: createStudyService(db),
     invitations: createInvitationService(db, mailer, appUrl),
     outbox: createOutboxService(db),

@@ -1,5 +1,6 @@
 export * from "./common";
 export * from "./auth";
+export * from "./apiTokens";
 export * from "./studies";
 export * from "./outbox";
 export * from "./health";

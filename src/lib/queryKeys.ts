@@ -2,6 +2,7 @@
 // hooks read. Keys nest: invalidating `studies.all` refreshes every study's list, detail and members.
 export const queryKeys = {
   me: ["me"] as const,
+  apiTokens: ["api-tokens"] as const,
   studies: {
     all: ["studies"] as const,
     list: () => ["studies", "list"] as const,

@@ -2,7 +2,7 @@
 // database where the API path under test is not the point (faster than e-mail round trips).
 import request from "supertest";
 import { randomUUID } from "node:crypto";
-import { invitations, memberships, studies } from "../../db/schema/index";
+import { apiTokens, apiTokenStudies, invitations, memberships, studies } from "../../db/schema/index";
 import { hashToken } from "../../server/services/tokens";
 import { STUDY_ROLES, type StudyRole } from "../../shared/roles";
 import { signedInAgent, type TestApp } from "../support/server";
@@ -44,4 +44,18 @@ export async function castOfRoles(app: TestApp): Promise<Cast> {
       return token;
     },
   };
+}
+
+/**
+ * A supertest agent that sends a fresh API token of `person` (written straight into the database):
+ * covering `studyId` with `role`, or no study at all when studyId is null. No cookie goes along.
+ */
+export async function tokenAgent(app: TestApp, person: Person, scope: { studyId: string; role: StudyRole } | null) {
+  const secret = `sieve_test-${randomUUID()}`;
+  const [token] = await app.ctx.db
+    .insert(apiTokens)
+    .values({ userId: person.user.id, name: "Test token", tokenHash: hashToken(secret), prefix: secret.slice(0, 12), expiresAt: new Date(Date.now() + 3600_000) })
+    .returning();
+  if (scope) await app.ctx.db.insert(apiTokenStudies).values({ tokenId: token.id, studyId: scope.studyId, role: scope.role });
+  return { agent: request.agent(app.app).set("Authorization", `Bearer ${secret}`), secret, tokenId: token.id };
 }

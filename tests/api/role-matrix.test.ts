@@ -6,8 +6,8 @@ import request, { type Response } from "supertest";
 import { and, eq } from "drizzle-orm";
 import { STUDY_ROLES } from "../../shared/roles";
 import { createTestApp, PASSWORD, signedInAgent, uniqueEmail, type TestApp } from "../support/server";
-import { memberships, notifications, outcomeOverrides, runs, taxa, threadPosts, threads, traits } from "../../db/schema/index";
-import { castOfRoles, EVERYONE, type Cast, type Who } from "./fixtures";
+import { memberships, notifications, studies, outcomeOverrides, runs, taxa, threadPosts, threads, traits } from "../../db/schema/index";
+import { castOfRoles, EVERYONE, tokenAgent, type Cast, type Who } from "./fixtures";
 import { codedImport, codedTaxon, codedTrait, uploadCsv } from "../support/traitTables";
 import { MATRIX_LIST_MAPPING, matrixComparison, matrixModernSetup, matrixModernUpload } from "../support/modernComparison";
 import { computeRunNow } from "../../server/services/runs";
@@ -99,6 +99,7 @@ const MATRIX: Record<string, Row> = {
     allowed: "public",
     call: (_a, { cast, who }) => request(app.app).post("/api/auth/login").send({ email: cast.people[who === "anonymous" ? "viewer" : who].email, password: PASSWORD }),
   },
+  "GET /api/auth/session": { allowed: "public", call: (a) => a.get("/api/auth/session") },
   // Signing out must not end the session the other rows use: sign in afresh, then out.
   "POST /api/auth/logout": {
     allowed: "public",
@@ -116,6 +117,21 @@ const MATRIX: Record<string, Row> = {
   "POST /api/auth/password-reset/confirm": {
     allowed: "public",
     call: (a) => a.post("/api/auth/password-reset/confirm").send({ token: "x".repeat(40), password: PASSWORD }),
+  },
+  // API tokens: a person's own, made and revoked with a session only (the token rows expect 403).
+  "GET /api/tokens": { allowed: SIGNED_IN, call: (a) => a.get("/api/tokens") },
+  "POST /api/tokens": {
+    allowed: SIGNED_IN,
+    call: async (a, { cast, who }) => {
+      const person = cast.people[who === "anonymous" ? "viewer" : who];
+      const [own] = await app.ctx.db.insert(studies).values({ name: "Matrix token study", createdBy: person.user.id }).returning();
+      await app.ctx.db.insert(memberships).values({ studyId: own.id, userId: person.user.id, role: "owner" });
+      return a.post("/api/tokens").send({ name: "Matrix token", studies: [{ studyId: own.id, role: "viewer" }] });
+    },
+  },
+  "DELETE /api/tokens/{tokenId}": {
+    allowed: SIGNED_IN,
+    call: async (a, { cast, who }) => a.delete(`/api/tokens/${(await tokenAgent(app, cast.people[who === "anonymous" ? "viewer" : who], null)).tokenId}`),
   },
   "GET /api/studies": { allowed: SIGNED_IN, call: (a) => a.get("/api/studies") },
   "POST /api/studies": { allowed: SIGNED_IN, call: (a) => a.post("/api/studies").send({ name: "Matrix study" }) },
@@ -498,6 +514,37 @@ describe("role matrix", () => {
         if (expected === "403") expect(res.status).toBe(403);
         if (expected === "not 401/403") expect([401, 403]).not.toContain(res.status);
         if (res.status >= 400) expect(res.body.error?.message, "errors carry a message a person can act on").toMatch(/\w+/);
+      });
+    }
+  }
+});
+
+// The same rows called with an API token instead of a session: each person's token covers the
+// study with their own role (the stranger's covers no study). A token gets exactly the session's
+// answer, except on the routes the document reserves for a session (no apiToken security), which
+// a token is refused (403).
+describe("role matrix with API tokens", () => {
+  const acceptsTokens = (route: string) => {
+    const [method, path] = route.split(" ");
+    const op = (app.openapi.paths as Record<string, Record<string, { security?: Array<Record<string, unknown>> }>>)[path][method.toLowerCase()];
+    return op.security?.some((s) => "apiToken" in s) ?? false;
+  };
+  for (const [route, row] of Object.entries(MATRIX)) {
+    if (row.allowed === "public") continue;
+    for (const who of EVERYONE.filter((w) => w !== "anonymous")) {
+      it(`${route} with ${who}'s token`, async () => {
+        const expected = acceptsTokens(route) && (row.allowed as Who[]).includes(who) ? "2xx" : "403";
+        const studyId = row.freshStudy ? await cast.makeStudy() : sharedStudy;
+        const person = cast.people[who as Exclude<Who, "anonymous">];
+        const { agent } = await tokenAgent(app, person, who === "stranger" ? null : { studyId, role: who as Exclude<Who, "anonymous" | "stranger"> });
+        const res = await row.call(agent, { studyId, cast, who });
+        if (expected === "2xx") {
+          expect(res.status, JSON.stringify(res.body)).toBeGreaterThanOrEqual(200);
+          expect(res.status, JSON.stringify(res.body)).toBeLessThan(300);
+        } else {
+          expect(res.status, JSON.stringify(res.body)).toBe(403);
+        }
+        expect(res.headers["set-cookie"], "a token request starts no session").toBeUndefined();
       });
     }
   }

@@ -11,6 +11,7 @@ import { formLevelMessage, useZodForm } from "../../lib/forms";
 import { useMe } from "../../lib/session";
 import { useDocumentTitle } from "../../lib/useDocumentTitle";
 import { useChangePassword, useUpdateName } from "./api";
+import { ApiTokensCard } from "./ApiTokensCard";
 
 export function AccountPage() {
   useDocumentTitle("Account settings");
@@ -18,13 +19,14 @@ export function AccountPage() {
 
   return (
     <div className="max-w-2xl">
-      <PageHeader title="Account settings" description="Your name and password. Roles are given per study, on each study’s Members page." />
+      <PageHeader title="Account settings" description="Your name, password and API tokens. Roles are given per study, on each study’s Members page." />
       {me.isPending && <LoadingState label="Loading your account" />}
       {me.isError && <ErrorState error={me.error} title="Your account could not be loaded" onRetry={() => void me.refetch()} />}
       {me.isSuccess && (
         <div className="space-y-6">
           <ProfileCard key={me.data.user.id} user={me.data.user} />
           <PasswordCard />
+          <ApiTokensCard />
         </div>
       )}
     </div>

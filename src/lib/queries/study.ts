@@ -13,3 +13,10 @@ export const studyQuery = (studyId: string) =>
   });
 
 export const useStudy = (studyId: string) => useQuery(studyQuery(studyId));
+
+/** GET /api/studies: the studies the caller belongs to, with the caller's role in each. */
+export const studiesQuery = () =>
+  queryOptions({
+    queryKey: queryKeys.studies.list(),
+    queryFn: ({ signal }) => api.get<{ studies: Study[] }>("/studies", signal).then((r) => r.studies),
+  });
