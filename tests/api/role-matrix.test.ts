@@ -100,7 +100,6 @@ const MATRIX: Record<string, Row> = {
     call: (_a, { cast, who }) => request(app.app).post("/api/auth/login").send({ email: cast.people[who === "anonymous" ? "viewer" : who].email, password: PASSWORD }),
   },
   "GET /api/auth/session": { allowed: "public", call: (a) => a.get("/api/auth/session") },
-  "GET /api/auth/session": { allowed: "public", call: (a) => a.get("/api/auth/session") },
   // Signing out must not end the session the other rows use: sign in afresh, then out.
   "POST /api/auth/logout": {
     allowed: "public",
