@@ -69,29 +69,45 @@ export function loneSurrogateIn(text: string): string | null {
 export const loneSurrogateMessage = (where: string, codePoint: string) =>
   `${where} holds a lone UTF-16 surrogate (${codePoint}), half of a character that is not valid text; retype the character`;
 
+/** A path longer than this many parts is cut (with …) in the answer. */
+const MAX_PATH_PARTS = 12;
+
 /**
  * The first string (or object key) anywhere in a request's input that holds a lone surrogate, with
  * its path ("changes.name", "values.0"): the one place every route refuses such text, before its
- * own schema reads the input.
+ * own schema reads the input. Walks with its own stack, so a deeply nested body cannot overflow
+ * the call stack.
  */
-export function findLoneSurrogate(value: unknown, path: Array<string | number> = []): { path: string; codePoint: string } | null {
-  if (typeof value === "string") {
-    const codePoint = loneSurrogateIn(value);
-    return codePoint ? { path: path.join(".") || "_", codePoint } : null;
+export function findLoneSurrogate(value: unknown): { path: string; codePoint: string } | null {
+  // Each entry names its parent, so the path is spelled out only for the value at fault.
+  interface Visit {
+    value: unknown;
+    key: string | number | null;
+    parent: Visit | null;
   }
-  if (Array.isArray(value)) {
-    for (let i = 0; i < value.length; i++) {
-      const found = findLoneSurrogate(value[i], [...path, i]);
-      if (found) return found;
-    }
-    return null;
-  }
-  if (value && typeof value === "object") {
-    for (const [key, inner] of Object.entries(value)) {
-      const keyPoint = loneSurrogateIn(key);
-      if (keyPoint) return { path: [...path, key].join("."), codePoint: keyPoint };
-      const found = findLoneSurrogate(inner, [...path, key]);
-      if (found) return found;
+  const pathOf = (visit: Visit, last?: string) => {
+    const parts: Array<string | number> = last === undefined ? [] : [last];
+    for (let v: Visit | null = visit; v && v.key !== null; v = v.parent) parts.push(v.key);
+    parts.reverse();
+    // A path through absurd nesting is cut, so the answer stays small.
+    return (parts.length > MAX_PATH_PARTS ? [...parts.slice(0, MAX_PATH_PARTS), "…"] : parts).join(".") || "_";
+  };
+  const stack: Visit[] = [{ value, key: null, parent: null }];
+  while (stack.length) {
+    const visit = stack.pop()!;
+    const current = visit.value;
+    if (typeof current === "string") {
+      const codePoint = loneSurrogateIn(current);
+      if (codePoint) return { path: pathOf(visit), codePoint };
+    } else if (Array.isArray(current)) {
+      for (let i = current.length - 1; i >= 0; i--) stack.push({ value: current[i], key: i, parent: visit });
+    } else if (current && typeof current === "object") {
+      const entries = Object.entries(current);
+      for (const [key] of entries) {
+        const codePoint = loneSurrogateIn(key);
+        if (codePoint) return { path: pathOf(visit, key), codePoint };
+      }
+      for (let i = entries.length - 1; i >= 0; i--) stack.push({ value: entries[i][1], key: entries[i][0], parent: visit });
     }
   }
   return null;

@@ -265,6 +265,16 @@ describe("lone UTF-16 surrogates are refused with 400 wherever text comes in", (
     expect(studyRes.body.error.fields.description).toMatch(/lone UTF-16 surrogate/);
   });
 
+  it("a deeply nested body (100,000 levels) is refused with 400, the check does not overflow", async () => {
+    const nested = `{"name":"Invented","description":${"[".repeat(100_000)}"\\ud800"${"]".repeat(100_000)}}`;
+    const res = await cast.people.owner.agent.post("/api/studies").set("Content-Type", "application/json").send(nested);
+    expect(res.status, JSON.stringify(res.body).slice(0, 300)).toBe(400);
+    expect(res.body.error.message).toMatch(/lone UTF-16 surrogate \(U\+D800\)/);
+    const clean = await cast.people.owner.agent.post("/api/studies").set("Content-Type", "application/json").send(nested.replace("\\ud800", "x"));
+    expect(clean.status).toBe(400);
+    expect(clean.body.error.fields.description).toBeDefined();
+  });
+
   it("a well-formed pair (an emoji) is stored as it is", async () => {
     const res = await cast.people.coder.agent.post(`/api/studies/${study.studyId}/taxa`).send({ name: "Emojella \ud83e\udeb8 invented", notes: "\u00e9t\u00e9 \ud83d\ude00" });
     expect(res.status, JSON.stringify(res.body)).toBe(201);

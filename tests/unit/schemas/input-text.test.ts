@@ -105,3 +105,16 @@ describe("CSV imports", () => {
     ]);
   });
 });
+
+describe("the request-wide surrogate check on deeply nested input", () => {
+  it("walks 200,000 levels of nesting without overflowing the call stack, and names the path (cut after 12 parts)", () => {
+    let deep: unknown = "x\uD800";
+    for (let i = 0; i < 200_000; i++) deep = [deep];
+    const found = findLoneSurrogate({ a: deep });
+    expect(found?.codePoint).toBe("U+D800");
+    expect(found?.path).toBe(["a", ...Array(11).fill(0), "…"].join("."));
+    let clean: unknown = "x";
+    for (let i = 0; i < 200_000; i++) clean = { k: clean };
+    expect(findLoneSurrogate(clean)).toBeNull();
+  });
+});
