@@ -5,9 +5,11 @@ import { existsSync } from "node:fs";
 import { join } from "node:path";
 import { OpenAPIRegistry, OpenApiGeneratorV31 } from "@asteasolutions/zod-to-openapi";
 import type { AppContext } from "./context";
+import type { AppConfig } from "./config";
 import { errorHandler, notFound } from "./http/errors";
 import { clientAssets } from "./http/clientAssets";
 import { sameOriginOnly } from "./http/origin";
+import { serverTiming } from "./http/serverTiming";
 import type { ApiRouter, RegisteredRoute } from "./http/route";
 import { loadSession } from "./auth/session";
 import { loadApiToken } from "./auth/apiToken";
@@ -57,6 +59,18 @@ export function buildOpenApi(registry: OpenAPIRegistry) {
   });
 }
 
+/**
+ * The OpenAPI document alone, with no database or mail: the routes declare it when they are built,
+ * and their services are only touched when a request comes (scripts/api-client.ts uses this).
+ */
+export function describeApi(config: AppConfig): Record<string, unknown> {
+  const untouched = new Proxy({}, { get: () => ({}) });
+  const ctx = { config, services: untouched, db: untouched, database: untouched, mailer: untouched, jobs: untouched, workers: untouched } as unknown as AppContext;
+  const registry = new OpenAPIRegistry();
+  for (const make of RESOURCE_ROUTERS) make(ctx, registry);
+  return buildOpenApi(registry) as unknown as Record<string, unknown>;
+}
+
 export function createApp(ctx: AppContext, opts: { clientDir?: string } = {}): BuiltApp {
   const app = express();
   app.disable("x-powered-by");
@@ -85,6 +99,7 @@ export function createApp(ctx: AppContext, opts: { clientDir?: string } = {}): B
   const openapi = buildOpenApi(registry) as unknown as Record<string, unknown>;
 
   const api = express.Router();
+  api.use(serverTiming());
   api.use(sameOriginOnly(ctx.config.appUrl));
   api.use(loadApiToken(ctx));
   api.use(loadSession(ctx));

@@ -82,3 +82,17 @@ describe("the built client", () => {
     expect(res.headers["cache-control"] ?? "").not.toMatch(/immutable|max-age=31536000/);
   });
 });
+
+describe("Server-Timing (W3C Server Timing) on API answers", () => {
+  it("says how long the app took and how much of it went to the database", async () => {
+    const res = await rawGet("/api/health");
+    const header = String(res.headers["server-timing"]);
+    const db = /db;dur=([\d.]+);desc="(\d+) queries"/.exec(header);
+    const total = /app;dur=([\d.]+)/.exec(header);
+    expect(db, header).not.toBeNull();
+    expect(total, header).not.toBeNull();
+    // The health check asks the database once.
+    expect(Number(db![2])).toBeGreaterThanOrEqual(1);
+    expect(Number(db![1])).toBeLessThanOrEqual(Number(total![1]));
+  });
+});
