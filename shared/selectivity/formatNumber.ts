@@ -30,3 +30,15 @@ export function formatCompact(value: number): string {
   const magnitude = Math.abs(rounded);
   return magnitude !== 0 && (magnitude >= 1e6 || magnitude < 1e-4) ? rounded.toPrecision(3) : String(rounded);
 }
+
+/**
+ * A recorded measurement as entered (up to ten significant figures, so 0.1 + 0.2 reads "0.3"),
+ * with its unit when it has one: 12.5, "mm" -> "12.5 mm"; 66, "Ma" -> "66 Ma".
+ *
+ * @example
+ * formatMeasurement(12.5, "mm") // => "12.5 mm"
+ */
+export function formatMeasurement(value: number, unit?: string | null): string {
+  const text = Number.isInteger(value) ? String(value) : String(Number(value.toPrecision(10)));
+  return unit ? `${text} ${unit}` : text;
+}

@@ -1,10 +1,11 @@
 // How dates, counts, numbers, p-values, ages and units read everywhere in the app: one module, so
 // one number reads the same on every screen, in reports and in chart labels.
-import { formatCompact, formatNumber } from "@shared/selectivity/formatNumber";
+import { formatCompact, formatMeasurement, formatNumber } from "@shared/selectivity/formatNumber";
 
 // Three significant figures ("2.80", "0.0123"), and the same without trailing zeros for short
-// labels ("2", "0.453"); shared with the server, which writes them into sentences.
-export { formatCompact, formatNumber };
+// labels ("2", "0.453"); and a recorded measurement with its unit ("12.5 mm"). Shared with the
+// server, which writes them into sentences and thread summaries.
+export { formatCompact, formatMeasurement, formatNumber };
 
 const dateFormat = new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "short", year: "numeric" });
 const dateTimeFormat = new Intl.DateTimeFormat("en-GB", {
@@ -92,10 +93,4 @@ export function formatMyr(duration: number): string {
 /** A plain number as ages are written, without the unit: "93.9". */
 export function formatAgeNumber(age: number): string {
   return ageFormat.format(age);
-}
-
-/** A recorded measurement as entered (up to ten significant figures, no exponent for everyday sizes), with its unit: "12.5 mm". */
-export function formatMeasurement(value: number, unit?: string | null): string {
-  const text = Number.isInteger(value) ? String(value) : String(Number(value.toPrecision(10)));
-  return unit ? `${text} ${unit}` : text;
 }
