@@ -331,16 +331,15 @@ describe("answers that depend on the session are not stored by caches", () => {
   it("sends Cache-Control: no-store on signed-in answers, refusals and the sign-in answer", async () => {
     const { agent, email } = await signedInAgent(app, "cache");
     const study = await agent.post("/api/studies").send({ name: "Invented cached study" });
-    for (const res of [
-      await agent.get("/api/auth/me"),
-      await agent.get("/api/studies"),
-      await agent.get(`/api/studies/${study.body.id}`),
-      await agent.get(`/api/studies/${study.body.id}/members`),
-      await agent.get("/api/outbox"),
-      await request(app.app).get("/api/auth/me"),
-      await request(app.app).post("/api/auth/login").send({ email, password: PASSWORD }),
-    ]) {
-      expect(res.headers["cache-control"], `${res.req.method} ${res.req.path}`).toBe("no-store");
-    }
+    const answers: Array<[string, { headers: Record<string, string> }]> = [
+      ["GET /api/auth/me", await agent.get("/api/auth/me")],
+      ["GET /api/studies", await agent.get("/api/studies")],
+      ["GET /api/studies/:id", await agent.get(`/api/studies/${study.body.id}`)],
+      ["GET /api/studies/:id/members", await agent.get(`/api/studies/${study.body.id}/members`)],
+      ["GET /api/outbox", await agent.get("/api/outbox")],
+      ["GET /api/auth/me, signed out (401)", await request(app.app).get("/api/auth/me")],
+      ["POST /api/auth/login", await request(app.app).post("/api/auth/login").send({ email, password: PASSWORD })],
+    ];
+    for (const [what, res] of answers) expect(res.headers["cache-control"], what).toBe("no-store");
   });
 });

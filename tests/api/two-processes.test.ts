@@ -16,7 +16,8 @@ async function startProcess(env: Record<string, string>): Promise<AppProcess> {
   const port = await freePort();
   const output: string[] = [];
   const child = spawn(process.execPath, ["node_modules/tsx/dist/cli.mjs", "server/index.ts"], {
-    env: { ...process.env, PORT: String(port), HOST: "127.0.0.1", APP_URL: `http://127.0.0.1:${port}`, ...env },
+    // Every test app counts its sign-ups against the same address (127.0.0.1) in the shared store.
+    env: { ...process.env, PORT: String(port), HOST: "127.0.0.1", APP_URL: `http://127.0.0.1:${port}`, SIGNUP_LIMIT_PER_IP: "100000", ...env },
     stdio: ["ignore", "pipe", "pipe"],
   });
   child.stdout!.on("data", (d) => output.push(String(d)));
