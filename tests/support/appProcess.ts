@@ -24,8 +24,17 @@ export async function startAppProcess(env: Record<string, string> = {}): Promise
   // Node itself runs the server with tsx as a loader: the tsx command would start the server in a
   // child process of its own, which a SIGKILL to the command leaves running.
   const child = spawn(process.execPath, ["--import", "tsx", "server/index.ts"], {
-    // Every test app counts its sign-ups against the same address (127.0.0.1) in the shared store.
-    env: { ...process.env, PORT: String(port), HOST: "127.0.0.1", APP_URL: `http://127.0.0.1:${port}`, SIGNUP_LIMIT_PER_IP: "100000", ...env },
+    // Every test app counts its sign-ups and failed sign-ins against the same address (127.0.0.1)
+    // in the shared store: the limits per address are as high as createTestApp's.
+    env: {
+      ...process.env,
+      PORT: String(port),
+      HOST: "127.0.0.1",
+      APP_URL: `http://127.0.0.1:${port}`,
+      SIGNUP_LIMIT_PER_IP: "100000",
+      LOGIN_LIMIT_PER_IP: "100000",
+      ...env,
+    },
     stdio: ["ignore", "pipe", "pipe"],
   });
   child.stdout!.on("data", (d) => output.push(String(d)));
