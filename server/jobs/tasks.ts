@@ -2,6 +2,7 @@
 // statistics never touch the database); `progress` reports a fraction in [0, 1] and a note.
 import { analyzeSelectivity, crisisComparison, type CrisisComparisonInput } from "../../shared/selectivity/index";
 import type { SelectivityTaskInput, SelectivityTaskOutput } from "../services/runs";
+import { robustnessPanels, type RobustnessTaskItem } from "../services/runChecks";
 
 export type ProgressReporter = (fraction: number, note?: string) => void;
 export type WorkerTask = (input: any, progress: ProgressReporter) => unknown | Promise<unknown>;
@@ -30,4 +31,7 @@ export const WORKER_TASKS: Record<string, WorkerTask> = {
 
   /** Crisis against background over a run's boundaries (server/services/runChecks.ts). */
   crisisComparison: (input: CrisisComparisonInput) => crisisComparison(input),
+
+  /** A run's robustness panels, one per boundary (server/services/runChecks.ts). */
+  robustness: (input: { items: RobustnessTaskItem[] }, progress) => robustnessPanels(input.items, progress),
 };

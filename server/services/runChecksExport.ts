@@ -1,6 +1,6 @@
-// The CSV table of a run's crisis-against-background results (the `crisis` table of the run
-// export, server/services/runExport.ts): one row per trait contrast, or one row per trait that
-// could not be tested, or one row saying why the run has no such test.
+// The CSV tables of a run's checks (server/services/runExport.ts): `crisis`, crisis against
+// background, one row per trait contrast (or per untested trait, or one row saying why there is
+// no such test); `robustness`, one row per boundary, contrast and variant of the robustness panel.
 import type { Run } from "../../shared/schemas/runs";
 
 type Cell = string | number | boolean | null | undefined;
@@ -68,5 +68,65 @@ export function crisisRows(run: Run): Array<Record<string, Cell>> {
       ratio_ci_high: c.ratio.ci[1],
       sentence: c.sentence,
     }));
+  });
+}
+
+export const ROBUSTNESS_COLUMNS = [
+  "boundary_ma",
+  "boundary_label",
+  "trait_key",
+  "trait_label",
+  "contrast",
+  "variant",
+  "variant_label",
+  "run_choice",
+  "victims",
+  "survivors",
+  "crude_or",
+  "crude_ci_low",
+  "crude_ci_high",
+  "adjusted_or",
+  "adjusted_ci_low",
+  "adjusted_ci_high",
+  "crude_verdict",
+  "adjusted_verdict",
+  "verdict_note",
+];
+
+/** The `robustness` table: one row per boundary, contrast and variant, with the contrast's verdicts. */
+export function robustnessRows(run: Run): Array<Record<string, Cell>> {
+  const stored = run.results?.robustness;
+  if (!stored) return [];
+  if (stored.status === "not-computed") return [{ verdict_note: stored.reason }];
+  return stored.boundaries.flatMap((b) => {
+    if (!b.panel) return [{ boundary_label: b.label, verdict_note: b.reason }];
+    const panel = b.panel;
+    const variants = new Map(panel.variants.map((v) => [v.id, v]));
+    return panel.contrasts.flatMap((c) =>
+      c.estimates.map((e) => {
+        const v = variants.get(e.variant)!;
+        return {
+          boundary_ma: panel.boundaryMa,
+          boundary_label: b.label,
+          trait_key: c.traitKey,
+          trait_label: c.traitLabel,
+          contrast: c.contrast,
+          variant: v.id,
+          variant_label: v.label,
+          run_choice: v.kind === "run",
+          victims: v.victims,
+          survivors: v.survivors,
+          crude_or: e.crude?.estimate,
+          crude_ci_low: e.crude?.ci[0],
+          crude_ci_high: e.crude?.ci[1],
+          adjusted_or: e.adjusted?.estimate,
+          adjusted_ci_low: e.adjusted?.ci[0],
+          adjusted_ci_high: e.adjusted?.ci[1],
+          crude_verdict: c.verdict.crude.status,
+          adjusted_verdict: c.verdict.adjusted.status,
+          verdict_note: v.kind === "run" ? `${c.verdict.crude.sentence} Adjusted: ${c.verdict.adjusted.sentence}` : null,
+        };
+      }),
+    );
   });
 }

@@ -4,7 +4,7 @@
 // injection by the shared CSV writer.
 import { csvRow } from "../../shared/csv/write";
 import { CORRECTION_LABELS, RUN_EXPORT_TABLES, type Run, type RunExportTable } from "../../shared/schemas/runs";
-import { CRISIS_COLUMNS, crisisRows } from "./runChecksExport";
+import { CRISIS_COLUMNS, crisisRows, ROBUSTNESS_COLUMNS, robustnessRows } from "./runChecksExport";
 
 type Cell = string | number | boolean | null | undefined;
 type Record_ = Record<string, Cell>;
@@ -44,6 +44,7 @@ const COLUMNS: Record<RunExportTable, string[]> = {
   coefficients: [...BOUNDARY_COLUMNS, "term", "estimate", "se", "z", "p_value", "ci_low", "ci_high", "odds_ratio", "firth"],
   terms: [...BOUNDARY_COLUMNS, "term", "df", "chi_square", "p_value"],
   crisis: CRISIS_COLUMNS,
+  robustness: ROBUSTNESS_COLUMNS,
 };
 
 function runRows(run: Run): Record_[] {
@@ -83,6 +84,7 @@ function runRows(run: Run): Record_[] {
 function tableRows(run: Run, table: RunExportTable): Record_[] {
   if (table === "run") return runRows(run);
   if (table === "crisis") return crisisRows(run);
+  if (table === "robustness") return robustnessRows(run);
   const out: Record_[] = [];
   for (const b of run.results?.boundaries ?? []) {
     const where = { boundary_ma: b.boundaryMa, window_myr: b.windowMyr, boundary_label: b.label };

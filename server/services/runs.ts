@@ -30,7 +30,7 @@ import type { ClassifiedTaxon } from "./outcomes";
 import type { Trait } from "../../shared/schemas/traits";
 import { badRequest, conflict, HttpError, notFound } from "../http/errors";
 import type { JobQueue } from "../jobs/queue";
-import { crisisCheck, crisisComparison } from "./runChecks";
+import { crisisCheck, crisisComparison, robustnessItems, robustnessPanels, robustnessResult, type RobustnessTaskOutput } from "./runChecks";
 import type { CrisisComparisonResult } from "../../shared/selectivity/index";
 import type { WorkerPool } from "../jobs/workerPool";
 
@@ -346,6 +346,8 @@ export async function computeRunNow(
   const computed: SelectivityTaskOutput = read.boundaries.map((b) => analyzeSelectivity(analysisInput(read, b, params)));
   const results = runResults(read, computed);
   results.crisisVersusBackground = await crisisCheck(read, params, crisisComparison);
+  const robustness = await robustnessItems(db, sources, studyId, read, params, computed);
+  results.robustness = robustnessResult(robustness, robustnessPanels(robustness), params);
   const at = options.at ?? new Date();
   return db.transaction(async (tx) => {
     const [row] = await tx
@@ -496,11 +498,16 @@ export function createRunService(db: Database, runtime: RunRuntime, sources: Run
       report(0.1, `Read ${plural(read.rowCount, "taxon row")}; testing selectivity`);
       const analyses = read.boundaries.map((b) => ({ label: b.design.label, input: analysisInput(read, b, params) }));
       const computed = await runtime.workers.run<SelectivityTaskOutput>("selectivity", { analyses } satisfies SelectivityTaskInput, (fraction, note) =>
-        report(0.1 + 0.85 * fraction, note ?? "Testing selectivity"),
+        report(0.1 + 0.4 * fraction, note ?? "Testing selectivity"),
       );
       const results = runResults(read, computed);
-      report(0.95, "Testing crisis against background");
-      results.crisisVersusBackground = await crisisCheck(read, params, (input) => runtime.workers.run<CrisisComparisonResult>("crisisComparison", input, () => undefined));
+      report(0.5, "Testing crisis against background");
+      results.crisisVersusBackground = await crisisCheck(read, params, (input) => runtime.workers.run<CrisisComparisonResult>("crisisComparison", input));
+      const robustness = await robustnessItems(db, sources, row.studyId, read, params, computed, (i, label) =>
+        report(0.55 + (0.1 * i) / count, `Robustness panel: reading other windows across ${label} (${i + 1} of ${count})`),
+      );
+      const panels = await runtime.workers.run<RobustnessTaskOutput>("robustness", { items: robustness }, (fraction, note) => report(0.65 + 0.33 * fraction, note ?? "Robustness panel"));
+      results.robustness = robustnessResult(robustness, panels, params);
       await writing;
       const [stored] = await db
         .update(runs)

@@ -1,7 +1,9 @@
 // The checks a run makes of its own findings: crisis against background (is the crisis's
-// selectivity different from the background boundaries'?). Parameters and stored results.
+// selectivity different from the background boundaries'?) and the robustness panel (does each
+// contrast survive other reasonable choices?). Parameters and stored results.
 import { z } from "zod";
 import type { CrisisComparisonResult } from "../selectivity/crisisComparison";
+import type { RobustnessPanel } from "../selectivity/robustnessPanel";
 import { traitKindSchema } from "./traits";
 import type { Same } from "./common";
 
@@ -72,3 +74,92 @@ export const runCrisisSchema = z
   ])
   .meta({ id: "RunCrisisComparison" });
 export type RunCrisis = z.infer<typeof runCrisisSchema>;
+
+// ---------------------------------------------------------------- robustness panel
+
+/** Default alternative windows, as multiples of each boundary's own window. */
+export const DEFAULT_WINDOW_FACTORS = [0.5, 1.5, 2];
+
+export const robustnessParamsSchema = z
+  .strictObject({
+    windowFactors: z
+      .array(
+        z
+          .number({ message: "Each window factor must be a number, e.g. 0.5 for half the window" })
+          .refine((v) => Number.isFinite(v) && v > 0, "Each window factor must be greater than 0")
+          .refine((v) => v <= 10, "Each window factor must be at most 10")
+          .refine((v) => v !== 1, "A window factor of 1 is the run's own window; leave it out"),
+        { message: "windowFactors must be a list of numbers, e.g. [0.5, 1.5, 2]" },
+      )
+      .max(6, "Give at most 6 window factors")
+      .default(DEFAULT_WINDOW_FACTORS)
+      .meta({ description: "Alternative windows as multiples of each boundary's window; default 0.5, 1.5 and 2" }),
+    truncationMyr: z
+      .number({ message: "truncationMyr must be a distance in Myr" })
+      .refine((v) => Number.isFinite(v) && v > 0, "truncationMyr must be greater than 0")
+      .optional()
+      .meta({ description: "Last appearances within this distance (Myr) of the boundary are recoded in the truncation variants; default a quarter of each boundary's window" }),
+  })
+  .meta({ id: "RobustnessParams" });
+export type RobustnessParams = z.output<typeof robustnessParamsSchema>;
+
+const intervalSchema = z.object({ estimate: z.number(), ci: ciSchema });
+const verdictSchema = z.object({
+  status: z.enum(["holds", "fragile", "never-there", "not-estimated"]),
+  changedUnder: z.array(z.string()).meta({ description: "Variants under which direction or significance differs from the run's own choice" }),
+  sentence: z.string(),
+});
+const jackknifeSchema = z
+  .object({
+    min: z.number(),
+    max: z.number(),
+    mostInfluential: z.object({ clade: z.string(), estimate: z.number() }).nullable(),
+    cladesLeftOut: z.number().int(),
+  })
+  .nullable();
+
+export const robustnessPanelSchema = z
+  .object({
+    boundaryMa: z.number(),
+    windowMyr: z.number(),
+    truncationMyr: z.number(),
+    variants: z.array(
+      z.object({
+        id: z.string(),
+        kind: z.enum(["run", "window", "clade", "single-stage", "truncation-victims", "truncation-survivors"]),
+        label: z.string(),
+        victims: z.number().int(),
+        survivors: z.number().int(),
+      }),
+    ),
+    contrasts: z.array(
+      z.object({
+        traitKey: z.string(),
+        traitLabel: z.string(),
+        contrast: z.string(),
+        state: z.string().nullable(),
+        estimates: z.array(z.object({ variant: z.string(), crude: intervalSchema.nullable(), adjusted: intervalSchema.nullable() })),
+        jackknife: z.object({ crude: jackknifeSchema, adjusted: jackknifeSchema }),
+        verdict: z.object({ crude: verdictSchema, adjusted: verdictSchema }),
+      }),
+    ),
+    notes: z.array(z.string()),
+    method: z.string(),
+  })
+  .meta({ id: "RobustnessPanel" });
+
+const robustnessSchemaMatchesContract: Same<z.infer<typeof robustnessPanelSchema>, RobustnessPanel> = true;
+void robustnessSchemaMatchesContract;
+
+/** What a run stores about its robustness: one panel per boundary, or why there is none. */
+export const runRobustnessSchema = z
+  .union([
+    z.object({
+      status: z.literal("computed"),
+      windowFactors: z.array(z.number()),
+      boundaries: z.array(z.object({ index: z.number().int(), label: z.string(), panel: robustnessPanelSchema.nullable(), reason: z.string().nullable() })),
+    }),
+    z.object({ status: z.literal("not-computed"), reason: z.string() }),
+  ])
+  .meta({ id: "RunRobustness" });
+export type RunRobustness = z.infer<typeof runRobustnessSchema>;

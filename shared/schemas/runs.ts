@@ -5,7 +5,7 @@ import { z } from "zod";
 import type { SelectivityResult } from "../selectivity/types";
 import { AGE_LIMIT_MA, exportQuerySchema, isoDateSchema, oneLine, uuidSchema, personOrNoneSchema, type Same, cautionsSchema } from "./common";
 import { numericTransformSchema, traitKindSchema } from "./traits";
-import { crisisBoundaryParamSchema, runCrisisSchema } from "./runChecks";
+import { crisisBoundaryParamSchema, robustnessParamsSchema, runCrisisSchema, runRobustnessSchema } from "./runChecks";
 
 /** Most boundaries one run tests. */
 export const RUN_MAX_BOUNDARIES = 8;
@@ -104,6 +104,7 @@ export const runParamsSchema = z
       .default(DEFAULT_CONFOUNDING_THRESHOLD)
       .meta({ description: "Relative change of an odds ratio on adjustment that flags possible confounding (0.1 = 10%)" }),
     crisisBoundary: crisisBoundaryParamSchema,
+    robustness: robustnessParamsSchema.optional().meta({ description: "Settings of the robustness panel; left out: the defaults (windows 0.5, 1.5 and 2 times each boundary's, truncation a quarter of the window)" }),
   })
   .superRefine((p, ctx) => {
     if (p.crisisBoundary !== undefined) {
@@ -313,6 +314,7 @@ export const runResultsSchema = z
       .array(z.object({ traitId: z.uuid(), key: z.string(), label: z.string() }))
       .meta({ description: "The traits tested, as the codebook named them when the run read it" }),
     cautions: cautionsSchema,
+    robustness: runRobustnessSchema.optional().meta({ description: "Each contrast re-estimated under other windows, without each clade, without single-stage taxa and with last appearances recoded; absent in runs stored before this existed" }),
     crisisVersusBackground: runCrisisSchema.optional().meta({ description: "Crisis against background per trait, when the run names a crisis among several boundaries; absent in runs stored before this existed" }),
   })
   .meta({ id: "RunResults" });
@@ -422,13 +424,13 @@ export const runDiffQuerySchema = z.object({ against: uuidSchema.meta({ descript
 
 // ---------------------------------------------------------------- export
 
-export const RUN_EXPORT_TABLES = ["run", "design", "states", "tests", "contrasts", "coefficients", "terms", "crisis"] as const;
+export const RUN_EXPORT_TABLES = ["run", "design", "states", "tests", "contrasts", "coefficients", "terms", "crisis", "robustness"] as const;
 export type RunExportTable = (typeof RUN_EXPORT_TABLES)[number];
 
 export const runExportQuerySchema = exportQuerySchema(
   RUN_EXPORT_TABLES,
   "json",
-  "run: name, parameters, data hash and cautions as field and value; design, states: extinction proportions per trait state, tests, contrasts: odds ratios crude and adjusted, coefficients and terms of the multiple regression; crisis: crisis against background per trait contrast (background, crisis and ratio of odds ratios, the adjusted likelihood-ratio test)",
+  "run: name, parameters, data hash and cautions as field and value; design, states: extinction proportions per trait state, tests, contrasts: odds ratios crude and adjusted, coefficients and terms of the multiple regression; crisis: crisis against background per trait contrast (background, crisis and ratio of odds ratios, the adjusted likelihood-ratio test); robustness: each contrast's crude and adjusted odds ratio under every variant of the robustness panel, with its verdicts",
 );
 export type RunExportQuery = z.input<typeof runExportQuerySchema>;
 

@@ -1,4 +1,5 @@
-// A run's checks of its own findings on the invented demo study: crisis against background. The
+// A run's checks of its own findings on the invented demo study: crisis against background and the
+// robustness panel. For crisis against background, the
 // generator (scripts/seed/demo/generator.ts) makes background extinction the same chance for every
 // genus and the crisis at the base of the Turonian selective on narrow range, deposit feeding and
 // one hard-hit clade; so a four-boundary run that names the Turonian base as the crisis must find
@@ -56,6 +57,55 @@ beforeAll(async () => {
   expect(run.status, run.error ?? "").toBe("succeeded");
 }, 180_000);
 afterAll(() => app?.close());
+
+describe("the robustness panel of a run", () => {
+  it("is stored for every boundary with the default variants", () => {
+    const stored = run.results!.robustness!;
+    expect(stored.status).toBe("computed");
+    if (stored.status !== "computed") return;
+    expect(stored.windowFactors).toEqual([0.5, 1.5, 2]);
+    expect(stored.boundaries.map((b) => b.index)).toEqual([0, 1, 2, 3]);
+    for (const b of stored.boundaries) {
+      expect(b.reason).toBeNull();
+      const kinds = b.panel!.variants.map((v) => v.kind);
+      expect(kinds.slice(0, 4)).toEqual(["run", "window", "window", "window"]);
+      expect(kinds.slice(-3)).toEqual(["single-stage", "truncation-victims", "truncation-survivors"]);
+      expect(b.panel!.truncationMyr).toBeCloseTo(b.panel!.windowMyr / 4, 12);
+      // the run's own variant reads exactly the rows of the run's analysis at that boundary
+      const own = b.panel!.variants[0];
+      expect(own.victims).toBe(run.results!.boundaries[b.index].victims);
+      expect(own.survivors).toBe(run.results!.boundaries[b.index].survivors);
+    }
+  });
+
+  it("at the crisis, the planted narrow-range effect holds", () => {
+    const stored = run.results!.robustness!;
+    if (stored.status !== "computed") throw new Error("not computed");
+    const crisis = stored.boundaries[2].panel!;
+    for (const c of crisis.contrasts) console.log(`robustness at the crisis, ${c.traitLabel}: ${c.contrast}: crude ${c.verdict.crude.status}, adjusted ${c.verdict.adjusted.sentence}`);
+    const range = crisis.contrasts.find((c) => c.traitKey === "geographic_range")!;
+    expect(range.verdict.crude.status).toBe("holds");
+    // the run's own crude odds ratio is the one the run reported
+    const reported = run.results!.boundaries[2].result.traits.find((t) => t.key === "geographic_range")!.contrasts[0].crude;
+    expect(range.estimates[0].crude!.estimate).toBeCloseTo(reported.estimate, 8);
+  });
+
+  it("travels in the CSV export, one row per boundary, contrast and variant", async () => {
+    const stored = run.results!.robustness!;
+    if (stored.status !== "computed") throw new Error("not computed");
+    const res = await analyst.get(`/api/studies/${seeded.studyId}/runs/${run.id}/export?format=csv&table=robustness`).buffer(true);
+    expect(res.status).toBe(200);
+    const lines = res.text.trim().split(/\r?\n/);
+    expect(lines[0]).toMatch(/^boundary_ma,boundary_label,trait_key,trait_label,contrast,variant,variant_label,run_choice,/);
+    expect(lines).toHaveLength(1 + stored.boundaries.reduce((n, b) => n + b.panel!.contrasts.length * b.panel!.variants.length, 0));
+  });
+
+  it("refuses a window factor of 1, naming the field", async () => {
+    const res = await analyst.post(`/api/studies/${seeded.studyId}/runs`).send(sweepBody({ robustness: { windowFactors: [0.5, 1] } }));
+    expect(res.status).toBe(400);
+    expect(res.body.error.fields["robustness.windowFactors.1"]).toBe("A window factor of 1 is the run's own window; leave it out");
+  });
+});
 
 describe("crisis against background in a run", () => {
   it("is stored with the run, the Turonian base as the crisis and the other three as background", () => {

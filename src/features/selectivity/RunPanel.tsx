@@ -29,6 +29,7 @@ const TABLE_LABEL: Record<(typeof RUN_EXPORT_TABLES)[number], string> = {
   coefficients: "Regression coefficients",
   terms: "Regression likelihood ratio tests",
   crisis: "Crisis against background",
+  robustness: "Robustness panel: every variant",
 };
 
 export const reportPath = (studyId: string, runId: string) => `${paths.study(studyId)}/runs/${runId}/report`;
