@@ -18,7 +18,7 @@ import type {
   TaxonUpdateInput,
   TraitValue,
 } from "../../shared/schemas/taxa";
-import { BULK_FIELDS, TAXA_MAX_BULK, type TaxaIds, type TaxaIdsQuery } from "../../shared/schemas/taxa";
+import { BULK_FIELDS, TAXA_MAX_BULK, taxonChangesSchema, type TaxaIds, type TaxaIdsQuery } from "../../shared/schemas/taxa";
 import type { Trait } from "../../shared/schemas/traits";
 import { badRequest, HttpError, notFound } from "../http/errors";
 import { DetailedHttpError } from "../http/detailed";
@@ -264,7 +264,10 @@ export function createTaxonService(db: Database, grid: TaxaGrid = createTaxaGrid
             value = r.value;
           } else {
             if (input.value !== null && typeof input.value !== "string") throw badRequest(`${what} takes a text`, { value: "Give a text" });
-            value = ((input.value as string | null) ?? "").trim();
+            // The same checks as a single edit of the field (length, one line for the higher taxon).
+            const checked = taxonChangesSchema.safeParse({ [field]: (input.value as string | null) ?? "" });
+            if (!checked.success) throw badRequest(checked.error.issues[0].message, { value: checked.error.issues[0].message });
+            value = checked.data[field as "higherTaxon" | "notes"];
           }
         } else {
           const trait = codebook.get(field);

@@ -325,6 +325,18 @@ describe("one-line fields refuse line breaks and control characters, naming the 
     expect(run.status, JSON.stringify(run.body)).toBe(400);
     expect(run.body.error.fields).toMatchObject({ name: "Name must be one line of text: it holds a line break", "boundaries.0.label": "Label must be one line of text: it holds a control character (U+2029)" });
 
+    const kept = await cast.people.coder.agent.post(`/api/studies/${study.studyId}/taxa`).send({ name: "Bulkella invented", higherTaxon: "Inventidae" });
+    const bulk = await cast.people.coder.agent
+      .post(`/api/studies/${study.studyId}/taxa/bulk`)
+      .send({ taxonIds: [kept.body.taxon.id], field: "higherTaxon", value: "Inven\ntidae", reason: "Bulk." });
+    expect(bulk.status, JSON.stringify(bulk.body)).toBe(400);
+    expect(bulk.body.error.fields.value).toBe("Higher taxon must be one line of text: it holds a line break");
+    const bulkNotes = await cast.people.coder.agent
+      .post(`/api/studies/${study.studyId}/taxa/bulk`)
+      .send({ taxonIds: [kept.body.taxon.id], field: "notes", value: "  Notes may\nspan lines.  ", reason: "Bulk." });
+    expect(bulkNotes.status, JSON.stringify(bulkNotes.body)).toBe(200);
+    expect((await cast.people.coder.agent.get(`/api/studies/${study.studyId}/taxa/${kept.body.taxon.id}`)).body).toMatchObject({ higherTaxon: "Inventidae", notes: "Notes may\nspan lines." });
+
     const trait = await cast.people.coder.agent.patch(`/api/studies/${study.studyId}/traits/${study.trait.feeding.id}`).send({ label: "Feeding\r\nmode" });
     expect(trait.status).toBe(400);
     expect(trait.body.error.fields.label).toBe("Label must be one line of text: it holds a line break");
