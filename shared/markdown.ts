@@ -149,8 +149,9 @@ export interface MarkdownWork {
  * One text's lookups, computed once from right to left so that reading it never scans ahead again
  * (a scan per "[", "*" or "`" made a line of 10,000 "[" quadratic): each entry is what a scan from
  * that position would find. The inside of **...**, *...* and [...] is read as a text of its own
- * with its own lookups; those insides do not overlap and nest at most MAX_DEPTH deep, so all the
- * work stays within (MAX_DEPTH + 1) times the length of the line.
+ * with its own lookups; those insides do not overlap and nest at most MAX_DEPTH deep, so this
+ * work stays within (MAX_DEPTH + 1) times the length of the line. Checking a candidate address
+ * reads at most MARKDOWN_MAX_HREF_LENGTH characters.
  */
 interface LineIndex {
   text: string;
