@@ -1,4 +1,4 @@
-// Shared shapes of the occurrence functions (see shared/CONTRACTS.md).
+// Shared shapes of the occurrence functions (deriveRanges.ts, threeTimerRates.ts).
 
 /** One dated find of a taxon: ages in Ma (larger is older), maxMa >= minMa. */
 export interface Occurrence {

@@ -1,7 +1,7 @@
 import { describe, expect, it } from "vitest";
 import { deriveRanges } from "@shared/occurrences";
 
-// All taxa, collections and ages here are invented. The rule checked is the one in shared/CONTRACTS.md
+// All taxa, collections and ages here are invented. The rule checked is the one in shared/occurrences/deriveRanges.ts
 // (first appearance = oldest find, last appearance = youngest find: the usual definition of a stratigraphic
 // range, common practice, no source); every expected value is worked by hand in the comment beside it.
 

@@ -2,9 +2,9 @@ import { describe, expect, it } from "vitest";
 import { threeTimerRates } from "@shared/occurrences";
 
 // The formulas are Alroy's three-timer method (Alroy 2008, Dynamics of origination and extinction in the
-// marine fossil record, PNAS 105 suppl. 1: 11536-11542), as written in shared/CONTRACTS.md:
+// marine fossil record, PNAS 105 suppl. 1: 11536-11542; docs/sources.md section 7), as written in shared/occurrences/threeTimerRates.ts:
 //   samplingCompleteness = t3 / (t3 + pt); extinction = ln(t2Below / t3) + ln(Ps); origination = ln(t2Above / t3) + ln(Ps).
-// FROM MEMORY: Alroy writes the three-timer extinction rate as log(2t_i / 3t_i) + log(Ps); the contract's form
+// FROM MEMORY: Alroy writes the three-timer extinction rate as log(2t_i / 3t_i) + log(Ps); the module's form
 // is the same. The paper's own numbers were not read, so the checks are hand-worked from invented finds.
 
 const BINS = [

@@ -2,7 +2,7 @@ import { describe, expect, it } from "vitest";
 import { boundaryCrosserRates, diversityThroughTime } from "@shared/outcomes";
 
 // Invented ranges and intervals, counted by hand with the boundary-crosser rules (Foote 2000, Paleobiology
-// 26(4) suppl.: 74-102; the class definitions are FROM MEMORY per CHECK-SOURCES section 7): a range crosses an
+// 26(4) suppl.: 74-102; the class definitions are FROM MEMORY per docs/sources.md section 7): a range crosses an
 // age t when fad > t > lad.
 const intervals = [
   { name: "C (invented)", base: 15, top: 10 },

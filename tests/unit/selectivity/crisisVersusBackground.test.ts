@@ -18,7 +18,7 @@ describe("two boundaries, one binary trait: the saturated model, worked by hand"
   // With one intercept per boundary, one trait term and one crisis interaction, two boundaries and
   // two states give 4 coefficients for 4 cells: the fit reproduces every cell's proportion, so the
   // odds ratios are the cells' cross-product ratios and the variance of a log odds ratio is the sum
-  // of 1/cell (Woolf 1955, CHECK-SOURCES 2). Cells (victims, survivors):
+  // of 1/cell (Woolf 1955, docs/sources.md section 2). Cells (victims, survivors):
   //   Background: reference a (12, 30), state b (25, 18)
   //   Crisis:     reference a (20, 15), state b (9, 16)
   const rows = [
@@ -157,7 +157,7 @@ describe("three states: one dummy and one interaction per non-reference state", 
   });
 });
 
-describe("a numeric trait: the budworm data of Venables & Ripley (R's predict.glm help, CHECK-SOURCES 4b)", () => {
+describe("a numeric trait: the budworm data of Venables & Ripley (R's predict.glm help, docs/sources.md section 4)", () => {
   // glm(cbind(numdead, 20 - numdead) ~ sex * ldose) is this very model with the sexes as the two
   // "boundaries" and male as the "crisis": ldose is the background slope b, sexM:ldose is g.
   const ldose = [0, 1, 2, 3, 4, 5];
@@ -192,7 +192,7 @@ describe("a numeric trait: the budworm data of Venables & Ripley (R's predict.gl
   });
 });
 
-describe("the Challenger data mirrored: a numeric case with a closed-form test (CHECK-SOURCES 4a)", () => {
+describe("the Challenger data mirrored: a numeric case with a closed-form test (docs/sources.md section 4)", () => {
   // Background: the 23 flights, any O-ring distress against temperature; crisis: the same flights
   // with the temperature negated. Swapping the boundaries and negating every value maps the data
   // onto themselves and the common slope onto its negative, so the reduced fit has slope 0 and
@@ -235,7 +235,7 @@ describe("separation: an empty cell switches to Firth's penalty and says so", ()
   // Every taxon of state b died at the crisis (9 victims, 0 survivors). In a saturated model
   // Firth's modified score (Firth 1993) for the rows of cell j reads v_j - n_j p_j + (1/2 - p_j) = 0,
   // because each of the n_j rows has leverage 1/n_j; so p_j = (v_j + 1/2) / (n_j + 1): half a
-  // victim and half a survivor added to every cell (Haldane-Anscombe, CHECK-SOURCES 2 and 5).
+  // victim and half a survivor added to every cell (Haldane-Anscombe, docs/sources.md sections 2 and 5).
   const table = { bgA: [12, 30], bgB: [25, 18], crA: [20, 15], crB: [9, 0] };
   const rows = [
     ...cells("Background", "a", table.bgA[0], table.bgA[1]),

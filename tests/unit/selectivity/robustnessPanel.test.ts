@@ -40,9 +40,9 @@ function asInput(list: Planted[], extra: Partial<RobustnessInput> = {}): Robustn
   };
 }
 
-describe("the tea-tasting table as a run (CHECK-SOURCES 2)", () => {
+describe("the tea-tasting table as a run (docs/sources.md section 2)", () => {
   // Deposit feeders: 3 victims, 1 survivor; suspension feeders: 1 victim, 3 survivors.
-  // Woolf: OR 9.0, 95% interval 0.3666 - 220.93 (CHECK-SOURCES 2, COMPUTED).
+  // Woolf: OR 9.0, 95% interval 0.3666 - 220.93 (docs/sources.md section 2, COMPUTED).
   const list: Planted[] = [
     { name: "d1", clade: "A", victim: true, values: { feeding: "deposit" }, fad: 120, lad: 101 },
     { name: "d2", clade: "A", victim: true, values: { feeding: "deposit" }, fad: 120, lad: 105 },
@@ -67,7 +67,7 @@ describe("the tea-tasting table as a run (CHECK-SOURCES 2)", () => {
 
   it("leaves each clade out in turn", () => {
     // Without A: deposit (1 victim, 1 survivor), suspension (0, 2): a zero cell, so Haldane:
-    // (1.5 * 2.5) / (1.5 * 0.5) = 5 (CHECK-SOURCES 2, the 0.5 correction).
+    // (1.5 * 2.5) / (1.5 * 0.5) = 5 (docs/sources.md section 2, the 0.5 correction).
     expectRelativeClose(at("clade:A").crude!.estimate, 5, 1e-12);
     // Without B: deposit (2, 0), suspension (1, 1): (2.5 * 1.5) / (0.5 * 1.5) = 5.
     expectRelativeClose(at("clade:B").crude!.estimate, 5, 1e-12);
