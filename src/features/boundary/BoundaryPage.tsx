@@ -19,6 +19,7 @@ import { TurnoverSection } from "./TurnoverSection";
 import { BoundaryPicker } from "./BoundaryPicker";
 import { readBoundaryView, withChoice, withList, withWindow, type BoundaryView } from "./boundaryParams";
 import { ClassificationRules } from "./ClassificationRules";
+import { SamplingCompleteness } from "./SamplingCompleteness";
 import { LIST_PAGE_SIZE, OutcomeLists } from "./OutcomeLists";
 import { OutcomeSummary } from "./OutcomeSummary";
 import { OutcomeWarnings } from "./OutcomeWarnings";
@@ -127,6 +128,8 @@ export function BoundaryPage() {
         )}
 
         {!(request && outcomes.data && outcomes.data.counts.total > 0) && chart}
+
+        {boundary !== null && <SamplingCompleteness studyId={study.id} boundaryMa={boundary} />}
 
         <OverridesCard studyId={study.id} canOverride={canOverride} onRevoke={setRevoking} />
       </div>

@@ -9,6 +9,8 @@ import { useDocumentTitle } from "../../lib/useDocumentTitle";
 import { useTraits } from "../../lib/queries/codebook";
 import { ImportHistory } from "./ImportHistory";
 import { ImportWizard } from "./ImportWizard";
+import { OccurrenceWizard } from "./occurrences/OccurrenceWizard";
+import { RangesFromOccurrences } from "./occurrences/RangesFromOccurrences";
 
 export function ImportsPage() {
   const study = useCurrentStudy();
@@ -30,6 +32,8 @@ export function ImportsPage() {
         {canImport && traits.isError && <ErrorState error={traits.error} title="The codebook could not be loaded" onRetry={() => void traits.refetch()} />}
         {canImport && traits.isSuccess && <ImportWizard studyId={study.id} traits={traits.data.traits} />}
         <ImportHistory studyId={study.id} traits={traitsById} canRevert={canImport} />
+        {canImport && <OccurrenceWizard studyId={study.id} />}
+        <RangesFromOccurrences studyId={study.id} role={study.role} />
       </div>
     </>
   );
