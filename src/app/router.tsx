@@ -35,6 +35,7 @@ export const router = createBrowserRouter([
       // A printable report stands on a page of its own, without the app's frame.
       { path: "studies/:studyId/modern-comparison/comparisons/:comparisonId/report", lazy: screen(() => import("../features/modern-comparison/ComparisonReportPage"), "ComparisonReportPage") },
       { path: "studies/:studyId/runs/:runId/report", lazy: screen(() => import("../features/selectivity/RunReportPage"), "RunReportPage") },
+      { path: "studies/:studyId/boundary/report", lazy: screen(() => import("../features/boundary/BoundaryReportPage"), "BoundaryReportPage") },
       {
         lazy: screen(() => import("./AppShell"), "AppShell"),
         children: [

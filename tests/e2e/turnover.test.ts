@@ -2,7 +2,8 @@
 // of the Turonian the generator planted a crisis in extinction only (scripts/seed/demo/generator.ts: crisis
 // odds far above the 13-16% background losses of the other stages, origination drawn from fixed weights), so
 // the screen must say extinction departs from its background and origination does not; the diversity curve
-// splits by life habit; and the scorecard says which criteria this study cannot assess.
+// splits by life habit; the scorecard says which criteria this study cannot assess; and the printable report
+// holds all of it.
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { launchBrowser, screenshot, withScreenshotOnFailure } from "../support/browser";
 import { seedDemoStudy, signInAs, type DemoFixture } from "../support/demo";
@@ -77,6 +78,18 @@ describe("turnover on the Boundary screen", () => {
 
       await page.evaluate(() => window.scrollTo(0, 0));
       await screenshot(page, "turnover");
+
+      // The printable report carries the boundary and the split: scorecard, rates, diversity and their numbers.
+      await page.getByRole("link", { name: "Printable report" }).click();
+      await page.waitForURL(/\/boundary\/report\?.*unit=Turonian.*split=life_habit/);
+      const report = page.getByTestId("boundary-report");
+      await report.getByRole("heading", { level: 1, name: "Base of the Turonian stage, 93.9 Ma" }).waitFor();
+      expect(await report.getByTestId("turnover-sentence").innerText()).toMatch(/extinction departs from its background/);
+      expect(await report.getByTestId("scorecard-geography").getAttribute("data-status")).toBe("not assessable");
+      await report.locator('[data-testid="diversity-panel"][data-group="infaunal"]').waitFor();
+      // The numbers behind the charts are open in the report.
+      expect(await report.getByTestId("turnover-table").locator('tr[data-stage="Cenomanian"]').isVisible()).toBe(true);
+      await screenshot(page, "turnover-report");
     });
   });
 });

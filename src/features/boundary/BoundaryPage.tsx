@@ -28,6 +28,14 @@ import { RevokeOverrideDialog, SetOutcomeDialog, type RevokeTarget } from "./Ove
 import { RatesChart } from "./RatesChart";
 import { indexScale } from "../../components/timescale/scaleIndex";
 
+/** The report's link: the boundary, window and list of the screen, and the diversity split. */
+function reportSearch(search: URLSearchParams, splitBy: string): string {
+  const next = new URLSearchParams(search);
+  if (splitBy) next.set("split", splitBy);
+  else next.delete("split");
+  return next.toString();
+}
+
 function requestOf(view: BoundaryView): OutcomesRequest | null {
   if (!view.choice) return null;
   const where = view.choice.kind === "unit" ? { boundaryUnit: view.choice.name } : { boundary: view.choice.age };
@@ -63,6 +71,13 @@ export function BoundaryPage() {
         eyebrow={study.name}
         title="Boundary"
         description="Choose a boundary of the time scale and the window below it, and see which taxa survived it, which were lost, and which were not at risk."
+        actions={
+          request ? (
+            <ButtonLink to={`${paths.study(study.id)}/boundary/report?${reportSearch(search, splitBy)}`} variant="secondary">
+              Printable report
+            </ButtonLink>
+          ) : undefined
+        }
       />
       <div className="space-y-6">
         {timescale.isPending && <LoadingState label="Loading the time scale" lines={3} />}

@@ -49,11 +49,14 @@ export function TurnoverSection({
   splitBy,
   onSplitBy,
   csvUrl,
+  report = false,
 }: {
   turnover: TurnoverQuery;
   splitBy: string;
   onSplitBy: (value: string) => void;
   csvUrl: string | null;
+  /** In the printable report: no split control, the numbers behind the charts open. */
+  report?: boolean;
 }) {
   const data = turnover.data;
   return (
@@ -87,7 +90,7 @@ export function TurnoverSection({
           <div className="space-y-8">
             <RateLines data={data} />
             <BackgroundStrips data={data} />
-            <Diversity data={data} splitBy={splitBy} onSplitBy={onSplitBy} />
+            <Diversity data={data} splitBy={splitBy} onSplitBy={onSplitBy} report={report} />
           </div>
         )}
       </div>
@@ -286,7 +289,7 @@ function Strip(props: {
   );
 }
 
-function Diversity({ data, splitBy, onSplitBy }: { data: TurnoverResult; splitBy: string; onSplitBy: (value: string) => void }) {
+function Diversity({ data, splitBy, onSplitBy, report }: { data: TurnoverResult; splitBy: string; onSplitBy: (value: string) => void; report: boolean }) {
   const stages = data.stages;
   const { diversity } = data;
   const options = [{ value: "", label: "All taxa together" }, ...diversity.splitOptions];
@@ -307,7 +310,7 @@ function Diversity({ data, splitBy, onSplitBy }: { data: TurnoverResult; splitBy
             the number at each point is the count, and the green line is the boundary.
           </p>
         </div>
-        <Select label="Split by" value={splitBy} options={options} onChange={(e) => onSplitBy(e.target.value)} className="w-60" />
+        {!report && <Select label="Split by" value={splitBy} options={options} onChange={(e) => onSplitBy(e.target.value)} className="w-60" />}
       </div>
       <div className={cx("mt-3 grid gap-4", small && "sm:grid-cols-2 xl:grid-cols-3")}>
         {groups.map((g) => (
@@ -347,7 +350,7 @@ function Diversity({ data, splitBy, onSplitBy }: { data: TurnoverResult; splitBy
           {diversity.cautions.join(" ")}
         </Caution>
       </div>
-      <details className="mt-4">
+      <details className="mt-4" open={report || undefined}>
         <summary className="cursor-pointer text-sm font-medium text-accent-700 hover:text-accent-900">Numbers behind the charts</summary>
         <TurnoverTable data={data} groups={diversity.splitBy.kind === "none" ? [] : groups} />
       </details>
