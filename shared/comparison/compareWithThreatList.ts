@@ -74,7 +74,14 @@ export function compareWithThreatList(input: CompareInput): ComparisonResult {
     rocNote = `The ROC curve needs at least 2 scored species in each group; there are ${counts.scored.threatened} threatened and ${counts.scored.notThreatened} not threatened.`;
   } else {
     const area = rocAuc(scores, labels, { level: options.level });
-    roc = { ...area, points: thinCurve(rocCurve(scores, labels)) };
+    const smallSample = area.cases < ROC_MIN_PER_CLASS || area.controls < ROC_MIN_PER_CLASS;
+    const verdict = smallSample ? "no-verdict" : area.ci[0] > 0.5 ? "better-than-chance" : area.ci[1] < 0.5 ? "worse-than-chance" : "no-verdict";
+    roc = { ...area, verdict, smallSample, points: thinCurve(rocCurve(scores, labels)) };
+    if (smallSample) {
+      notes.push(
+        `Only ${area.cases} threatened and ${area.controls} not-threatened species are scored; with fewer than ${ROC_MIN_PER_CLASS} in a group the area under the curve is too uncertain for a verdict (common practice, no source), so none is given.`,
+      );
+    }
   }
 
   let rho: SpearmanSummary | null = null;
@@ -89,7 +96,7 @@ export function compareWithThreatList(input: CompareInput): ComparisonResult {
       ranked.map((s) => s.probability!),
       ordinal,
     );
-    rho = { rho: r.rho, statistic: r.statistic, df: r.df, pValue: r.pValue, n: r.n };
+    rho = { rho: r.rho, statistic: Number.isFinite(r.statistic) ? r.statistic : null, df: r.df, pValue: r.pValue, method: r.method, n: r.n };
   }
 
   const worthALook = species
@@ -116,6 +123,9 @@ export function compareWithThreatList(input: CompareInput): ComparisonResult {
     notes,
   };
 }
+
+/** Fewer scored species than this in either group: no verdict sentence from the area (common practice, no source). */
+export const ROC_MIN_PER_CLASS = 10;
 
 function countSpecies(species: ScoredSpecies[]): ComparisonCounts {
   const byCategory = Object.fromEntries(IUCN_CATEGORIES.map((c) => [c, 0])) as Record<IucnCategory, number>;

@@ -114,6 +114,16 @@ export interface RocSummary {
   auc: number;
   se: number;
   ci: [number, number];
+  /** How se and the interval were obtained (absent in older results: DeLong, auc +- z se). */
+  seMethod?: "delong" | "score-interval";
+  ciMethod?: string;
+  /**
+   * Whether a verdict sentence may be read from the area: the interval's lower bound above 0.5 (or
+   * upper below it) and at least ROC_MIN_PER_CLASS species in each group. Absent in older results.
+   */
+  verdict?: "better-than-chance" | "worse-than-chance" | "no-verdict";
+  /** Fewer than ROC_MIN_PER_CLASS scored species in a group: the screen shows a small-sample caution. */
+  smallSample?: boolean;
   level: number;
   /** Pairs (threatened, not threatened) with the threatened species scored higher, ties counting one half. */
   mannWhitneyU: number;
@@ -126,9 +136,12 @@ export interface RocSummary {
 
 export interface SpearmanSummary {
   rho: number;
-  statistic: number;
+  /** t statistic of the approximation; null when not finite (|rho| = 1). */
+  statistic: number | null;
   df: number;
   pValue: number;
+  /** Exact permutation p-value for small samples, else the t approximation (older results: absent, t approximation). */
+  method?: "exact-permutation" | "t-approximation";
   /** Scored species on the ordinal scale LC = 0 ... CR = 4. */
   n: number;
 }

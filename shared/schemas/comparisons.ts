@@ -66,8 +66,12 @@ export const comparisonResultSchema = z
     roc: z
       .object({
         auc: z.number(),
-        se: z.number().meta({ description: "DeLong's standard error" }),
+        se: z.number().meta({ description: "DeLong's standard error (at an area of 0 or 1: half the score interval's width over z)" }),
         ci: ciSchema,
+        seMethod: z.enum(["delong", "score-interval"]).optional(),
+        ciMethod: z.string().optional().meta({ description: "Score interval inverting the Hanley-McNeil variance; holds at 0 and 1" }),
+        verdict: z.enum(["better-than-chance", "worse-than-chance", "no-verdict"]).optional().meta({ description: "A verdict only when the interval excludes 0.5 and each group has enough species" }),
+        smallSample: z.boolean().optional(),
         level: z.number(),
         mannWhitneyU: z.number(),
         cases: z.number().int(),
@@ -76,7 +80,16 @@ export const comparisonResultSchema = z
       })
       .nullable(),
     rocNote: z.string().nullable(),
-    spearman: z.object({ rho: z.number(), statistic: z.number(), df: z.number(), pValue: z.number(), n: z.number().int() }).nullable(),
+    spearman: z
+      .object({
+        rho: z.number(),
+        statistic: z.number().nullable(),
+        df: z.number(),
+        pValue: z.number(),
+        method: z.enum(["exact-permutation", "t-approximation"]).optional(),
+        n: z.number().int(),
+      })
+      .nullable(),
     spearmanNote: z.string().nullable(),
     traits: z.array(
       z.object({

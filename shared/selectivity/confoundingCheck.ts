@@ -74,8 +74,7 @@ export function confoundingMethod(threshold: number, level: number, minInformati
     `Traits with states are standardised directly over the clades holding both states; numeric traits through the conditional (within-clade) slope. ` +
     `The crude odds ratio is compared with a standardised marginal one, not with the within-clade (conditional) one shown as the estimate, because odds ratios are not collapsible: ` +
     `when risk differs between clades the within-clade odds ratio lies further from 1 than the crude one even without confounding (Greenland, Robins & Pearl 1999, Statistical Science 14:29; Miettinen & Cook 1981). ` +
-    `Clade-adjusted estimates resting on fewer than ${minInformativeClades} informative clades are marked thin and never flag on their own. ` +
-    `A trait can track extinction only because both share a cause (e.g. the trait is concentrated in hard-hit clades); the adjusted odds ratios show how much of the association remains within clades and beside the other traits.`
+    `Clade-adjusted estimates resting on fewer than ${minInformativeClades} informative clades are marked thin and never flag on their own.`
   );
 }
 

@@ -6,7 +6,7 @@ import { cx } from "../../lib/cx";
 import { formatCount, formatDateTime, pluralize } from "../../lib/format";
 import { CategoryBadge } from "./CategoryBadge";
 import { RocChart } from "./RocChart";
-import { aucReading, formatInterval, formatOdds, formatP, formatProbability, formatTwo } from "./words";
+import { aucReading, formatInterval, formatOdds, formatP, formatProbability, formatTwo, spearmanMethodWords } from "./words";
 
 type Results = Comparison["results"];
 type Contrast = Results["traits"][number]["contrasts"][number];
@@ -88,18 +88,22 @@ export function ComparisonResultsView({ comparison, print = false }: { compariso
       <Section id="headline" title="How today’s listing lines up with the past crisis" description={`${r.run.boundaryLabel}, run “${r.run.name}”, held against “${r.list.name}”.`}>
         <dl className="grid gap-3 sm:grid-cols-3">
           {r.roc ? (
-            <Figure label="Area under the ROC curve" value={formatTwo(r.roc.auc)} detail={`${levelPercent} interval ${formatInterval(r.roc.ci, formatTwo)} (DeLong)`} />
+            <Figure label="Area under the ROC curve" value={formatTwo(r.roc.auc)} detail={`${levelPercent} interval ${formatInterval(r.roc.ci, formatTwo)} (${r.roc.ciMethod ? "score interval" : "DeLong"})`} />
           ) : (
             <Figure label="Area under the ROC curve" value="—" detail={r.rocNote} />
           )}
           {r.spearman ? (
-            <Figure label="Spearman’s rho with the category" value={formatTwo(r.spearman.rho)} detail={`${formatP(r.spearman.pValue)} by the t approximation on ${r.spearman.df} df, ${pluralize(r.spearman.n, "species", "species")}`} />
+            <Figure label="Spearman’s rho with the category" value={formatTwo(r.spearman.rho)} detail={`${formatP(r.spearman.pValue)} ${spearmanMethodWords(r.spearman)}, ${pluralize(r.spearman.n, "species", "species")}`} />
           ) : (
             <Figure label="Spearman’s rho with the category" value="—" detail={r.spearmanNote} />
           )}
           <Figure label="Worth a look" value={formatCount(r.worthALook.length)} detail={`listed LC or DD, predicted at least ${formatProbability(comparison.params.worthALookMin)}`} />
         </dl>
-        {r.roc && <p className="mt-4 text-[15px] text-stone-700">{aucReading(r.roc.auc, r.roc.ci)}</p>}
+        {r.roc && (
+          <p className={r.roc.smallSample ? "mt-4 rounded-lg border border-caution-200 bg-caution-50 px-4 py-3 text-[15px] text-stone-800" : "mt-4 text-[15px] text-stone-700"} data-testid="auc-reading">
+            {aucReading(r.roc)}
+          </p>
+        )}
       </Section>
 
       <Section
@@ -177,7 +181,9 @@ export function ComparisonResultsView({ comparison, print = false }: { compariso
               <div>
                 <dt className="text-stone-500">Area under the curve</dt>
                 <dd className="font-medium tabular-nums">
-                  {formatTwo(r.roc.auc)} ({levelPercent} interval {formatInterval(r.roc.ci, formatTwo)}, DeLong standard error {r.roc.se.toFixed(3)})
+                  {formatTwo(r.roc.auc)} ({levelPercent} interval {formatInterval(r.roc.ci, formatTwo)}
+                  {r.roc.ciMethod ? `, ${r.roc.ciMethod}` : ""}, {r.roc.seMethod === "score-interval" ? "standard error from the interval, as DeLong's collapses at 0 or 1" : "DeLong standard error"}{" "}
+                  {r.roc.se.toFixed(3)})
                 </dd>
               </div>
               <div>

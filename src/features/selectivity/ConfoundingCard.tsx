@@ -16,10 +16,34 @@ function OddsCell({ value, ci }: { value: number | undefined; ci: [number, numbe
 
 function moveWords(contrast: ContrastData): string {
   const parts = [
-    contrast.changeOnCladeAdjustment !== null ? `clade ${formatChange(contrast.changeOnCladeAdjustment)}` : null,
-    contrast.changeOnModelAdjustment !== null ? `traits ${formatChange(contrast.changeOnModelAdjustment)}` : null,
+    contrast.changeOnCladeAdjustment !== null ? `clade ${formatChange(contrast.changeOnCladeAdjustment)}${checkP(contrast.cladeCheck)}` : null,
+    contrast.changeOnModelAdjustment !== null ? `traits ${formatChange(contrast.changeOnModelAdjustment)}${checkP(contrast.modelCheck)}` : null,
   ].filter(Boolean);
   return parts.length ? parts.join(" · ") : "—";
+}
+
+/** " (p 0.003)": how far the move stands out from its own uncertainty. */
+function checkP(check: ContrastData["cladeCheck"]): string {
+  return check && check.pValue !== null ? ` (p ${formatP(check.pValue)})` : "";
+}
+
+/** The clade-adjusted odds ratio with how many clades carry it, and "thin" when they are too few. */
+function CladeCell({ contrast }: { contrast: ContrastData }) {
+  const adjusted = contrast.cladeAdjusted;
+  if (!adjusted) return <OddsCell value={undefined} ci={undefined} />;
+  const clades = adjusted.informativeClades;
+  return (
+    <td className={tdNum}>
+      <span className="font-medium">{formatEstimate(adjusted.estimate)}</span>
+      <span className="block text-xs text-stone-500">{formatInterval(adjusted.ci)}</span>
+      {clades !== undefined && (
+        <span className={cx("block text-xs", adjusted.thin ? "font-semibold text-caution-700" : "text-stone-500")} data-testid="informative-clades">
+          {clades} {clades === 1 ? "clade" : "clades"}
+          {adjusted.thin ? " · thin" : ""}
+        </span>
+      )}
+    </td>
+  );
 }
 
 /**
@@ -28,6 +52,8 @@ function moveWords(contrast: ContrastData): string {
  * the other traits (the multiple regression), flagged when it moves by more than the threshold.
  */
 export function ConfoundingCard({ result, level, threshold }: { result: SelectivityResultData; level: number; threshold: number }) {
+  // Runs stored before the calibrated flag carry no method: they were flagged on the move alone.
+  const calibrated = result.confoundingMethod !== undefined;
   const percent = levelWords(level);
   const rows = result.traits.flatMap((trait) => trait.contrasts.map((contrast) => ({ trait, contrast })));
   const flagged = rows.filter((r) => r.contrast.flagged);
@@ -36,14 +62,20 @@ export function ConfoundingCard({ result, level, threshold }: { result: Selectiv
   return (
     <Card
       title="Confounding check"
-      description={`Does each odds ratio hold once clade and the other traits are allowed for? A contrast is flagged when its odds ratio moves by more than ${formatWholePercent(threshold)} on either adjustment.`}
+      description={
+        calibrated
+          ? `Does each odds ratio hold once clade and the other traits are allowed for? A contrast is flagged when its crude odds ratio differs from the standardised one by more than ${formatWholePercent(threshold)} and by more than its own uncertainty.`
+          : `Does each odds ratio hold once clade and the other traits are allowed for? A contrast is flagged when its odds ratio moves by more than ${formatWholePercent(threshold)} on either adjustment.`
+      }
       className="break-inside-avoid"
     >
       <div className="space-y-4" data-testid="confounding-check">
         <p className={cx("rounded-lg px-4 py-3 text-[15px]", flagged.length ? "border border-caution-200 bg-caution-50 text-stone-800" : "bg-stone-50 text-stone-700")}>
           {flagged.length === 0
-            ? "No odds ratio moves by more than the threshold on adjustment."
-            : `${flagged.length === 1 ? "One contrast moves" : `${flagged.length} contrasts move`} on adjustment: ${flagged.map((r) => `${r.trait.label} (${contrastWords(r.trait, r.contrast)})`).join("; ")}.`}{" "}
+            ? calibrated
+              ? "No contrast is flagged: no odds ratio moves on adjustment by more than the threshold and its own uncertainty together."
+              : "No odds ratio moves by more than the threshold on adjustment."
+            : `${flagged.length === 1 ? "One contrast is" : `${flagged.length} contrasts are`} flagged as possible confounding: ${flagged.map((r) => `${r.trait.label} (${contrastWords(r.trait, r.contrast)})`).join("; ")}.`}{" "}
           A trait can track extinction only because both share a cause, for instance when the trait is concentrated in clades that were hit hard for
           other reasons; the adjusted odds ratios show how much of the association remains within clades and beside the other traits.
         </p>
@@ -70,7 +102,7 @@ export function ConfoundingCard({ result, level, threshold }: { result: Selectiv
                   <span className="block text-xs font-normal text-stone-500">{contrastWords(trait, contrast)}</span>
                 </th>
                 <OddsCell value={contrast.crude.estimate} ci={contrast.crude.ci} />
-                <OddsCell value={contrast.cladeAdjusted?.estimate} ci={contrast.cladeAdjusted?.ci} />
+                <CladeCell contrast={contrast} />
                 <td className={tdNum}>{contrast.cladeAdjusted?.breslowDay ? formatP(contrast.cladeAdjusted.breslowDay.pValue) : "—"}</td>
                 <OddsCell value={contrast.modelAdjusted?.estimate} ci={contrast.modelAdjusted?.ci} />
                 <td className={cx(tdNum, "text-xs", contrast.flagged && "font-semibold text-caution-700")}>{moveWords(contrast)}</td>
@@ -78,10 +110,20 @@ export function ConfoundingCard({ result, level, threshold }: { result: Selectiv
             ))}
           </Body>
         </ResultTable>
-        <p className="text-sm text-stone-600">
-          The {formatWholePercent(threshold)} change-in-estimate rule is a rule of thumb of common practice, not a statistical test. Moves by: |adjusted ÷ crude − 1| for clade and for
-          the other traits. A small Breslow-Day p says the odds ratio differs between clades, so one common figure summarises them poorly.
-        </p>
+        {calibrated ? (
+          <p className="text-sm text-stone-600" data-testid="confounding-method">
+            <span className="font-medium text-stone-700">How the flag is decided. </span>
+            {result.confoundingMethod} Moves by: |standardised ÷ crude − 1| with the p-value of the move against its bootstrap standard error. The clade column gives the
+            within-clade odds ratio and how many clades carry information. A small Breslow-Day p says the odds ratio differs between clades, so one common figure
+            summarises them poorly.
+            {result.design.withoutClade ? ` ${result.design.withoutClade} taxa without a higher taxon are left out of the clade-adjusted odds ratios.` : ""}
+          </p>
+        ) : (
+          <p className="text-sm text-stone-600">
+            The {formatWholePercent(threshold)} change-in-estimate rule is a rule of thumb of common practice, not a statistical test. Moves by: |adjusted ÷ crude − 1| for clade and
+            for the other traits. This run was computed before the calibrated flag; re-run it to flag only moves larger than their own uncertainty.
+          </p>
+        )}
         {notes.length > 0 && (
           <ul className="list-disc space-y-1 pl-5 text-sm text-stone-600">
             {notes.map((note) => (

@@ -6,6 +6,7 @@ import type { FieldErrors } from "../../lib/forms";
 import type { Draft } from "./configDraft";
 
 const LEVELS = [0.9, 0.95, 0.99];
+const MIN_CLADES = [1, 2, 3, 4, 5, 8, 10];
 const THRESHOLDS = [0.05, 0.1, 0.15, 0.2, 0.25];
 
 export interface OptionsCardProps {
@@ -51,6 +52,14 @@ export function OptionsCard({ draft, errors, onChange }: OptionsCardProps) {
           hint="The change-in-estimate rule, a rule of thumb of common practice."
           onChange={(event) => onChange({ confoundingThreshold: Number(event.target.value) })}
           options={THRESHOLDS.map((t) => ({ value: String(t), label: `${Math.round(t * 100)}%${t === 0.1 ? " (default)" : ""}` }))}
+        />
+        <Select
+          label="Clade-adjusted estimates need at least this many informative clades"
+          value={String(draft.minInformativeClades)}
+          error={errors.minInformativeClades}
+          hint="Fewer, and the estimate is marked thin and never flags confounding on its own."
+          onChange={(event) => onChange({ minInformativeClades: Number(event.target.value) })}
+          options={MIN_CLADES.map((m) => ({ value: String(m), label: `${m}${m === 3 ? " (default)" : ""}` }))}
         />
       </div>
       <div className="mt-5 flex items-start gap-3">

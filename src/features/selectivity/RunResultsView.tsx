@@ -88,9 +88,13 @@ export function RunParameters({ run }: { run: Run }) {
       </Item>
       <Item label="Multiple testing">{CORRECTION_LABELS[p.correction]}</Item>
       <Item label="Intervals">{levelWords(p.level)}</Item>
-      <Item label="Clade-adjusted odds ratios">Stratified by higher taxon (Mantel-Haenszel)</Item>
+      <Item label="Clade-adjusted odds ratios">
+        Stratified by higher taxon (Mantel-Haenszel for states, conditional logistic regression for numbers); thin below {p.minInformativeClades ?? 3} informative clades
+      </Item>
       <Item label="Firth’s regression">{p.forceFirth ? "Forced" : "Only when the data separate"}</Item>
-      <Item label="Confounding flag">Odds ratio moves by more than {formatWholePercent(p.confoundingThreshold)}</Item>
+      <Item label="Confounding flag">
+        Crude odds ratio differs from the standardised one by more than {formatWholePercent(p.confoundingThreshold)} (common practice) and by more than its own uncertainty (bootstrap)
+      </Item>
       <Item label="Data read">
         {run.rowCount === null ? "—" : `${formatCount(run.rowCount)} taxon rows`}
         {run.dataHash && (

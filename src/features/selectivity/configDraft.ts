@@ -1,7 +1,7 @@
 // The Selectivity screen's set-up as the person edits it, and its translation to the run
 // parameters that the shared schema checks on both sides.
 import type { NumericTransform } from "@shared/codebook";
-import { DEFAULT_CONFOUNDING_THRESHOLD, runParamsSchema, type RunParams, type RunParamsInput } from "@shared/schemas/runs";
+import { DEFAULT_CONFOUNDING_THRESHOLD, DEFAULT_MIN_INFORMATIVE_CLADES, runParamsSchema, type RunParams, type RunParamsInput } from "@shared/schemas/runs";
 import type { Trait } from "@shared/schemas/traits";
 import { formatMa } from "../../components/timescale/ages";
 import type { ScaleIndex } from "../../components/timescale/scaleIndex";
@@ -35,6 +35,8 @@ export interface Draft {
   forceFirth: boolean;
   level: number;
   confoundingThreshold: number;
+  /** Clade-adjusted estimates from fewer informative clades are thin and never flag. */
+  minInformativeClades: number;
   /** Key of the boundary named as the crisis (crisis against background); undefined: none. */
   crisisKey?: string;
 }
@@ -50,6 +52,7 @@ export const EMPTY_DRAFT: Draft = {
   forceFirth: false,
   level: 0.95,
   confoundingThreshold: DEFAULT_CONFOUNDING_THRESHOLD,
+  minInformativeClades: DEFAULT_MIN_INFORMATIVE_CLADES,
 };
 
 /** A boundary as a reader knows it: the unit whose base it is, or the age. */
@@ -88,6 +91,7 @@ export function paramsInput(scale: ScaleIndex | null, draft: Draft): RunParamsIn
     forceFirth: draft.forceFirth,
     level: draft.level,
     confoundingThreshold: draft.confoundingThreshold,
+    minInformativeClades: draft.minInformativeClades,
     ...crisisParam(draft),
   };
 }
@@ -122,6 +126,7 @@ export function draftFromParams(params: RunParams, codebook: readonly Trait[]): 
       forceFirth: params.forceFirth,
       level: params.level,
       confoundingThreshold: params.confoundingThreshold,
+      minInformativeClades: params.minInformativeClades ?? DEFAULT_MIN_INFORMATIVE_CLADES,
     },
     missingTraits: params.traits.length - traits.length,
   };

@@ -1,7 +1,7 @@
 import { wilcoxonRankSum } from "simple-statistics";
 import { describe, expect, it } from "vitest";
 import { createUniformSource } from "@shared/stats/random";
-import { rocAuc } from "@shared/stats/rocAuc";
+import { hanleyMcNeilVariance, rocAuc } from "@shared/stats/rocAuc";
 import { rocCurve } from "@shared/stats/rocCurve";
 import { expectAbsoluteClose, expectRelativeClose } from "./helpers";
 
@@ -38,7 +38,54 @@ describe("Hanley & McNeil (1982) rating example (data from memory)", () => {
     expectAbsoluteClose(result.se, 0.0307, 5e-5); // DeLong SE (docs/sources.md section 10, COMPUTED)
     expect(result.cases).toBe(51);
     expect(result.controls).toBe(58);
-    expectAbsoluteClose(result.ci[0], result.auc - 1.959963984540054 * result.se, 1e-12);
+    // The Hanley-McNeil standard error at the observed area: 0.0325 (docs/sources.md section 10, COMPUTED).
+    expectAbsoluteClose(Math.sqrt(hanleyMcNeilVariance(result.auc, 51, 58)), 0.0325, 5e-5);
+    // With 109 images the score interval is near auc +- 1.96 x 0.0325 (Wald with Hanley-McNeil's SE),
+    // skewed toward 0.5 as a score interval of a bounded quantity is.
+    expectAbsoluteClose(result.ci[0], result.auc - 1.959963984540054 * 0.0325, 0.03);
+    expectAbsoluteClose(result.ci[1], result.auc + 1.959963984540054 * 0.0325, 0.03);
+    expect(result.ci[0]).toBeLessThan(result.auc - 1.959963984540054 * 0.0325);
+    expect(result.seMethod).toBe("delong");
+  });
+});
+
+describe("small and perfectly separated samples: the interval never collapses", () => {
+  const z = 1.959963984540054; // normal 0.975 quantile (standard normal table)
+  it("7 species, 4 threatened all ranked above 3 not threatened: AUC 1 with an interval of real width", () => {
+    const result = rocAuc([0.9, 0.8, 0.75, 0.7, 0.3, 0.2, 0.1], [1, 1, 1, 1, 0, 0, 0]);
+    expect(result.auc).toBe(1);
+    expect(result.ci[1]).toBe(1);
+    expect(result.ci[0]).toBeGreaterThan(0.3);
+    expect(result.ci[0]).toBeLessThan(0.8);
+    expect(result.se).toBeGreaterThan(0.05);
+    expect(result.seMethod).toBe("score-interval");
+    // The lower bound solves the score equation (1 - A)^2 = z^2 V(A) with Hanley & McNeil's V.
+    expectAbsoluteClose((1 - result.ci[0]) ** 2, z * z * hanleyMcNeilVariance(result.ci[0], 4, 3), 1e-9);
+    expect(result.ciMethod).toMatch(/score interval inverting the Hanley-McNeil variance/);
+  });
+
+  it("is the mirror image at AUC 0", () => {
+    const up = rocAuc([0.9, 0.8, 0.75, 0.7, 0.3, 0.2, 0.1], [1, 1, 1, 1, 0, 0, 0]);
+    const down = rocAuc([0.9, 0.8, 0.75, 0.7, 0.3, 0.2, 0.1], [0, 0, 0, 1, 1, 1, 1]);
+    expect(down.auc).toBe(0);
+    expect(down.ci[0]).toBe(0);
+    expect(down.ci[1]).toBeGreaterThan(0.2);
+    // Swapping the roles of cases and controls mirrors the area: A -> 1 - A, with n1 and n0 swapped.
+    const swapped = rocAuc([0.9, 0.8, 0.75, 0.7, 0.3, 0.2, 0.1], [1, 1, 1, 0, 0, 0, 0]);
+    expectAbsoluteClose(down.ci[1], 1 - swapped.ci[0], 1e-9);
+    expect(up.ci[1] - up.ci[0]).toBeGreaterThan(0.1);
+  });
+
+  it("narrows as the samples grow, and always holds the observed area", () => {
+    let width = 1;
+    for (const n of [3, 6, 12, 24, 48]) {
+      const scores = Array.from({ length: 2 * n }, (_, i) => i);
+      const labels = scores.map((i) => (i >= n ? 1 : 0));
+      const result = rocAuc(scores, labels);
+      expect(result.ci[1] - result.ci[0]).toBeLessThan(width);
+      expect(result.ci[1] - result.ci[0]).toBeGreaterThan(0);
+      width = result.ci[1] - result.ci[0];
+    }
   });
 });
 
@@ -79,6 +126,7 @@ describe("cross-checks", () => {
     const result = rocAuc([1, 2, 3, 4, 5, 6], [0, 0, 0, 1, 1, 1]);
     expect(result.auc).toBe(1);
     expect(result.ci[1]).toBe(1);
+    expect(result.ci[0]).toBeLessThan(1);
   });
 });
 
