@@ -1,4 +1,5 @@
 import express, { type Express } from "express";
+import compression from "compression";
 import cookieParser from "cookie-parser";
 import helmet from "helmet";
 import { existsSync } from "node:fs";
@@ -100,6 +101,8 @@ export function createApp(ctx: AppContext, opts: { clientDir?: string } = {}): B
 
   const api = express.Router();
   api.use(serverTiming());
+  // JSON answers (a run's results run to hundreds of kilobytes) go brotli or gzip, as the browser accepts.
+  api.use(compression());
   api.use(sameOriginOnly(ctx.config.appUrl));
   api.use(loadApiToken(ctx));
   api.use(loadSession(ctx));

@@ -76,6 +76,18 @@ describe("the built client", () => {
     expect(res.headers["cache-control"] ?? "").not.toMatch(/immutable/);
   });
 
+  it("compresses JSON answers as the browser accepts", async () => {
+    const br = await rawGet("/api/openapi.json", "gzip, deflate, br");
+    expect(br.status).toBe(200);
+    expect(br.headers["content-encoding"]).toBe("br");
+    const document = JSON.parse(brotliDecompressSync(br.body).toString("utf8"));
+    expect(document.openapi).toBe("3.1.0");
+    const gzip = await rawGet("/api/openapi.json", "gzip");
+    expect(gzip.headers["content-encoding"]).toBe("gzip");
+    expect(JSON.parse(gunzipSync(gzip.body).toString("utf8"))).toEqual(document);
+    expect(br.body.length).toBeLessThan(Buffer.byteLength(JSON.stringify(document)) / 4);
+  });
+
   it("never gives API answers the assets' year-long cache", async () => {
     const res = await rawGet("/api/health", "br");
     expect(res.status).toBe(200);
