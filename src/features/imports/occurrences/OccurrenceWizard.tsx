@@ -117,7 +117,7 @@ function OccurrenceUploadStep({ studyId, onUploaded }: { studyId: string; onUplo
       <FormError message={upload.error ? errorMessage(upload.error) : null} />
       <CsvFileField
         label="Occurrence file (CSV)"
-        hint={`Comma, semicolon or tab separated, with a header row. Up to ${IMPORT_MAX_LABEL} (about a million finds).`}
+        hint={`Comma, semicolon or tab separated, with a header row; at most ${IMPORT_MAX_LABEL} (about a million finds).`}
         error={fileError ?? (upload.error instanceof ApiError ? upload.error.fields.file : undefined)}
         disabled={upload.isPending}
         onFile={(chosen) => {
