@@ -82,7 +82,7 @@ const featureLayers = FEATURES.flatMap((feature) =>
 );
 
 export default tseslint.config(
-  { ignores: ["dist/", "node_modules/", ".data/", "db/migrations/", "coverage/", "test-results/"] },
+  { ignores: ["dist/", "node_modules/", ".data/", "db/migrations/", "coverage/", "test-results/", "cli/generated/"] },
   js.configs.recommended,
   ...tseslint.configs.recommended,
   {
