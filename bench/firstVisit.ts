@@ -120,6 +120,9 @@ export async function benchFirstVisit(): Promise<FirstVisitFigure[]> {
         await page.getByRole("button", { name: "Sign in" }).click();
         await page.waitForURL(`${demo.studyUrl}`);
         await settled(page);
+        if (process.env.BENCH_VERBOSE) {
+          for (const r of traffic.requests) console.log(`[bench] after sign-in: ${r.path} ${r.bytes} B ${r.ms.toFixed(0)} ms ${r.serverTiming}`);
+        }
         figures.push({
           name: "Overview shown after signing in",
           value: performance.now() - clicked,
@@ -162,6 +165,9 @@ export async function benchFirstVisit(): Promise<FirstVisitFigure[]> {
         const api = traffic.requests.filter((r) => r.path.startsWith("/api/"));
         const slowest = api.sort((a, b) => b.ms - a.ms)[0];
         visits.push({ name: screen.name, bytes: traffic.total(), settleMs, slowest, api });
+        if (process.env.BENCH_VERBOSE) {
+          for (const r of traffic.requests) console.log(`[bench] ${screen.name}: ${r.path} ${r.bytes} B ${r.ms.toFixed(0)} ms ${r.serverTiming}`);
+        }
       } finally {
         await browser.close();
       }

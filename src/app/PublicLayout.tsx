@@ -2,6 +2,7 @@ import { Link, Outlet } from "react-router-dom";
 import { focusRing } from "../components/focus";
 import { cx } from "../lib/cx";
 import { paths } from "../lib/paths";
+import { prefetchSignedInScreens } from "./prefetchSignedInScreens";
 import { Wordmark } from "./Wordmark";
 
 /** Pages for people who are not signed in (or may not be): one calm column with a white panel. */
@@ -15,7 +16,7 @@ export function PublicLayout() {
           </Link>
         </div>
       </header>
-      <main id="main" className="flex-1 px-4 pb-16">
+      <main id="main" className="flex-1 px-4 pb-16" onFocusCapture={prefetchSignedInScreens} onPointerDownCapture={prefetchSignedInScreens}>
         <div className="mx-auto max-w-md rounded-2xl border border-stone-200 bg-white px-6 py-8 shadow-sm sm:px-8">
           <Outlet />
         </div>
