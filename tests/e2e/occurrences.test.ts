@@ -76,6 +76,11 @@ describe("occurrences", () => {
       await page.locator("[data-range-taxon='Vessicardia alta']").waitFor();
       // Vessicardia alta: Campanian base 83.6 to Danian top 61.66.
       expect(await page.locator("[data-range-taxon='Vessicardia alta']").textContent()).toMatch(/new taxon.*83\.6.*61\.66/);
+      // Its finds, drawn on the time axis under the range: three finds in three localities.
+      await page.getByRole("button", { name: "Vessicardia alta" }).click();
+      const finds = page.locator("[data-taxon-occurrences='Vessicardia alta']");
+      await finds.waitFor();
+      expect(await finds.textContent()).toMatch(/3 finds, 3 collections/);
       await page.getByRole("button", { name: "Apply 4 ranges" }).click();
       await page.getByText("Ranges applied").waitFor();
 

@@ -11,6 +11,7 @@ import { Select } from "../../../components/Select";
 import { TextField } from "../../../components/TextField";
 import { errorMessage } from "../../../lib/api";
 import { formatDateTime, formatMa, pluralize } from "../../../lib/format";
+import { TaxonOccurrences } from "./TaxonOccurrences";
 import { useApplyRanges, useOccurrenceUploads, usePreviewRanges, useRevertOccurrences, useRevertRanges } from "./api";
 
 const ma = (value: number | null) => (value === null ? "—" : formatMa(value));
@@ -28,6 +29,7 @@ export function RangesFromOccurrences({ studyId, role }: { studyId: string; role
   const [derivation, setDerivation] = useState<RangeDerivation | null>(null);
   const [chosen, setChosen] = useState<Set<string>>(new Set());
   const [applied, setApplied] = useState<RangesApplyResult | null>(null);
+  const [shownTaxon, setShownTaxon] = useState<{ taxon: string; fadMa: number; ladMa: number } | null>(null);
   const canImport = can(role, "imports.run");
   const canEdit = can(role, "taxa.edit");
   const committed = uploads.data?.rows.filter((r) => r.status === "committed") ?? [];
@@ -133,7 +135,11 @@ export function RangesFromOccurrences({ studyId, role }: { studyId: string; role
                         <td className="px-3 py-1.5">
                           <input type="checkbox" aria-label={`Apply the range of ${r.taxon}`} checked={chosen.has(r.taxon)} onChange={() => toggle(r.taxon)} disabled={!canEdit} />
                         </td>
-                        <td className="px-3 py-1.5 font-medium">{r.taxon}</td>
+                        <td className="px-3 py-1.5 font-medium">
+                          <button type="button" className="underline decoration-dotted underline-offset-2" onClick={() => setShownTaxon({ taxon: r.taxon, fadMa: r.fadMa, ladMa: r.ladMa })}>
+                            {r.taxon}
+                          </button>
+                        </td>
                         <td className="px-3 py-1.5 tabular-nums">{r.isNew ? "new taxon" : `${ma(r.oldFadMa)} – ${ma(r.oldLadMa)}`}</td>
                         <td className="px-3 py-1.5 tabular-nums">
                           {ma(r.fadMa)} – {ma(r.ladMa)}
@@ -147,6 +153,7 @@ export function RangesFromOccurrences({ studyId, role }: { studyId: string; role
                 </table>
               </div>
             )}
+            {shownTaxon && <TaxonOccurrences studyId={studyId} taxon={shownTaxon.taxon} range={shownTaxon} />}
             {preview.data.withoutOccurrences.length > 0 && (
               <Notice title={`${pluralize(preview.data.withoutOccurrences.length, "taxon", "taxa")} of the table without any occurrence`}>
                 {preview.data.withoutOccurrences
