@@ -9,6 +9,7 @@ export interface BenchFigure {
 export const BENCHMARKS: Record<string, () => Promise<BenchFigure[]>> = {
   stats: async () => (await import("./stats")).benchStats(),
   selectivity: async () => (await import("./selectivity")).benchSelectivity(),
+  robustness: async () => (await import("./robustness")).benchRobustness(),
   markdown: async () => (await import("./markdown")).benchMarkdown(),
   traitTables: async () => (await import("./traitTables")).benchTraitTables(),
   occurrences: async () => (await import("./occurrences")).benchOccurrences(),

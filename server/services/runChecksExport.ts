@@ -35,7 +35,8 @@ export const CRISIS_COLUMNS = [
 export function crisisRows(run: Run): Array<Record<string, Cell>> {
   const stored = run.results?.crisisVersusBackground;
   if (!stored) return [];
-  if (stored.status === "not-computed") return [{ summary: stored.reason }];
+  // A one-boundary run has no background: nothing to say in this table.
+  if (stored.status === "not-computed") return (run.results?.boundaries.length ?? 0) > 1 ? [{ summary: stored.reason }] : [];
   const { result } = stored;
   const where = { crisis_boundary: result.crisis.label, background_boundaries: result.background.join("; ") };
   return result.traits.flatMap((t) => {

@@ -277,7 +277,8 @@ describe("a run on the planted study", () => {
     const lines = all.text.split("\r\n");
     expect(lines[0].startsWith("table,field,value,boundary_ma,")).toBe(true);
     const tablesPresent = new Set(lines.slice(1).filter(Boolean).map((l) => l.split(",")[0]));
-    expect([...tablesPresent]).toEqual(["run", "design", "states", "tests", "contrasts", "coefficients", "terms"]);
+    // one boundary: no crisis table; the robustness panel is computed for every run
+    expect([...tablesPresent]).toEqual(["run", "design", "states", "tests", "contrasts", "coefficients", "terms", "robustness"]);
     // The run's name starts with "=": a spreadsheet must read it as text (OWASP, CSV Injection).
     expect(all.text).toContain(`run,name,"'=SUM(1,2) planted effects"`);
     expect(all.text).toContain(`run,data_hash_sha256,${first.dataHash}`);
