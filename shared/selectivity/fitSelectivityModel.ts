@@ -118,6 +118,9 @@ export function fitSelectivityModel(traits: ModelTraitInput[], outcome: Uint8Arr
     fit.covariance.every((row) => row.every(finite)) &&
     [fit.deviance, fit.nullDeviance, fit.aic].every(finite) &&
     (fit.terms ?? []).every((t) => finite(t.chiSquare) && finite(t.pValue));
+  if (!fit.converged) {
+    return noModel(`The multiple logistic regression did not converge in ${fit.iterations} iterations: interval not reported.`);
+  }
   if (!allFinite) {
     return noModel(
       "The multiple logistic regression gave estimates or intervals that are not finite numbers: the data carry too little information for this many terms; choose fewer traits.",
@@ -125,7 +128,6 @@ export function fitSelectivityModel(traits: ModelTraitInput[], outcome: Uint8Arr
   }
 
   if (fit.firth) notes.unshift(firthNote(fit, design, y, labels));
-  if (!fit.converged) notes.push(`The fit did not converge in ${fit.iterations} iterations; treat its estimates with caution.`);
   const dropped = n - completeCases;
   if (dropped > 0) notes.push(`${dropped} taxa lack a usable value of at least one chosen trait and are left out (complete cases only).`);
 

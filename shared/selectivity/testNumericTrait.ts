@@ -62,13 +62,13 @@ export function testNumericTrait(
     ? `Penalized likelihood ratio test in Firth's bias-reduced logistic regression of extinction on ${predictor}, used because the values separate victims from survivors`
     : `Likelihood ratio test in a logistic regression of extinction on ${predictor}`;
   if (fit.firth) notes.push(`The values of ${spec.label} separate victims from survivors; Firth's bias-reduced regression (Firth 1993) keeps the odds ratio finite.`);
-  if (!fit.converged) notes.push(`The logistic regression on ${predictor} did not converge; treat its estimate with caution.`);
+  if (!fit.converged) notes.push(`The logistic regression on ${predictor} did not converge: interval not reported.`);
   const test: TraitTest =
     term && Number.isFinite(term.pValue)
       ? { method, pValue: term.pValue, statistic: term.chiSquare, df: term.df }
       : { method: `No test: the likelihood ratio test on ${predictor} gave no finite value.`, pValue: null };
-  const crudeOk = Number.isFinite(slope.oddsRatio) && slope.oddsRatio > 0 && slope.oddsRatioCi.every((v) => Number.isFinite(v));
-  if (!crudeOk) notes.push(`The odds ratio of ${predictor} is not finite, so no crude value is given.`);
+  const crudeOk = fit.converged && Number.isFinite(slope.oddsRatio) && slope.oddsRatio > 0 && slope.oddsRatioCi.every((v) => Number.isFinite(v));
+  if (!crudeOk && fit.converged) notes.push(`The odds ratio of ${predictor} is not finite, so no crude value is given.`);
   const crude = crudeOk
     ? {
         estimate: slope.oddsRatio,

@@ -80,6 +80,9 @@ export class LogSumAccumulator {
   }
 }
 
+/** Terms of a series or continued fraction before it is declared not converged (its value is then NaN). */
+const MAX_TERMS = 100000;
+
 // ln of the common factor x^a e^-x / Gamma(a) of both incomplete gamma expansions.
 function logGammaPrefactor(a: number, x: number): number {
   return a * Math.log(x) - x - logGamma(a);
@@ -89,12 +92,17 @@ function logGammaPrefactor(a: number, x: number): number {
 function lowerGammaSeries(a: number, x: number): number {
   let term = 1 / a;
   let sum = term;
-  for (let n = 1; n < 100000; n++) {
+  let converged = false;
+  for (let n = 1; n < MAX_TERMS; n++) {
     term *= x / (a + n);
     sum += term;
-    if (Math.abs(term) < Math.abs(sum) * DOUBLE_EPSILON) break;
+    if (Math.abs(term) < Math.abs(sum) * DOUBLE_EPSILON) {
+      converged = true;
+      break;
+    }
   }
-  return sum * Math.exp(logGammaPrefactor(a, x));
+  // Not converged: NaN rather than a truncated sum, so callers say no value could be computed.
+  return converged ? sum * Math.exp(logGammaPrefactor(a, x)) : NaN;
 }
 
 // Continued fraction for the upper regularized gamma Q(a, x), modified Lentz method
@@ -104,7 +112,8 @@ function upperGammaContinuedFraction(a: number, x: number): number {
   let c = 1 / TINY;
   let d = 1 / b;
   let h = d;
-  for (let i = 1; i < 100000; i++) {
+  let converged = false;
+  for (let i = 1; i < MAX_TERMS; i++) {
     const an = -i * (i - a);
     b += 2;
     d = an * d + b;
@@ -114,9 +123,12 @@ function upperGammaContinuedFraction(a: number, x: number): number {
     d = 1 / d;
     const delta = d * c;
     h *= delta;
-    if (Math.abs(delta - 1) < DOUBLE_EPSILON) break;
+    if (Math.abs(delta - 1) < DOUBLE_EPSILON) {
+      converged = true;
+      break;
+    }
   }
-  return h * Math.exp(logGammaPrefactor(a, x));
+  return converged ? h * Math.exp(logGammaPrefactor(a, x)) : NaN;
 }
 
 /** Lower regularized incomplete gamma P(a, x) = gamma(a, x) / Gamma(a). */
@@ -216,7 +228,8 @@ function betaContinuedFraction(x: number, a: number, b: number): number {
   if (Math.abs(d) < TINY) d = TINY;
   d = 1 / d;
   let h = d;
-  for (let m = 1; m < 100000; m++) {
+  let converged = false;
+  for (let m = 1; m < MAX_TERMS; m++) {
     const m2 = 2 * m;
     let aa = (m * (b - m) * x) / ((qam + m2) * (a + m2));
     d = 1 + aa * d;
@@ -233,9 +246,12 @@ function betaContinuedFraction(x: number, a: number, b: number): number {
     d = 1 / d;
     const delta = d * c;
     h *= delta;
-    if (Math.abs(delta - 1) < DOUBLE_EPSILON) break;
+    if (Math.abs(delta - 1) < DOUBLE_EPSILON) {
+      converged = true;
+      break;
+    }
   }
-  return h;
+  return converged ? h : NaN;
 }
 
 /**

@@ -237,6 +237,8 @@ export function fitNewton(design: Design, y: ArrayLike<number>, options: NewtonO
   if (!current.ok && options.penalized) throw new Error("logisticRegression: the information matrix is singular; check the predictors for collinearity");
   let iterations = 0;
   let converged = false;
+  let previousObjective = current.objective;
+  let flatSteps = 0;
   while (iterations < options.maxIterations) {
     // Score at beta (the information and its factor are current from the last evaluation).
     if (options.penalized) modifiedScorePass(design, y, beta, work);
@@ -278,6 +280,18 @@ export function fitNewton(design: Design, y: ArrayLike<number>, options: NewtonO
       factor /= 2;
     }
     iterations++;
+    // A flat (penalized) likelihood: steps that no longer raise it are not progress, however large
+    // the Newton step looks; three such steps in a row end the fit as converged (the line search has
+    // found no ascent), so it cannot bounce between two points.
+    if (accepted) {
+      const gain = current.objective - previousObjective;
+      flatSteps = gain <= 1e-15 * (1 + Math.abs(current.objective)) ? flatSteps + 1 : 0;
+      previousObjective = current.objective;
+      if (flatSteps >= 3) {
+        converged = true;
+        break;
+      }
+    }
     if (!accepted) {
       // No ascent along the step: we sit at the optimum to rounding. Restore beta's information.
       current = evaluate(beta);

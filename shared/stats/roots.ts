@@ -3,6 +3,7 @@
 /**
  * Brent's method (Brent 1973, Algorithms for Minimization without Derivatives, ch. 4): a root of f
  * in [a, b] where f(a) and f(b) differ in sign, to an absolute tolerance `tolerance` in x.
+ * Returns NaN when it has not converged after maxIterations (callers report "did not converge").
  */
 export function brentRoot(f: (x: number) => number, a: number, b: number, tolerance = 1e-12, maxIterations = 200): number {
   let fa = f(a);
@@ -64,7 +65,8 @@ export function brentRoot(f: (x: number) => number, a: number, b: number, tolera
     b += Math.abs(d) > tol ? d : m > 0 ? tol : -tol;
     fb = f(b);
   }
-  return b;
+  // Not converged within maxIterations: NaN, never the last iterate presented as a root.
+  return NaN;
 }
 
 /**
