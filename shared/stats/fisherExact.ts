@@ -1,3 +1,4 @@
+import { fisherRx2 } from "./fisherRx2";
 import { compactTable, freemanHaltonExact, freemanHaltonMonteCarlo } from "./freemanHalton";
 import {
   hypergeometricSupport,
@@ -52,6 +53,8 @@ export interface FisherExactResult {
 
 const MAX_2X2_TOTAL = 10_000_000;
 const DEFAULT_EXACT_WORK_LIMIT = 2_000_000;
+/** Nodes the r x 2 network may visit before the test falls back to Monte Carlo. */
+const RX2_NODE_LIMIT = 300_000;
 const DEFAULT_REPLICATES = 100_000;
 const DEFAULT_SEED = 1;
 
@@ -155,6 +158,9 @@ function fisherExactRxC(table: number[][], opts: FisherExactOptions): FisherExac
     return { pValue: 1, logPValue: 0, alternative: "two-sided", method: "exact-rxc" };
   }
   if (rxcMethod !== "monte-carlo") {
+    // r x 2 and 2 x c tables: the network over rows reaches far larger tables exactly.
+    const twoColumn = compact.rowTotals.length === 2 || compact.columnTotals.length === 2 ? fisherRx2(compact, rxcMethod === "exact" ? 20 * RX2_NODE_LIMIT : RX2_NODE_LIMIT) : null;
+    if (twoColumn) return { pValue: Math.exp(twoColumn.logPValue), logPValue: twoColumn.logPValue, alternative: "two-sided", method: "exact-rxc" };
     const exact = freemanHaltonExact(compact, rxcMethod === "exact" ? Infinity : workLimit);
     if (exact) return { pValue: Math.exp(exact.logPValue), logPValue: exact.logPValue, alternative: "two-sided", method: "exact-rxc" };
   }
