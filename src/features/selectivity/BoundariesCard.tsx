@@ -34,6 +34,9 @@ export interface BoundariesCardProps {
   /** The boundary named as the crisis, for crisis against background (two or more boundaries). */
   crisisKey?: string;
   onCrisisChange?: (key: string | undefined) => void;
+  /** The robustness panel's settings as typed. */
+  robustness?: { windowFactors?: string; truncationMyr?: string };
+  onRobustnessChange?: (next: { windowFactors?: string; truncationMyr?: string }) => void;
 }
 
 /** Default window words: "the Maastrichtian, 6.1 Myr". */
@@ -43,7 +46,7 @@ function defaultWindowWords(scale: ScaleIndex, age: number): string {
 }
 
 /** The boundaries a run tests: one crisis, or a crisis beside background boundaries to set it against. */
-export function BoundariesCard({ timescale, scale, boundaries, errors, onChange, crisisKey, onCrisisChange }: BoundariesCardProps) {
+export function BoundariesCard({ timescale, scale, boundaries, errors, onChange, crisisKey, onCrisisChange, robustness, onRobustnessChange }: BoundariesCardProps) {
   const full = boundaries.length >= RUN_MAX_BOUNDARIES;
   return (
     <Card
@@ -86,6 +89,7 @@ export function BoundariesCard({ timescale, scale, boundaries, errors, onChange,
       {onCrisisChange && boundaries.length > 1 && (
         <CrisisChoice scale={scale} boundaries={boundaries} crisisKey={crisisKey} error={errors.crisisBoundary} onChange={onCrisisChange} />
       )}
+      {onRobustnessChange && boundaries.length > 0 && <RobustnessSettings value={robustness ?? {}} errors={errors} onChange={onRobustnessChange} />}
 
       {full ? (
         <p className="mt-5 text-sm text-stone-600">A run tests at most {RUN_MAX_BOUNDARIES} boundaries; remove one to add another.</p>
@@ -99,6 +103,50 @@ export function BoundariesCard({ timescale, scale, boundaries, errors, onChange,
         Boundary screen apply.
       </p>
     </Card>
+  );
+}
+
+/** The robustness panel's alternative windows and truncation distance; empty fields keep the defaults. */
+function RobustnessSettings({
+  value,
+  errors,
+  onChange,
+}: {
+  value: { windowFactors?: string; truncationMyr?: string };
+  errors: FieldErrors;
+  onChange: (next: { windowFactors?: string; truncationMyr?: string }) => void;
+}) {
+  const factorErrors = Object.entries(errors)
+    .filter(([key]) => key === "robustness.windowFactors" || key.startsWith("robustness.windowFactors."))
+    .map(([, message]) => message);
+  return (
+    <fieldset className="mt-5 rounded-lg border border-stone-200 px-4 py-3" data-testid="robustness-settings">
+      <legend className="px-1 text-sm font-semibold text-stone-900">Robustness panel</legend>
+      <p className="mb-3 text-sm text-stone-600">
+        Every run re-estimates its odds ratios under other windows, without each clade, without single-stage taxa and with last appearances near the boundary recoded.
+      </p>
+      <div className="grid gap-4 sm:grid-cols-2">
+        <TextField
+          label="Other windows (multiples of each boundary's window)"
+          optional
+          autoComplete="off"
+          hint="Empty: 0.5, 1.5, 2. Up to six numbers, separated by commas."
+          value={value.windowFactors ?? ""}
+          onChange={(event) => onChange({ ...value, windowFactors: event.target.value })}
+          error={factorErrors[0]}
+        />
+        <TextField
+          label="Truncation distance (Myr)"
+          optional
+          inputMode="decimal"
+          autoComplete="off"
+          hint="Empty: a quarter of each boundary's window."
+          value={value.truncationMyr ?? ""}
+          onChange={(event) => onChange({ ...value, truncationMyr: event.target.value })}
+          error={errors["robustness.truncationMyr"]}
+        />
+      </div>
+    </fieldset>
   );
 }
 

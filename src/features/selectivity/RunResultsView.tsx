@@ -87,6 +87,15 @@ export function RunParameters({ run }: { run: Run }) {
         </ul>
       </Item>
       <Item label="Multiple testing">{CORRECTION_LABELS[p.correction]}</Item>
+      {p.boundaries.length > 1 && (
+        <Item label="Crisis against background">
+          {p.crisisBoundary !== undefined ? `${used[p.crisisBoundary]?.label ?? `Boundary ${p.crisisBoundary + 1}`} is the crisis; the others are background` : "No crisis named"}
+        </Item>
+      )}
+      <Item label="Robustness panel">
+        Windows ×{(p.robustness?.windowFactors ?? [0.5, 1.5, 2]).join(", ×")}; truncation{" "}
+        {p.robustness?.truncationMyr !== undefined ? formatMyr(p.robustness.truncationMyr) : "a quarter of each window"}
+      </Item>
       <Item label="Intervals">{levelWords(p.level)}</Item>
       <Item label="Clade-adjusted odds ratios">
         Stratified by higher taxon (Mantel-Haenszel for states, conditional logistic regression for numbers); thin below {p.minInformativeClades ?? 3} informative clades

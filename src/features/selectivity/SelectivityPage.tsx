@@ -196,6 +196,8 @@ function Workspace({ study, codebook, timescale, scale, runId, openedRun, onOpen
             onChange={(boundaries) => setDraft({ ...draft, boundaries })}
             crisisKey={draft.crisisKey}
             onCrisisChange={(crisisKey) => setDraft({ ...draft, crisisKey })}
+            robustness={{ windowFactors: draft.windowFactors, truncationMyr: draft.truncationMyr }}
+            onRobustnessChange={(next) => setDraft({ ...draft, ...next })}
           />
           <TraitsCard
             studyId={study.id}

@@ -39,6 +39,9 @@ export interface Draft {
   minInformativeClades: number;
   /** Key of the boundary named as the crisis (crisis against background); undefined: none. */
   crisisKey?: string;
+  /** Robustness panel: window factors as typed ("0.5, 1.5, 2") and the truncation distance in Myr; undefined: the defaults. */
+  windowFactors?: string;
+  truncationMyr?: string;
 }
 
 let nextKey = 1;
@@ -93,6 +96,20 @@ export function paramsInput(scale: ScaleIndex | null, draft: Draft): RunParamsIn
     confoundingThreshold: draft.confoundingThreshold,
     minInformativeClades: draft.minInformativeClades,
     ...crisisParam(draft),
+    ...robustnessParam(draft),
+  };
+}
+
+/** The robustness settings as typed, left out when both are empty (the defaults apply). */
+function robustnessParam(draft: Draft): Pick<RunParamsInput, "robustness"> {
+  const factors = draft.windowFactors?.trim() ?? "";
+  const truncation = draft.truncationMyr?.trim() ?? "";
+  if (factors === "" && truncation === "") return {};
+  return {
+    robustness: {
+      ...(factors !== "" ? { windowFactors: factors.split(/[\s,;]+/).filter(Boolean).map(Number) } : {}),
+      ...(truncation !== "" ? { truncationMyr: Number(truncation) } : {}),
+    },
   };
 }
 
@@ -121,6 +138,8 @@ export function draftFromParams(params: RunParams, codebook: readonly Trait[]): 
       name: params.name,
       boundaries,
       crisisKey: params.crisisBoundary !== undefined ? boundaries[params.crisisBoundary]?.key : undefined,
+      windowFactors: params.robustness ? params.robustness.windowFactors.join(", ") : undefined,
+      truncationMyr: params.robustness?.truncationMyr !== undefined ? String(params.robustness.truncationMyr) : undefined,
       traits: traits.map((t) => ({ traitId: t.traitId, reference: t.reference, transform: t.transform, standardise: t.standardise })),
       correction: params.correction,
       forceFirth: params.forceFirth,
