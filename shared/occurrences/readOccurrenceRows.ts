@@ -74,36 +74,48 @@ export function readOccurrenceRows(parsed: ParsedCsv, mapping: OccurrenceMapping
   const firstRowOf = new Map<string, number>();
   let invalidRowCount = 0;
 
-  for (const { row, cells } of parsed.rows) {
-    const cell = (index: number) => (index >= 0 ? (cells[index] ?? "").trim() : "");
-    const taxon = cell(at.taxon);
-    let valid = true;
-    const problem = (index: number, message: string, suggestions?: string[]) => {
-      problems.push({ row, taxon, column: index >= 0 ? parsed.header[index]! : null, message, ...(suggestions ? { suggestions } : {}) });
-      valid = false;
-    };
+  // The current row, read by the helpers below. They are made once, not per row: half a million rows would
+  // otherwise make millions of short-lived functions (and their names, under the runtime the server uses).
+  let row = 0;
+  let cells: string[] = [];
+  let taxon = "";
+  let valid: boolean;
+  const cell = (index: number) => (index >= 0 ? (cells[index] ?? "").trim() : "");
+  const problem = (index: number, message: string, suggestions?: string[]) => {
+    problems.push({ row, taxon, column: index >= 0 ? parsed.header[index]! : null, message, ...(suggestions ? { suggestions } : {}) });
+    valid = false;
+  };
+  // An interval name resolved to one of its limits, or null after reporting why not.
+  const interval = (index: number, name: string, end: "base" | "top"): number | null => {
+    const unit = unitNamed(name);
+    if (unit) return end === "base" ? unit.base : unit.top;
+    const offer = closestTo(name);
+    problem(index, `Unknown interval name "${name}": not a unit of the ICS chart ${TIMESCALE_VERSION}${offer.length ? `; closest: ${offer.join(", ")}` : ""}`, offer);
+    return null;
+  };
+  // A Ma cell: a number, or an interval name read at the given limit.
+  const age = (index: number, end: "base" | "top"): number | null => {
+    const text = cell(index);
+    const n = readNumber(text);
+    if (n.ok) return n.value;
+    if (/[a-z]/i.test(text) && !/^[+-]?[\d.,]+[eE]/.test(text)) return interval(index, text, end);
+    problem(index, n.message);
+    return null;
+  };
+  const checkAge = (value: number, index: number, what: string) => {
+    if (value < 0) problem(index, `The ${what} ${value} Ma is negative; ages are in Ma before present`);
+    else if (value > EARTH_AGE_MA) problem(index, `The ${what} ${value} Ma is older than the Earth (${EARTH_AGE_MA.toLocaleString("en")} Ma)`);
+  };
+
+  for (const parsedRow of parsed.rows) {
+    row = parsedRow.row;
+    cells = parsedRow.cells;
+    taxon = cell(at.taxon);
+    valid = true;
     const brokenMessage = broken.get(row);
     if (brokenMessage) problem(-1, brokenMessage);
     if (!taxon) problem(at.taxon, "The taxon name is empty");
     else if (taxon.length > MAX_TAXON_LENGTH) problem(at.taxon, `The taxon name has ${taxon.length} characters; at most ${MAX_TAXON_LENGTH}`);
-
-    // An interval name resolved to one of its limits, or null after reporting why not.
-    const interval = (index: number, name: string, end: "base" | "top"): number | null => {
-      const unit = unitNamed(name);
-      if (unit) return end === "base" ? unit.base : unit.top;
-      const offer = closestTo(name);
-      problem(index, `Unknown interval name "${name}": not a unit of the ICS chart ${TIMESCALE_VERSION}${offer.length ? `; closest: ${offer.join(", ")}` : ""}`, offer);
-      return null;
-    };
-    // A Ma cell: a number, or an interval name read at the given limit.
-    const age = (index: number, end: "base" | "top"): number | null => {
-      const text = cell(index);
-      const n = readNumber(text);
-      if (n.ok) return n.value;
-      if (/[a-z]/i.test(text) && !/^[+-]?[\d.,]+[eE]/.test(text)) return interval(index, text, end);
-      problem(index, n.message);
-      return null;
-    };
 
     let maxMa: number | null = null;
     let minMa: number | null = null;
@@ -130,10 +142,6 @@ export function readOccurrenceRows(parsed: ParsedCsv, mapping: OccurrenceMapping
       problem(at.maxMa >= 0 ? at.maxMa : at.earlyInterval, "No age: the age cells of this row are empty");
     }
     if (maxMa !== null && minMa !== null) {
-      const checkAge = (value: number, index: number, what: string) => {
-        if (value < 0) problem(index, `The ${what} ${value} Ma is negative; ages are in Ma before present`);
-        else if (value > EARTH_AGE_MA) problem(index, `The ${what} ${value} Ma is older than the Earth (${EARTH_AGE_MA.toLocaleString("en")} Ma)`);
-      };
       checkAge(maxMa, maxGiven ? at.maxMa : at.earlyInterval, "maximum age");
       if (minMa !== maxMa || at.minMa >= 0) checkAge(minMa, maxGiven ? at.minMa : at.lateInterval, "minimum age");
       if (maxMa < minMa && maxGiven) problem(at.minMa, `The maximum age ${maxMa} Ma is younger than the minimum age ${minMa} Ma: are the two columns swapped?`);
