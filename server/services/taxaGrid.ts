@@ -13,7 +13,7 @@ import type { Database, DbOrTx } from "../db";
 import { RepeatingTask } from "../jobs/repeatingTask";
 import type { TaxaListQuery, TraitValue } from "../../shared/schemas/taxa";
 import type { Trait } from "../../shared/schemas/traits";
-import { uuidList } from "./taxonState";
+import { anyUuid } from "./taxonState";
 import { emptyColumns, GridDerived, pageOf, rowTest, type GridColumns } from "./taxaGridQuery";
 
 export interface TaxaGridOptions {
@@ -200,7 +200,7 @@ export function createTaxaGrid(db: Database, options: TaxaGridOptions = {}) {
         const { snapshot, xmin, changed } = await changesSince(tx, entry.studyId, copy);
         if (changed.length > RELOAD_SHARE * Math.max(copy.liveCount, 1)) return whole();
         const rows = changed.length
-          ? ((await tx.execute(sql`SELECT ${GRID_COLUMNS} FROM taxa t WHERE t.study_id = ${entry.studyId} AND t.id IN ${uuidList(changed)}`)).rows as unknown as TaxonGridRow[])
+          ? ((await tx.execute(sql`SELECT ${GRID_COLUMNS} FROM taxa t WHERE t.study_id = ${entry.studyId} AND t.id = ${anyUuid(changed)}`)).rows as unknown as TaxonGridRow[])
           : [];
         // A taxon logged for this study but gone from it (deleted with its study) is removed from the copy.
         const found = new Set(rows.map((r) => r.id));

@@ -142,19 +142,24 @@ export function stateFromRow(r: Record<string, unknown>): TaxonState {
 
 /** A JSON list as one query parameter (a text array would need a driver-specific form). */
 export const jsonParam = (value: unknown) => sql`${JSON.stringify(value)}::jsonb`;
-export const uuidList = (ids: string[]) => sql`(SELECT jsonb_array_elements_text(${JSON.stringify(ids)}::jsonb)::uuid)`;
+/**
+ * `= ANY(uuid[])` for a list of ids in one parameter. Not `IN (SELECT ... jsonb_array_elements)`:
+ * before a fresh table has statistics the planner made that a nested loop that unpacked the list
+ * once per taxon of the study (280 ms for a page of 200 of the demo's 1,200 taxa, 0.5 ms this way).
+ */
+export const anyUuid = (ids: string[]) => sql`ANY(${`{${ids.join(",")}}`}::uuid[])`;
 
 /** Live taxa of the study by id, in no particular order. */
 export async function loadTaxaById(db: DbOrTx, studyId: string, ids: string[]): Promise<TaxonState[]> {
   if (ids.length === 0) return [];
-  const res = await db.execute(sql`SELECT ${TAXON_COLUMNS} FROM taxa t WHERE t.study_id = ${studyId} AND t.deleted_at IS NULL AND t.id IN ${uuidList(ids)}`);
+  const res = await db.execute(sql`SELECT ${TAXON_COLUMNS} FROM taxa t WHERE t.study_id = ${studyId} AND t.deleted_at IS NULL AND t.id = ${anyUuid(ids)}`);
   return res.rows.map(stateFromRow);
 }
 
 /** Taxa of the study by id, locked for update (removed ones too, for restores). */
 export async function lockTaxaById(tx: DbOrTx, studyId: string, ids: string[]): Promise<TaxonState[]> {
   if (ids.length === 0) return [];
-  const res = await tx.execute(sql`SELECT ${TAXON_COLUMNS} FROM taxa t WHERE t.study_id = ${studyId} AND t.id IN ${uuidList(ids)} ORDER BY t.id FOR UPDATE`);
+  const res = await tx.execute(sql`SELECT ${TAXON_COLUMNS} FROM taxa t WHERE t.study_id = ${studyId} AND t.id = ${anyUuid(ids)} ORDER BY t.id FOR UPDATE`);
   return res.rows.map(stateFromRow);
 }
 
@@ -169,7 +174,7 @@ export async function taxaByName(tx: DbOrTx, studyId: string, names: string[], l
   const ids = (live.rows as Array<{ id: string; name: string }>).filter((r) => wanted.has(r.name)).map((r) => r.id);
   if (ids.length === 0) return [];
   const res = await tx.execute(
-    sql`SELECT ${TAXON_COLUMNS} FROM taxa t WHERE t.study_id = ${studyId} AND t.deleted_at IS NULL AND t.id IN ${uuidList(ids)}
+    sql`SELECT ${TAXON_COLUMNS} FROM taxa t WHERE t.study_id = ${studyId} AND t.deleted_at IS NULL AND t.id = ${anyUuid(ids)}
         ORDER BY t.id ${lock ? sql`FOR UPDATE` : sql``}`,
   );
   // A taxon renamed between the two reads no longer matches.
@@ -234,7 +239,7 @@ export async function openThreadsFor(db: DbOrTx, studyId: string, taxonIds: stri
   if (taxonIds.length === 0) return out;
   const res = await db.execute(
     sql`SELECT target_id, trait_id, target_type FROM threads
-        WHERE study_id = ${studyId} AND status = 'open' AND target_type IN ('taxon', 'value') AND target_id IN ${uuidList(taxonIds)}`,
+        WHERE study_id = ${studyId} AND status = 'open' AND target_type IN ('taxon', 'value') AND target_id = ${anyUuid(taxonIds)}`,
   );
   for (const r of res.rows as Array<{ target_id: string; trait_id: string | null; target_type: string }>) {
     const entry = out.get(r.target_id) ?? { count: 0, traitIds: [] };
