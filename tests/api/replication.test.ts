@@ -29,7 +29,7 @@ let files: Record<string, string>;
 let work: string;
 
 /** supertest collects a binary body as a Buffer with this parser. */
-function binary(res: NodeJS.ReadableStream & { setEncoding(e: string): void }, done: (err: Error | null, body: Buffer) => void) {
+function binary(res: NodeJS.ReadableStream, done: (err: Error | null, body: Buffer) => void) {
   const chunks: Buffer[] = [];
   res.on("data", (c: Buffer) => chunks.push(c));
   res.on("end", () => done(null, Buffer.concat(chunks)));
@@ -42,7 +42,7 @@ beforeAll(async () => {
   const account = accounts.find((a) => a.role === "analyst")!;
   expect((await analyst.post("/api/auth/login").send({ email: account.email, password: account.password })).status).toBe(200);
   crisisRun = (await analyst.get(`/api/studies/${seeded.studyId}/runs/${seeded.analyses.crisisRunId}`)).body as Run;
-  const res = await analyst.get(`/api/studies/${seeded.studyId}/runs/${crisisRun.id}/replication.zip`).buffer(true).parse(binary);
+  const res = await analyst.get(`/api/studies/${seeded.studyId}/runs/${crisisRun.id}/replication.zip`).buffer(true).parse(binary as never);
   expect(res.status, String(res.body)).toBe(200);
   expect(res.headers["content-type"]).toMatch(/application\/zip/);
   const unzipped = unzipSync(new Uint8Array(res.body as Buffer));

@@ -5,7 +5,7 @@ import { randomUUID } from "node:crypto";
 import request, { type Response } from "supertest";
 import { and, eq } from "drizzle-orm";
 import { STUDY_ROLES } from "../../shared/roles";
-import { createTestApp, PASSWORD, signedInAgent, uniqueEmail, type TestApp } from "../support/server";
+import { createTestApp, PASSWORD, uniqueEmail, type TestApp } from "../support/server";
 import { memberships, notifications, studies, outcomeOverrides, runs, taxa, threadPosts, threads, traits } from "../../db/schema/index";
 import { castOfRoles, EVERYONE, tokenAgent, type Cast, type Who } from "./fixtures";
 import { codedImport, codedTaxon, codedTrait, uploadCsv } from "../support/traitTables";
