@@ -36,8 +36,10 @@ export interface Runtime {
 export function createServices(db: Database, mailer: Mailer, appUrl: string, runtime: Runtime) {
   const notifications = createNotificationService(db, mailer, appUrl, runtime.jobs);
   const taxaGrid = createTaxaGrid(db, { maxTaxa: runtime.gridMaxTaxa });
+  // One instance of each service: the run service reads through the same outcomes and codebook.
   const outcomes = createOutcomeService(db);
-  const runSources = { outcomes: createOutcomeService(db), traits: createTraitService(db) };
+  const traits = createTraitService(db);
+  const runSources = { outcomes, traits };
   const runs = createRunService(db, runtime, runSources);
   return {
     users: createUserService(db),
@@ -50,7 +52,7 @@ export function createServices(db: Database, mailer: Mailer, appUrl: string, run
     turnover: createTurnoverService(db, outcomes),
     runs,
     runReplication: createRunReplicationService(db, runSources, runs),
-    traits: createTraitService(db),
+    traits,
     taxa: createTaxonService(db, taxaGrid),
     taxaGrid,
     decisions: createDecisionService(db),
