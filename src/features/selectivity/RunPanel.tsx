@@ -128,7 +128,7 @@ function RunHeader({ study, run, onRerun }: { study: Study; run: Run; onRerun: (
                 className={buttonClasses("secondary", "sm")}
                 title="The exact rows this run analysed, its numbers and an R script that recomputes them with base R and prints both side by side"
               >
-                Re-run in R
+                Download for R
               </a>
               <a href={reportPath(study.id, run.id)} target="_blank" rel="noopener" className={buttonClasses("secondary", "sm")}>
                 Printable report
