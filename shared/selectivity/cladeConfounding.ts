@@ -1,6 +1,7 @@
 import { conditionalLogLik, prepareConditionalStrata } from "../stats/conditionalLogistic";
 import { normalTwoSidedP } from "../stats/distributions";
 import { createUniformSource } from "../stats/random";
+import { fitStratifiedSlope } from "./stratifiedSlope";
 import type { ConfoundingJudgement } from "./types";
 
 /** The taxa of one clade in one contrast: x is 0/1 (state against reference) or the scaled number. */
@@ -71,6 +72,7 @@ export function judgeCladeConfounding(allGroups: CladeGroup[], options: CladeCon
   const change = Math.abs(Math.exp(standardised - crude) - 1);
   const thin = informative < options.minInformativeClades;
 
+  const large = options.kind === "numeric" && prepared.reduce((a, p) => a + (p ? p.x.length * p.cases : 0), 0) > 2_000_000;
   // Stratified bootstrap: taxa drawn with replacement within each clade (clade sizes and make-up
   // fixed, as the judgement is about these clades), every estimate recomputed; numbers take one
   // Newton step from the full-sample slope for the replicate's within-clade slope.
@@ -92,8 +94,13 @@ export function judgeCladeConfounding(allGroups: CladeGroup[], options: CladeCon
     let conditional = 0;
     if (options.kind === "numeric") {
       const strata = sample.map((g) => prepareConditionalStrata(g.x, g.y, new Int32Array(g.x.length), 1)[0]).filter((p) => p !== undefined);
-      const at = conditionalLogLik(strata, options.conditionalLogOdds);
-      conditional = strata.length > 0 && at.information > 0 ? options.conditionalLogOdds + at.score / at.information : NaN;
+      if (large) {
+        // Large clades: the within-clade slope of the replicate by the stratified fit (see cladeAdjustedSlope).
+        conditional = stratifiedSlopeOf(sample);
+      } else {
+        const at = conditionalLogLik(strata, options.conditionalLogOdds);
+        conditional = strata.length > 0 && at.information > 0 ? options.conditionalLogOdds + at.score / at.information : NaN;
+      }
     }
     if (!Number.isFinite(c) || !Number.isFinite(conditional)) continue;
     const s = standardisedLogOdds(sample, ones, conditional, options.kind);
@@ -147,6 +154,29 @@ function informativeForStates(g: CladeGroup): boolean {
     events += g.y[i];
   }
   return exposed > 0 && exposed < g.x.length && events > 0 && events < g.x.length;
+}
+
+/** The slope of a logistic regression with one intercept per clade holding both outcomes (NaN when it runs off). */
+function stratifiedSlopeOf(groups: CladeGroup[]): number {
+  const mixed = groups.filter((g) => {
+    let v = 0;
+    for (const y of g.y) v += y;
+    return v > 0 && v < g.y.length;
+  });
+  const n = mixed.reduce((a, g) => a + g.x.length, 0);
+  const x = new Float64Array(n);
+  const y = new Uint8Array(n);
+  const stratum = new Int32Array(n);
+  let i = 0;
+  mixed.forEach((g, s) => {
+    for (let j = 0; j < g.x.length; j++, i++) {
+      x[i] = g.x[j];
+      y[i] = g.y[j];
+      stratum[i] = s;
+    }
+  });
+  const fit = mixed.length > 0 ? fitStratifiedSlope(x, y, stratum, mixed.length) : null;
+  return fit ? fit.estimate : NaN;
 }
 
 /** Crude log odds ratio over the weighted clades: 2x2 (Haldane's 0.5 when a cell is empty) or a univariate logistic slope. */
@@ -259,12 +289,28 @@ export function standardisedLogOdds(groups: CladeGroup[], weights: ArrayLike<num
     total += weights[k] * groups[k].x.length;
   }
   const flat = flatten(groups, weights);
-  const targets = new Float64Array(flat.x.length);
-  for (let i = 0; i < flat.x.length; i++) {
-    const bx = beta * flat.x[i];
+  const curve = (value: number): number => {
+    const bx = beta * value;
     let sum = 0;
     for (let j = 0; j < activeIntercepts.length; j++) sum += activeMass[j] * expit(activeIntercepts[j] + bx);
-    targets[i] = sum / total;
+    return sum / total;
+  };
+  const targets = new Float64Array(flat.x.length);
+  if (flat.x.length * activeIntercepts.length <= 200_000) {
+    for (let i = 0; i < flat.x.length; i++) targets[i] = curve(flat.x[i]);
+  } else {
+    // Many taxa and clades: the smooth curve on 256 points across the values, read off linearly.
+    const low = flat.x.reduce((a, v) => Math.min(a, v), Infinity);
+    const high = flat.x.reduce((a, v) => Math.max(a, v), -Infinity);
+    const points = 256;
+    const step = (high - low) / (points - 1) || 1;
+    const grid = Float64Array.from({ length: points }, (_, g) => curve(low + g * step));
+    for (let i = 0; i < flat.x.length; i++) {
+      const position = (flat.x[i] - low) / step;
+      const g = Math.min(points - 2, Math.max(0, Math.floor(position)));
+      const t = position - g;
+      targets[i] = grid[g] * (1 - t) + grid[g + 1] * t;
+    }
   }
   return logisticSlope(flat.x, flat.w, targets);
 }
