@@ -25,11 +25,15 @@ export function localCluster(log: (msg: string) => void = console.log): Postgres
   );
 }
 
-/** Starts (creating the first time) the local cluster and returns the app database's URL. */
-export function startLocalDatabase(log: (msg: string) => void = console.log): { url: string; cluster: PostgresCluster } {
+/**
+ * Starts (creating the first time) the local cluster and returns the app database's URL;
+ * `startedHere` is false when it was already running (another `npm start` runs on it).
+ */
+export function startLocalDatabase(log: (msg: string) => void = console.log): { url: string; cluster: PostgresCluster; startedHere: boolean } {
   const cluster = localCluster(log);
   if (cluster.init()) log(`Created a PostgreSQL cluster in ${cluster.opts.dataDir}`);
+  const startedHere = !cluster.isRunning();
   cluster.start();
   cluster.createDatabase(LOCAL_DATABASE);
-  return { url: cluster.url(LOCAL_DATABASE), cluster };
+  return { url: cluster.url(LOCAL_DATABASE), cluster, startedHere };
 }

@@ -15,6 +15,15 @@ async function main() {
     const local = startLocalDatabase(log);
     databaseUrl = local.url;
     log(`PostgreSQL is running on 127.0.0.1:${local.cluster.opts.port} (data in .data/pg).`);
+    if (local.startedHere) {
+      // Ctrl-C (or any exit) stops the cluster this run started; one it found running is left alone.
+      process.once("exit", () => {
+        log("Stopping PostgreSQL...");
+        local.cluster.stop();
+      });
+    } else {
+      log("PostgreSQL was already running (another npm start?): it keeps running when this one stops.");
+    }
   }
   process.env.DATABASE_URL = databaseUrl;
   await runMigrations(databaseUrl);
