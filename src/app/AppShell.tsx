@@ -1,5 +1,5 @@
 import { useId, useState } from "react";
-import { Link, NavLink, Outlet, useLocation } from "react-router-dom";
+import { Link, NavLink, Outlet, useLocation, useMatch } from "react-router-dom";
 import type { Me } from "@shared/schemas/auth";
 import { ErrorState } from "../components/ErrorState";
 import { focusRing } from "../components/focus";
@@ -38,6 +38,8 @@ export function AppShell() {
 
 function SignedInFrame({ me }: { me: Me }) {
   const { signOut, pending: signingOut } = useSignOutAndLeave();
+  // The trait table is wide: it takes the whole window rather than the reading width of other pages.
+  const fullWidth = useMatch("/studies/:studyId/table") !== null;
   // The fake mailbox exists outside production; everyone signed in reads their own mail in it.
   const showOutbox = me.environment !== "production";
 
@@ -47,7 +49,7 @@ function SignedInFrame({ me }: { me: Me }) {
         Skip to content
       </a>
       <TopBar me={me} showOutbox={showOutbox} signingOut={signingOut} onSignOut={signOut} />
-      <main id="main" tabIndex={-1} className="mx-auto w-full max-w-6xl flex-1 px-4 py-8 focus:outline-none sm:px-6 lg:px-8 lg:py-10">
+      <main id="main" tabIndex={-1} className={cx("mx-auto w-full flex-1 px-4 py-8 focus:outline-none sm:px-6 lg:px-8 lg:py-10", fullWidth ? "max-w-none" : "max-w-6xl")}>
         <Outlet />
       </main>
     </div>

@@ -71,7 +71,18 @@ const selectColumn = helper.display({
 });
 
 const WIDTHS: Record<string, number> = { name: 230, higherTaxon: 170, fad: 190, lad: 190, notes: 260 };
-const widthOf = (c: GridColumn) => WIDTHS[c.id] ?? (c.kind === "trait" && c.trait.kind === "numeric" ? 130 : 150);
+/**
+ * A trait column is as wide as its heading needs on two lines (about 7 px a character at the
+ * heading's size, plus the sort mark), at least 130 or 150 px and at most 240 px.
+ */
+function widthOf(c: GridColumn): number {
+  if (WIDTHS[c.id]) return WIDTHS[c.id];
+  const base = c.kind === "trait" && c.trait.kind === "numeric" ? 130 : 150;
+  const unit = c.kind === "trait" && c.trait.kind === "numeric" && c.trait.unit ? c.trait.unit.length + 3 : 0;
+  const longestWord = Math.max(...`${c.label} ${"x".repeat(unit)}`.split(/\s+/).map((w) => w.length));
+  const twoLines = Math.max(Math.ceil((c.label.length + unit) / 2), longestWord);
+  return Math.min(240, Math.max(base, twoLines * 7.5 + 44));
+}
 
 /** Where the keyboard is: a row of the page and a column. */
 export interface ActiveCell {
@@ -314,7 +325,8 @@ export function TaxaGrid(props: TaxaGridProps) {
         aria-multiselectable={canEdit || undefined}
         aria-busy={stale || undefined}
         onKeyDown={onGridKeyDown}
-        className="relative max-h-[max(24rem,calc(100vh-20rem))] overflow-auto rounded-xl border border-stone-200 bg-white text-sm shadow-[0_1px_2px_rgb(28_25_23/0.04)]"
+        // A styled scrollbar is always drawn (an overlay one hides until scrolled, so wide tables looked cut).
+        className="relative max-h-[max(24rem,calc(100dvh-16rem))] overflow-auto rounded-xl border border-stone-200 bg-white text-sm shadow-[0_1px_2px_rgb(28_25_23/0.04)] [&::-webkit-scrollbar]:size-3 [&::-webkit-scrollbar-corner]:bg-stone-100 [&::-webkit-scrollbar-thumb]:rounded-full [&::-webkit-scrollbar-thumb]:border-2 [&::-webkit-scrollbar-thumb]:border-solid [&::-webkit-scrollbar-thumb]:border-stone-100 [&::-webkit-scrollbar-thumb]:bg-stone-400 [&::-webkit-scrollbar-track]:bg-stone-100"
       >
         <div role="rowgroup" className="sticky top-0 z-20" style={{ width: totalWidth }}>
           <div role="row" aria-rowindex={1} className="flex border-b border-stone-200 bg-stone-100">
@@ -330,7 +342,7 @@ export function TaxaGrid(props: TaxaGridProps) {
                   aria-sort={sorted ? (sorted === "asc" ? "ascending" : "descending") : undefined}
                   style={pinnedStyle(header.column.id, true)}
                   className={cx(
-                    "flex h-10 shrink-0 items-center border-r border-stone-200 bg-stone-100 px-2 font-semibold text-stone-700",
+                    "flex min-h-10 shrink-0 items-center border-r border-stone-200 bg-stone-100 px-2 py-1 leading-tight font-semibold text-stone-700",
                     isPinned && header.column.id === "name" && "shadow-[2px_0_0_rgb(214_211_209)]",
                   )}
                 >
@@ -343,8 +355,11 @@ export function TaxaGrid(props: TaxaGridProps) {
                       title={gc?.kind === "trait" && gc.trait.codingRule ? `${gc.label}: ${gc.trait.codingRule}` : `Sort by ${gc?.label ?? header.column.id}`}
                       className="flex min-w-0 flex-1 items-center gap-1 rounded text-left hover:text-stone-950 focus-visible:ring-2 focus-visible:ring-accent-500 focus-visible:outline-none"
                     >
-                      <span className="truncate">{gc?.label}</span>
-                      {gc?.kind === "trait" && gc.trait.kind === "numeric" && gc.trait.unit && <span className="font-normal text-stone-600">({gc.trait.unit})</span>}
+                      {/* Headings wrap onto two lines rather than being cut. */}
+                      <span className="min-w-0 [overflow-wrap:anywhere]">
+                        {gc?.label}
+                        {gc?.kind === "trait" && gc.trait.kind === "numeric" && gc.trait.unit && <span className="font-normal whitespace-nowrap text-stone-600"> ({gc.trait.unit})</span>}
+                      </span>
                       {gc?.kind === "trait" && openTraitThreads?.has(gc.id) && <ThreadDot label={`Open thread about the trait ${gc.label}`} />}
                       <span aria-hidden="true" className={cx("ml-auto text-xs", sorted ? "text-accent-700" : "text-stone-300")}>
                         {sorted === "desc" ? "▼" : "▲"}
