@@ -60,7 +60,10 @@ export function judgeCladeConfounding(allGroups: CladeGroup[], options: CladeCon
   // standardised alike) runs over the clades holding both.
   const groups = options.kind === "states" ? allGroups.filter(holdsBothStates) : allGroups;
   if (groups.length === 0) return null;
-  const replicates = options.replicates ?? CLADE_CONFOUNDING_REPLICATES;
+  const taxaCount = groups.reduce((a, g) => a + g.x.length, 0);
+  // Large studies: fewer replicates (each one touches every taxon); their differences are either
+  // far beyond or well within the noise, so 50 replicates judge them as well.
+  const replicates = options.replicates ?? (taxaCount > 20_000 ? 50 : CLADE_CONFOUNDING_REPLICATES);
   const seed = options.seed ?? CLADE_CONFOUNDING_SEED;
   const prepared = groups.map((g) => (options.kind === "numeric" ? (prepareConditionalStrata(g.x, g.y, new Int32Array(g.x.length), 1)[0] ?? null) : null));
   const informative = options.kind === "numeric" ? prepared.filter((p) => p !== null).length : groups.filter(informativeForStates).length;
@@ -78,7 +81,14 @@ export function judgeCladeConfounding(allGroups: CladeGroup[], options: CladeCon
   // Newton step from the full-sample slope for the replicate's within-clade slope.
   const random = createUniformSource(seed);
   const draws: number[] = [];
+  const cells = options.kind === "states" ? groups.map(cellCounts) : [];
   for (let b = 0; b < replicates; b++) {
+    if (options.kind === "states") {
+      // States: resample each clade's four cells (state/reference x victim/survivor) by count.
+      const d = statesDifference(cells.map((c) => resampleCells(c, random)));
+      if (Number.isFinite(d)) draws.push(d);
+      continue;
+    }
     const sample = groups.map((g) => {
       const n = g.x.length;
       const x = new Float64Array(n);
@@ -134,6 +144,61 @@ export function judgeCladeConfounding(allGroups: CladeGroup[], options: CladeCon
     seed,
     method,
   };
+}
+
+/** A clade's counts: [state victims, state survivors, reference victims, reference survivors]. */
+function cellCounts(g: CladeGroup): [number, number, number, number] {
+  const c: [number, number, number, number] = [0, 0, 0, 0];
+  for (let i = 0; i < g.x.length; i++) c[(g.x[i] === 1 ? 0 : 2) + (g.y[i] === 1 ? 0 : 1)]++;
+  return c;
+}
+
+/** n draws with replacement from a clade's n taxa, as cell counts. */
+function resampleCells(c: [number, number, number, number], random: () => number): [number, number, number, number] {
+  const n = c[0] + c[1] + c[2] + c[3];
+  const edge1 = c[0];
+  const edge2 = edge1 + c[1];
+  const edge3 = edge2 + c[2];
+  const out: [number, number, number, number] = [0, 0, 0, 0];
+  for (let i = 0; i < n; i++) {
+    const j = random() * n;
+    out[j < edge1 ? 0 : j < edge2 ? 1 : j < edge3 ? 2 : 3]++;
+  }
+  return out;
+}
+
+/** ln(crude) - ln(directly standardised) from clade cell counts (as crudeLogOdds and standardisedLogOdds for states). */
+function statesDifference(cells: Array<[number, number, number, number]>): number {
+  let a = 0;
+  let b = 0;
+  let c = 0;
+  let d = 0;
+  let exposed = 0;
+  let unexposed = 0;
+  let total = 0;
+  for (const [v1, s1, v0, s0] of cells) {
+    a += v1;
+    b += s1;
+    c += v0;
+    d += s0;
+    const n1 = v1 + s1;
+    const n0 = v0 + s0;
+    if (n1 === 0 || n0 === 0) continue;
+    const w = n1 + n0;
+    exposed += (w * v1) / n1;
+    unexposed += (w * v0) / n0;
+    total += w;
+  }
+  if (a === 0 || b === 0 || c === 0 || d === 0) {
+    a += 0.5;
+    b += 0.5;
+    c += 0.5;
+    d += 0.5;
+  }
+  const r1 = exposed / total;
+  const r0 = unexposed / total;
+  if (!(r1 > 0 && r1 < 1 && r0 > 0 && r0 < 1)) return NaN;
+  return Math.log((a * d) / (b * c)) - (Math.log(r1 / (1 - r1)) - Math.log(r0 / (1 - r0)));
 }
 
 function formatLevel(alpha: number): string {
