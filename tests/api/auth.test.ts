@@ -24,6 +24,24 @@ describe("accounts and sessions", () => {
     expect(me.body.user.email).toBe(email.toLowerCase());
   });
 
+  it("gives a sign-up the same lasting session as a sign-in (a cookie with an expiry, not one that ends with the browser)", async () => {
+    const expiryOf = (setCookie: unknown) => {
+      const expires = /Expires=([^;]+)/i.exec(String(setCookie))?.[1];
+      expect(expires, String(setCookie)).toBeDefined();
+      return new Date(expires!).getTime();
+    };
+    const email = uniqueEmail("lasting");
+    const signup = await request(app.app).post("/api/auth/signup").send({ email, password: PASSWORD, name: "Lasting Session" });
+    expect(signup.status).toBe(201);
+    const login = await request(app.app).post("/api/auth/login").send({ email, password: PASSWORD });
+    expect(login.status).toBe(200);
+    const ttlMs = app.ctx.config.sessionTtlSeconds * 1000;
+    // Cookie dates are written to the second (RFC 6265 section 5.1.1) and the two requests are a
+    // moment apart: a few seconds of slack, far below a session's days.
+    expect(Math.abs(expiryOf(signup.headers["set-cookie"]) - (Date.now() + ttlMs))).toBeLessThan(60_000);
+    expect(Math.abs(expiryOf(signup.headers["set-cookie"]) - expiryOf(login.headers["set-cookie"]))).toBeLessThan(5_000);
+  });
+
   it("tells who is signed in without a 401 for nobody (a browser prints every 401 as a console error)", async () => {
     const nobody = await request(app.app).get("/api/auth/session");
     expect(nobody.status).toBe(200);
