@@ -5,6 +5,7 @@ import type { ParsedCsv } from "../csv/parse";
 import { checkRows, type CheckedRows } from "../csv/rowChecks";
 import { IUCN_CATEGORIES, IUCN_CATEGORY_NAMES, readIucnCategory, type IucnCategory } from "../iucn";
 import type { ModernListMapping, ModernListMappingDraft } from "../schemas/modernLists";
+import { oneLineProblem } from "../schemas/common";
 
 export interface ModernListRow {
   /** The row as a spreadsheet numbers it (the header is row 1). */
@@ -75,6 +76,8 @@ export function validateModernListRows(parsed: ParsedCsv, mapping: ModernListMap
   return checkRows(parsed, nameCol, { label: "Species name", kind: "species" }, (row, cells, name, problem): ModernListRow | null => {
     const higherTaxon = higherCol >= 0 ? cells[higherCol].trim() : "";
     if (higherTaxon.length > MAX_TEXT.higherTaxon) problem(higherCol, `Higher taxon has ${higherTaxon.length} characters; at most ${MAX_TEXT.higherTaxon}`);
+    const higherOneLine = higherTaxon ? oneLineProblem("Higher taxon", higherTaxon) : null;
+    if (higherOneLine) problem(higherCol, higherOneLine);
     const categoryText = categoryCol >= 0 ? cells[categoryCol].trim() : "";
     const category = readIucnCategory(categoryText);
     if (!categoryText) problem(categoryCol, "Threat category is missing (use NE for a species not evaluated)");

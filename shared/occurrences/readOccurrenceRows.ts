@@ -1,5 +1,6 @@
 import type { ParsedCsv } from "../csv/parse";
 import { isMissingCell, parseNumberCell } from "../csv/values";
+import { oneLineProblem } from "../schemas/common";
 import { findUnit, TIMESCALE_VERSION } from "../timescale/index";
 import { EARTH_AGE_MA, type OccurrenceMapping, type OccurrenceProblem, type OccurrenceRow } from "../schemas/occurrences";
 import { closestIntervalNames } from "./closestIntervalNames";
@@ -116,6 +117,12 @@ export function readOccurrenceRows(parsed: ParsedCsv, mapping: OccurrenceMapping
     if (brokenMessage) problem(-1, brokenMessage);
     if (!taxon) problem(at.taxon, "The taxon name is empty");
     else if (taxon.length > MAX_TAXON_LENGTH) problem(at.taxon, `The taxon name has ${taxon.length} characters; at most ${MAX_TAXON_LENGTH}`);
+    // Names are single lines wherever they are shown or mailed (one rule with the API's fields).
+    for (const [index, label] of [[at.taxon, "Taxon name"], [at.higherTaxon, "Higher taxon"], [at.collection, "Collection"]] as const) {
+      const text = index >= 0 ? cell(index) : "";
+      const oneLine = text ? oneLineProblem(label, text) : null;
+      if (oneLine) problem(index, oneLine);
+    }
 
     let maxMa: number | null = null;
     let minMa: number | null = null;

@@ -2,14 +2,14 @@
 // problems, commit all or nothing, revert), ranges derived from them (preview, then apply chosen
 // changes as coding decisions), and three-timer sampling per stage.
 import { z } from "zod";
-import { uuidSchema } from "./common";
+import { AGE_LIMIT_MA, uuidSchema } from "./common";
 import { importSummarySchema } from "./imports";
 import { reasonSchema } from "./taxa";
 
 /** Problems one preview or refused commit lists; the count is always complete. */
 export const OCCURRENCE_MAX_PROBLEMS_LISTED = 5000;
 /** The Earth's age in Ma: no find is older (common practice: 4.567 Ga, the age of the oldest solids of the solar system). */
-export const EARTH_AGE_MA = 4567;
+export const EARTH_AGE_MA = AGE_LIMIT_MA;
 
 const headerSchema = z.string({ message: "Choose a column" }).min(1, "Choose a column");
 const optionalHeader = headerSchema.nullable().default(null);

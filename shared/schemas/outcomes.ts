@@ -1,6 +1,6 @@
 import { z } from "zod";
 import { findUnit } from "../timescale/lookup";
-import { AGE_LIMIT_MA, isoDateSchema, uuidSchema, personOrNoneSchema } from "./common";
+import { AGE_LIMIT_MA, isoDateSchema, oneLine, uuidSchema, personOrNoneSchema } from "./common";
 import { timescaleRankSchema } from "./timescale";
 
 export const BOUNDARY_OUTCOMES = ["survivor", "victim", "excluded"] as const;
@@ -192,7 +192,7 @@ export const outcomeOverrideBulkSchema = z
     items: z
       .array(
         z.strictObject({
-          taxonName: z.string({ message: "Taxon name is required" }).trim().min(1, "Taxon name is required"),
+          taxonName: z.string({ message: "Taxon name is required" }).trim().min(1, "Taxon name is required").check(oneLine("Taxon name")),
           outcome: boundaryOutcomeSchema,
         }),
         { message: "items must be a list of { taxonName, outcome }" },

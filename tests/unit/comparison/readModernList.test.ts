@@ -66,6 +66,12 @@ describe("reading a modern list", () => {
     ]);
   });
 
+  it("refuses a line break in a higher taxon, as the API's one-line fields do", () => {
+    const text = parseCsv('Species,Family,Category\nAlba rosea (invented),"Albi\ndae",LC\n');
+    const mapping = modernListMappingSchema.parse({ name: "Species", higherTaxon: "Family", category: "Category", traitColumns: [] });
+    expect(validateModernListRows(text, mapping).problems).toEqual([{ row: 2, column: "Family", message: "Higher taxon must be one line of text: it holds a line break" }]);
+  });
+
   it("refuses a mapping that uses one column twice", () => {
     const result = modernListMappingSchema.safeParse({ name: "Species", category: "Species" });
     expect(result.success).toBe(false);

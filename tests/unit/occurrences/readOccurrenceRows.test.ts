@@ -10,6 +10,15 @@ const read = (text: string, mapping: Record<string, string>, dropDuplicates = fa
   readOccurrenceRows(parseCsv(new TextEncoder().encode(text)), occurrenceMappingSchema.parse(mapping), { dropDuplicates });
 
 describe("readOccurrenceRows", () => {
+  it("refuses a line break or other control character in a name, as the API's one-line fields do", () => {
+    const result = read('taxon,higher,max,min,coll\n"Alba\nrosea",Albidae,255,253,C-1\nBeta,"Beti\u0007dae",255,253,C-2\n', { taxon: "taxon", higherTaxon: "higher", maxMa: "max", minMa: "min", collection: "coll" });
+    expect(result.rows).toEqual([]);
+    expect(result.problems.map((p) => [p.row, p.column, p.message])).toEqual([
+      [2, "taxon", "Taxon name must be one line of text: it holds a line break"],
+      [3, "higher", "Higher taxon must be one line of text: it holds a control character (U+0007)"],
+    ]);
+  });
+
   it("reads interval names at the early interval's base and the late interval's top; an empty late cell means the early interval", () => {
     const result = read("taxon,early,late\nA,Wuchiapingian,Changhsingian\nB,changhsingian,\nC,Lopingian,Induan\n", { taxon: "taxon", earlyInterval: "early", lateInterval: "late" });
     expect(result.problems).toEqual([]);
