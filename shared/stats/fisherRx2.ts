@@ -13,7 +13,8 @@ const LOG_RELATIVE_TOLERANCE = Math.log1p(1e-7);
  * from a dynamic programme; when even the largest keeps every completion at or below the
  * observed table's probability, all completions count at once (their total is C(N_rest, V_rest)
  * by Vandermonde's identity), and when even the smallest lifts them all above it, none does.
- * Returns null when more than `nodeLimit` nodes would be visited (the caller then simulates).
+ * Returns null when the bounds or the walk would take more than `nodeLimit` steps (the caller then
+ * tries the general enumeration or simulates).
  *
  * @example
  * fisherRx2({ cells: [[3, 1], [1, 3]], rowTotals: [4, 4], columnTotals: [4, 4], total: 8 }) // => { logPValue: ln(34/70) }
@@ -37,6 +38,11 @@ export function fisherRx2(table: CompactTable, nodeLimit = 5_000_000): { logPVal
   const N = table.total;
   const lf = logFactorialTable(N);
   const logChoose = (n: number, k: number): number => (k < 0 || k > n ? -Infinity : lf[n] - lf[k] - lf[n - k]);
+  // The bounds' dynamic programme costs about sum_k (count placed) x (row size): give up early when
+  // that alone exceeds the budget (large tables go to the caller's other methods).
+  let programme = 0;
+  for (const n of sizes) programme += (Math.min(placed, N) + 1) * (n + 1);
+  if (programme > nodeLimit) return null;
   // Most and least log-weight the rows k.. can add when they hold `need` of the first column.
   const max: Float64Array[] = Array.from({ length: r + 1 }, () => new Float64Array(placed + 1).fill(-Infinity));
   const min: Float64Array[] = Array.from({ length: r + 1 }, () => new Float64Array(placed + 1).fill(Infinity));
@@ -80,7 +86,10 @@ export function fisherRx2(table: CompactTable, nodeLimit = 5_000_000): { logPVal
       return;
     }
     if (so + min[k][need] > cutoff) return;
-    for (let x = Math.max(0, need - rest[k + 1]); x <= Math.min(sizes[k], need); x++) visit(k + 1, need - x, so + logC[k][x]);
+    const from = Math.max(0, need - rest[k + 1]);
+    const to = Math.min(sizes[k], need);
+    nodes += to - from;
+    for (let x = from; x <= to; x++) visit(k + 1, need - x, so + logC[k][x]);
   };
   visit(0, placed, 0);
   if (aborted) return null;
