@@ -38,7 +38,7 @@ export function judgeModelConfounding(
   options: { threshold: number; level: number; replicates?: number; seed?: number },
 ): Map<string, Map<string, ConfoundingJudgement>> {
   // Large studies: fewer replicates (each one passes over every taxon).
-  const replicates = options.replicates ?? (design.rows > 20_000 ? 50 : CLADE_CONFOUNDING_REPLICATES);
+  const replicates = options.replicates ?? (design.rows > 20_000 ? 20 : CLADE_CONFOUNDING_REPLICATES);
   const seed = options.seed ?? CLADE_CONFOUNDING_SEED;
   const n = design.rows;
   const p = design.columns + 1;
