@@ -18,6 +18,7 @@ export const RUN_MAX_PAGE_SIZE = 100;
  * "10% change-in-estimate" rule (Mickey & Greenland 1989, Am J Epidemiol 129:125; common practice).
  */
 export const DEFAULT_CONFOUNDING_THRESHOLD = 0.1;
+export const DEFAULT_MIN_INFORMATIVE_CLADES = 3;
 
 export const RUN_STATUSES = ["queued", "running", "succeeded", "failed"] as const;
 export const runStatusSchema = z
@@ -103,6 +104,13 @@ export const runParamsSchema = z
       .max(1, "confoundingThreshold must be at most 1")
       .default(DEFAULT_CONFOUNDING_THRESHOLD)
       .meta({ description: "Relative change of an odds ratio on adjustment that flags possible confounding (0.1 = 10%)" }),
+    minInformativeClades: z
+      .number({ message: "minInformativeClades must be a whole number between 1 and 50" })
+      .int("minInformativeClades must be a whole number")
+      .min(1, "minInformativeClades must be at least 1")
+      .max(50, "minInformativeClades must be at most 50")
+      .optional()
+      .meta({ description: "Clade-adjusted estimates resting on fewer informative clades than this are marked thin and never flag possible confounding (default 3 when left out)" }),
     crisisBoundary: crisisBoundaryParamSchema,
     robustness: robustnessParamsSchema.optional().meta({ description: "Settings of the robustness panel; left out: the defaults (windows 0.5, 1.5 and 2 times each boundary's, truncation a quarter of the window)" }),
   })
@@ -195,6 +203,22 @@ export type RunPreview = z.infer<typeof runPreviewSchema>;
 
 const ciSchema = z.tuple([z.number(), z.number()]);
 const intervalSchema = z.object({ estimate: z.number(), ci: ciSchema });
+const confoundingJudgementSchema = z
+  .object({
+    crude: z.number(),
+    standardised: z.number(),
+    change: z.number(),
+    seLogDifference: z.number().nullable(),
+    z: z.number().nullable(),
+    pValue: z.number().nullable(),
+    informativeClades: z.number().int().nullable(),
+    thin: z.boolean(),
+    flagged: z.boolean(),
+    replicates: z.number().int(),
+    seed: z.number().int(),
+    method: z.string(),
+  })
+  .meta({ id: "SelectivityConfoundingJudgement", description: "Crude odds ratio against the marginal odds ratio standardised over the adjustment, with a bootstrap standard error of the log difference" });
 
 export const stateRowSchema = z
   .object({
@@ -214,12 +238,19 @@ export const contrastResultSchema = z
     reference: z.string().nullable(),
     crude: intervalSchema.extend({ method: z.string() }),
     cladeAdjusted: intervalSchema
-      .extend({ method: z.string(), breslowDay: z.object({ chiSquare: z.number(), df: z.number(), pValue: z.number() }).optional() })
+      .extend({
+        method: z.string(),
+        informativeClades: z.number().int().optional().meta({ description: "Clades that carry information on the within-clade odds ratio" }),
+        thin: z.boolean().optional().meta({ description: "Fewer informative clades than the run's minimum: shown, never flags" }),
+        breslowDay: z.object({ chiSquare: z.number(), df: z.number(), pValue: z.number() }).optional(),
+      })
       .nullable(),
     modelAdjusted: intervalSchema.nullable(),
     changeOnCladeAdjustment: z.number().nullable(),
     changeOnModelAdjustment: z.number().nullable(),
-    flagged: z.boolean().meta({ description: "The confounding check: the odds ratio moves by more than the threshold on adjustment" }),
+    cladeCheck: confoundingJudgementSchema.nullable().optional(),
+    modelCheck: confoundingJudgementSchema.nullable().optional(),
+    flagged: z.boolean().meta({ description: "Possible confounding: the crude odds ratio differs from the standardised marginal one by more than the threshold and more than its own uncertainty" }),
     notes: z.array(z.string()).meta({ description: "Why an adjusted odds ratio is missing, or what limits it" }),
   })
   .meta({ id: "SelectivityContrast" });
@@ -296,7 +327,9 @@ export const selectivityResultSchema = z
       survivors: z.number().int(),
       droppedByTrait: z.record(z.string(), z.number().int()),
       completeCases: z.number().int(),
+      withoutClade: z.number().int().optional().meta({ description: "Taxa without a higher taxon, left out of the clade-adjusted estimates" }),
     }),
+    confoundingMethod: z.string().optional().meta({ description: "How the confounding flag is decided, with citations" }),
     traits: z.array(traitResultSchema),
     model: modelResultSchema.nullable(),
     modelNote: z.string().nullable(),
