@@ -6,7 +6,7 @@ import { existsSync } from "node:fs";
 import { join } from "node:path";
 import { OpenAPIRegistry, OpenApiGeneratorV31 } from "@asteasolutions/zod-to-openapi";
 import type { AppContext } from "./context";
-import type { AppConfig } from "./config";
+import { APP_VERSION, type AppConfig } from "./config";
 import { errorHandler, notFound } from "./http/errors";
 import { clientAssets } from "./http/clientAssets";
 import { sameOriginOnly } from "./http/origin";
@@ -53,7 +53,7 @@ export function buildOpenApi(registry: OpenAPIRegistry) {
     openapi: "3.1.0",
     info: {
       title: "Stratasieve API",
-      version: process.env.npm_package_version ?? "0.1.0",
+      version: APP_VERSION,
       description: "Every endpoint validates its input with the same zod schemas the client uses. Errors are `{ error: { code, message, fields? } }`.",
     },
     servers: [{ url: "/" }],

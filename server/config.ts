@@ -32,6 +32,15 @@ export interface AppConfig {
 
 export const DATA_DIR = join(process.cwd(), ".data");
 
+/** The app's version (package.json), stored with every run and comparison and named in the API document. */
+export const APP_VERSION = (JSON.parse(readFileSync(new URL("../package.json", import.meta.url), "utf8")) as { version: string }).version;
+
+/**
+ * After how many seconds without a heartbeat a running run counts as interrupted (twelve missed
+ * beats); RUN_STALE_SECONDS shortens it where a test kills a process on purpose.
+ */
+export const RUN_STALE_AFTER_SECONDS = Number(process.env.RUN_STALE_SECONDS) > 0 ? Number(process.env.RUN_STALE_SECONDS) : 60;
+
 /** SESSION_SECRET, or a random secret generated once into .data/ so sessions survive restarts. */
 export function loadSessionSecret(): string {
   if (process.env.SESSION_SECRET) return process.env.SESSION_SECRET;

@@ -3,9 +3,9 @@
 // threat categories. Saved like a run: parameters, a hash of exactly what was read, the results, who
 // and when. The computation is pure (shared/comparison) and quick, so it runs in the request.
 import { createHash } from "node:crypto";
-import { readFileSync } from "node:fs";
 import { and, desc, eq, sql } from "drizzle-orm";
 import type { Database } from "../db";
+import { APP_VERSION } from "../config";
 import { activity, comparisons, modernLists, runs, users } from "../../db/schema/index";
 import { compareWithThreatList, MODERN_COMPARISON_CAUTION, readSpeciesTraits, type ComparisonSpecies, type Crosswalk } from "../../shared/comparison/index";
 import type { Comparison, ComparisonList, ComparisonParams, ComparisonResults, ComparisonSummary } from "../../shared/schemas/comparisons";
@@ -14,7 +14,6 @@ import { badRequest, conflict, notFound } from "../http/errors";
 import { crosswalkTraits, listForComparison, savedCrosswalk } from "./modernLists";
 import { loadCodebook } from "./taxonState";
 
-const APP_VERSION = (JSON.parse(readFileSync(new URL("../../package.json", import.meta.url), "utf8")) as { version: string }).version;
 
 type ComparisonRow = typeof comparisons.$inferSelect;
 

@@ -4,9 +4,9 @@
 // runs the analysis in a worker thread and stores the results. A process that dies mid-run stops
 // renewing the run's heartbeat; every process sweeps such runs to failed, and a person can retry.
 import { createHash } from "node:crypto";
-import { readFileSync } from "node:fs";
 import { and, count, desc, eq, getTableColumns, isNull, sql } from "drizzle-orm";
 import type { Database } from "../db";
+import { APP_VERSION, RUN_STALE_AFTER_SECONDS } from "../config";
 import { RepeatingTask } from "../jobs/repeatingTask";
 import { activity, runs, taxa, users } from "../../db/schema/index";
 import { analyzeSelectivity, chooseReference, countStates, encodeTrait, type EncodedTrait } from "../../shared/selectivity/index";
@@ -38,11 +38,8 @@ import type { WorkerPool } from "../jobs/workerPool";
 export const SELECTIVITY_RUN_JOB = "selectivity-run";
 /** How often the computing process renews a running run's heartbeat. */
 export const HEARTBEAT_EVERY_MS = 5_000;
-/**
- * A running run whose heartbeat is older than this is taken for interrupted (twelve missed beats).
- * RUN_STALE_SECONDS shortens it where a test kills a process on purpose.
- */
-export const STALE_AFTER_SECONDS = Number(process.env.RUN_STALE_SECONDS) > 0 ? Number(process.env.RUN_STALE_SECONDS) : 60;
+/** A running run whose heartbeat is older than this is taken for interrupted (server/config.ts). */
+export const STALE_AFTER_SECONDS = RUN_STALE_AFTER_SECONDS;
 /** How often each process looks for interrupted runs. */
 export const SWEEP_EVERY_MS = 30_000;
 /** Fewest milliseconds between two progress writes of one run. */
@@ -52,7 +49,6 @@ const PROGRESS_WRITE_GAP_MS = 250;
 export const SELECTIVITY_CAUTION =
   "Selectivity results are statistical associations across a boundary, not proof of a kill mechanism; a shared cause can produce them.";
 
-const APP_VERSION = (JSON.parse(readFileSync(new URL("../../package.json", import.meta.url), "utf8")) as { version: string }).version;
 
 interface Person {
   id: string;
