@@ -77,7 +77,8 @@ describe("client foundation", () => {
 
       await lead.getByRole("navigation", { name: "Study" }).getByRole("link", { name: "Members" }).click();
       await lead.waitForURL(`${server.url}${studyPath}/members`);
-      await lead.getByLabel("E-mail").fill(analystEmail);
+      // Exact: the Overview, still on screen while the Members screen loads, has e-mail choices too.
+      await lead.getByLabel("E-mail", { exact: true }).fill(analystEmail);
       await lead.getByLabel("Role", { exact: true }).selectOption("analyst");
       await lead.getByRole("button", { name: "Send invitation" }).click();
       await lead.getByText(`Invitation sent to ${analystEmail}`).waitFor();

@@ -183,7 +183,7 @@ describe("selectivity screen", () => {
       expect(habitCells[1]).toMatch(/^2\.27 /);
       expect(habitCells[2]).toMatch(/^1\.00 /);
       expect((await cellTexts(page, 'tr[data-confounding="feeding"]'))[2]).toMatch(/^2\.67 /);
-      expect(await page.getByTestId("confounding-note-life_habit").innerText()).toContain("share a cause");
+      expect(await page.getByTestId("confounding-note-life_habit").innerText()).toContain("a shared cause, not necessarily an effect of the trait");
 
       // Two boundaries: the heat map of log odds ratios, traits by boundary. ln 2.2685 = 0.819 in both columns.
       const heat = page.locator("figure").filter({ has: page.getByTestId("log-odds-heat-map") });
