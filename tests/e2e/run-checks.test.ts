@@ -66,6 +66,9 @@ describe("reading crisis against background and the robustness panel", () => {
       expect(await panel.getByTestId("robustness-chart").count()).toBe(crisisPanel.contrasts.length);
       const rangeRow = panel.locator('tr[data-robustness-contrast="geographic_range:per 1 region"]');
       expect(await rangeRow.locator("[data-verdict]").first().getAttribute("data-verdict")).toBe("holds");
+      // The same verdict is a column of the boundary's odds-ratio table (the numbers behind the forest plot).
+      const column = page.locator('td[data-robustness="geographic_range:per 1 region"] [data-verdict]');
+      expect(await column.first().getAttribute("data-verdict")).toBe("holds");
       const habitRow = panel.locator('tr[data-robustness-contrast^="life_habit:Infaunal"]');
       await habitRow.getByText("Without Quellorbidae").first().waitFor();
       // Switching the charts to the crude odds ratios keeps one chart per contrast.

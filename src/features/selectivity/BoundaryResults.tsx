@@ -1,4 +1,5 @@
 import type { RunParams } from "@shared/schemas/runs";
+import type { RobustnessPanel } from "@shared/selectivity/robustnessPanel";
 import { Card } from "../../components/Card";
 import { cx } from "../../lib/cx";
 import { formatMa, formatMyr } from "../../components/timescale/ages";
@@ -10,6 +11,7 @@ import { ModelCard } from "./ModelCard";
 import { forestRows, type BoundaryResult } from "./resultRows";
 import { Body, ColHead, HeadRow, ResultTable, td, tdNum, thNum } from "./ResultTable";
 import { TraitResultCard } from "./TraitResultCard";
+import { VerdictBadge } from "./RobustnessCard";
 import { fileSlug, formatEstimate, formatInterval, levelWords } from "./words";
 
 export interface BoundaryResultsProps {
@@ -18,12 +20,15 @@ export interface BoundaryResultsProps {
   /** Names the downloads. */
   filePrefix: string;
   printable?: boolean;
+  /** The boundary's robustness panel, when the run computed one: its verdicts join the odds-ratio table. */
+  robustness?: RobustnessPanel | null;
 }
 
 /** Everything a run found at one boundary: who entered, the forest plot, the confounding check, each trait, the model. */
-export function BoundaryResults({ boundary, params, filePrefix, printable = false }: BoundaryResultsProps) {
+export function BoundaryResults({ boundary, params, filePrefix, printable = false, robustness = null }: BoundaryResultsProps) {
   const { result } = boundary;
   const rows = forestRows(result);
+  const verdictOf = new Map((robustness?.contrasts ?? []).map((c) => [`${c.traitKey}:${c.contrast}`, c.verdict.adjusted]));
   const percent = levelWords(params.level);
   const prefix = `${filePrefix}_${fileSlug(boundary.label)}`;
 
@@ -61,6 +66,7 @@ export function BoundaryResults({ boundary, params, filePrefix, printable = fals
                       {ESTIMATE_STYLE[kind].label.split(" (")[0]}
                     </th>
                   ))}
+                  {robustness && <ColHead>Robustness (adjusted)</ColHead>}
                 </HeadRow>
                 <Body>
                   {rows.map((row) => (
@@ -74,6 +80,11 @@ export function BoundaryResults({ boundary, params, filePrefix, printable = fals
                           {e ? `${formatEstimate(e.estimate)} (${formatInterval(e.ci)})` : "—"}
                         </td>
                       ))}
+                      {robustness && (
+                        <td className={td} title={verdictOf.get(row.id)?.sentence} data-robustness={row.id}>
+                          {verdictOf.get(row.id) ? <VerdictBadge verdict={verdictOf.get(row.id)!} /> : "—"}
+                        </td>
+                      )}
                     </tr>
                   ))}
                 </Body>

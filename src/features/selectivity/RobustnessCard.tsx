@@ -32,7 +32,7 @@ export function panelOf(results: RunResults, index: number): { panel: Robustness
   return entry ? { panel: entry.panel, reason: entry.reason } : null;
 }
 
-function VerdictBadge({ verdict }: { verdict: Verdict }) {
+export function VerdictBadge({ verdict }: { verdict: Verdict }) {
   return (
     <span className={cx("inline-flex items-center rounded-full px-2 py-0.5 text-xs font-semibold ring-1 ring-inset", STATUS_STYLE[verdict.status])} data-verdict={verdict.status}>
       {STATUS_WORDS[verdict.status]}
@@ -50,8 +50,8 @@ export function RobustnessCard({ results, index, label, printable = false }: { r
   const hasAdjusted = found?.panel?.contrasts.some((c) => c.estimates.some((e) => e.adjusted !== null)) ?? false;
   const [measure, setMeasure] = useState<Measure>(hasAdjusted ? "adjusted" : "crude");
   const name = useId();
-  if (!found) return null;
-  const { panel, reason } = found;
+  // Runs saved before the panel existed have none: say so rather than leave the question open.
+  const { panel, reason } = found ?? { panel: null, reason: "This run was saved before runs computed a robustness panel. Re-run it on today’s data to see whether each finding holds." };
   if (!panel) {
     return (
       <Card title={`Does it hold? Robustness at ${label}`} className="break-inside-avoid">

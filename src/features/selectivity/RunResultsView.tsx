@@ -8,7 +8,7 @@ import { formatCount, formatDateTime } from "../../lib/format";
 import { BoundaryResults } from "./BoundaryResults";
 import { HeatMapCard } from "./HeatMapCard";
 import { CrisisCard, differingTraits } from "./CrisisCard";
-import { RobustnessCard } from "./RobustnessCard";
+import { panelOf, RobustnessCard } from "./RobustnessCard";
 import { boundaryColumns } from "./resultRows";
 import { CORRECTION_LABELS, fileSlug, formatWholePercent, levelWords } from "./words";
 
@@ -171,7 +171,13 @@ export function RunResultsView({ run }: { run: Run & { results: RunResults } }) 
         </div>
       )}
       <div id={`${tabsId}-panel`} role={results.boundaries.length > 1 ? "tabpanel" : undefined} aria-labelledby={results.boundaries.length > 1 ? `${tabsId}-${selected}` : undefined}>
-        <BoundaryResults key={`${boundary.boundaryMa}-${boundary.windowMyr}`} boundary={boundary} params={run.params} filePrefix={prefix} />
+        <BoundaryResults
+          key={`${boundary.boundaryMa}-${boundary.windowMyr}`}
+          boundary={boundary}
+          params={run.params}
+          filePrefix={prefix}
+          robustness={panelOf(results, Math.min(selected, results.boundaries.length - 1))?.panel}
+        />
         <div className="mt-6">
           <RobustnessCard
             key={`robustness-${boundary.boundaryMa}-${boundary.windowMyr}`}
