@@ -2,6 +2,7 @@ import { conditionalLogLik, prepareConditionalStrata } from "../stats/conditiona
 import { normalTwoSidedP } from "../stats/distributions";
 import { createUniformSource } from "../stats/random";
 import { fitStratifiedSlope } from "./stratifiedSlope";
+import { expit, fractionalSlope } from "./fractionalSlope";
 import type { ConfoundingJudgement } from "./types";
 
 /** The taxa of one clade in one contrast: x is 0/1 (state against reference) or the scaled number. */
@@ -271,10 +272,8 @@ export function crudeLogOdds(groups: CladeGroup[], weights: ArrayLike<number>, k
     return Math.log((a * d) / (b * c));
   }
   const flat = flatten(groups, weights);
-  return logisticSlope(flat.x, flat.w, flat.y);
+  return fractionalSlope(flat.x, flat.w, flat.y);
 }
-
-const expit = (eta: number): number => (eta >= 0 ? 1 / (1 + Math.exp(-eta)) : Math.exp(eta) / (1 + Math.exp(eta)));
 
 /** The clade intercept a with sum_i expit(a + beta x_i) = victims (the fitted model reproduces the clade's count). */
 export function cladeIntercept(x: Float64Array, victims: number, beta: number): number {
@@ -377,7 +376,7 @@ export function standardisedLogOdds(groups: CladeGroup[], weights: ArrayLike<num
       targets[i] = grid[g] * (1 - t) + grid[g + 1] * t;
     }
   }
-  return logisticSlope(flat.x, flat.w, targets);
+  return fractionalSlope(flat.x, flat.w, targets);
 }
 
 /** The taxa of the weighted clades as flat arrays of values, weights and outcomes. */
@@ -398,45 +397,4 @@ function flatten(groups: CladeGroup[], weights: ArrayLike<number>): { x: Float64
     }
   }
   return { x, w, y };
-}
-
-/** Slope of a weighted (fractional) logistic regression of targets in [0, 1] on x, by Newton-Raphson. */
-function logisticSlope(xs: Float64Array, ws: Float64Array, targets: Float64Array): number {
-  let total = 0;
-  let events = 0;
-  for (let i = 0; i < xs.length; i++) {
-    total += ws[i];
-    events += ws[i] * targets[i];
-  }
-  if (!(events > 0 && events < total)) return NaN;
-  let a = Math.log(events / (total - events));
-  let b = 0;
-  for (let iteration = 0; iteration < 50; iteration++) {
-    let ua = 0;
-    let ub = 0;
-    let iaa = 0;
-    let iab = 0;
-    let ibb = 0;
-    for (let i = 0; i < xs.length; i++) {
-      const x = xs[i];
-      const w = ws[i];
-      const p = expit(a + b * x);
-      const r = targets[i] - p;
-      const v = w * p * (1 - p);
-      ua += w * r;
-      ub += w * r * x;
-      iaa += v;
-      iab += v * x;
-      ibb += v * x * x;
-    }
-    const det = iaa * ibb - iab * iab;
-    if (!(det > 0)) return NaN;
-    const da = (ibb * ua - iab * ub) / det;
-    const db = (iaa * ub - iab * ua) / det;
-    a += da;
-    b += db;
-    if (Math.abs(b) > 50) return NaN;
-    if (Math.abs(da) + Math.abs(db) < 1e-10) return b;
-  }
-  return NaN;
 }
