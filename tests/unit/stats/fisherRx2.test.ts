@@ -8,7 +8,7 @@ import { expectRelativeClose } from "./helpers";
 describe("fisherRx2: the network over rows for r x 2 tables", () => {
   it("gives R's fisher.test p-value of the tea-tasting table (34/70 two-sided; Agresti 1990)", () => {
     const result = fisherRx2(compactTable([[3, 1], [1, 3]]))!;
-    expectRelativeClose(Math.exp(result.logPValue), 34 / 70, 1e-12); // R: p-value = 0.4857 (CHECK-SOURCES, Fisher's tea-tasting)
+    expectRelativeClose(Math.exp(result.logPValue), 34 / 70, 1e-12); // R: p-value = 0.4857 (docs/sources.md section 1, Fisher's tea-tasting)
   });
 
   it("agrees with the full Freeman-Halton enumeration on random r x 2 and 2 x c tables (seeded)", () => {
