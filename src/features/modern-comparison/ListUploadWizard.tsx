@@ -11,7 +11,7 @@ import {
   type ModernListUpload,
 } from "@shared/schemas/modernLists";
 import { Button } from "../../components/Button";
-import { CsvFileField } from "../../components/CsvFileField";
+import { CsvUploadForm } from "../../components/CsvUploadForm";
 import { cx } from "../../lib/cx";
 import { ProblemTable } from "../../components/ProblemTable";
 import { WizardSteps } from "../../components/WizardSteps";
@@ -23,8 +23,6 @@ import { issuesToFieldErrors, type FieldErrors } from "../../lib/forms";
 import { formatCount, pluralize } from "../../lib/format";
 import { useCommitModernList, useDiscardModernUpload, usePreviewModernList, useUploadModernList } from "./api";
 import { CategoryBadge } from "./CategoryBadge";
-import { ProgressBar } from "../../components/ProgressBar";
-import type { UploadProgress } from "../../lib/uploadWithProgress";
 import { SampleRowsTable } from "../../components/SampleRowsTable";
 
 type Stage =
@@ -37,8 +35,6 @@ const STEPS = [
   { key: "preview", label: "Check every row" },
   { key: "save", label: "Save the list" },
 ] as const;
-
-const megabytes = (bytes: number) => `${(bytes / (1024 * 1024)).toFixed(1)} MB`;
 
 /** Upload a modern species list, map its columns, check every row, and save it all or not at all. */
 export function ListUploadWizard({ studyId, onSaved, onCancel }: { studyId: string; onSaved: (list: ModernList) => void; onCancel: () => void }) {
@@ -80,47 +76,19 @@ export function ListUploadWizard({ studyId, onSaved, onCancel }: { studyId: stri
 }
 
 function UploadStep({ studyId, onUploaded, onCancel }: { studyId: string; onUploaded: (upload: ModernListUpload) => void; onCancel: () => void }) {
-  const upload = useUploadModernList(studyId);
-  const [file, setFile] = useState<File | null>(null);
-  const [fileError, setFileError] = useState<string>();
-  const [progress, setProgress] = useState<UploadProgress | null>(null);
-
-  function submit(event: FormEvent<HTMLFormElement>) {
-    event.preventDefault();
-    if (!file) return setFileError("Choose a CSV file of species");
-    if (file.size === 0) return setFileError("This file is empty");
-    if (file.size > MODERN_LIST_MAX_BYTES) return setFileError(`This file is ${megabytes(file.size)}; the limit is ${MODERN_LIST_MAX_LABEL}.`);
-    setProgress({ loaded: 0, total: file.size });
-    upload.mutate({ file, onProgress: setProgress }, { onSuccess: onUploaded, onSettled: () => setProgress(null) });
-  }
-  const sent = progress && progress.total > 0 ? progress.loaded / progress.total : 0;
-
   return (
-    <form noValidate onSubmit={submit} className="space-y-5" aria-label="Upload a modern species list">
-      <FormError message={upload.error ? errorMessage(upload.error) : null} />
-      <CsvFileField
-        label="Species list (CSV)"
-        hint={`One row per species: its name, optionally a higher taxon, its threat category (an IUCN 3.1 code or name: ${IUCN_CATEGORIES.join(", ")}) and any trait columns. Comma, semicolon or tab separated; up to ${MODERN_LIST_MAX_LABEL}.`}
-        error={fileError ?? (upload.error instanceof ApiError ? upload.error.fields.file : undefined)}
-        disabled={upload.isPending}
-        onFile={(chosen) => {
-          setFile(chosen);
-          setFileError(undefined);
-          upload.reset();
-        }}
-      />
-      {upload.isPending && (
-        <ProgressBar label={`Uploading ${file?.name ?? "the file"}`} value={sent < 1 ? sent : null} detail={sent < 1 ? undefined : "Reading the file…"} />
-      )}
-      <div className="flex flex-wrap justify-end gap-3">
-        <Button variant="ghost" onClick={onCancel} disabled={upload.isPending}>
-          Cancel
-        </Button>
-        <Button type="submit" busy={upload.isPending}>
-          Upload and read the list
-        </Button>
-      </div>
-    </form>
+    <CsvUploadForm
+      upload={useUploadModernList(studyId)}
+      onUploaded={onUploaded}
+      formLabel="Upload a modern species list"
+      fieldLabel="Species list (CSV)"
+      hint={`One row per species: its name, optionally a higher taxon, its threat category (an IUCN 3.1 code or name: ${IUCN_CATEGORIES.join(", ")}) and any trait columns. Comma, semicolon or tab separated; up to ${MODERN_LIST_MAX_LABEL}.`}
+      missingFile="Choose a CSV file of species"
+      maxBytes={MODERN_LIST_MAX_BYTES}
+      maxLabel={MODERN_LIST_MAX_LABEL}
+      submitLabel="Upload and read the list"
+      onCancel={onCancel}
+    />
   );
 }
 

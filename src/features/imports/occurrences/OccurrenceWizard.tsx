@@ -9,7 +9,7 @@ import {
 } from "@shared/schemas/occurrences";
 import { Button } from "../../../components/Button";
 import { Card } from "../../../components/Card";
-import { CsvFileField } from "../../../components/CsvFileField";
+import { CsvUploadForm } from "../../../components/CsvUploadForm";
 import { FormError, Notice } from "../../../components/Notice";
 import { ProblemTable } from "../../../components/ProblemTable";
 import { ProgressBar } from "../../../components/ProgressBar";
@@ -18,7 +18,6 @@ import { Select } from "../../../components/Select";
 import { WizardSteps } from "../../../components/WizardSteps";
 import { ApiError, errorMessage } from "../../../lib/api";
 import { formatCount, pluralize } from "../../../lib/format";
-import type { UploadProgress } from "../../../lib/uploadWithProgress";
 import { useCommitOccurrences, useDiscardOccurrences, useOccurrenceUploadProgress, usePreviewOccurrences, useUploadOccurrences } from "./api";
 
 type Stage =
@@ -43,8 +42,6 @@ const FIELDS: Array<{ key: keyof OccurrenceMappingDraft; label: string; hint: st
   { key: "collection", label: "Collection or locality", hint: "Optional: counts distinct collections per taxon." },
   { key: "count", label: "Count", hint: "Optional: specimens or records the row stands for (a whole number)." },
 ];
-
-const megabytes = (bytes: number) => `${(bytes / (1024 * 1024)).toFixed(1)} MB`;
 
 /** Upload, map, preview and commit an occurrence table: one row per dated find. */
 export function OccurrenceWizard({ studyId }: { studyId: string }) {
@@ -97,48 +94,19 @@ export function OccurrenceWizard({ studyId }: { studyId: string }) {
 }
 
 function OccurrenceUploadStep({ studyId, onUploaded }: { studyId: string; onUploaded: (upload: OccurrenceUpload) => void }) {
-  const upload = useUploadOccurrences(studyId);
-  const [file, setFile] = useState<File | null>(null);
-  const [fileError, setFileError] = useState<string | undefined>();
-  const [progress, setProgress] = useState<UploadProgress | null>(null);
-
-  function submit(event: FormEvent<HTMLFormElement>) {
-    event.preventDefault();
-    if (!file) return setFileError("Choose a CSV file of occurrences");
-    if (file.size > IMPORT_MAX_BYTES) return setFileError(`This file is ${megabytes(file.size)}; the limit is ${IMPORT_MAX_LABEL}. Split it into smaller files.`);
-    if (file.size === 0) return setFileError("This file is empty");
-    setProgress({ loaded: 0, total: file.size });
-    upload.mutate({ file, onProgress: setProgress }, { onSuccess: onUploaded, onSettled: () => setProgress(null) });
-  }
-  const sent = progress && progress.total > 0 ? progress.loaded / progress.total : 0;
-
   return (
-    <form noValidate onSubmit={submit} className="space-y-5" aria-label="Upload an occurrence file">
-      <FormError message={upload.error ? errorMessage(upload.error) : null} />
-      <CsvFileField
-        label="Occurrence file (CSV)"
-        hint={`Comma, semicolon or tab separated, with a header row; at most ${IMPORT_MAX_LABEL} (about a million finds).`}
-        error={fileError ?? (upload.error instanceof ApiError ? upload.error.fields.file : undefined)}
-        disabled={upload.isPending}
-        onFile={(chosen) => {
-          setFile(chosen);
-          setFileError(undefined);
-          upload.reset();
-        }}
-      />
-      {upload.isPending && (
-        <ProgressBar
-          label={`Uploading ${file?.name ?? "the file"}`}
-          value={sent < 1 ? sent : null}
-          detail={sent < 1 ? `${megabytes(progress?.loaded ?? 0)} of ${megabytes(progress?.total ?? 0)}` : "Reading the file…"}
-        />
-      )}
-      <div className="flex justify-end">
-        <Button type="submit" busy={upload.isPending}>
-          Upload and read the occurrences
-        </Button>
-      </div>
-    </form>
+    <CsvUploadForm
+      upload={useUploadOccurrences(studyId)}
+      onUploaded={onUploaded}
+      formLabel="Upload an occurrence file"
+      fieldLabel="Occurrence file (CSV)"
+      hint={`Comma, semicolon or tab separated, with a header row; at most ${IMPORT_MAX_LABEL} (about a million finds).`}
+      missingFile="Choose a CSV file of occurrences"
+      maxBytes={IMPORT_MAX_BYTES}
+      maxLabel={IMPORT_MAX_LABEL}
+      tooLargeAdvice="Split it into smaller files."
+      submitLabel="Upload and read the occurrences"
+    />
   );
 }
 
