@@ -39,6 +39,26 @@ const dbLayer = {
   },
 };
 
+/**
+ * Services and the domain errors they raise know nothing of HTTP: a service throws a DomainError
+ * (server/domain/errors.ts) and server/http/errors.ts maps it to a status. Only the upload helpers
+ * of server/http are shared with services, since multer hands them the stored file.
+ */
+const domainLayer = {
+  files: ["server/services/**/*.{ts,tsx}", "server/domain/**/*.{ts,tsx}", "server/jobs/**/*.{ts,tsx}"],
+  rules: {
+    "no-restricted-imports": [
+      "error",
+      {
+        patterns: [
+          { regex: "^(\\.\\./)+(http/(?!uploads$)|routes/)", message: `services raise domain errors and know no HTTP status or route: ${LAYER_MESSAGE}.` },
+          { regex: "^(\\.\\./)+(src|scripts|tests|bench)(/|$)", message: `the server imports no client, script or test: ${LAYER_MESSAGE}.` },
+        ],
+      },
+    ],
+  },
+};
+
 /** src/components and src/lib serve every feature and so import none. */
 const clientSharedLayer = {
   files: ["src/components/**/*.{ts,tsx}", "src/lib/**/*.{ts,tsx}"],
@@ -99,6 +119,7 @@ export default tseslint.config(
   },
   sharedLayer,
   dbLayer,
+  domainLayer,
   clientSharedLayer,
   ...featureLayers,
 );

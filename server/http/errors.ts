@@ -1,6 +1,7 @@
 import type { ErrorRequestHandler } from "express";
 import { ZodError } from "zod";
 import multer from "multer";
+import { DomainError, type DomainErrorKind } from "../domain/errors";
 
 export class HttpError extends Error {
   constructor(
@@ -89,8 +90,25 @@ function unreadableBody(err: unknown): { status: number; code: string; message: 
   return null;
 }
 
+/** The one place a domain refusal becomes an HTTP status. */
+export const STATUS_OF_DOMAIN_ERROR: Record<DomainErrorKind, number> = {
+  invalid: 400,
+  unauthenticated: 401,
+  forbidden: 403,
+  not_found: 404,
+  conflict: 409,
+  too_large: 413,
+  unsupported_media: 415,
+  unavailable: 503,
+};
+
 export const errorHandler: ErrorRequestHandler = (err, _req, res, _next) => {
   void _next;
+  if (err instanceof DomainError) {
+    // Details (an import's row problems, the value that won a conflict) sit beside `error`.
+    res.status(STATUS_OF_DOMAIN_ERROR[err.kind]).json({ error: { code: err.code, message: err.message, ...(err.fields ? { fields: err.fields } : {}) }, ...err.details });
+    return;
+  }
   if (err instanceof HttpError) {
     if (err.headers) res.set(err.headers);
     res.status(err.status).json({ error: { code: err.code, message: err.message, ...(err.fields ? { fields: err.fields } : {}) } });

@@ -52,7 +52,7 @@ export interface RouteSpec<B extends ZodType, Q extends ZodType, P extends ZodTy
   params?: P;
   /** Status and schema of the success answer; `raw` handlers send the answer themselves. */
   response: { status: number; schema?: ZodType; description?: string; contentType?: string };
-  /** An error answer that carries more than a message (see http/detailed.ts): documented with its own schema. */
+  /** An error answer that carries more than a message (a DomainError with details, see server/domain/errors.ts): documented with its own schema. */
   errorBody?: { status: number; schema: ZodType; description: string };
   /** Extra middleware that runs after the access check and before validation (e.g. multer for uploads). */
   before?: RequestHandler[];

@@ -10,7 +10,6 @@ import {
   revertResultSchema,
 } from "../../shared/schemas/decisions";
 import type { AppContext } from "../context";
-import { answeringDetails } from "../http/detailed";
 import { ApiRouter } from "../http/route";
 
 export function decisionsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRouter {
@@ -41,7 +40,7 @@ export function decisionsRouter(ctx: AppContext, registry: OpenAPIRegistry): Api
     body: decisionRevertSchema,
     errorBody: { status: 409, schema: revertConflictSchema, description: "The value changed since, naming the current value" },
     response: { status: 200, schema: revertResultSchema, description: "Reverted. 409 RevertConflict: the value changed since, naming the current value" },
-    handler: ({ params, body, user, res }) => answeringDetails(res, () => decisions.revert(params.studyId, params.decisionId, user!, body.reason)),
+    handler: ({ params, body, user }) => decisions.revert(params.studyId, params.decisionId, user!, body.reason),
   });
 
   api.add({
@@ -55,7 +54,7 @@ export function decisionsRouter(ctx: AppContext, registry: OpenAPIRegistry): Api
     body: decisionRevertSchema,
     errorBody: { status: 409, schema: revertConflictSchema, description: "Values changed since; nothing was reverted" },
     response: { status: 200, schema: revertResultSchema, description: "Reverted. 409 RevertConflict: values changed since; nothing was reverted" },
-    handler: ({ params, body, user, res }) => answeringDetails(res, () => decisions.revertBatch(params.studyId, params.batchId, user!, body.reason)),
+    handler: ({ params, body, user }) => decisions.revertBatch(params.studyId, params.batchId, user!, body.reason),
   });
 
   return api;

@@ -17,7 +17,6 @@ import {
 } from "../../shared/schemas/imports";
 import { revertConflictSchema } from "../../shared/schemas/decisions";
 import type { AppContext } from "../context";
-import { answeringDetails } from "../http/detailed";
 import { ApiRouter } from "../http/route";
 import { csvUpload, uploadedFile } from "../http/uploads";
 
@@ -88,7 +87,7 @@ export function importsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
     body: importCommitSchema,
     errorBody: { status: 400, schema: importProblemsErrorSchema, description: "Rows have problems and skipInvalid is false; nothing was written" },
     response: { status: 200, schema: importSummarySchema, description: "Committed. 400 ImportProblemsError: rows have problems and skipInvalid is false; nothing was written" },
-    handler: ({ params, body, user, res }) => answeringDetails(res, () => imports.commit(params.studyId, params.importId, user!, body)),
+    handler: ({ params, body, user }) => imports.commit(params.studyId, params.importId, user!, body),
   });
 
   api.add({
@@ -102,7 +101,7 @@ export function importsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
     body: importRevertSchema,
     errorBody: { status: 409, schema: revertConflictSchema, description: "Values changed since the import (send skipChanged to leave those)" },
     response: { status: 200, schema: importRevertResultSchema, description: "Reverted. 409 RevertConflict: values changed since the import (send skipChanged to leave those)" },
-    handler: ({ params, body, user, res }) => answeringDetails(res, () => imports.revert(params.studyId, params.importId, user!, body)),
+    handler: ({ params, body, user }) => imports.revert(params.studyId, params.importId, user!, body),
   });
 
   api.add({

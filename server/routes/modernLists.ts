@@ -17,7 +17,6 @@ import {
   modernUploadParamsSchema,
 } from "../../shared/schemas/modernLists";
 import type { AppContext } from "../context";
-import { answeringDetails } from "../http/detailed";
 import { ApiRouter } from "../http/route";
 import { csvUpload, uploadedFile } from "../http/uploads";
 
@@ -64,7 +63,7 @@ export function modernListsRouter(ctx: AppContext, registry: OpenAPIRegistry): A
     body: modernListCommitSchema,
     errorBody: { status: 400, schema: modernListProblemsErrorSchema, description: "Rows have problems and skipInvalid is false; nothing was written" },
     response: { status: 201, schema: modernListSchema, description: "Saved. 400 ModernListProblemsError: rows have problems and skipInvalid is false; nothing was written" },
-    handler: ({ params, body, user, res }) => answeringDetails(res, () => modernLists.commit(params.studyId, params.uploadId, user!, body)),
+    handler: ({ params, body, user }) => modernLists.commit(params.studyId, params.uploadId, user!, body),
   });
 
   api.add({

@@ -20,7 +20,6 @@ import {
   threeTimerSchema,
 } from "../../shared/schemas/occurrences";
 import type { AppContext } from "../context";
-import { answeringDetails } from "../http/detailed";
 import { ApiRouter } from "../http/route";
 import { csvUpload, uploadedFile } from "../http/uploads";
 
@@ -90,7 +89,7 @@ export function occurrencesRouter(ctx: AppContext, registry: OpenAPIRegistry): A
     body: occurrenceCommitSchema,
     errorBody: { status: 400, schema: occurrenceProblemsErrorSchema, description: "Rows have problems and skipInvalid is false; nothing was written" },
     response: { status: 200, schema: importSummarySchema, description: "Committed. 400 OccurrenceProblemsError: rows have problems and skipInvalid is false; nothing was written" },
-    handler: ({ params, body, user, res }) => answeringDetails(res, () => occurrences.commit(params.studyId, params.uploadId, user!, body)),
+    handler: ({ params, body, user }) => occurrences.commit(params.studyId, params.uploadId, user!, body),
   });
 
   api.add({

@@ -18,7 +18,6 @@ import {
   taxonUpdateSchema,
 } from "../../shared/schemas/taxa";
 import type { AppContext } from "../context";
-import { answeringDetails } from "../http/detailed";
 import { ApiRouter } from "../http/route";
 
 export function taxaRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRouter {
@@ -101,7 +100,7 @@ export function taxaRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
     body: taxonUpdateSchema,
     errorBody: { status: 409, schema: taxonConflictSchema, description: "The row changed since that version; the body holds the current values and who set them" },
     response: { status: 200, schema: taxonSavedSchema, description: "Saved. 409 TaxonConflict: the row changed since that version; the body holds the current values and who set them" },
-    handler: ({ params, body, user, res }) => answeringDetails(res, () => taxa.update(params.studyId, params.taxonId, user!, body)),
+    handler: ({ params, body, user }) => taxa.update(params.studyId, params.taxonId, user!, body),
   });
 
   api.add({
@@ -115,7 +114,7 @@ export function taxaRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
     query: taxonDeleteQuerySchema,
     errorBody: { status: 409, schema: taxonConflictSchema, description: "The row changed since that version" },
     response: { status: 204, description: "Removed. 409 TaxonConflict: the row changed since that version" },
-    handler: ({ params, query, user, res }) => answeringDetails(res, () => taxa.remove(params.studyId, params.taxonId, user!, query)),
+    handler: ({ params, query, user }) => taxa.remove(params.studyId, params.taxonId, user!, query),
   });
 
   api.add({

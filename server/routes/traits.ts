@@ -12,7 +12,6 @@ import {
   traitUsageSchema,
 } from "../../shared/schemas/traits";
 import type { AppContext } from "../context";
-import { answeringDetails } from "../http/detailed";
 import { ApiRouter } from "../http/route";
 
 export function traitsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRouter {
@@ -59,7 +58,7 @@ export function traitsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRou
       schema: traitUpdateResultSchema,
       description: "Changed. 409 TraitChangeConflict: values would be orphaned (states_in_use: send remap), out of range, or of another kind",
     },
-    handler: ({ params, body, user, res }) => answeringDetails(res, () => traits.update(params.studyId, params.traitId, user!, body)),
+    handler: ({ params, body, user }) => traits.update(params.studyId, params.traitId, user!, body),
   });
 
   api.add({

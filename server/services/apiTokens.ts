@@ -7,7 +7,7 @@ import type { Database } from "../db";
 import { apiTokens, apiTokenStudies, memberships, studies, users } from "../../db/schema/index";
 import { ROLE_LABELS, roleCovers, type StudyRole } from "../../shared/roles";
 import { API_TOKEN_PREFIX, type ApiToken, type ApiTokenCreated, type ApiTokenCreateInput } from "../../shared/schemas/apiTokens";
-import { badRequest, notFound } from "../http/errors";
+import { invalidInput, notFound } from "../domain/errors";
 import { hashToken } from "./tokens";
 
 /** Last use is written at most this often per token (a script may send many requests a second). */
@@ -70,7 +70,7 @@ export function createApiTokenService(db: Database) {
           fields[`studies.${i}.role`] = `You are ${ROLE_LABELS[mine.role]} in ${mine.name}: a token may not do more than you (choose ${ROLE_LABELS[mine.role]} or a role with fewer rights)`;
         }
       });
-      if (Object.keys(fields).length) throw badRequest(`The token cannot be made: ${Object.values(fields).join("; ")}.`, fields);
+      if (Object.keys(fields).length) throw invalidInput(`The token cannot be made: ${Object.values(fields).join("; ")}.`, fields);
 
       const secret = `${API_TOKEN_PREFIX}${randomBytes(32).toString("base64url")}`;
       const expiresAt = new Date(Date.now() + input.expiresInDays * 86_400_000);

@@ -10,7 +10,7 @@ import { activity, comparisons, modernLists, runs, users } from "../../db/schema
 import { compareWithThreatList, MODERN_COMPARISON_CAUTION, readSpeciesTraits, type ComparisonSpecies, type Crosswalk } from "../../shared/comparison/index";
 import type { Comparison, ComparisonList, ComparisonParams, ComparisonResults, ComparisonSummary } from "../../shared/schemas/comparisons";
 import type { RunResults } from "../../shared/schemas/runs";
-import { badRequest, conflict, notFound } from "../http/errors";
+import { conflict, invalidInput, notFound } from "../domain/errors";
 import { crosswalkTraits, listForComparison, savedCrosswalk } from "./modernLists";
 import { loadCodebook } from "./taxonState";
 
@@ -97,12 +97,12 @@ export function createComparisonService(db: Database) {
       const results = run.results as unknown as RunResults;
       const boundary = results.boundaries[params.boundaryIndex];
       if (!boundary) {
-        throw badRequest(`The run "${run.name}" has ${results.boundaries.length} boundar${results.boundaries.length === 1 ? "y" : "ies"}; boundaryIndex ${params.boundaryIndex} is not one of them.`, {
+        throw invalidInput(`The run "${run.name}" has ${results.boundaries.length} boundar${results.boundaries.length === 1 ? "y" : "ies"}; boundaryIndex ${params.boundaryIndex} is not one of them.`, {
           boundaryIndex: `Choose a boundary from 0 to ${results.boundaries.length - 1}`,
         });
       }
       const model = boundary.result.model;
-      if (!model) throw badRequest(`${boundary.label} has no fitted model to score with: ${boundary.result.modelNote ?? "no model was fitted"}`, { boundaryIndex: "This boundary has no fitted model" });
+      if (!model) throw invalidInput(`${boundary.label} has no fitted model to score with: ${boundary.result.modelNote ?? "no model was fitted"}`, { boundaryIndex: "This boundary has no fitted model" });
 
       // The run names each trait by key; the crosswalk pairs trait ids. Read values under the run's keys.
       const codebook = await loadCodebook(db, studyId);
@@ -112,7 +112,7 @@ export function createComparisonService(db: Database) {
       const unpaired = model.encoding.traits.filter((t) => !pairedKeys.has(t.key));
       if (unpaired.length) {
         const names = unpaired.map((t) => t.label).join(", ");
-        throw badRequest(`The run's model needs ${names}; pair ${unpaired.length === 1 ? "a list column with it" : "list columns with them"} in the crosswalk of "${list.name}" first.`, {
+        throw invalidInput(`The run's model needs ${names}; pair ${unpaired.length === 1 ? "a list column with it" : "list columns with them"} in the crosswalk of "${list.name}" first.`, {
           crosswalk: `No list column is paired with ${names}`,
         });
       }

@@ -8,8 +8,7 @@ import { codingDecisions, imports, taxa, traits, users } from "../../db/schema/i
 import { checkTraitValue, rangeProblem, sameValue } from "../../shared/csv/values";
 import type { Decision, DecisionList, DecisionListQuery, RevertResult } from "../../shared/schemas/decisions";
 import type { HistoryEntry, RangeEnd, TaxonHistory } from "../../shared/schemas/taxa";
-import { notFound } from "../http/errors";
-import { DetailedHttpError } from "../http/detailed";
+import { detailedError, notFound } from "../domain/errors";
 import {
   applySnapshot,
   fieldValue,
@@ -209,8 +208,7 @@ export async function revertDecisions(tx: Transaction, studyId: string, decision
       : conflicts.some((c) => c.kind === "not_revertible")
         ? "not_revertible"
         : "already_reverted";
-    throw new DetailedHttpError(
-      409,
+    throw detailedError("conflict",
       code,
       conflicts.length === 1
         ? `Nothing was reverted: ${conflicts[0].taxonName ? `${conflicts[0].taxonName}: ` : ""}${conflicts[0].message}`

@@ -7,7 +7,7 @@ import { studies } from "../../db/schema/index";
 import { csvRow } from "../../shared/csv/write";
 import { TAXON_CSV_COLUMNS, type TaxaExportQuery } from "../../shared/schemas/exports";
 import type { Trait } from "../../shared/schemas/traits";
-import { notFound } from "../http/errors";
+import { notFound } from "../domain/errors";
 import { loadCodebook, stateFromRow, type TaxonState } from "./taxonState";
 
 /** Rows read per query while streaming. */

@@ -31,8 +31,7 @@ import {
 } from "../../shared/schemas/imports";
 import type { Trait } from "../../shared/schemas/traits";
 import type { TraitValue } from "../../shared/schemas/taxa";
-import { badRequest, HttpError, notFound } from "../http/errors";
-import { DetailedHttpError } from "../http/detailed";
+import { detailedError, DomainError, invalidInput, notFound } from "../domain/errors";
 import { removingOnFailure, type UploadedFile } from "../http/uploads";
 import { revertDecisions } from "./decisions";
 import {
@@ -144,8 +143,7 @@ export function createImportService(db: Database) {
   }
 
   const notPreviewable = (row: ImportRow) =>
-    new HttpError(
-      409,
+    new DomainError("conflict",
       "import_closed",
       row.status === "committing"
         ? "This import is being committed right now."
@@ -223,14 +221,14 @@ export function createImportService(db: Database) {
     /** Reads the file multer stored in UPLOAD_DIR and keeps it as the upload's file; removes it when anything fails (no file without its import row). */
     upload(studyId: string, user: { id: string }, file: UploadedFile): Promise<ImportUpload> {
       return removingOnFailure(file, async () => {
-        if (file.size > IMPORT_MAX_BYTES) throw new HttpError(413, "too_large", "The file is larger than the upload limit of 50 MB.");
+        if (file.size > IMPORT_MAX_BYTES) throw new DomainError("too_large", "too_large", "The file is larger than the upload limit of 50 MB.");
         const content = await readFile(file.path);
         const bytes = new Uint8Array(content.buffer, content.byteOffset, content.byteLength);
         const notText = csvTextProblem(bytes);
-        if (notText) throw new HttpError(415, "not_csv_text", notText, { file: notText });
+        if (notText) throw new DomainError("unsupported_media", "not_csv_text", notText, { file: notText });
         const parsed = parseCsv(bytes);
-        if (parsed.header.length === 0) throw badRequest("The file is empty: it needs a header row and at least one row of data.", { file: "The file is empty" });
-        if (parsed.rows.length === 0) throw badRequest("The file has a header row but no data rows.", { file: "No data rows" });
+        if (parsed.header.length === 0) throw invalidInput("The file is empty: it needs a header row and at least one row of data.", { file: "The file is empty" });
+        if (parsed.rows.length === 0) throw invalidInput("The file has a header row but no data rows.", { file: "No data rows" });
         await sweepStaleUploads();
         const codebook = await loadCodebook(db, studyId);
         const [study] = await db.select({ settings: studies.settings }).from(studies).where(eq(studies.id, studyId));
@@ -352,14 +350,13 @@ export function createImportService(db: Database) {
           const existing = new Map((await taxaByName(tx, studyId, names, true)).map((s) => [s.name, s]));
           const checked = validate(parsed, input.mapping, codebook, existing);
           if (checked.problems.length && !input.skipInvalid) {
-            throw new DetailedHttpError(
-              400,
+            throw detailedError("invalid",
               "import_has_problems",
               `Nothing was imported: ${checked.invalidRowCount} of ${checked.rowCount} rows have problems. Correct them, or choose to skip invalid rows.`,
               { problems: checked.problems.slice(0, IMPORT_MAX_PROBLEMS_LISTED), problemCount: checked.problems.length },
             );
           }
-          if (checked.rows.length === 0) throw badRequest("No valid rows to import.", { file: "No valid rows" });
+          if (checked.rows.length === 0) throw invalidInput("No valid rows to import.", { file: "No valid rows" });
           const plans = checked.rows.map((r) => planRow(r, existing.get(r.name) ?? null));
           const created: TaxonState[] = [];
           const updated: TaxonState[] = [];
@@ -437,9 +434,9 @@ export function createImportService(db: Database) {
       } catch (err) {
         if (!claim.row) throw err;
         const message =
-          err instanceof HttpError ? err.message : isUniqueViolation(err) ? "A taxon of the same name was added meanwhile; preview again." : "The commit failed; nothing was written.";
+          err instanceof DomainError ? err.message : isUniqueViolation(err) ? "A taxon of the same name was added meanwhile; preview again." : "The commit failed; nothing was written.";
         await db.update(imports).set({ status: "previewed", progress: 0, failureReason: message }).where(eq(imports.id, importId));
-        if (isUniqueViolation(err)) throw new HttpError(409, "name_taken", message);
+        if (isUniqueViolation(err)) throw new DomainError("conflict", "name_taken", message);
         throw err;
       }
     },
@@ -450,7 +447,7 @@ export function createImportService(db: Database) {
         const locked = await tx.execute(sql`SELECT status, file_name FROM imports WHERE id = ${importId} AND study_id = ${studyId} AND target = 'taxa' FOR UPDATE`);
         const current = locked.rows[0] as { status: string; file_name: string } | undefined;
         if (!current) throw notFound("Import not found in this study.");
-        if (current.status !== "committed") throw new HttpError(409, "not_committed", current.status === "reverted" ? "This import was already reverted." : "Only a committed import can be reverted.");
+        if (current.status !== "committed") throw new DomainError("conflict", "not_committed", current.status === "reverted" ? "This import was already reverted." : "Only a committed import can be reverted.");
         const decisions = await tx
           .select()
           .from(codingDecisions)

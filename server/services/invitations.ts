@@ -3,7 +3,7 @@ import type { Database } from "../db";
 import { invitations, memberships, studies, users } from "../../db/schema/index";
 import { ROLE_LABELS, type StudyRole } from "../../shared/roles";
 import type { InvitationPreview } from "../../shared/schemas/studies";
-import { HttpError } from "../http/errors";
+import { DomainError } from "../domain/errors";
 import type { Mailer } from "../mail/mailer";
 import { invitationMail } from "../mail/templates";
 import { hashToken, newToken } from "./tokens";
@@ -11,7 +11,7 @@ import { addActivity } from "./activity";
 
 const INVITATION_TTL_MS = 7 * 24 * 3600 * 1000;
 
-const invalid = () => new HttpError(404, "invalid_invitation", "This invitation link is invalid, already used or expired. Ask the study lead for a new one.");
+const invalid = () => new DomainError("not_found", "invalid_invitation", "This invitation link is invalid, already used or expired. Ask the study lead for a new one.");
 
 export function createInvitationService(db: Database, mailer: Mailer, appUrl: string) {
   async function findLive(token: string) {
@@ -33,7 +33,7 @@ export function createInvitationService(db: Database, mailer: Mailer, appUrl: st
         .from(users)
         .innerJoin(memberships, and(eq(memberships.userId, users.id), eq(memberships.studyId, studyId)))
         .where(eq(users.email, email));
-      if (member.length) throw new HttpError(409, "already_member", `${email} is already a member of this study.`, { email: "Already a member" });
+      if (member.length) throw new DomainError("conflict", "already_member", `${email} is already a member of this study.`, { email: "Already a member" });
       const { token, hash } = newToken();
       const expiresAt = new Date(Date.now() + INVITATION_TTL_MS);
       const [row] = await db.insert(invitations).values({ studyId, email, role, tokenHash: hash, invitedBy: inviter.id, expiresAt }).returning();
@@ -65,8 +65,7 @@ export function createInvitationService(db: Database, mailer: Mailer, appUrl: st
         const [pending] = await tx.select().from(invitations).where(live).for("update");
         if (!pending) throw invalid();
         if (pending.email.toLowerCase() !== account.email.toLowerCase()) {
-          throw new HttpError(
-            403,
+          throw new DomainError("forbidden",
             "invitation_for_another_address",
             `This invitation is for ${pending.email}, and you are signed in as ${account.email}. Sign in with ${pending.email} (or create an account with it) to accept it.`,
           );

@@ -35,8 +35,7 @@ import {
   type ModernUploadSummary,
 } from "../../shared/schemas/modernLists";
 import type { Trait } from "../../shared/schemas/traits";
-import { badRequest, HttpError, notFound } from "../http/errors";
-import { DetailedHttpError } from "../http/detailed";
+import { detailedError, DomainError, invalidInput, notFound } from "../domain/errors";
 import { removingOnFailure, type UploadedFile } from "../http/uploads";
 import { loadCodebook } from "./taxonState";
 import { readStoredUpload, refuseMappingProblems } from "./storedUploads";
@@ -128,8 +127,7 @@ export function createModernListService(db: Database) {
   }
 
   const closed = (row: UploadRow) =>
-    new HttpError(
-      409,
+    new DomainError("conflict",
       "upload_closed",
       row.status === "committing"
         ? "This list is being saved right now."
@@ -216,14 +214,14 @@ export function createModernListService(db: Database) {
     /** Reads the file multer stored in UPLOAD_DIR and keeps it as the upload's file; removes it when anything fails. */
     upload(studyId: string, user: { id: string }, file: UploadedFile): Promise<ModernListUpload> {
       return removingOnFailure(file, async () => {
-        if (file.size > MODERN_LIST_MAX_BYTES) throw new HttpError(413, "too_large", `The file is larger than the upload limit of ${MODERN_LIST_MAX_LABEL}.`);
+        if (file.size > MODERN_LIST_MAX_BYTES) throw new DomainError("too_large", "too_large", `The file is larger than the upload limit of ${MODERN_LIST_MAX_LABEL}.`);
         const content = await readFile(file.path);
         const bytes = new Uint8Array(content.buffer, content.byteOffset, content.byteLength);
         const notText = csvTextProblem(bytes);
-        if (notText) throw new HttpError(415, "not_csv_text", notText, { file: notText });
+        if (notText) throw new DomainError("unsupported_media", "not_csv_text", notText, { file: notText });
         const parsed = parseCsv(bytes);
-        if (parsed.header.length === 0) throw badRequest("The file is empty: it needs a header row and at least one species.", { file: "The file is empty" });
-        if (parsed.rows.length === 0) throw badRequest("The file has a header row but no species rows.", { file: "No data rows" });
+        if (parsed.header.length === 0) throw invalidInput("The file is empty: it needs a header row and at least one species.", { file: "The file is empty" });
+        if (parsed.rows.length === 0) throw invalidInput("The file has a header row but no species rows.", { file: "No data rows" });
         const storedPath = file.path;
         await chmod(storedPath, 0o600);
         const fileName = file.originalname.replace(/[\\/]/g, "_").slice(0, 255) || "modern-list.csv";
@@ -289,14 +287,13 @@ export function createModernListService(db: Database) {
         refuseMappingProblems(modernMappingProblems(input.mapping, parsed.header));
         const checked = validateModernListRows(parsed, input.mapping);
         if (checked.problems.length && !input.skipInvalid) {
-          throw new DetailedHttpError(
-            400,
+          throw detailedError("invalid",
             "list_has_problems",
             `Nothing was saved: ${checked.invalidRowCount} of ${checked.rowCount} rows have problems. Correct them, or choose to leave the invalid rows out.`,
             { problems: checked.problems.slice(0, IMPORT_MAX_PROBLEMS_LISTED), problemCount: checked.problems.length },
           );
         }
-        if (checked.rows.length === 0) throw badRequest("No valid rows to save.", { file: "No valid rows" });
+        if (checked.rows.length === 0) throw invalidInput("No valid rows to save.", { file: "No valid rows" });
         const columnNames = input.mapping.traitColumns;
         const columns = listColumns(
           checked.rows.map((r) => r.traits),
@@ -341,7 +338,7 @@ export function createModernListService(db: Database) {
         await rm(row.storedPath!, { force: true });
         return detail(studyId, listId);
       } catch (err) {
-        const message = err instanceof HttpError ? err.message : "Saving the list failed; nothing was written.";
+        const message = err instanceof DomainError ? err.message : "Saving the list failed; nothing was written.";
         await db.update(imports).set({ status: "previewed", failureReason: message }).where(eq(imports.id, uploadId));
         throw err;
       }
@@ -368,7 +365,7 @@ export function createModernListService(db: Database) {
         traits,
         row.columns.map((c) => c.name),
       );
-      if (Object.keys(problems).length) throw badRequest(`The crosswalk does not fit: ${Object.values(problems).join("; ")}.`, problems);
+      if (Object.keys(problems).length) throw invalidInput(`The crosswalk does not fit: ${Object.values(problems).join("; ")}.`, problems);
       const [updated] = await db.transaction(async (tx) => {
         const result = await tx
           .update(modernLists)

@@ -9,7 +9,7 @@ import { RepeatingTask } from "../jobs/repeatingTask";
 import { memberships, notificationPreferences, notifications, studies, threadPosts, threads, users } from "../../db/schema/index";
 import { markdownExcerpt } from "../../shared/markdown";
 import type { NotificationList, NotificationListQuery, NotificationMode, NotificationPreference, NotificationPreferenceList } from "../../shared/schemas/notifications";
-import { notFound } from "../http/errors";
+import { notFound } from "../domain/errors";
 import type { JobQueue } from "../jobs/queue";
 import type { Mailer } from "../mail/mailer";
 import { mentionDigestMail, mentionMail, type DigestItem } from "../mail/templates";

@@ -33,8 +33,7 @@ import {
   type ThreeTimerRowDto,
 } from "../../shared/schemas/occurrences";
 import { timescaleStages } from "../../shared/timescale/index";
-import { badRequest, HttpError, notFound } from "../http/errors";
-import { DetailedHttpError } from "../http/detailed";
+import { detailedError, DomainError, invalidInput, notFound } from "../domain/errors";
 import { removingOnFailure, type UploadedFile } from "../http/uploads";
 import { readStoredUpload, refuseMappingProblems } from "./storedUploads";
 import {
@@ -175,8 +174,7 @@ export function createOccurrenceService(db: Database) {
   }
 
   const closed = (row: ImportRow) =>
-    new HttpError(
-      409,
+    new DomainError("conflict",
       "upload_closed",
       row.status === "committing"
         ? "This upload is being committed right now."
@@ -213,14 +211,14 @@ export function createOccurrenceService(db: Database) {
   return {
     upload(studyId: string, user: { id: string }, file: UploadedFile): Promise<OccurrenceUpload> {
       return removingOnFailure(file, async () => {
-        if (file.size > IMPORT_MAX_BYTES) throw new HttpError(413, "too_large", "The file is larger than the upload limit of 50 MB.");
+        if (file.size > IMPORT_MAX_BYTES) throw new DomainError("too_large", "too_large", "The file is larger than the upload limit of 50 MB.");
         const content = await readFile(file.path);
         const bytes = new Uint8Array(content.buffer, content.byteOffset, content.byteLength);
         const notText = csvTextProblem(bytes);
-        if (notText) throw new HttpError(415, "not_csv_text", notText, { file: notText });
+        if (notText) throw new DomainError("unsupported_media", "not_csv_text", notText, { file: notText });
         const parsed = parseCsv(bytes);
-        if (parsed.header.length === 0) throw badRequest("The file is empty: it needs a header row and at least one row of data.", { file: "The file is empty" });
-        if (parsed.rows.length === 0) throw badRequest("The file has a header row but no data rows.", { file: "No data rows" });
+        if (parsed.header.length === 0) throw invalidInput("The file is empty: it needs a header row and at least one row of data.", { file: "The file is empty" });
+        if (parsed.rows.length === 0) throw invalidInput("The file has a header row but no data rows.", { file: "No data rows" });
         await chmod(file.path, 0o600);
         const info: StoredUploadInfo = { columns: parsed.header, delimiter: parsed.delimiter };
         const fileName = file.originalname.replace(/[\\/]/g, "_").slice(0, 255) || "occurrences.csv";
@@ -298,14 +296,13 @@ export function createOccurrenceService(db: Database) {
           claim.row = row;
           const read = await readThrough(row, input.mapping, input.duplicates === "drop");
           if (read.problems.length && !input.skipInvalid) {
-            throw new DetailedHttpError(
-              400,
+            throw detailedError("invalid",
               "occurrences_have_problems",
               `Nothing was written: ${read.invalidRowCount} of ${read.rowCount} rows have problems (first: ${describeOccurrenceProblem(read.problems[0]!)}). Correct them, or choose to skip invalid rows.`,
               { problems: read.problems.slice(0, OCCURRENCE_MAX_PROBLEMS_LISTED), problemCount: read.problems.length },
             );
           }
-          if (read.rows.length === 0) throw badRequest("No valid rows to write.", { file: "No valid rows" });
+          if (read.rows.length === 0) throw invalidInput("No valid rows to write.", { file: "No valid rows" });
           for (let i = 0; i < read.rows.length; i += INSERT_CHUNK) {
             const chunk = read.rows.slice(i, i + INSERT_CHUNK);
             // One JSON document per statement with one-letter keys, unpacked by PostgreSQL (as taxonState writes taxa).
@@ -345,7 +342,7 @@ export function createOccurrenceService(db: Database) {
         return summary(studyId, uploadId);
       } catch (err) {
         if (!claim.row) throw err;
-        const message = err instanceof HttpError ? err.message : "The commit failed; nothing was written.";
+        const message = err instanceof DomainError ? err.message : "The commit failed; nothing was written.";
         await db.update(imports).set({ status: "previewed", progress: 0, failureReason: message }).where(eq(imports.id, uploadId));
         throw err;
       }
@@ -357,7 +354,7 @@ export function createOccurrenceService(db: Database) {
         const locked = await tx.execute(sql`SELECT status, file_name FROM imports WHERE id = ${uploadId} AND study_id = ${studyId} AND target = ${TARGET} FOR UPDATE`);
         const current = locked.rows[0] as { status: string; file_name: string } | undefined;
         if (!current) throw notFound("Occurrence upload not found in this study.");
-        if (current.status !== "committed") throw new HttpError(409, "not_committed", current.status === "reverted" ? "This upload was already reverted." : "Only a committed upload can be reverted.");
+        if (current.status !== "committed") throw new DomainError("conflict", "not_committed", current.status === "reverted" ? "This upload was already reverted." : "Only a committed upload can be reverted.");
         const deleted = await tx.execute(sql`DELETE FROM occurrences WHERE upload_id = ${uploadId}`);
         await tx.update(imports).set({ status: "reverted", revertedAt: new Date(), revertedBy: user.id }).where(eq(imports.id, uploadId));
         await recordActivity(tx, {
@@ -453,7 +450,7 @@ export function createOccurrenceService(db: Database) {
           const chosen = [...new Set(input.taxa.map((t) => t.trim()))];
           const unknown = chosen.filter((name) => !byName.has(name));
           if (unknown.length) {
-            throw badRequest(`No occurrences derive a range for ${unknown.length} chosen name(s), e.g. "${unknown[0]}"; preview again.`, { taxa: `Unknown: ${unknown.slice(0, 5).join(", ")}` });
+            throw invalidInput(`No occurrences derive a range for ${unknown.length} chosen name(s), e.g. "${unknown[0]}"; preview again.`, { taxa: `Unknown: ${unknown.slice(0, 5).join(", ")}` });
           }
           const uploads = await committedUploads(tx, studyId);
           const settings = `${input.ageMode === "midpoint" ? "midpoints of the dates" : "widest range the dates allow"}${input.maxSpanMyr !== null ? `, finds dated more coarsely than ${input.maxSpanMyr} Myr left out` : ""}`;
@@ -515,7 +512,7 @@ export function createOccurrenceService(db: Database) {
           return { batchId, changed: updated.length, created: created.length, unchanged, reason };
         });
       } catch (err) {
-        if (isUniqueViolation(err)) throw new HttpError(409, "name_taken", "A taxon of the same name was added meanwhile; preview again.");
+        if (isUniqueViolation(err)) throw new DomainError("conflict", "name_taken", "A taxon of the same name was added meanwhile; preview again.");
         throw err;
       }
     },

@@ -17,7 +17,7 @@ import {
   type OutcomesResult,
   type RatesResult,
 } from "../../shared/schemas/outcomes";
-import { badRequest, conflict, HttpError } from "../http/errors";
+import { conflict, DomainError, invalidInput } from "../domain/errors";
 
 /** Two boundary ages closer than this (Myr, about nine hours) are the same boundary. */
 const SAME_BOUNDARY_TOLERANCE = 1e-9;
@@ -259,12 +259,12 @@ export function createOutcomeService(db: Database) {
       let boundary: number;
       if (query.boundaryUnit !== undefined) {
         const unit = findUnit(query.boundaryUnit);
-        if (!unit) throw badRequest(`"${query.boundaryUnit}" is not a unit of the time scale.`, { boundaryUnit: "Not a unit of the time scale" });
+        if (!unit) throw invalidInput(`"${query.boundaryUnit}" is not a unit of the time scale.`, { boundaryUnit: "Not a unit of the time scale" });
         boundary = unit.base;
       } else if (query.boundary !== undefined) {
         boundary = query.boundary;
       } else {
-        throw badRequest("Choose a boundary: give boundary (an age in Ma) or boundaryUnit.", { boundary: "Required" });
+        throw invalidInput("Choose a boundary: give boundary (an age in Ma) or boundaryUnit.", { boundary: "Required" });
       }
 
       let window = query.window;
@@ -273,7 +273,7 @@ export function createOutcomeService(db: Database) {
         const stage = stageBelow(boundary);
         if (!stage) {
           const oldest = STAGES_OLDEST_FIRST[0];
-          throw badRequest(
+          throw invalidInput(
             `No stage of the time scale lies just below ${boundary} Ma (the oldest stage, the ${oldest.label}, begins at ${oldest.base} Ma), so there is no default window: give a window in Myr.`,
             { window: "Give a window in Myr: there is no stage below this boundary" },
           );
@@ -463,7 +463,7 @@ export function createOutcomeService(db: Database) {
           .select({ id: taxa.id })
           .from(taxa)
           .where(and(eq(taxa.id, input.taxonId), eq(taxa.studyId, studyId), isNull(taxa.deletedAt)));
-        if (!taxon) throw new HttpError(404, "not_found", "This study has no such taxon (it may have been deleted).", { taxonId: "No such taxon in this study" });
+        if (!taxon) throw new DomainError("not_found", "not_found", "This study has no such taxon (it may have been deleted).", { taxonId: "No such taxon in this study" });
         const { created, replaced } = await writeOverrides(tx, studyId, user, {
           boundaryMa: input.boundaryMa,
           reason: input.reason,
@@ -483,7 +483,7 @@ export function createOutcomeService(db: Database) {
           .select()
           .from(outcomeOverrides)
           .where(and(eq(outcomeOverrides.id, overrideId), eq(outcomeOverrides.studyId, studyId)));
-        if (!row) throw new HttpError(404, "not_found", "This study has no such override.");
+        if (!row) throw new DomainError("not_found", "not_found", "This study has no such override.");
         if (row.revokedAt) throw conflict(`This override was already revoked on ${row.revokedAt.toISOString().slice(0, 10)}.`);
         await revokeRows(tx, studyId, [row], user, reason, randomUUID());
         const [override] = await describeOverrides(tx, eq(outcomeOverrides.id, row.id));
@@ -524,7 +524,7 @@ export function createOutcomeService(db: Database) {
         });
         if (badRows.length) {
           const shown = badRows.slice(0, 10).join(", ");
-          throw badRequest(
+          throw invalidInput(
             `${badRows.length} row${badRows.length === 1 ? "" : "s"} of the outcome column name no taxon of this study, or name one twice ` +
               `(row${badRows.length === 1 ? "" : "s"} ${shown}${badRows.length > 10 ? ", ..." : ""}). Nothing was applied.`,
             fields,

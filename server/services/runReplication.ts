@@ -7,7 +7,7 @@ import { strToU8, zipSync } from "fflate";
 import { csvRow } from "../../shared/csv/write";
 import type { Run } from "../../shared/schemas/runs";
 import type { Database } from "../db";
-import { conflict } from "../http/errors";
+import { conflict } from "../domain/errors";
 import { readStudyData, type RunDataSources } from "./runs";
 import { runFileName } from "./runExport";
 

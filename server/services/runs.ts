@@ -28,7 +28,7 @@ import {
 import type { OutcomesResult } from "../../shared/schemas/outcomes";
 import type { ClassifiedTaxon } from "./outcomes";
 import type { Trait } from "../../shared/schemas/traits";
-import { badRequest, conflict, HttpError, notFound } from "../http/errors";
+import { conflict, DomainError, invalidInput, notFound } from "../domain/errors";
 import type { JobQueue } from "../jobs/queue";
 import { crisisCheck, crisisComparison, robustnessItems, robustnessPanels, robustnessResult, type RobustnessTaskOutput } from "./runChecks";
 import type { CrisisComparisonResult } from "../../shared/selectivity/index";
@@ -136,7 +136,7 @@ function traitSpecs(params: RunParams, codebook: Trait[]): TraitSpec[] {
     });
   });
   if (Object.keys(fields).length) {
-    throw badRequest(`The run's traits do not fit this study's codebook: ${Object.values(fields).join("; ")}.`, fields);
+    throw invalidInput(`The run's traits do not fit this study's codebook: ${Object.values(fields).join("; ")}.`, fields);
   }
   return specs;
 }
@@ -149,7 +149,7 @@ function checkWindows(params: RunParams): void {
       fields[`boundaries.${i}.windowMyr`] = `No stage of the time scale lies below ${b.boundaryMa} Ma, so there is no default window: give a window in Myr`;
     }
   });
-  if (Object.keys(fields).length) throw badRequest(`Give a window for ${Object.keys(fields).length === 1 ? "this boundary" : "these boundaries"}: ${Object.values(fields).join("; ")}.`, fields);
+  if (Object.keys(fields).length) throw invalidInput(`Give a window for ${Object.keys(fields).length === 1 ? "this boundary" : "these boundaries"}: ${Object.values(fields).join("; ")}.`, fields);
 }
 
 function boundaryLabel(given: string | undefined, result: OutcomesResult): string {
@@ -261,9 +261,9 @@ export async function readStudyData(
       ({ summary: result, taxa: classified } = await sources.outcomes.finalOutcomes(studyId, { boundary: b.boundaryMa, window: b.windowMyr }));
     } catch (err) {
       // Name the boundary of the run that the outcomes service refused.
-      if (err instanceof HttpError && err.status === 400) {
+      if (err instanceof DomainError && err.kind === "invalid") {
         const fields = Object.fromEntries(Object.entries(err.fields ?? {}).map(([k, v]) => [`boundaries.${i}.${k === "window" ? "windowMyr" : "boundaryMa"}`, v]));
-        throw badRequest(`Boundary ${i + 1}: ${err.message}`, fields);
+        throw invalidInput(`Boundary ${i + 1}: ${err.message}`, fields);
       }
       throw err;
     }
@@ -403,7 +403,7 @@ export function createRunService(db: Database, runtime: RunRuntime, sources: Run
         .update(runs)
         .set({ status: "failed", error: reason, finishedAt: sql`now()` })
         .where(and(eq(runs.id, run.id), eq(runs.attempt, run.attempt), eq(runs.status, "queued")));
-      throw new HttpError(503, "queue_unavailable", reason);
+      throw new DomainError("unavailable", "queue_unavailable", reason);
     }
   }
 

@@ -3,11 +3,11 @@
 import { readFile } from "node:fs/promises";
 import type { imports } from "../../db/schema/index";
 import { parseCsv, type CsvDelimiter, type ParsedCsv } from "../../shared/csv/parse";
-import { badRequest, HttpError } from "../http/errors";
+import { DomainError, invalidInput } from "../domain/errors";
 
 /** An upload's stored file, parsed again; 409 when the file is no longer kept. */
 export async function readStoredUpload(row: Pick<typeof imports.$inferSelect, "storedPath" | "mapping">): Promise<ParsedCsv> {
-  const gone = () => new HttpError(409, "file_gone", "The uploaded file is no longer kept; upload it again.");
+  const gone = () => new DomainError("conflict", "file_gone", "The uploaded file is no longer kept; upload it again.");
   if (!row.storedPath) throw gone();
   let bytes: Buffer;
   try {
@@ -22,6 +22,6 @@ export async function readStoredUpload(row: Pick<typeof imports.$inferSelect, "s
 /** 400 naming every field of the mapping that has a problem (as mapping.<field>). */
 export function refuseMappingProblems(problems: Record<string, string>): void {
   if (Object.keys(problems).length) {
-    throw badRequest(`Invalid mapping: ${Object.values(problems).join("; ")}`, Object.fromEntries(Object.entries(problems).map(([k, v]) => [`mapping.${k}`, v])));
+    throw invalidInput(`Invalid mapping: ${Object.values(problems).join("; ")}`, Object.fromEntries(Object.entries(problems).map(([k, v]) => [`mapping.${k}`, v])));
   }
 }

@@ -4,7 +4,7 @@ import { invitations, memberships, studies, traits, users } from "../../db/schem
 import { SUGGESTED_CODEBOOK } from "../../shared/codebook";
 import { ROLE_LABELS, type StudyRole } from "../../shared/roles";
 import type { Member, Study, StudyUpdateInput } from "../../shared/schemas/studies";
-import { HttpError, notFound } from "../http/errors";
+import { DomainError, notFound } from "../domain/errors";
 import { addActivity } from "./activity";
 
 type StudyRow = typeof studies.$inferSelect;
@@ -103,7 +103,7 @@ export function createStudyService(db: Database) {
             .from(memberships)
             .where(and(eq(memberships.studyId, studyId), eq(memberships.role, "owner")));
           if (owners <= 1) {
-            throw new HttpError(409, "last_owner", "A study must keep at least one study lead (owner). Make someone else owner first.");
+            throw new DomainError("conflict", "last_owner", "A study must keep at least one study lead (owner). Make someone else owner first.");
           }
         }
         if (newRole) await tx.update(memberships).set({ role: newRole }).where(and(eq(memberships.studyId, studyId), eq(memberships.userId, userId)));

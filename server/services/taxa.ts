@@ -20,8 +20,7 @@ import type {
 } from "../../shared/schemas/taxa";
 import { BULK_FIELDS, TAXA_MAX_BULK, taxonChangesSchema, type TaxaIds, type TaxaIdsQuery } from "../../shared/schemas/taxa";
 import type { Trait } from "../../shared/schemas/traits";
-import { badRequest, HttpError, notFound } from "../http/errors";
-import { DetailedHttpError } from "../http/detailed";
+import { detailedError, DomainError, invalidInput, notFound } from "../domain/errors";
 import {
   fieldValue,
   getTaxonState,
@@ -51,7 +50,7 @@ interface Person {
 }
 
 const nameTaken = (name: string) =>
-  new HttpError(409, "name_taken", `A taxon named "${name}" already exists in this study; names are unique within a study.`, { name: "This name is already used in this study" });
+  new DomainError("conflict", "name_taken", `A taxon named "${name}" already exists in this study; names are unique within a study.`, { name: "This name is already used in this study" });
 
 export function createTaxonService(db: Database, grid: TaxaGrid = createTaxaGrid(db)) {
   /** Checks and resolves the changes of an edit against the codebook; unchanged fields are dropped. */
@@ -90,7 +89,7 @@ export function createTaxonService(db: Database, grid: TaxaGrid = createTaxaGrid
       if (!r.ok) fields[`changes.values.${traitId}`] = r.message;
       else add(traitId, traitId, r.value);
     }
-    if (Object.keys(fields).length) throw badRequest(`Invalid changes: ${Object.values(fields).join("; ")}`, fields);
+    if (Object.keys(fields).length) throw invalidInput(`Invalid changes: ${Object.values(fields).join("; ")}`, fields);
     return out;
   }
 
@@ -101,7 +100,7 @@ export function createTaxonService(db: Database, grid: TaxaGrid = createTaxaGrid
       wanted.map((w) => ({ taxonId: state.id, field: w.field })),
     );
     const row = await taxonRowOf(tx, studyId, state);
-    return new DetailedHttpError(409, "version_conflict", `${state.name} was changed by someone else since you loaded it (now version ${state.version}). Compare the values and choose which to keep.`, {
+    return detailedError("conflict", "version_conflict", `${state.name} was changed by someone else since you loaded it (now version ${state.version}). Compare the values and choose which to keep.`, {
       currentVersion: state.version,
       taxon: row,
       conflicts: wanted.map((w) => {
@@ -140,7 +139,7 @@ export function createTaxonService(db: Database, grid: TaxaGrid = createTaxaGrid
       const codebook = loadCodebookById(db, studyId);
       const { ids, total } = await grid.page(studyId, { ...query, page: 1, pageSize: TAXA_MAX_BULK }, codebook);
       if (total > TAXA_MAX_BULK) {
-        throw badRequest(`${total.toLocaleString("en-US")} taxa match; one bulk edit takes at most ${TAXA_MAX_BULK.toLocaleString("en-US")}. Narrow the filter.`, {
+        throw invalidInput(`${total.toLocaleString("en-US")} taxa match; one bulk edit takes at most ${TAXA_MAX_BULK.toLocaleString("en-US")}. Narrow the filter.`, {
           filter: "Too many taxa match",
         });
       }
@@ -174,7 +173,7 @@ export function createTaxonService(db: Database, grid: TaxaGrid = createTaxaGrid
           const changes = resolveChanges(state, { fad: input.fad ?? null, lad: input.lad ?? null, values: input.values ?? {} }, codebook);
           for (const c of changes) setField(state, c.field, c.to);
           const problem = rangeProblem(fieldValue(state, "fad") as RangeEnd, fieldValue(state, "lad") as RangeEnd);
-          if (problem) throw badRequest(problem, { fad: problem });
+          if (problem) throw invalidInput(problem, { fad: problem });
           if ((await tx.execute(sql`SELECT 1 FROM taxa WHERE study_id = ${studyId} AND name = ${state.name} AND deleted_at IS NULL`)).rows.length) throw nameTaken(state.name);
           await insertTaxa(tx, studyId, [state], user.id);
           await insertDecisions(tx, studyId, user.id, [{ taxonId: state.id, field: "taxon", action: "create", oldValue: null, newValue: snapshotOf(state), reason: input.reason ?? "" }]);
@@ -207,7 +206,7 @@ export function createTaxonService(db: Database, grid: TaxaGrid = createTaxaGrid
           const replaced = resolved.filter((c) => !isEmptyValue(c.from));
           if (replaced.length && !input.reason) {
             const what = replaced.map((c) => (c.traitId ? codebook.get(c.traitId)!.label : c.field)).join(", ");
-            throw badRequest(`A reason is required when an existing value is replaced or cleared (${what}).`, { reason: `Say why ${what} changes` });
+            throw invalidInput(`A reason is required when an existing value is replaced or cleared (${what}).`, { reason: `Say why ${what} changes` });
           }
           if (changes.name !== undefined && changes.name !== state.name) {
             if ((await tx.execute(sql`SELECT 1 FROM taxa WHERE study_id = ${studyId} AND name = ${changes.name} AND deleted_at IS NULL AND id <> ${taxonId}`)).rows.length) {
@@ -216,7 +215,7 @@ export function createTaxonService(db: Database, grid: TaxaGrid = createTaxaGrid
           }
           for (const c of resolved) setField(state, c.field, c.to);
           const problem = rangeProblem(fieldValue(state, "fad") as RangeEnd, fieldValue(state, "lad") as RangeEnd);
-          if (problem) throw badRequest(problem, { [changes.fad !== undefined ? "changes.fad" : "changes.lad"]: problem });
+          if (problem) throw invalidInput(problem, { [changes.fad !== undefined ? "changes.fad" : "changes.lad"]: problem });
           await writeTaxa(tx, [state], user.id);
           const batchId = resolved.length > 1 ? newBatchId() : null;
           await insertDecisions(
@@ -258,34 +257,34 @@ export function createTaxonService(db: Database, grid: TaxaGrid = createTaxaGrid
         if ((BULK_FIELDS as readonly string[]).includes(field)) {
           what = field === "fad" ? "first appearance" : field === "lad" ? "last appearance" : field === "higherTaxon" ? "higher taxon" : "notes";
           if (field === "fad" || field === "lad") {
-            if (input.value !== null && (typeof input.value !== "object" || input.value === null)) throw badRequest(`${what} takes { ma } or { interval }`, { value: "Give { ma } or { interval }" });
+            if (input.value !== null && (typeof input.value !== "object" || input.value === null)) throw invalidInput(`${what} takes { ma } or { interval }`, { value: "Give { ma } or { interval }" });
             const r = resolveRangeEnd(input.value as never, field);
-            if (!r.ok) throw badRequest(r.message, { value: r.message });
+            if (!r.ok) throw invalidInput(r.message, { value: r.message });
             value = r.value;
           } else {
-            if (input.value !== null && typeof input.value !== "string") throw badRequest(`${what} takes a text`, { value: "Give a text" });
+            if (input.value !== null && typeof input.value !== "string") throw invalidInput(`${what} takes a text`, { value: "Give a text" });
             // The same checks as a single edit of the field (length, one line for the higher taxon).
             const checked = taxonChangesSchema.safeParse({ [field]: (input.value as string | null) ?? "" });
-            if (!checked.success) throw badRequest(checked.error.issues[0].message, { value: checked.error.issues[0].message });
+            if (!checked.success) throw invalidInput(checked.error.issues[0].message, { value: checked.error.issues[0].message });
             value = checked.data[field as "higherTaxon" | "notes"];
           }
         } else {
           const trait = codebook.get(field);
-          if (!trait) throw badRequest(`field must be a trait id of this study or one of ${BULK_FIELDS.join(", ")}`, { field: "Unknown field" });
+          if (!trait) throw invalidInput(`field must be a trait id of this study or one of ${BULK_FIELDS.join(", ")}`, { field: "Unknown field" });
           what = trait.label;
           traitId = trait.id;
           if (input.value === null) {
-            if (trait.retired) throw badRequest(`${trait.label} is retired: restore it in the codebook before editing its values`, { field: "Retired trait" });
+            if (trait.retired) throw invalidInput(`${trait.label} is retired: restore it in the codebook before editing its values`, { field: "Retired trait" });
             value = null;
           } else {
             const r = checkTraitValue(trait, input.value);
-            if (!r.ok) throw badRequest(r.message, { value: r.message });
+            if (!r.ok) throw invalidInput(r.message, { value: r.message });
             value = r.value;
           }
         }
         const states = (await lockTaxaById(tx, studyId, input.taxonIds)).filter((s) => s.deletedAt === null);
         if (states.length !== input.taxonIds.length) {
-          throw new HttpError(409, "selection_changed", `${input.taxonIds.length - states.length} of the selected taxa no longer exist in this study; reload and select again.`);
+          throw new DomainError("conflict", "selection_changed", `${input.taxonIds.length - states.length} of the selected taxa no longer exist in this study; reload and select again.`);
         }
         const changed: TaxonState[] = [];
         const decisions: NewDecision[] = [];
@@ -304,7 +303,7 @@ export function createTaxonService(db: Database, grid: TaxaGrid = createTaxaGrid
           decisions.push({ taxonId: s.id, traitId, field, action: "update", oldValue: from, newValue: value, reason: input.reason, batchId });
         }
         if (rangeProblems.length) {
-          throw badRequest(`The new ${what} would invert the range of ${rangeProblems.length} taxa: ${rangeProblems.slice(0, 5).join("; ")}${rangeProblems.length > 5 ? "; ..." : ""}`, {
+          throw invalidInput(`The new ${what} would invert the range of ${rangeProblems.length} taxa: ${rangeProblems.slice(0, 5).join("; ")}${rangeProblems.length > 5 ? "; ..." : ""}`, {
             value: "Inverts some ranges",
           });
         }

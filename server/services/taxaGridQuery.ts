@@ -11,7 +11,7 @@
 import type { TaxaColumnFilter, TaxaListQuery, TraitValue } from "../../shared/schemas/taxa";
 import { TAXON_AGE_COLUMNS, TAXON_TEXT_COLUMNS } from "../../shared/schemas/taxa";
 import type { Trait } from "../../shared/schemas/traits";
-import { badRequest } from "../http/errors";
+import { invalidInput } from "../domain/errors";
 
 /** One study's grid columns, row-aligned; removed rows stay as holes (alive false) until a reload. */
 export interface GridColumns {
@@ -79,7 +79,7 @@ const lowerOrNull = (v: string | null): string | null => (v === null ? null : v.
 
 function traitOf(codebook: Map<string, Trait>, id: string, what: string): Trait {
   const trait = codebook.get(id);
-  if (!trait) throw badRequest(`${what}: no trait of this study has the id ${id}`, { [what]: "Unknown trait" });
+  if (!trait) throw invalidInput(`${what}: no trait of this study has the id ${id}`, { [what]: "Unknown trait" });
   return trait;
 }
 
@@ -115,7 +115,7 @@ export function rowTest(
 
 function filterTest(columns: GridColumns, derived: GridDerived, f: TaxaColumnFilter, codebook: Map<string, Trait>): RowTest {
   const what = `filter ${f.column}:${f.op}`;
-  const notApplicable = () => badRequest(`${what}: ${f.op} does not apply to ${f.column}`, { filter: `${f.op} does not apply to ${f.column}` });
+  const notApplicable = () => invalidInput(`${what}: ${f.op} does not apply to ${f.column}`, { filter: `${f.op} does not apply to ${f.column}` });
   if (isTextColumn(f.column)) {
     const values = textColumn(columns, f.column);
     if (f.op === "eq") return (row) => values[row] === f.value;
@@ -132,7 +132,7 @@ function filterTest(columns: GridColumns, derived: GridDerived, f: TaxaColumnFil
     const ages = ageColumn(columns, f.column);
     const n = Number(f.value);
     if (f.op === "contains") throw notApplicable();
-    if (!Number.isFinite(n)) throw badRequest(`${what}: ${f.column} is an age in Ma; give a number`, { filter: `${f.column} takes a number` });
+    if (!Number.isFinite(n)) throw invalidInput(`${what}: ${f.column} is an age in Ma; give a number`, { filter: `${f.column} takes a number` });
     if (f.op === "eq") return (row) => ages[row] === n;
     if (f.op === "min") return (row) => ages[row] >= n;
     return (row) => ages[row] <= n;
@@ -142,13 +142,13 @@ function filterTest(columns: GridColumns, derived: GridDerived, f: TaxaColumnFil
   const values = traitColumn(columns, trait.id);
   if (trait.kind === "numeric") {
     const n = Number(f.value);
-    if (!Number.isFinite(n)) throw badRequest(`${what}: ${trait.label} is numeric; give a number`, { filter: `${trait.label} takes a number` });
+    if (!Number.isFinite(n)) throw invalidInput(`${what}: ${trait.label} is numeric; give a number`, { filter: `${trait.label} takes a number` });
     if (f.op === "eq") return (row) => values[row] === n;
     if (f.op === "min") return (row) => typeof values[row] === "number" && (values[row] as number) >= n;
     if (f.op === "max") return (row) => typeof values[row] === "number" && (values[row] as number) <= n;
-    throw badRequest(`${what}: ${trait.label} is numeric; use eq, min or max`, { filter: "Use eq, min or max on a numeric trait" });
+    throw invalidInput(`${what}: ${trait.label} is numeric; use eq, min or max`, { filter: "Use eq, min or max on a numeric trait" });
   }
-  if (f.op !== "eq") throw badRequest(`${what}: ${trait.label} has states; use eq with a state code`, { filter: "Use eq with a state code" });
+  if (f.op !== "eq") throw invalidInput(`${what}: ${trait.label} has states; use eq with a state code`, { filter: "Use eq with a state code" });
   return (row) => values[row] === f.value;
 }
 
@@ -159,7 +159,7 @@ function missingTest(columns: GridColumns, column: string, codebook: Map<string,
   if (column === "notes") return (row) => columns.notes[row] === "";
   if (column === "fadInterval") return (row) => columns.fadIntervals[row] === null;
   if (column === "ladInterval") return (row) => columns.ladIntervals[row] === null;
-  if (column === "name" || column === "updatedAt") throw badRequest(`missing=${column}: every taxon has a ${column}`, { missing: `Every taxon has a ${column}` });
+  if (column === "name" || column === "updatedAt") throw invalidInput(`missing=${column}: every taxon has a ${column}`, { missing: `Every taxon has a ${column}` });
   const values = traitColumn(columns, traitOf(codebook, column, "missing").id);
   return (row) => values[row] === undefined;
 }

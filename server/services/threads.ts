@@ -20,7 +20,7 @@ import {
   type ThreadSummary,
   type ThreadTargetType,
 } from "../../shared/schemas/threads";
-import { badRequest, conflict, forbidden, notFound } from "../http/errors";
+import { conflict, forbidden, invalidInput, notFound } from "../domain/errors";
 import { addActivity } from "./activity";
 import type { NotificationService } from "./notifications";
 import { decisionBriefs, describeTargets, keyOf, relatedDecisions } from "./threadTargets";
@@ -134,7 +134,7 @@ export function createThreadService(db: Database, notifications: NotificationSer
     const members = new Set(found.map((m) => m.userId));
     const strangers = unique.filter((id) => !members.has(id));
     if (strangers.length) {
-      throw badRequest(`Only members of the study can be mentioned; ${strangers.length === 1 ? "one mentioned id is" : `${strangers.length} mentioned ids are`} not a member.`, {
+      throw invalidInput(`Only members of the study can be mentioned; ${strangers.length === 1 ? "one mentioned id is" : `${strangers.length} mentioned ids are`} not a member.`, {
         mentions: `Not a member of this study: ${strangers.join(", ")}`,
       });
     }
@@ -203,7 +203,7 @@ export function createThreadService(db: Database, notifications: NotificationSer
       const target = (await describeTargets(db, studyId, [key])).get(keyOf(key))!;
       if (target.missing) {
         const what = { trait: "trait", taxon: "taxon", value: "taxon and trait", override: "outcome override", run: "run", comparison: "comparison" }[input.target.type];
-        throw badRequest(`The thread's target was not found: no ${what} of this study has this id.`, {
+        throw invalidInput(`The thread's target was not found: no ${what} of this study has this id.`, {
           [input.target.type === "value" && target.label.startsWith("a deleted trait") ? "target.traitId" : "target.id"]: `No ${what} of this study has this id`,
         });
       }
@@ -247,7 +247,7 @@ export function createThreadService(db: Database, notifications: NotificationSer
           .select({ id: codingDecisions.id })
           .from(codingDecisions)
           .where(and(eq(codingDecisions.studyId, studyId), eq(codingDecisions.id, decisionId)));
-        if (!decision) throw badRequest("The linked coding decision was not found in this study.", { decisionId: "No coding decision of this study has this id" });
+        if (!decision) throw invalidInput("The linked coding decision was not found in this study.", { decisionId: "No coding decision of this study has this id" });
       }
       await db.transaction(async (tx) => {
         const changed = await tx

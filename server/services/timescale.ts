@@ -3,7 +3,7 @@ import type { Database } from "../db";
 import { timescaleUnits } from "../../db/schema/index";
 import { TIMESCALE_CITATION, TIMESCALE_VERSION } from "../../shared/timescale/index";
 import type { Timescale, TimescaleUnitDto } from "../../shared/schemas/timescale";
-import { HttpError } from "../http/errors";
+import { DomainError } from "../domain/errors";
 
 type UnitRow = typeof timescaleUnits.$inferSelect;
 
@@ -39,7 +39,7 @@ export function createTimescaleService(db: Database) {
         .where(eq(timescaleUnits.version, TIMESCALE_VERSION))
         .orderBy(asc(timescaleUnits.sortOrder));
       if (rows.length === 0) {
-        throw new HttpError(503, "timescale_missing", `The time scale (ICS chart v${TIMESCALE_VERSION}) is not loaded in the database. Restart the server so that it seeds it.`);
+        throw new DomainError("unavailable", "timescale_missing", `The time scale (ICS chart v${TIMESCALE_VERSION}) is not loaded in the database. Restart the server so that it seeds it.`);
       }
       cached = { version: TIMESCALE_VERSION, citation: TIMESCALE_CITATION, units: rows.map(toUnit) };
       return cached;

@@ -7,8 +7,7 @@ import type { Database, DbOrTx } from "../db";
 import { traits } from "../../db/schema/index";
 import { traitDefinitionProblems, type Trait, type TraitCreateInput, type TraitList, type TraitUpdateInput, type TraitUpdateResult, type TraitUsage } from "../../shared/schemas/traits";
 import type { TraitKind } from "../../shared/codebook";
-import { badRequest, conflict, notFound } from "../http/errors";
-import { DetailedHttpError } from "../http/detailed";
+import { conflict, detailedError, invalidInput, notFound } from "../domain/errors";
 import { insertDecisions, loadCodebook, loadTrait, newBatchId, recordActivity, stateFromRow, toTrait, writeTaxa, type NewDecision, type TaxonState } from "./taxonState";
 
 const SAMPLE_SIZE = 10;
@@ -100,7 +99,7 @@ export function createTraitService(db: Database) {
         const problems = traitDefinitionProblems(merged);
         if (problems.length) {
           const fields = Object.fromEntries(problems.map((p) => [p.path.join("."), p.message]));
-          throw badRequest(`Invalid trait: ${problems.map((p) => p.message).join("; ")}`, fields);
+          throw invalidInput(`Invalid trait: ${problems.map((p) => p.message).join("; ")}`, fields);
         }
         if (input.key && input.key !== before.key) {
           const [taken] = await tx.select({ id: traits.id }).from(traits).where(and(eq(traits.studyId, studyId), eq(traits.key, input.key)));
@@ -114,7 +113,7 @@ export function createTraitService(db: Database) {
         if (!isStateKind(before.kind) && isStateKind(merged.kind)) {
           const held = await valueUsage(tx, studyId, traitId, sql`true`, false);
           if (held.length) {
-            throw new DetailedHttpError(409, "kind_in_use", `${held[0].count} taxa hold a number for ${label}; clear those values (or define a new trait) before making it ${merged.kind}.`, {
+            throw detailedError("conflict", "kind_in_use", `${held[0].count} taxa hold a number for ${label}; clear those values (or define a new trait) before making it ${merged.kind}.`, {
               affected: held.map((h) => ({ code: null, label: "numbers", count: h.count, sample: h.sample })),
             });
           }
@@ -127,12 +126,11 @@ export function createTraitService(db: Database) {
           for (const [from, to] of Object.entries(remap)) {
             if (to !== null && !newCodes.has(to)) remapProblems[`remap.${from}`] = `"${to}" is not a state of the changed trait`;
           }
-          if (Object.keys(remapProblems).length) throw badRequest(`Invalid remap: ${Object.values(remapProblems).join("; ")}`, remapProblems);
+          if (Object.keys(remapProblems).length) throw invalidInput(`Invalid remap: ${Object.values(remapProblems).join("; ")}`, remapProblems);
           const unmapped = orphaned.filter((u) => !(String(u.code) in remap));
           if (unmapped.length) {
             const stateLabel = (code: string) => before.states.find((s) => s.code === code)?.label ?? "";
-            throw new DetailedHttpError(
-              409,
+            throw detailedError("conflict",
               "states_in_use",
               `Taxa hold states this change removes (${unmapped.map((u) => `${u.code}: ${u.count}`).join(", ")}). Say where their values go with remap, e.g. { "${unmapped[0].code}": "<new code>" } or null to clear.`,
               { affected: unmapped.map((u) => ({ code: String(u.code), label: stateLabel(String(u.code)), count: u.count, sample: u.sample })) },
@@ -185,7 +183,7 @@ export function createTraitService(db: Database) {
             false,
           );
           if (outside.length) {
-            throw new DetailedHttpError(409, "values_out_of_range", `${outside[0].count} taxa hold values of ${label} that the new minimum, maximum or transform refuses; correct them first.`, {
+            throw detailedError("conflict", "values_out_of_range", `${outside[0].count} taxa hold values of ${label} that the new minimum, maximum or transform refuses; correct them first.`, {
               affected: outside.map((h) => ({ code: null, label: "values out of range", count: h.count, sample: h.sample })),
             });
           }
@@ -222,7 +220,7 @@ export function createTraitService(db: Database) {
         const missing = current.filter((t) => !given.has(t.id)).length;
         const unknown = traitIds.filter((id) => !known.has(id));
         if (unknown.length || missing || given.size !== traitIds.length) {
-          throw badRequest("traitIds must list every trait of the study exactly once, in the new order (retired ones too).", {
+          throw invalidInput("traitIds must list every trait of the study exactly once, in the new order (retired ones too).", {
             traitIds: unknown.length ? `${unknown.length} ids are not traits of this study` : missing ? `${missing} traits of the study are missing` : "A trait is listed twice",
           });
         }

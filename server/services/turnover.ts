@@ -20,7 +20,7 @@ import { MASS_EXTINCTION_TEACHING_THRESHOLD } from "../../shared/schemas/outcome
 import type { Trait } from "../../shared/schemas/traits";
 import { loadCodebook } from "./taxonState";
 import type { OutcomeService } from "./outcomes";
-import { badRequest } from "../http/errors";
+import { invalidInput } from "../domain/errors";
 
 const STAGES_OLDEST_FIRST = [...timescaleStages].reverse();
 /** Ages closer than this (Myr) are the same age. */
@@ -101,7 +101,7 @@ export function createTurnoverService(db: Database, outcomes: OutcomeService) {
       else if (query.splitBy !== undefined) {
         splitTrait = stateTraits.find((t) => t.key === query.splitBy) ?? null;
         if (!splitTrait) {
-          throw badRequest(`splitBy "${query.splitBy}" is neither "higherTaxon" nor the key of a trait with states in this study's codebook.`, {
+          throw invalidInput(`splitBy "${query.splitBy}" is neither "higherTaxon" nor the key of a trait with states in this study's codebook.`, {
             splitBy: 'Give "higherTaxon" or the key of a trait with states',
           });
         }

@@ -2,7 +2,7 @@ import { and, eq, gt, isNull, ne } from "drizzle-orm";
 import type { Database } from "../db";
 import { passwordResets, sessions, users } from "../../db/schema/index";
 import type { SignupInput, User } from "../../shared/schemas/auth";
-import { HttpError, notFound, unauthorized } from "../http/errors";
+import { DomainError, notFound } from "../domain/errors";
 import { dummyVerify, hashPassword, verifyPassword } from "../auth/password";
 import { hashToken, newToken } from "./tokens";
 
@@ -31,7 +31,7 @@ export function createUserService(db: Database) {
     async authenticate(email: string, password: string): Promise<User> {
       const row = await db.query.users.findFirst({ where: eq(users.email, email) });
       const ok = row ? await verifyPassword(row.passwordHash, password) : await dummyVerify(password);
-      if (!row || !ok) throw new HttpError(401, "invalid_credentials", "The e-mail or the password is not right.");
+      if (!row || !ok) throw new DomainError("unauthenticated", "invalid_credentials", "The e-mail or the password is not right.");
       return toUser(row);
     },
 
@@ -72,9 +72,9 @@ export function createUserService(db: Database) {
     /** Changing a password ends every other session of the user. */
     async changePassword(userId: string, currentSessionId: string, currentPassword: string, newPassword: string): Promise<void> {
       const row = await db.query.users.findFirst({ where: eq(users.id, userId) });
-      if (!row) throw unauthorized();
+      if (!row) throw new DomainError("unauthenticated", "unauthorized", "Sign in to continue.");
       if (!(await verifyPassword(row.passwordHash, currentPassword))) {
-        throw new HttpError(400, "validation_failed", "The current password is not right.", { currentPassword: "The current password is not right" });
+        throw new DomainError("invalid", "validation_failed", "The current password is not right.", { currentPassword: "The current password is not right" });
       }
       const passwordHash = await hashPassword(newPassword);
       await db.transaction(async (tx) => {
@@ -104,7 +104,7 @@ export function createUserService(db: Database) {
           .set({ usedAt: new Date() })
           .where(and(eq(passwordResets.tokenHash, hashToken(token)), isNull(passwordResets.usedAt), gt(passwordResets.expiresAt, new Date())))
           .returning();
-        if (!reset) throw new HttpError(400, "invalid_token", "This reset link is invalid, already used or older than one hour. Ask for a new one.");
+        if (!reset) throw new DomainError("invalid", "invalid_token", "This reset link is invalid, already used or older than one hour. Ask for a new one.");
         await tx.update(users).set({ passwordHash }).where(eq(users.id, reset.userId));
         await tx.update(sessions).set({ revokedAt: new Date() }).where(and(eq(sessions.userId, reset.userId), isNull(sessions.revokedAt)));
       });
