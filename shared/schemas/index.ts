@@ -18,3 +18,4 @@ export * from "./activity";
 export * from "./modernLists";
 export * from "./comparisons";
 export * from "./turnover";
+export * from "./importChecks";

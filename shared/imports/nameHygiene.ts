@@ -1,0 +1,69 @@
+// Names that differ only by case, spacing or punctuation ("Idiospira" and "idiospira ") are almost
+// always one taxon written two ways; imported as they are, they become two taxa (one may end up a
+// survivor, the other a victim). These helpers find such spellings and read one as another.
+import type { NameMerges, SimilarNames } from "../schemas/importChecks";
+
+/**
+ * The comparison key of a name: Unicode NFKC form, lower case, with every white-space,
+ * punctuation and symbol character removed. Two names with the same key differ only by case,
+ * spacing or punctuation.
+ * @example nameKey(" Idio-spira. ") // "idiospira"
+ */
+export function nameKey(name: string): string {
+  return name.normalize("NFKC").toLowerCase().replace(/[\s\p{P}\p{S}]/gu, "");
+}
+
+const FIRST_ROWS = 5;
+
+/**
+ * Groups of two or more distinct spellings with one key, among the file's names (with their rows)
+ * and the names the study's taxa already have. A group is listed only when the file uses at least
+ * one of its spellings. Spellings are listed study names first, then by file rows (most first).
+ * `merges` (spelling -> chosen spelling) fills each group's `mergedInto` when every spelling of
+ * the group is read as the same one.
+ * @example similarNames([{ row: 2, name: "idiospira" }], ["Idiospira"])
+ *   // [{ key: "idiospira", spellings: [Idiospira (in the study), idiospira (row 2)], mergedInto: null }]
+ */
+export function similarNames(fileNames: Iterable<{ row: number; name: string }>, studyNames: Iterable<string>, merges: NameMerges = {}): SimilarNames[] {
+  type Spelling = { name: string; fileRows: number; firstRows: number[]; inStudy: boolean };
+  const byKey = new Map<string, Map<string, Spelling>>();
+  const keyOf = new Map<string, string>();
+  const spelling = (name: string) => {
+    let key = keyOf.get(name);
+    if (key === undefined) keyOf.set(name, (key = nameKey(name)));
+    if (!key) return null;
+    let group = byKey.get(key);
+    if (!group) byKey.set(key, (group = new Map()));
+    let s = group.get(name);
+    if (!s) group.set(name, (s = { name, fileRows: 0, firstRows: [], inStudy: false }));
+    return s;
+  };
+  const inFile = new Set<string>();
+  for (const { row, name } of fileNames) {
+    if (!name) continue;
+    const s = spelling(name);
+    if (!s) continue;
+    s.fileRows++;
+    if (s.firstRows.length < FIRST_ROWS) s.firstRows.push(row);
+    inFile.add(keyOf.get(name)!);
+  }
+  for (const name of studyNames) {
+    const key = keyOf.get(name) ?? nameKey(name);
+    if (!inFile.has(key)) continue;
+    spelling(name)!.inStudy = true;
+  }
+  const groups: SimilarNames[] = [];
+  for (const [key, group] of byKey) {
+    if (group.size < 2 || !inFile.has(key)) continue;
+    const spellings = [...group.values()].sort((a, b) => Number(b.inStudy) - Number(a.inStudy) || b.fileRows - a.fileRows || (a.name < b.name ? -1 : 1));
+    const targets = new Set(spellings.map((s) => merges[s.name] ?? s.name));
+    const mergedInto = targets.size === 1 ? [...targets][0] : null;
+    groups.push({ key, spellings, mergedInto });
+  }
+  return groups.sort((a, b) => (a.key < b.key ? -1 : 1));
+}
+
+/** A name as the chosen merges read it: its chosen spelling, or itself. */
+export function mergedName(name: string, merges: NameMerges): string {
+  return Object.prototype.hasOwnProperty.call(merges, name) ? merges[name]! : name;
+}
