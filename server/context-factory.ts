@@ -6,6 +6,7 @@ import { startFakeSmtp, type FakeSmtp } from "./mail/fakeSmtp";
 import { createServices } from "./services";
 import { JobQueue } from "./jobs/queue";
 import { WorkerPool } from "./jobs/workerPool";
+import { registerRunJob } from "./services/runJob";
 
 export interface RunningContext extends AppContext {
   fakeSmtp: FakeSmtp | null;
@@ -27,7 +28,9 @@ export async function createContext(config: AppConfig): Promise<RunningContext> 
   const jobs = new JobQueue(config.databaseUrl);
   const workers = new WorkerPool();
   const services = createServices(database.db, mailer, config.appUrl, { jobs, workers, gridMaxTaxa: config.gridMaxTaxa });
-  // Every app process works the shared queue; the services registered their job kinds above.
+  // Every app process works the shared queue: the job kinds are declared before it starts (the
+  // run job here; the notification service declares its mail jobs when built).
+  registerRunJob(jobs, services.runs.job);
   await jobs.start({ work: config.jobWorkers });
   services.runs.startSweeping();
   services.imports.startSweeping();

@@ -1,7 +1,7 @@
 // Computations that run off the request thread. Each is a pure function of plain data (the
 // statistics never touch the database); `progress` reports a fraction in [0, 1] and a note.
 import { analyzeSelectivity, crisisComparison, type CrisisComparisonInput } from "../../shared/selectivity/index";
-import type { SelectivityTaskInput, SelectivityTaskOutput } from "../services/runs";
+import type { SelectivityTaskInput, SelectivityTaskOutput } from "../services/runAnalysis";
 import { robustnessPanels, type RobustnessTaskItem } from "../services/runChecks";
 
 export type ProgressReporter = (fraction: number, note?: string) => void;

@@ -18,7 +18,7 @@ import {
 import { DEFAULT_WINDOW_FACTORS, type RunCrisis, type RunRobustness } from "../../shared/schemas/runChecks";
 import type { RunParams } from "../../shared/schemas/runs";
 import { timescaleStages } from "../../shared/timescale/index";
-import type { RunDataSources, StudyData } from "./runs";
+import type { RunDataSources, StudyData } from "./runData";
 
 /** The worker task's input: null when the run asks for no crisis test (the reason says why). */
 export function crisisInput(read: StudyData, params: RunParams): { input: CrisisComparisonInput } | { reason: string } {

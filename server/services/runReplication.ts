@@ -8,7 +8,7 @@ import { csvRow } from "../../shared/csv/write";
 import type { Run } from "../../shared/schemas/runs";
 import type { Database } from "../db";
 import { conflict } from "../domain/errors";
-import { readStudyData, type RunDataSources } from "./runs";
+import { readStudyData, type RunDataSources } from "./runData";
 import { runFileName } from "./runExport";
 
 const RERUN_SCRIPT = readFileSync(new URL("../replication/rerun.R", import.meta.url), "utf8");

@@ -10,7 +10,7 @@ import { memberships, notifications, studies, outcomeOverrides, runs, taxa, thre
 import { castOfRoles, EVERYONE, tokenAgent, type Cast, type Who } from "./fixtures";
 import { codedImport, codedTaxon, codedTrait, uploadCsv } from "../support/traitTables";
 import { MATRIX_LIST_MAPPING, matrixComparison, matrixModernSetup, matrixModernUpload } from "../support/modernComparison";
-import { computeRunNow } from "../../server/services/runs";
+import { computeRunNow } from "../../server/services/runAnalysis";
 import { commitOccurrences, MATRIX_OCCURRENCES, uploadOccurrences } from "../support/occurrences";
 
 type Agent = Cast["anonymous"];

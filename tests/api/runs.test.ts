@@ -8,7 +8,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { and, eq, inArray, sql, type SQL } from "drizzle-orm";
 import { randomUUID } from "node:crypto";
 import PgBoss from "pg-boss";
-import { SELECTIVITY_RUN_JOB } from "../../server/services/runs";
+import { SELECTIVITY_RUN_JOB } from "../../server/services/runJob";
 import Papa from "papaparse";
 import { activity, runs, taxa, traits } from "../../db/schema/index";
 import { runParamsSchema, type Run, type RunDiff, type RunList, type RunParamsInput, type RunPreview } from "../../shared/schemas/runs";
