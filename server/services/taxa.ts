@@ -44,6 +44,7 @@ import {
   type TaxonState,
 } from "./taxonState";
 import { createTaxaGrid, type TaxaGrid } from "./taxaGrid";
+import { occurrenceCountsOf } from "./occurrenceCounts";
 
 interface Person {
   id: string;
@@ -123,11 +124,11 @@ export function createTaxonService(db: Database, grid: TaxaGrid = createTaxaGrid
       const codebook = loadCodebookById(db, studyId);
       // The filter, sort and count come from the study's grid copy; the page's rows are read fresh.
       const { ids, total } = await grid.page(studyId, query, codebook);
-      const [rows, threads] = await Promise.all([loadTaxaById(db, studyId, ids), openThreadsFor(db, studyId, ids)]);
+      const [rows, threads, counts] = await Promise.all([loadTaxaById(db, studyId, ids), openThreadsFor(db, studyId, ids), occurrenceCountsOf(db, studyId, ids)]);
       const found = new Map(rows.map((s) => [s.id, s]));
       const states = ids.map((id) => found.get(id)).filter((s): s is TaxonState => s !== undefined);
       return {
-        rows: states.map((s) => toTaxonRow(s, threads.get(s.id))),
+        rows: states.map((s) => ({ ...toTaxonRow(s, threads.get(s.id)), ...counts.get(s.id) })),
         total,
         page: query.page,
         pageSize: query.pageSize,

@@ -14,7 +14,7 @@ import { RepeatingTask } from "../jobs/repeatingTask";
 import type { TaxaListQuery, TraitValue } from "../../shared/schemas/taxa";
 import type { Trait } from "../../shared/schemas/traits";
 import { anyUuid } from "./taxonState";
-import { emptyColumns, GridDerived, pageOf, rowTest, type GridColumns } from "./taxaGridQuery";
+import { emptyColumns, GridDerived, isOccurrenceColumn, pageOf, rowTest, type GridColumns, type OccurrenceCounts } from "./taxaGridQuery";
 
 export interface TaxaGridOptions {
   /** Taxa kept in memory over all studies; the least recently used studies' copies go first. */
@@ -41,6 +41,8 @@ interface StudyEntry {
   running: Promise<void> | null;
   queued: Promise<void> | null;
   usedAt: number;
+  /** Finds and collections per name, read when a page is sorted by them and the uploads changed since. */
+  counts: OccurrenceCounts | null;
 }
 
 interface TaxonGridRow {
@@ -271,6 +273,33 @@ export function createTaxaGrid(db: Database, options: TaxaGridOptions = {}) {
 
   const pruner = new RepeatingTask("grid copy pruning", prune, PRUNE_EVERY_MS);
 
+  /**
+   * The study's counts of finds and collections per taxon name, read again only when its occurrence uploads
+   * changed. The signature lists every committed or reverted upload with its status: occurrence rows are
+   * written and removed in the transaction that sets that status, and a revert is final, so a signature
+   * never comes back and an order kept for it never goes stale.
+   */
+  async function occurrenceCounts(entry: StudyEntry): Promise<OccurrenceCounts> {
+    const signatureOf = sql`SELECT coalesce(string_agg(id::text || ':' || status, ',' ORDER BY id), '') FROM imports
+      WHERE study_id = ${entry.studyId} AND target = 'occurrences' AND status IN ('committed', 'reverted')`;
+    const [{ signature }] = (await db.execute(sql`SELECT (${signatureOf}) AS signature`)).rows as Array<{ signature: string }>;
+    if (entry.counts?.signature === signature) return entry.counts;
+    const res = await db.transaction(
+      (tx) =>
+        tx.execute(sql`SELECT (${signatureOf}) AS signature, taxon, count(*)::int AS occurrences,
+          count(DISTINCT collection) FILTER (WHERE collection <> '')::int AS collections
+          FROM occurrences WHERE study_id = ${entry.studyId} GROUP BY taxon`),
+      { isolationLevel: "repeatable read", accessMode: "read only" },
+    );
+    const rows = res.rows as Array<{ signature: string; taxon: string; occurrences: number; collections: number }>;
+    const counts: OccurrenceCounts = {
+      signature: rows[0]?.signature ?? signature,
+      byName: new Map(rows.map((r) => [r.taxon, { occurrences: r.occurrences, collections: r.collections }])),
+    };
+    entry.counts = counts;
+    return counts;
+  }
+
   async function taxaWithOpenThreads(studyId: string): Promise<Set<string>> {
     const res = await db.execute(sql`SELECT DISTINCT target_id FROM threads WHERE study_id = ${studyId} AND status = 'open' AND target_type IN ('taxon', 'value')`);
     return new Set(res.rows.map((r) => (r as { target_id: string }).target_id));
@@ -281,15 +310,16 @@ export function createTaxaGrid(db: Database, options: TaxaGridOptions = {}) {
     async page(studyId: string, query: TaxaListQuery, codebookSource: Map<string, Trait> | Promise<Map<string, Trait>>): Promise<{ ids: string[]; total: number }> {
       let entry = entries.get(studyId);
       if (!entry) {
-        entry = { studyId, copy: null, running: null, queued: null, usedAt: Date.now() };
+        entry = { studyId, copy: null, running: null, queued: null, usedAt: Date.now(), counts: null };
         entries.set(studyId, entry);
       }
       entry.usedAt = Date.now();
       // The codebook, the open threads and the copy's sync are read side by side. A sync that
       // finishes first can only be overtaken by a later one, which is newer still.
-      const [codebook, threads] = await Promise.all([
+      const [codebook, threads, counts] = await Promise.all([
         codebookSource,
         query.hasOpenThread === undefined ? null : taxaWithOpenThreads(studyId),
+        isOccurrenceColumn(query.sort) ? occurrenceCounts(entry) : null,
         current(entry),
       ]);
       // A copy dropped for memory while this request waited is read again.
@@ -297,7 +327,7 @@ export function createTaxaGrid(db: Database, options: TaxaGridOptions = {}) {
       // From here to the return nothing waits, so the copy cannot change underneath.
       const copy = entry.copy;
       const test = rowTest(copy.columns, copy.derived, query, codebook, threads);
-      const order = copy.derived.sortedOrder(query.sort, query.dir, codebook);
+      const order = copy.derived.sortedOrder(query.sort, query.dir, codebook, counts);
       const { rows, total } = pageOf(order, test, copy.columns.ids.length, (query.page - 1) * query.pageSize, query.pageSize);
       return { ids: rows.map((row) => copy.columns.ids[row]), total };
     },

@@ -9,7 +9,7 @@
 // numeric bounds are inclusive; a state sort follows the codebook's order of states. Text compares
 // by code units, as the C collation the bundled PostgreSQL cluster uses does for everyday text.
 import type { TaxaColumnFilter, TaxaListQuery, TraitValue } from "../../shared/schemas/taxa";
-import { TAXON_AGE_COLUMNS, TAXON_TEXT_COLUMNS } from "../../shared/schemas/taxa";
+import { TAXON_AGE_COLUMNS, TAXON_OCCURRENCE_COLUMNS, TAXON_TEXT_COLUMNS } from "../../shared/schemas/taxa";
 import type { Trait } from "../../shared/schemas/traits";
 import { invalidInput } from "../domain/errors";
 
@@ -32,9 +32,21 @@ export interface GridColumns {
 
 type TextColumn = (typeof TAXON_TEXT_COLUMNS)[number];
 type AgeColumn = (typeof TAXON_AGE_COLUMNS)[number];
+export type OccurrenceColumn = (typeof TAXON_OCCURRENCE_COLUMNS)[number];
 
 const isTextColumn = (c: string): c is TextColumn => (TAXON_TEXT_COLUMNS as readonly string[]).includes(c);
 const isAgeColumn = (c: string): c is AgeColumn => (TAXON_AGE_COLUMNS as readonly string[]).includes(c);
+export const isOccurrenceColumn = (c: string): c is OccurrenceColumn => (TAXON_OCCURRENCE_COLUMNS as readonly string[]).includes(c);
+
+/**
+ * Finds and distinct collections per taxon name, from the study's occurrences. They change with
+ * occurrence uploads, not with the taxa, so they live beside the copy: `signature` names the committed
+ * uploads they were counted from, and a sorted order by them is kept per signature.
+ */
+export interface OccurrenceCounts {
+  signature: string;
+  byName: Map<string, { occurrences: number; collections: number }>;
+}
 
 export function emptyColumns(): GridColumns {
   return {
@@ -137,7 +149,7 @@ function filterTest(columns: GridColumns, derived: GridDerived, f: TaxaColumnFil
     if (f.op === "min") return (row) => ages[row] >= n;
     return (row) => ages[row] <= n;
   }
-  if (f.column === "updatedAt") throw notApplicable();
+  if (f.column === "updatedAt" || isOccurrenceColumn(f.column)) throw notApplicable();
   const trait = traitOf(codebook, f.column, "filter");
   const values = traitColumn(columns, trait.id);
   if (trait.kind === "numeric") {
@@ -159,6 +171,7 @@ function missingTest(columns: GridColumns, column: string, codebook: Map<string,
   if (column === "notes") return (row) => columns.notes[row] === "";
   if (column === "fadInterval") return (row) => columns.fadIntervals[row] === null;
   if (column === "ladInterval") return (row) => columns.ladIntervals[row] === null;
+  if (isOccurrenceColumn(column)) throw invalidInput(`missing=${column}: every taxon has a count of ${column} (0 without any)`, { missing: `Every taxon has a count of ${column}` });
   if (column === "name" || column === "updatedAt") throw invalidInput(`missing=${column}: every taxon has a ${column}`, { missing: `Every taxon has a ${column}` });
   const values = traitColumn(columns, traitOf(codebook, column, "missing").id);
   return (row) => values[row] === undefined;
@@ -193,6 +206,7 @@ const MAX_KEPT_ORDERS = 8;
 export class GridDerived {
   private readonly lowered = new Map<TextColumn, Array<string | null>>();
   private readonly numbers = new Map<string, number[]>();
+  private readonly counted = new Map<OccurrenceColumn, { counts: OccurrenceCounts; keys: number[] }>();
   private readonly orders = new Map<string, KeptOrder>();
   private clock = 0;
 
@@ -221,7 +235,7 @@ export class GridDerived {
    * by name then id. Built from the name order by a stable sort on the key alone (or, for states, by
    * one bucket per state), so ties never compare names again.
    */
-  sortedOrder(sort: string, dir: "asc" | "desc", codebook: Map<string, Trait>): Int32Array {
+  sortedOrder(sort: string, dir: "asc" | "desc", codebook: Map<string, Trait>, counts: OccurrenceCounts | null = null): Int32Array {
     const { columns } = this;
     if (sort === "name") {
       const ascending = this.nameOrder();
@@ -229,8 +243,14 @@ export class GridDerived {
       const names = byName(columns);
       return this.kept("name:desc", (a, b) => names(b, a), () => ascending.slice().reverse()).rows;
     }
-    const trait = isTextColumn(sort) || isAgeColumn(sort) || sort === "updatedAt" ? null : traitOf(codebook, sort, "sort");
     const sign = dir === "asc" ? 1 : -1;
+    if (isOccurrenceColumn(sort)) {
+      if (!counts) throw new Error("sortedOrder: a sort by occurrence counts needs the counts");
+      // A taxon without finds counts 0 (not missing); an order is kept per set of uploads counted.
+      const keys = this.countKeys(sort, counts);
+      return this.keyed(`${sort}:${dir}:${counts.signature}`, () => false, (a, b) => sign * (keys[a] - keys[b])).rows;
+    }
+    const trait = isTextColumn(sort) || isAgeColumn(sort) || sort === "updatedAt" ? null : traitOf(codebook, sort, "sort");
     if (trait && trait.kind !== "numeric") {
       const codes = trait.states.map((s) => s.code);
       const place = new Map(codes.map((code, i) => [code, i]));
@@ -260,9 +280,20 @@ export class GridDerived {
     return keys;
   }
 
+  /** Each row's count (finds or collections) under one set of counts; a renamed row's is refreshed in rowsChanged. */
+  private countKeys(column: OccurrenceColumn, counts: OccurrenceCounts): number[] {
+    const held = this.counted.get(column);
+    if (held && held.counts === counts) return held.keys;
+    const keys = new Array<number>(this.columns.ids.length);
+    for (let row = 0; row < keys.length; row++) keys[row] = counts.byName.get(this.columns.names[row])?.[column] ?? 0;
+    this.counted.set(column, { counts, keys });
+    return keys;
+  }
+
   /** Brings every derived thing up to date after the given rows changed, were added or removed. */
   rowsChanged(rows: number[]): void {
     const touched = [...new Set(rows)];
+    for (const [column, { counts, keys }] of this.counted) for (const row of touched) keys[row] = counts.byName.get(this.columns.names[row])?.[column] ?? 0;
     for (const [column, lower] of this.lowered) {
       const values = textColumn(this.columns, column);
       for (const row of touched) lower[row] = lowerOrNull(values[row]);

@@ -151,6 +151,8 @@ export const taxonRowSchema = z
     version: z.number().int(),
     updatedAt: isoDateSchema,
     openThreads: openThreadsSchema,
+    occurrences: z.number().int().optional().meta({ description: "Finds of this taxon (occurrences whose taxon is this name); on grid pages only" }),
+    collections: z.number().int().optional().meta({ description: "Distinct collections among those finds; on grid pages only" }),
   })
   .meta({ id: "TaxonRow" });
 export type TaxonRow = z.infer<typeof taxonRowSchema>;
@@ -159,7 +161,9 @@ export type TaxonRow = z.infer<typeof taxonRowSchema>;
 
 export const TAXON_TEXT_COLUMNS = ["name", "higherTaxon", "notes", "fadInterval", "ladInterval"] as const;
 export const TAXON_AGE_COLUMNS = ["fadMa", "ladMa"] as const;
-export const TAXON_SORT_COLUMNS = [...TAXON_TEXT_COLUMNS, ...TAXON_AGE_COLUMNS, "updatedAt"] as const;
+/** Read-only counts from the study's occurrences: sortable, not filterable (like updatedAt). */
+export const TAXON_OCCURRENCE_COLUMNS = ["occurrences", "collections"] as const;
+export const TAXON_SORT_COLUMNS = [...TAXON_TEXT_COLUMNS, ...TAXON_AGE_COLUMNS, "updatedAt", ...TAXON_OCCURRENCE_COLUMNS] as const;
 export const FILTER_OPS = ["contains", "eq", "min", "max"] as const;
 export type FilterOp = (typeof FILTER_OPS)[number];
 

@@ -9,6 +9,7 @@ import request from "supertest";
 import { createTestApp, PASSWORD, type TestApp } from "../support/server";
 import { importCsv, studyWithCodebook, type CodebookStudy } from "../support/traitTables";
 import { castOfRoles, type Cast } from "./fixtures";
+import { commitOccurrences } from "../support/occurrences";
 import { createUniformSource } from "@shared/stats/random";
 import { randomUUID } from "node:crypto";
 import { createTaxaGrid } from "../../server/services/taxaGrid";
@@ -51,7 +52,25 @@ beforeAll(async () => {
   study = await studyWithCodebook(app, cast, "Invented grid-copy study");
   const { commit } = await importCsv(cast.people.coder.agent, study, inventedCsv());
   if (commit.status !== 200) throw new Error(`test setup: import ${commit.status} ${JSON.stringify(commit.body)}`);
+  const finds = await commitOccurrences(cast.people.coder.agent, study.studyId, await inventedFinds(), { fileName: "invented-grid-finds.csv" });
+  if (finds.commit.status !== 200) throw new Error(`test setup: occurrences ${finds.commit.status} ${JSON.stringify(finds.commit.body)}`);
 });
+
+/**
+ * Invented finds for about two taxa in three, 0 to 6 each, in 1 to 5 collections (some blank), so the
+ * counts have ties, zeros and a finds count that differs from the collections count.
+ */
+async function inventedFinds(): Promise<string> {
+  const random = createUniformSource(7177);
+  const names = (await app.ctx.db.execute(sql`SELECT name FROM taxa WHERE study_id = ${study.studyId} AND deleted_at IS NULL ORDER BY name`)).rows as Array<{ name: string }>;
+  const lines = ["taxon,max_ma,min_ma,collection"];
+  for (const { name } of names) {
+    if (random() < 0.33) continue;
+    const finds = Math.floor(random() * 7);
+    for (let i = 0; i < finds; i++) lines.push(`${name},${80 - i},${79 - i},${random() < 0.2 ? "" : `C${Math.floor(random() * 5)}`}`);
+  }
+  return lines.join("\n");
+}
 afterAll(() => app.close());
 
 interface GridQuery {
@@ -102,12 +121,19 @@ async function oracleIds(q: GridQuery): Promise<string[]> {
     else where.push(sql`NOT (t.trait_values ? ${m})`);
   }
   const sort = q.sort ?? "name";
+  // A taxon's finds are the occurrences of the study whose taxon is its name; collections distinct and non-empty.
+  const counted = {
+    occurrences: sql`(SELECT count(*) FROM occurrences o WHERE o.study_id = t.study_id AND o.taxon = t.name)`,
+    collections: sql`(SELECT count(DISTINCT o.collection) FROM occurrences o WHERE o.study_id = t.study_id AND o.taxon = t.name AND o.collection <> '')`,
+  };
   const trait = Object.values(study.trait).find((t) => t.id === sort);
   const key = trait
     ? trait.kind === "numeric"
       ? sql`(t.trait_values ->> ${trait.id})::float8`
       : sql`array_position(${`{${trait.states.map((s) => s.code).join(",")}}`}::text[], t.trait_values ->> ${trait.id})`
-    : sort in TEXT_COLUMNS
+    : sort === "occurrences" || sort === "collections"
+      ? counted[sort]
+      : sort in TEXT_COLUMNS
       ? sql`${TEXT_COLUMNS[sort]} COLLATE "C"`
       : sort === "fadMa"
         ? sql`t.fad_ma`
@@ -128,7 +154,7 @@ async function expectSameAsOracle(q: GridQuery): Promise<string[]> {
 describe("the grid copy answers what SQL over the table answers", () => {
   it("for every sort column in both directions, unfiltered", async () => {
     const t = study.trait;
-    for (const sort of ["name", "higherTaxon", "fadMa", "ladMa", "fadInterval", t.body_size.id, t.life_habit.id, t.environment.id]) {
+    for (const sort of ["name", "higherTaxon", "fadMa", "ladMa", "fadInterval", "occurrences", "collections", t.body_size.id, t.life_habit.id, t.environment.id]) {
       for (const dir of ["asc", "desc"] as const) await expectSameAsOracle({ sort, dir });
     }
   });
@@ -161,6 +187,56 @@ describe("the grid copy answers what SQL over the table answers", () => {
     expect(third.ids).toEqual(whole.slice(34, 51));
     const beyond = await gridIds(q, 99, 17);
     expect(beyond).toEqual({ ids: [], total: whole.length });
+  });
+});
+
+describe("the counts of finds and collections", () => {
+  it("each row of a page carries its taxon's finds and distinct collections, as SQL counts them", async () => {
+    const res = await cast.people.viewer.agent.get(`/api/studies/${study.studyId}/taxa?pageSize=500`);
+    expect(res.status).toBe(200);
+    const expected = await app.ctx.db.execute(sql`SELECT t.id,
+      (SELECT count(*) FROM occurrences o WHERE o.study_id = t.study_id AND o.taxon = t.name)::int AS occurrences,
+      (SELECT count(DISTINCT o.collection) FROM occurrences o WHERE o.study_id = t.study_id AND o.taxon = t.name AND o.collection <> '')::int AS collections
+      FROM taxa t WHERE t.study_id = ${study.studyId} AND t.deleted_at IS NULL`);
+    const byId = new Map((expected.rows as Array<{ id: string; occurrences: number; collections: number }>).map((r) => [r.id, r]));
+    const rows = res.body.rows as Array<{ id: string; occurrences: number; collections: number }>;
+    expect(rows.length).toBe(byId.size);
+    for (const row of rows) expect({ id: row.id, occurrences: row.occurrences, collections: row.collections }).toEqual(byId.get(row.id));
+    // The invented finds give zeros, several finds, and fewer collections than finds somewhere.
+    expect(rows.some((r) => r.occurrences === 0)).toBe(true);
+    expect(rows.some((r) => r.occurrences >= 3)).toBe(true);
+    expect(rows.some((r) => r.collections < r.occurrences && r.collections > 0)).toBe(true);
+  });
+
+  it("are read-only: a filter or a missing-value test on them is refused, naming the column", async () => {
+    const filtered = await cast.people.viewer.agent.get(`/api/studies/${study.studyId}/taxa?filter=occurrences:min:2`);
+    expect(filtered.status).toBe(400);
+    expect(filtered.body.error.message).toContain("filter occurrences:min: min does not apply to occurrences");
+    const missing = await cast.people.viewer.agent.get(`/api/studies/${study.studyId}/taxa?missing=collections`);
+    expect(missing.status).toBe(400);
+    expect(missing.body.error.message).toContain("collections");
+  });
+
+  it("a sort by them follows a new upload, its revert and a rename at once", async () => {
+    const [first] = (await app.ctx.db.execute(sql`SELECT name FROM taxa WHERE study_id = ${study.studyId} AND deleted_at IS NULL ORDER BY name COLLATE "C" DESC LIMIT 1`)).rows as Array<{ name: string }>;
+    await expectSameAsOracle({ sort: "occurrences", dir: "desc" });
+    const many = ["taxon,max_ma,min_ma,collection", ...Array.from({ length: 40 }, (_, i) => `${first.name},75,74,X${i}`)].join("\n");
+    const added = await commitOccurrences(cast.people.coder.agent, study.studyId, many, { fileName: "invented-many.csv" });
+    expect(added.commit.status, JSON.stringify(added.commit.body)).toBe(200);
+    const top = await expectSameAsOracle({ sort: "collections", dir: "desc" });
+    const [topName] = (await app.ctx.db.execute(sql`SELECT name FROM taxa WHERE id = ${top[0]}`)).rows as Array<{ name: string }>;
+    expect(topName.name).toBe(first.name);
+    await expectSameAsOracle({ sort: "occurrences", dir: "desc" });
+    // A rename takes the finds away from the row (they name the old name).
+    const [row] = (await app.ctx.db.execute(sql`SELECT id FROM taxa WHERE study_id = ${study.studyId} AND name = ${first.name}`)).rows as Array<{ id: string }>;
+    await app.ctx.db.execute(sql`UPDATE taxa SET name = ${`${first.name} renamed`} WHERE id = ${row.id}`);
+    await expectSameAsOracle({ sort: "occurrences", dir: "desc" });
+    await app.ctx.db.execute(sql`UPDATE taxa SET name = ${first.name} WHERE id = ${row.id}`);
+    await expectSameAsOracle({ sort: "occurrences", dir: "desc" });
+    const reverted = await cast.people.coder.agent.post(`/api/studies/${study.studyId}/occurrence-uploads/${added.uploadId}/revert`).send({});
+    expect(reverted.status, JSON.stringify(reverted.body)).toBe(200);
+    await expectSameAsOracle({ sort: "occurrences", dir: "desc" });
+    await expectSameAsOracle({ sort: "collections" });
   });
 });
 

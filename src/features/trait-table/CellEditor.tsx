@@ -19,6 +19,7 @@ const HINTS: Record<GridColumn["kind"], string> = {
   text: "Enter saves, Esc cancels",
   range: "An age in Ma or an interval name; empty clears",
   trait: "Enter saves, Esc cancels; empty clears",
+  count: "Counted from the occurrences; not editable",
 };
 
 /**

@@ -62,7 +62,8 @@ interface FilterBarProps {
 /** Name search, filters by any column or by missing values, and "has an open thread". */
 export function FilterBar(props: FilterBarProps) {
   const { columns, filters, missing, hasOpenThread, nameSearch } = props;
-  const filterable = columns;
+  // Counts of finds and collections sort but do not filter (the server refuses it).
+  const filterable = columns.filter((c) => c.kind !== "count");
   const [columnId, setColumnId] = useState(filterable[0]?.id ?? "name");
   const column = filterable.find((c) => c.id === columnId) ?? filterable[0];
   const conditions = column ? conditionsFor(column) : [];

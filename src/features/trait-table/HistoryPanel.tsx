@@ -33,6 +33,7 @@ const TAXON_LEVEL_NOTES: Record<string, string> = {
 };
 
 export function historyCellOf(column: GridColumn): HistoryCell {
+  if (column.kind === "count") throw new Error("historyCellOf: a count column has no history");
   return column.kind === "trait" ? { traitId: column.id } : { field: column.field as "name" | "higherTaxon" | "notes" | "fad" | "lad" };
 }
 
@@ -67,7 +68,7 @@ export function HistoryPanel({ studyId, row, column, traits, canRevert, onClose 
   const toast = useToast();
   const [reverting, setReverting] = useState<HistoryEntry | null>(null);
   const headingRef = useRef<HTMLHeadingElement>(null);
-  const field = column.kind === "trait" ? column.id : column.field;
+  const field = column.kind === "trait" || column.kind === "count" ? column.id : column.field;
 
   useEffect(() => {
     headingRef.current?.focus();

@@ -109,6 +109,8 @@ export interface TaxaGridProps {
   /** "asking" when the change waits for a reason first: the grid then stays on the cell. */
   onCommit: (row: TaxonRow, column: GridColumn, change: CellChange) => "sending" | "asking";
   onShowHistory: (row: TaxonRow, column: GridColumn) => void;
+  /** Opens the taxon's finds (from a Finds or Collections cell: Enter, or a click on the count). */
+  onShowFinds: (row: TaxonRow) => void;
   /** Traits with an open thread about the trait itself (its coding rule): their headers are marked. */
   openTraitThreads?: ReadonlySet<string>;
 }
@@ -126,7 +128,24 @@ function ThreadDot({ label }: { label: string }) {
   return <span className="ml-1.5 inline-block size-2 shrink-0 rounded-full bg-caution-700" role="img" aria-label={label} title={label} />;
 }
 
-function CellContent({ column, row }: { column: GridColumn; row: TaxonRow }) {
+function CellContent({ column, row, onShowFinds }: { column: GridColumn; row: TaxonRow; onShowFinds: (row: TaxonRow) => void }) {
+  if (column.kind === "count") {
+    const count = row[column.id];
+    if (count === undefined) return <MissingMark />;
+    return (
+      <button
+        type="button"
+        tabIndex={-1}
+        data-cell-value
+        onClick={() => onShowFinds(row)}
+        className="ml-auto rounded px-1 text-accent-800 tabular-nums underline decoration-dotted underline-offset-2 hover:bg-accent-50"
+        title={`Show the finds of ${row.name} on the time scale (Enter)`}
+      >
+        {count.toLocaleString("en-US")}
+        <span className="sr-only"> {column.id === "occurrences" ? "finds" : "collections"}: show the finds of {row.name}</span>
+      </button>
+    );
+  }
   const value = cellValue(column, row);
   const text = displayText(column, row);
   const threadOnValue = column.kind === "trait" && row.openThreads.traitIds.includes(column.id);
@@ -154,7 +173,7 @@ function CellContent({ column, row }: { column: GridColumn; row: TaxonRow }) {
  */
 export function TaxaGrid(props: TaxaGridProps) {
   const { columns, rows, rowOffset, total, sort, onSortChange, columnVisibility, rowSelection, onRowSelectionChange, canEdit, savingCells, stale } = props;
-  const { onCommit, onShowHistory, openTraitThreads } = props;
+  const { onCommit, onShowHistory, onShowFinds, openTraitThreads } = props;
   const scrollRef = useRef<HTMLDivElement>(null);
   const [active, setActive] = useState<ActiveCell>({ rowIndex: 0, columnId: "name" });
   const [editing, setEditing] = useState<{ initialText: string } | null>(null);
@@ -172,11 +191,11 @@ export function TaxaGrid(props: TaxaGridProps) {
             size: widthOf(gridColumn),
             enableHiding: gridColumn.id !== "name",
             meta: { grid: gridColumn },
-            cell: ({ row }) => <CellContent column={gridColumn} row={row.original} />,
+            cell: ({ row }) => <CellContent column={gridColumn} row={row.original} onShowFinds={onShowFinds} />,
           }),
         ),
       ]),
-    [columns, canEdit],
+    [columns, canEdit, onShowFinds],
   );
 
   const sorting: SortingState = useMemo(() => [{ id: sort.columnId, desc: sort.desc }], [sort.columnId, sort.desc]);
@@ -252,7 +271,7 @@ export function TaxaGrid(props: TaxaGridProps) {
     [rows.length, columnIds, virtualizer],
   );
 
-  const isEditable = (gc: GridColumn | null) => canEdit && gc !== null;
+  const isEditable = (gc: GridColumn | null) => canEdit && gc !== null && gc.kind !== "count";
 
   function startEdit(initialText?: string) {
     if (!activeRow || !isEditable(activeGridColumn) || !activeGridColumn) return;
@@ -278,10 +297,11 @@ export function TaxaGrid(props: TaxaGridProps) {
     else if (key === "End") moveTo(event.ctrlKey ? rows.length - 1 : rowIndex, columnIds.length - 1);
     else if (key === " " && (columnId === SELECT_COLUMN || event.shiftKey)) table.getRow(activeRow.id).toggleSelected();
     else if ((key === "Enter" || key === "F2") && columnId === SELECT_COLUMN) table.getRow(activeRow.id).toggleSelected();
+    else if (key === "Enter" && activeGridColumn?.kind === "count") onShowFinds(activeRow);
     else if (key === "Enter" || key === "F2") startEdit();
     // By the physical key: Option+H types another character on some keyboards.
-    else if (event.code === "KeyH" && event.altKey && activeGridColumn) onShowHistory(activeRow, activeGridColumn);
-    else if ((key === "Delete" || key === "Backspace") && activeGridColumn && canEdit && activeGridColumn.id !== "name") startEdit("");
+    else if (event.code === "KeyH" && event.altKey && activeGridColumn && activeGridColumn.kind !== "count") onShowHistory(activeRow, activeGridColumn);
+    else if ((key === "Delete" || key === "Backspace") && isEditable(activeGridColumn) && activeGridColumn?.id !== "name") startEdit("");
     else if (key.length === 1 && !event.ctrlKey && !event.metaKey && !event.altKey && key !== " " && isEditable(activeGridColumn)) startEdit(key);
     else handled = false;
     if (handled) event.preventDefault();
@@ -412,7 +432,7 @@ export function TaxaGrid(props: TaxaGridProps) {
                       id={cellDomId(row.id, colId)}
                       role="gridcell"
                       aria-colindex={index + 1}
-                      aria-readonly={!canEdit || colId === SELECT_COLUMN || undefined}
+                      aria-readonly={!canEdit || colId === SELECT_COLUMN || gc?.kind === "count" || undefined}
                       aria-busy={saving || undefined}
                       data-column={gc?.label ?? colId}
                       tabIndex={isActive && !isEditing ? 0 : -1}
@@ -421,7 +441,7 @@ export function TaxaGrid(props: TaxaGridProps) {
                         if (!isActive) setActive({ rowIndex: item.index, columnId: colId });
                       }}
                       onDoubleClick={() => {
-                        if (gc && canEdit) setEditing({ initialText: editText(gc, row.original) });
+                        if (gc && isEditable(gc)) setEditing({ initialText: editText(gc, row.original) });
                       }}
                       style={pinnedStyle(colId, false)}
                       className={cx(
@@ -435,7 +455,7 @@ export function TaxaGrid(props: TaxaGridProps) {
                       )}
                     >
                       {content}
-                      {isActive && !isEditing && gc && (
+                      {isActive && !isEditing && gc && gc.kind !== "count" && (
                         <button
                           type="button"
                           tabIndex={-1}

@@ -1,4 +1,4 @@
-import { useEffect, useMemo, useState } from "react";
+import { useCallback, useEffect, useMemo, useState } from "react";
 import type { ColumnVisibilityState, RowSelectionState, Updater } from "@tanstack/react-table";
 import { can, ROLE_LABELS } from "@shared/roles";
 import { TAXA_MAX_BULK, type TaxaColumnFilter, type TaxonRow } from "@shared/schemas/taxa";
@@ -26,6 +26,8 @@ import { FilterBar } from "./FilterBar";
 import { addFilter, gridQueryString, initialGridQuery, matchingQueryString, PAGE_SIZES, type GridQuery } from "./gridQuery";
 import { HistoryPanel } from "./HistoryPanel";
 import { Popover } from "../../components/Popover";
+import { ModalDialog } from "../../components/ModalDialog";
+import { TaxonFinds } from "../../components/TaxonFinds";
 import { TaxaGrid } from "./TaxaGrid";
 import { useCellEdits } from "./useCellEdits";
 
@@ -81,6 +83,8 @@ export function TraitTablePage() {
   const [rowSelection, setRowSelection] = useState<RowSelectionState>({});
   const [history, setHistory] = useState<{ row: TaxonRow; column: GridColumn } | null>(null);
   const [bulkOpen, setBulkOpen] = useState(false);
+  const [findsOf, setFindsOf] = useState<TaxonRow | null>(null);
+  const showFinds = useCallback((row: TaxonRow) => setFindsOf(row), []);
   const edits = useCellEdits(study.id, traitsById);
   const matching = useMatchingTaxonIds(study.id);
   const toast = useToast();
@@ -278,12 +282,14 @@ export function TraitTablePage() {
                 stale={page.isPlaceholderData}
                 onCommit={edits.commit}
                 onShowHistory={(row, column) => setHistory({ row, column })}
+                onShowFinds={showFinds}
                 openTraitThreads={openTraitThreads}
               />
               <div className="flex flex-wrap items-center justify-between gap-3">
                 <p className="text-sm text-stone-500">
                   <kbd className="font-sans font-semibold">Arrows</kbd> move · <kbd className="font-sans font-semibold">Enter</kbd> edits ·{" "}
                   <kbd className="font-sans font-semibold">Esc</kbd> cancels · <kbd className="font-sans font-semibold">Alt+H</kbd> shows the cell’s history ·{" "}
+                  <kbd className="font-sans font-semibold">Enter</kbd> on Finds shows the taxon’s finds ·{" "}
                   <kbd className="font-sans font-semibold">Shift+Space</kbd> selects the row
                 </p>
                 <nav aria-label="Pages of the table" className="flex flex-wrap items-center gap-2">
@@ -340,6 +346,28 @@ export function TraitTablePage() {
           }}
         />
       )}
+      <ModalDialog
+        open={findsOf !== null}
+        width="lg"
+        title={findsOf ? <>Finds of <span className="italic">{findsOf.name}</span></> : ""}
+        description="Each find's dates on the time scale, under the taxon's range as the table holds it."
+        onClose={() => setFindsOf(null)}
+      >
+        {findsOf && (
+          <div className="space-y-3">
+            <TaxonFinds
+              studyId={study.id}
+              taxon={findsOf.name}
+              range={findsOf.fadMa !== null && findsOf.ladMa !== null ? { fadMa: findsOf.fadMa, ladMa: findsOf.ladMa } : null}
+            />
+            <div className="flex justify-end">
+              <Button variant="secondary" onClick={() => setFindsOf(null)}>
+                Close
+              </Button>
+            </div>
+          </div>
+        )}
+      </ModalDialog>
       <BulkEditDialog
         open={bulkOpen}
         studyId={study.id}

@@ -35,7 +35,8 @@ export function useReplaceRow(studyId: string) {
   const queryClient = useQueryClient();
   return (row: TaxonRow) => {
     queryClient.setQueriesData<TaxaPage>({ queryKey: [...queryKeys.taxa.all(studyId), "page"] }, (page) =>
-      page && page.rows.some((r) => r.id === row.id) ? { ...page, rows: page.rows.map((r) => (r.id === row.id ? row : r)) } : page,
+      // A saved row carries no counts of finds: the page's are kept.
+      page && page.rows.some((r) => r.id === row.id) ? { ...page, rows: page.rows.map((r) => (r.id === row.id ? { ...r, ...row } : r)) } : page,
     );
   };
 }

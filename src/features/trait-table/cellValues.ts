@@ -11,13 +11,17 @@ export type TaxonField = "name" | "higherTaxon" | "fad" | "lad" | "notes";
 export type GridColumn =
   | { id: "name" | "higherTaxon" | "notes"; kind: "text"; label: string; sortId: string; field: TaxonField }
   | { id: "fad" | "lad"; kind: "range"; label: string; sortId: string; field: "fad" | "lad" }
-  | { id: string; kind: "trait"; label: string; sortId: string; trait: Trait };
+  | { id: string; kind: "trait"; label: string; sortId: string; trait: Trait }
+  /** Read-only counts from the study's occurrences; Enter or a click opens the taxon's finds. */
+  | { id: "occurrences" | "collections"; kind: "count"; label: string; sortId: string };
 
 export const TAXON_COLUMNS: GridColumn[] = [
   { id: "name", kind: "text", label: "Name", sortId: "name", field: "name" },
   { id: "higherTaxon", kind: "text", label: "Higher taxon", sortId: "higherTaxon", field: "higherTaxon" },
   { id: "fad", kind: "range", label: "First appearance", sortId: "fadMa", field: "fad" },
   { id: "lad", kind: "range", label: "Last appearance", sortId: "ladMa", field: "lad" },
+  { id: "occurrences", kind: "count", label: "Finds", sortId: "occurrences" },
+  { id: "collections", kind: "count", label: "Collections", sortId: "collections" },
 ];
 export const NOTES_COLUMN: GridColumn = { id: "notes", kind: "text", label: "Notes", sortId: "notes", field: "notes" };
 
@@ -65,6 +69,8 @@ export function cellValue(column: GridColumn, row: TaxonRow): unknown {
   switch (column.kind) {
     case "trait":
       return row.values[column.id] ?? null;
+    case "count":
+      return row[column.id] ?? null;
     case "range": {
       const ma = column.field === "fad" ? row.fadMa : row.ladMa;
       const interval = column.field === "fad" ? row.fadInterval : row.ladInterval;
@@ -79,6 +85,7 @@ export function displayText(column: GridColumn, row: TaxonRow): string {
   const value = cellValue(column, row);
   if (column.kind === "trait") return formatTraitValue(column.trait, value);
   if (column.kind === "range") return formatRangeEnd(value as RangeEnd);
+  if (column.kind === "count") return typeof value === "number" ? value.toLocaleString("en-US") : "";
   return String(value ?? "");
 }
 
@@ -151,6 +158,7 @@ export function readCellEdit(column: GridColumn, row: TaxonRow, text: string): C
       value: { changes: { [column.field]: toRangeInput(read.value) }, oldValue, newValue: read.value, newText: formatRangeEnd(read.value) },
     };
   }
+  if (column.kind === "count") return { ok: false, message: `${column.label} are counted from the study's occurrences and cannot be edited` };
   const next = text.trim();
   if (column.field === "name" && next === "") return { ok: false, message: "Name is required" };
   if (next === String(oldValue ?? "")) return { ok: true, value: null };

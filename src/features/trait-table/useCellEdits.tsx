@@ -18,7 +18,7 @@ interface PendingEdit {
 }
 
 const cellKey = (edit: PendingEdit) => `${edit.row.id}:${edit.column.id}`;
-const fieldOf = (column: GridColumn) => (column.kind === "trait" ? column.id : column.field);
+const fieldOf = (column: GridColumn) => (column.kind === "trait" || column.kind === "count" ? column.id : column.field);
 
 /**
  * Saving one cell: a reason is asked first when a recorded value is replaced or cleared; the edit

@@ -8,10 +8,10 @@ import { ErrorState } from "../../../components/ErrorState";
 import { LoadingState } from "../../../components/LoadingState";
 import { FormError, Notice } from "../../../components/Notice";
 import { Select } from "../../../components/Select";
+import { TaxonFinds } from "../../../components/TaxonFinds";
 import { TextField } from "../../../components/TextField";
 import { errorMessage } from "../../../lib/api";
 import { formatDateTime, formatMa, pluralize } from "../../../lib/format";
-import { TaxonOccurrences } from "./TaxonOccurrences";
 import { useApplyRanges, useOccurrenceUploads, usePreviewRanges, useRevertOccurrences, useRevertRanges } from "./api";
 
 const ma = (value: number | null) => (value === null ? "—" : formatMa(value));
@@ -153,7 +153,7 @@ export function RangesFromOccurrences({ studyId, role }: { studyId: string; role
                 </table>
               </div>
             )}
-            {shownTaxon && <TaxonOccurrences studyId={studyId} taxon={shownTaxon.taxon} range={shownTaxon} />}
+            {shownTaxon && <TaxonFinds studyId={studyId} taxon={shownTaxon.taxon} range={shownTaxon} />}
             {preview.data.withoutOccurrences.length > 0 && (
               <Notice title={`${pluralize(preview.data.withoutOccurrences.length, "taxon", "taxa")} of the table without any occurrence`}>
                 {preview.data.withoutOccurrences

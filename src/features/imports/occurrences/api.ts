@@ -5,7 +5,6 @@ import type { RevertResult } from "@shared/schemas/decisions";
 import type { ImportSummary } from "@shared/schemas/imports";
 import type {
   OccurrenceCommitInput,
-  OccurrenceList,
   OccurrenceMapping,
   OccurrencePreview,
   OccurrenceRevertResult,
@@ -116,14 +115,5 @@ export function useRevertRanges(studyId: string) {
     mutationFn: ({ batchId, reason }: { batchId: string; reason: string }) =>
       api.post<RevertResult>(studyApiPath(studyId, `/decisions/batches/${encodeURIComponent(batchId)}/revert`), { reason }),
     onSuccess: refresh,
-  });
-}
-
-/** GET /api/studies/:studyId/occurrences?taxon: one taxon's finds, oldest first. */
-export function useTaxonOccurrences(studyId: string, taxon: string | null) {
-  return useQuery({
-    queryKey: [...occurrenceKeys.all(studyId), "taxon", taxon ?? ""] as const,
-    queryFn: ({ signal }) => api.get<OccurrenceList>(`${studyApiPath(studyId, "/occurrences")}?taxon=${encodeURIComponent(taxon ?? "")}`, signal),
-    enabled: taxon !== null,
   });
 }
