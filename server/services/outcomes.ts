@@ -8,7 +8,7 @@ import type { Database, DbOrTx, Transaction } from "../db";
 import { codingDecisions, outcomeOverrides, taxa, users } from "../../db/schema/index";
 import { classifyAcrossBoundary, outcomeWarnings, rangeProblem, ratesThroughTime, type BoundaryOutcome, type WarningGroup } from "../../shared/outcomes/index";
 import { wilsonInterval } from "../../shared/stats/index";
-import { findUnit, RANK_ORDER, stageBelow, TIMESCALE_VERSION, timescaleStages, timescaleUnits } from "../../shared/timescale/index";
+import { defaultWindowBelow, findUnit, RANK_ORDER, TIMESCALE_VERSION, timescaleStages, timescaleUnits } from "../../shared/timescale/index";
 import {
   BOUNDARY_OUTCOMES,
   MASS_EXTINCTION_TEACHING_THRESHOLD,
@@ -270,16 +270,18 @@ export function createOutcomeService(db: Database) {
       let window = query.window;
       let windowDefaultFrom: OutcomesResult["windowDefaultFrom"] = null;
       if (window === undefined) {
-        const stage = stageBelow(boundary);
-        if (!stage) {
+        const fallback = defaultWindowBelow(boundary);
+        if (!fallback) {
           const oldest = STAGES_OLDEST_FIRST[0];
           throw invalidInput(
             `No stage of the time scale lies just below ${boundary} Ma (the oldest stage, the ${oldest.label}, begins at ${oldest.base} Ma), so there is no default window: give a window in Myr.`,
             { window: "Give a window in Myr: there is no stage below this boundary" },
           );
         }
-        window = stage.duration;
-        windowDefaultFrom = { name: stage.name, label: stage.label, base: stage.base, top: stage.top, duration: stage.duration };
+        // Down to the base of the stage the boundary falls in: a custom age inside a stage does not reach past it.
+        const { stage } = fallback;
+        window = fallback.windowMyr;
+        windowDefaultFrom = { name: stage.name, label: stage.label, base: stage.base, top: stage.top, duration: stage.duration, wholeStage: fallback.wholeStage };
       }
 
       const rows = await loadRanges(studyId);

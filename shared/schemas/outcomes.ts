@@ -142,9 +142,16 @@ export const outcomesResultSchema = z
       .meta({ description: "Units of the time scale whose base is the boundary, broadest first (empty for a custom age between bases)" }),
     window: z.number().meta({ description: "Window below the boundary in Myr" }),
     windowDefaultFrom: z
-      .object({ name: z.string(), label: z.string(), base: z.number(), top: z.number(), duration: z.number() })
+      .object({
+        name: z.string(),
+        label: z.string(),
+        base: z.number(),
+        top: z.number(),
+        duration: z.number(),
+        wholeStage: z.boolean().meta({ description: "True when the boundary is the stage's top (the window is its duration); false for an age inside the stage (the window reaches down to its base)" }),
+      })
       .nullable()
-      .meta({ description: "The stage whose duration gave the window, when no window was given; null when the window was given" }),
+      .meta({ description: "The stage whose base ends the default window (the stage the boundary falls in), when no window was given; null when the window was given" }),
     timescaleVersion: z.string(),
     counts: countsSchema.meta({ description: "Final outcomes, after overrides" }),
     computedCounts: countsSchema.meta({ description: "Outcomes from the ranges alone, before overrides" }),

@@ -85,6 +85,15 @@ describe("GET /api/studies/:studyId/outcomes", () => {
     ({ studyId } = await inventedStudy());
   });
 
+  it("gives a custom age inside a stage the distance to that stage's base as its default window, not the stage's duration", async () => {
+    const res = await cast.people.viewer.agent.get(`/api/studies/${studyId}/outcomes?boundary=68`);
+    expect(res.status, JSON.stringify(res.body)).toBe(200);
+    // ICS v2024/12 (Cohen, Harper, Gibbard & Car 2025, Episodes 48: 105-115): 68 Ma lies in the Maastrichtian (72.2-66.0 Ma),
+    // so the window reaches its base: 72.2 - 68 = 4.2 Myr (the stage's 6.2 Myr would run to 74.2 Ma, into the Campanian).
+    expect(res.body.window).toBeCloseTo(4.2, 9);
+    expect(res.body.windowDefaultFrom).toMatchObject({ name: "Maastrichtian", base: 72.2, top: 66, wholeStage: false });
+  });
+
   it("classifies the hand-worked taxa at 66 Ma with the Maastrichtian's duration as the default window", async () => {
     const res = await cast.people.viewer.agent.get(`/api/studies/${studyId}/outcomes?boundary=66`);
     expect(res.status, JSON.stringify(res.body)).toBe(200);
@@ -92,7 +101,7 @@ describe("GET /api/studies/:studyId/outcomes", () => {
     expect(body.boundary).toBe(66);
     // ICS v2024/12 (Cohen, Harper, Gibbard & Car 2025, Episodes 48: 105-115): Maastrichtian 72.2-66.0 Ma -> 6.2 Myr.
     expect(body.window).toBeCloseTo(6.2, 9);
-    expect(body.windowDefaultFrom).toMatchObject({ name: "Maastrichtian", base: 72.2, top: 66 });
+    expect(body.windowDefaultFrom).toMatchObject({ name: "Maastrichtian", base: 72.2, top: 66, wholeStage: true });
     expect(body.counts).toEqual({ survivor: 3, victim: 4, excluded: 5, total: 12 });
     expect(body.computedCounts).toEqual(body.counts);
     expect(body.overridesApplied).toBe(0);

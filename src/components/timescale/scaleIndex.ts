@@ -1,6 +1,7 @@
 // Lookups over the time scale the API serves: a unit's period and epoch, the units of one rank
 // inside another, and the units around an age (for the strip that shows where a boundary sits).
 import { findUnit } from "@shared/timescale/lookup";
+import { windowToStageBase, type DefaultWindow } from "@shared/timescale/defaultWindow";
 import type { TimescaleRankName, TimescaleUnitDto } from "@shared/schemas/timescale";
 
 /** Two ages closer than this (Myr, under an hour) are the same age; matches the server's tolerance. */
@@ -22,6 +23,8 @@ export interface ScaleIndex {
   stageBelow(age: number): TimescaleUnitDto | undefined;
   /** Units whose base is this age, broadest first. */
   withBase(age: number): TimescaleUnitDto[];
+  /** The default window below a boundary: down to the base of the stage it falls in (as the server applies it). */
+  defaultWindow(age: number): DefaultWindow<TimescaleUnitDto> | undefined;
 }
 
 const key = (name: string, rank: TimescaleRankName) => `${rank}:${name}`;
@@ -64,6 +67,10 @@ export function indexScale(units: readonly TimescaleUnitDto[]): ScaleIndex {
     },
     stageBelow(age) {
       return stages.find((s) => s.top <= age + SAME_AGE && age < s.base - SAME_AGE);
+    },
+    defaultWindow(age) {
+      const stage = stages.find((s) => s.top <= age + SAME_AGE && age < s.base - SAME_AGE);
+      return stage ? windowToStageBase(age, stage) : undefined;
     },
     withBase(age) {
       return units

@@ -63,7 +63,7 @@ export function BoundaryPage() {
   const boundary = view.choice?.kind === "age" ? view.choice.age : (chosenUnit?.base ?? null);
   const result = outcomes.data && !outcomes.isPlaceholderData ? outcomes.data : undefined;
   const chart = <RatesChart studyId={study.id} boundary={boundary} />;
-  const windowInEffect = result?.window ?? view.window ?? (boundary !== null && scale ? (scale.stageBelow(boundary)?.duration ?? null) : null);
+  const windowInEffect = result?.window ?? view.window ?? (boundary !== null && scale ? (scale.defaultWindow(boundary)?.windowMyr ?? null) : null);
 
   return (
     <>

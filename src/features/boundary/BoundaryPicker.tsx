@@ -2,6 +2,7 @@ import { useState } from "react";
 import { z } from "zod";
 import { boundaryMaSchema, outcomesQuerySchema } from "@shared/schemas/outcomes";
 import type { Timescale, TimescaleUnitDto } from "@shared/schemas/timescale";
+import type { DefaultWindow } from "@shared/timescale/defaultWindow";
 import { Button } from "../../components/Button";
 import { Card } from "../../components/Card";
 import { TextField } from "../../components/TextField";
@@ -44,7 +45,7 @@ export function BoundaryPicker(props: BoundaryPickerProps) {
     setModeChoice(null);
     onChoose(next);
   };
-  const defaultStage = boundary === null ? undefined : scale.stageBelow(boundary);
+  const defaultWindow = boundary === null ? undefined : scale.defaultWindow(boundary);
 
   return (
     <Card
@@ -68,7 +69,7 @@ export function BoundaryPicker(props: BoundaryPickerProps) {
       <WindowForm
         key={windowParam ?? "default"}
         windowParam={windowParam}
-        defaultStage={defaultStage}
+        defaultWindow={defaultWindow}
         disabled={choice === null}
         onApply={onWindow}
       />
@@ -101,21 +102,28 @@ function CustomAgeForm({ initialAge, onApply }: { initialAge: number | undefined
   );
 }
 
+/** What the empty window means: a whole stage's duration, or the distance down to the base of the stage a custom age falls in. */
+function defaultWindowWords(defaultWindow: DefaultWindow<TimescaleUnitDto> | undefined): string {
+  if (!defaultWindow) return "the duration of the stage just below the boundary";
+  const { stage, windowMyr, wholeStage } = defaultWindow;
+  return wholeStage
+    ? `the ${stage.label}’s duration, ${formatMyr(windowMyr)}`
+    : `the distance down to the base of the ${stage.label}, the stage this age falls in, ${formatMyr(windowMyr)} (not the stage’s whole ${formatMyr(stage.duration)}, which would run past its base)`;
+}
+
 function WindowForm({
   windowParam,
-  defaultStage,
+  defaultWindow,
   disabled,
   onApply,
 }: {
   windowParam: number | undefined;
-  defaultStage: TimescaleUnitDto | undefined;
+  defaultWindow: DefaultWindow<TimescaleUnitDto> | undefined;
   disabled: boolean;
   onApply: (window: number | undefined) => void;
 }) {
   const form = useZodForm(windowFormSchema, { window: windowParam === undefined ? "" : String(windowParam) });
-  const defaultWords = defaultStage
-    ? `the ${defaultStage.label}’s duration, ${formatMyr(defaultStage.duration)}`
-    : "the duration of the stage just below the boundary";
+  const defaultWords = defaultWindowWords(defaultWindow);
   return (
     <form noValidate onSubmit={form.handleSubmit((data) => onApply(data.window))} className="mt-6 flex flex-wrap items-start gap-3">
       <TextField
@@ -123,7 +131,7 @@ function WindowForm({
         inputMode="decimal"
         autoComplete="off"
         disabled={disabled}
-        placeholder={defaultStage ? formatAgeNumber(defaultStage.duration) : undefined}
+        placeholder={defaultWindow ? formatAgeNumber(defaultWindow.windowMyr) : undefined}
         hint={windowParam === undefined ? `Empty: the default, ${defaultWords}.` : `Default: ${defaultWords}. Any length is allowed.`}
         className="w-full sm:w-[26rem]"
         {...form.field("window")}

@@ -17,13 +17,18 @@ const TILE_NOTE: Record<BoundaryOutcomeName, string> = {
   excluded: "not counted in the proportion",
 };
 
+/** Where a default window came from: a whole stage, or the part of a stage below a custom age. */
+function defaultWindowSource(from: NonNullable<OutcomesResult["windowDefaultFrom"]>): string {
+  return from.wholeStage === false ? `down to the base of the ${from.label}, the stage this age falls in` : `the ${from.label}’s duration`;
+}
+
 /** Counts of each group and the proportional extinction with its Wilson interval. */
 export function OutcomeSummary({ result, refreshing }: { result: OutcomesResult; refreshing: boolean }) {
   const { counts, computedCounts, proportionalExtinction: pe } = result;
   return (
     <Card
       title="Outcomes across the boundary"
-      description={`${pluralize(counts.total, "taxon", "taxa")} at ${formatMa(result.boundary)}, window ${formatMyr(result.window)} (to ${formatMa(windowEdge(result.boundary, result.window))})${result.windowDefaultFrom ? `, the ${result.windowDefaultFrom.label}’s duration` : ""}.`}
+      description={`${pluralize(counts.total, "taxon", "taxa")} at ${formatMa(result.boundary)}, window ${formatMyr(result.window)} (to ${formatMa(windowEdge(result.boundary, result.window))})${result.windowDefaultFrom ? `, ${defaultWindowSource(result.windowDefaultFrom)}` : ""}.`}
       actions={refreshing ? <span className="text-sm text-stone-500" role="status">Updating…</span> : undefined}
     >
       <dl className="grid gap-3 sm:grid-cols-3" aria-label="Outcome counts">

@@ -39,10 +39,13 @@ export interface BoundariesCardProps {
   onRobustnessChange?: (next: { windowFactors?: string; truncationMyr?: string }) => void;
 }
 
-/** Default window words: "the Maastrichtian, 6.1 Myr". */
+/** Default window words: "the Maastrichtian, 6.2 Myr", or for an age inside a stage "down to the base of the Cenomanian, 6.3 Myr". */
 function defaultWindowWords(scale: ScaleIndex, age: number): string {
-  const stage = scale.stageBelow(age);
-  return stage ? `the ${stage.label}, ${formatMyr(stage.duration)}` : "none: no stage lies below this age, give a window";
+  const fallback = scale.defaultWindow(age);
+  if (!fallback) return "none: no stage lies below this age, give a window";
+  return fallback.wholeStage
+    ? `the ${fallback.stage.label}, ${formatMyr(fallback.windowMyr)}`
+    : `down to the base of the ${fallback.stage.label} (the stage this age falls in), ${formatMyr(fallback.windowMyr)}`;
 }
 
 /** The boundaries a run tests: one crisis, or a crisis beside background boundaries to set it against. */
