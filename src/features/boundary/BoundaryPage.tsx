@@ -20,6 +20,7 @@ import { BoundaryPicker } from "./BoundaryPicker";
 import { readBoundaryView, withChoice, withList, withWindow, type BoundaryView } from "./boundaryParams";
 import { ClassificationRules } from "./ClassificationRules";
 import { SamplingCompleteness } from "./SamplingCompleteness";
+import { ThreeTimerChart } from "./ThreeTimerChart";
 import { LIST_PAGE_SIZE, OutcomeLists } from "./OutcomeLists";
 import { OutcomeSummary } from "./OutcomeSummary";
 import { OutcomeWarnings } from "./OutcomeWarnings";
@@ -145,6 +146,7 @@ export function BoundaryPage() {
         {!(request && outcomes.data && outcomes.data.counts.total > 0) && chart}
 
         {boundary !== null && <SamplingCompleteness studyId={study.id} boundaryMa={boundary} />}
+        <ThreeTimerChart studyId={study.id} boundary={boundary} />
 
         <OverridesCard studyId={study.id} canOverride={canOverride} onRevoke={setRevoking} />
       </div>

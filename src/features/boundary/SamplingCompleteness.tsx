@@ -1,22 +1,11 @@
-import { useQuery } from "@tanstack/react-query";
-import type { ThreeTimer, ThreeTimerRowDto } from "@shared/schemas/occurrences";
+import type { ThreeTimerRowDto } from "@shared/schemas/occurrences";
 import { Card } from "../../components/Card";
 import { Caution } from "../../components/Caution";
 import { ErrorState } from "../../components/ErrorState";
 import { LoadingState } from "../../components/LoadingState";
-import { api } from "../../lib/api";
-import { queryKeys } from "../../lib/queryKeys";
-import { studyApiPath } from "../../lib/queries/paths";
+import { useThreeTimer } from "./api";
 
-/** GET /api/studies/:studyId/occurrences/three-timer?boundaryMa: three-timer sampling per stage and at the boundary. */
-function useThreeTimer(studyId: string, boundaryMa: number) {
-  return useQuery({
-    queryKey: [...queryKeys.studies.detail(studyId), "occurrences", "three-timer", boundaryMa] as const,
-    queryFn: ({ signal }) => api.get<ThreeTimer>(`${studyApiPath(studyId, "/occurrences/three-timer")}?boundaryMa=${encodeURIComponent(String(boundaryMa))}`, signal),
-  });
-}
-
-const fixed = (value: number | null, digits = 2) => (value === null ? "—" : value.toFixed(digits));
+const fixed = (value: number | null) => (value === null ? "—" : value.toFixed(2));
 
 function StageTile({ side, row }: { side: string; row: ThreeTimerRowDto | null }) {
   return (
@@ -63,38 +52,7 @@ export function SamplingCompleteness({ studyId, boundaryMa }: { studyId: string;
             {warning}
           </Caution>
         ))}
-        <details className="text-sm">
-          <summary className="cursor-pointer font-medium">Three-timer counts and rates of every stage</summary>
-          <div className="mt-2 max-h-80 overflow-auto rounded-lg border border-stone-200">
-            <table className="min-w-full text-left">
-              <caption className="sr-only">Three-timer counts and rates per stage, oldest first</caption>
-              <thead className="sticky top-0 bg-stone-50 text-stone-600">
-                <tr>
-                  {["Stage", "Finds", "Taxa", "Three-timers", "Part-timers", "Completeness", "Extinction", "Origination"].map((h) => (
-                    <th key={h} scope="col" className="px-3 py-1.5 font-semibold">
-                      {h}
-                    </th>
-                  ))}
-                </tr>
-              </thead>
-              <tbody className="divide-y divide-stone-100 tabular-nums">
-                {data.stages.map((s) => (
-                  <tr key={s.bin}>
-                    <td className="px-3 py-1">{s.label}</td>
-                    <td className="px-3 py-1">{s.occurrences}</td>
-                    <td className="px-3 py-1">{s.sampled}</td>
-                    <td className="px-3 py-1">{s.t3}</td>
-                    <td className="px-3 py-1">{s.partTimers}</td>
-                    <td className="px-3 py-1">{fixed(s.samplingCompleteness)}</td>
-                    <td className="px-3 py-1">{fixed(s.extinction, 3)}</td>
-                    <td className="px-3 py-1">{fixed(s.origination, 3)}</td>
-                  </tr>
-                ))}
-              </tbody>
-            </table>
-          </div>
-          {data.straddling > 0 && <p className="mt-1 text-stone-600">{data.straddling} finds are dated across a stage limit and count in no stage.</p>}
-        </details>
+        <p className="text-sm text-stone-600">Every stage's completeness and three-timer rates are charted below, with the numbers behind them.</p>
       </div>
     </Card>
   );

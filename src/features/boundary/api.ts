@@ -9,6 +9,7 @@ import type {
   OutcomesResult,
   RatesResult,
 } from "@shared/schemas/outcomes";
+import type { ThreeTimer } from "@shared/schemas/occurrences";
 import type { TurnoverResult } from "@shared/schemas/turnover";
 import { api } from "../../lib/api";
 import { queryKeys } from "../../lib/queryKeys";
@@ -67,6 +68,19 @@ export function useRates(studyId: string) {
     queryKey: queryKeys.boundary.rates(studyId),
     queryFn: ({ signal }) => api.get<RatesResult>(`${studyApiPath(studyId)}/rates`, signal),
     staleTime: 0,
+  });
+}
+
+/**
+ * GET /api/studies/:studyId/occurrences/three-timer?boundaryMa: three-timer counts, sampling completeness and rates
+ * per stage, and the stages on both sides of the boundary when one is given. Below the study's "occurrences" key,
+ * so an occurrence upload or revert refreshes it.
+ */
+export function useThreeTimer(studyId: string, boundaryMa: number | null) {
+  return useQuery({
+    queryKey: [...queryKeys.studies.detail(studyId), "occurrences", "three-timer", boundaryMa] as const,
+    queryFn: ({ signal }) =>
+      api.get<ThreeTimer>(`${studyApiPath(studyId)}/occurrences/three-timer${boundaryMa === null ? "" : `?boundaryMa=${encodeURIComponent(String(boundaryMa))}`}`, signal),
   });
 }
 
