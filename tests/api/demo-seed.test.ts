@@ -11,6 +11,7 @@ import { runMigrations } from "../../db/migrate";
 import { seedIfEmpty } from "../../scripts/seed/seed";
 import { DEMO_ACCOUNTS, seedDemo, type DemoAccount, type DemoSeedResult } from "../../scripts/seed/demo/seed";
 import { generateDemoStudy, IUCN_CATEGORIES } from "../../scripts/seed/demo/generator";
+import { DEMO_OCCURRENCE_FILE, DEMO_POORLY_SAMPLED_STAGE, generateDemoOccurrences } from "../../scripts/seed/demo/occurrences";
 import { STUDY_ROLES } from "../../shared/roles";
 import { SUGGESTED_CODEBOOK } from "../../shared/codebook";
 import { passwordSchema } from "../../shared/schemas/auth";
@@ -132,11 +133,41 @@ describe("seedDemo", () => {
     expect(species.every((s) => (IUCN_CATEGORIES as readonly string[]).includes(s.category) && s.name.endsWith("(invented)"))).toBe(true);
   });
 
+  it("stores the invented finds as one committed upload, from which the trait table's ranges derive unchanged", async () => {
+    const finds = generateDemoOccurrences(data);
+    const [upload] = await app.ctx.db.select().from(imports).where(and(eq(imports.studyId, seeded.studyId), eq(imports.target, "occurrences")));
+    expect(upload).toMatchObject({ fileName: DEMO_OCCURRENCE_FILE, status: "committed", createdCount: finds.length });
+    expect(upload.fileName).toMatch(/invented/);
+    expect(seeded.counts.occurrences).toBe(finds.length);
+    const agent = request.agent(app.app);
+    const analyst = accounts.find((a) => a.role === "analyst")!;
+    expect((await agent.post("/api/auth/login").send({ email: analyst.email, password: analyst.password })).status).toBe(200);
+    // The preview through the API: nothing would change, no new taxa; the 7 genera without a compiled range have no finds.
+    const preview = await agent.post(`/api/studies/${seeded.studyId}/occurrences/ranges/preview`).send({ ageMode: "bounds", maxSpanMyr: null });
+    expect(preview.status, JSON.stringify(preview.body)).toBe(200);
+    const withoutRange = data.taxa.filter((t) => t.fadMa === null || t.ladMa === null).map((t) => t.name);
+    expect(preview.body).toMatchObject({ changes: [], newTaxa: [], unchanged: data.taxa.length - withoutRange.length, occurrenceCount: finds.length });
+    expect((preview.body.withoutOccurrences as Array<{ name: string }>).map((t) => t.name).sort()).toEqual([...withoutRange].sort());
+    // Sampling at the crisis boundary (base of the Turonian) is good; the Coniacian is poorly sampled on purpose.
+    const sampling = await agent.get(`/api/studies/${seeded.studyId}/occurrences/three-timer?boundaryMa=${data.plantedEffects.boundary.ageMa}`);
+    expect(sampling.status).toBe(200);
+    expect(sampling.body.boundary).toMatchObject({ below: { bin: "Cenomanian" }, above: { bin: "Turonian" }, warnings: [] });
+    const poor = (sampling.body.stages as Array<{ bin: string; samplingCompleteness: number | null }>).find((s) => s.bin === DEMO_POORLY_SAMPLED_STAGE)!;
+    expect(poor.samplingCompleteness).toBeLessThan(0.5);
+    // The trait table counts each genus's finds.
+    const page = await agent.get(`/api/studies/${seeded.studyId}/taxa?sort=occurrences&dir=desc&pageSize=5`);
+    expect(page.status).toBe(200);
+    const top = page.body.rows[0] as { name: string; occurrences: number; collections: number };
+    expect(top.occurrences).toBe(finds.filter((f) => f.taxon === top.name).length);
+    expect(top.collections).toBe(new Set(finds.filter((f) => f.taxon === top.name).map((f) => f.collection)).size);
+  });
+
   it("writes the activity feed", async () => {
     const rows = await app.ctx.db.select({ kind: activity.kind }).from(activity).where(eq(activity.studyId, seeded.studyId));
     const kinds = rows.map((r) => r.kind);
     expect(kinds.filter((k) => k === "member.joined")).toHaveLength(4);
     expect(kinds).toContain("import.committed");
+    expect(kinds).toContain("occurrences.committed");
     expect(kinds).toContain("thread.resolved");
   });
 

@@ -14,6 +14,7 @@ import {
   memberships,
   modernLists,
   modernSpecies,
+  occurrences as occurrencesTable,
   studies,
   taxa as taxaTable,
   threadPosts,
@@ -25,6 +26,7 @@ import { hashPassword } from "../../../server/auth/password";
 import { ROLE_LABELS, STUDY_ROLES, type StudyRole } from "../../../shared/roles";
 import { generateDemoStudy, INVENTED_NOTE, type DemoStudy, type DemoTaxon, type TraitValues } from "./generator";
 import { seedDemoAnalyses, type DemoAnalyses } from "./analyses";
+import { DEMO_OCCURRENCE_FILE, generateDemoOccurrences } from "./occurrences";
 
 type Db = NodePgDatabase<typeof schema>;
 
@@ -59,7 +61,7 @@ export interface DemoSeedResult {
   userIds: Record<StudyRole, string>;
   /** Accounts made by this call; accounts that already existed are reused with their own password. */
   createdAccounts: DemoAccount[];
-  counts: { taxa: number; decisions: number; threads: number; posts: number; modernSpecies: number; runs: number; comparisons: number };
+  counts: { taxa: number; decisions: number; threads: number; posts: number; modernSpecies: number; occurrences: number; runs: number; comparisons: number };
   listId: string;
   /** The two saved runs and the modern comparison. */
   analyses: DemoAnalyses;
@@ -222,6 +224,49 @@ export async function seedDemo(db: Db, options: DemoSeedOptions = {}): Promise<D
         committedAt: at(19),
       })
       .returning({ id: imports.id });
+
+    // The finds the ranges derive from, as one committed occurrence upload (scripts/seed/demo/occurrences.ts).
+    const finds = generateDemoOccurrences(data);
+    const [findsUpload] = await tx
+      .insert(imports)
+      .values({
+        studyId,
+        target: "occurrences",
+        fileName: DEMO_OCCURRENCE_FILE,
+        status: "committed",
+        mapping: {
+          columns: ["genus", "family", "max_ma", "min_ma", "early_interval", "collection"],
+          delimiter: ",",
+          mapping: { taxon: "genus", higherTaxon: "family", maxMa: "max_ma", minMa: "min_ma", earlyInterval: "early_interval", lateInterval: null, collection: "collection", count: null },
+        },
+        rowCount: finds.length,
+        validCount: finds.length,
+        createdCount: finds.length,
+        progress: 1,
+        createdBy: userIds.coder,
+        createdAt: at(18),
+        committedAt: at(18),
+      })
+      .returning({ id: imports.id });
+    await insertInBatches(
+      finds.map((f, i) => ({ f, i })),
+      (batch) =>
+        tx.insert(occurrencesTable).values(
+          batch.map(({ f, i }) => ({
+            studyId,
+            uploadId: findsUpload.id,
+            // As a spreadsheet numbers the file's rows: the header is row 1.
+            sourceRow: i + 2,
+            taxon: f.taxon,
+            higherTaxon: f.higherTaxon,
+            maxMa: f.maxMa,
+            minMa: f.minMa,
+            earlyInterval: f.earlyInterval,
+            lateInterval: f.lateInterval,
+            collection: f.collection,
+          })),
+        ),
+    );
 
     // What each edited value was at import time.
     const importedValues = data.taxa.map((t) => ({ values: { ...t.values }, lad: rangeEnd(t.ladMa, t.ladInterval) }));
@@ -489,6 +534,15 @@ export async function seedDemo(db: Db, options: DemoSeedOptions = {}): Promise<D
       ),
       {
         studyId,
+        userId: userIds.coder,
+        kind: "occurrences.committed",
+        summary: `Uploaded ${finds.length.toLocaleString("en-US")} invented occurrences from ${DEMO_OCCURRENCE_FILE}; the genera's ranges derive from them`,
+        refType: "import",
+        refId: findsUpload.id,
+        createdAt: at(18),
+      },
+      {
+        studyId,
         userId: userIds.analyst,
         kind: "modern_list.added",
         summary: `${memberName("analyst")} uploaded the modern list "${data.modernList.name}" (${species.length} species)`,
@@ -520,6 +574,7 @@ export async function seedDemo(db: Db, options: DemoSeedOptions = {}): Promise<D
         threads: threadRows.length,
         posts: posts.length,
         modernSpecies: species.length,
+        occurrences: finds.length,
         runs: 2,
         comparisons: 1,
       },
