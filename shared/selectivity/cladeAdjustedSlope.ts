@@ -168,6 +168,9 @@ export function cladeAdjustedSlope(
   if (!fit.converged) {
     return { adjusted: null, notes: [...notes, `The clade-adjusted regression on ${predictor} did not converge: interval not reported.`], groups, conditionalLogOdds: null };
   }
+  if (fit.profileConverged === false) {
+    return { adjusted: null, notes: [...notes, `The profile penalized likelihood refits of the clade-adjusted regression on ${predictor} did not converge: interval not reported.`], groups, conditionalLogOdds: null };
+  }
   if (!(slope.oddsRatio > 0 && Number.isFinite(slope.oddsRatio) && slope.oddsRatioCi.every((v) => Number.isFinite(v)))) {
     return { adjusted: null, notes: [...notes, `The odds ratio of ${predictor} within clades is not finite, so no clade-adjusted value is given.`], groups, conditionalLogOdds: null };
   }

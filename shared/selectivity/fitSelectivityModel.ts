@@ -121,6 +121,9 @@ export function fitSelectivityModel(traits: ModelTraitInput[], outcome: Uint8Arr
   if (!fit.converged) {
     return noModel(`The multiple logistic regression did not converge in ${fit.iterations} iterations: interval not reported.`);
   }
+  if (fit.profileConverged === false) {
+    return noModel("The profile penalized likelihood refits of the multiple logistic regression did not converge: interval not reported.");
+  }
   if (!allFinite) {
     return noModel(
       "The multiple logistic regression gave estimates or intervals that are not finite numbers: the data carry too little information for this many terms; choose fewer traits.",

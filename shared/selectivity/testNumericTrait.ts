@@ -63,12 +63,17 @@ export function testNumericTrait(
     : `Likelihood ratio test in a logistic regression of extinction on ${predictor}`;
   if (fit.firth) notes.push(`The values of ${spec.label} separate victims from survivors; Firth's bias-reduced regression (Firth 1993) keeps the odds ratio finite.`);
   if (!fit.converged) notes.push(`The logistic regression on ${predictor} did not converge: interval not reported.`);
+  // Firth's profile intervals and penalized likelihood ratio test rest on refits that must converge too.
+  const profileFailed = fit.converged && fit.profileConverged === false;
+  if (profileFailed) notes.push(`The profile penalized likelihood refits of Firth's regression on ${predictor} did not converge: interval not reported.`);
   const test: TraitTest =
     term && Number.isFinite(term.pValue)
       ? { method, pValue: term.pValue, statistic: term.chiSquare, df: term.df }
-      : { method: `No test: the likelihood ratio test on ${predictor} gave no finite value.`, pValue: null };
+      : profileFailed
+        ? { method: `No test: the penalized likelihood refit on ${predictor} did not converge.`, pValue: null }
+        : { method: `No test: the likelihood ratio test on ${predictor} gave no finite value.`, pValue: null };
   const crudeOk = fit.converged && Number.isFinite(slope.oddsRatio) && slope.oddsRatio > 0 && slope.oddsRatioCi.every((v) => Number.isFinite(v));
-  if (!crudeOk && fit.converged) notes.push(`The odds ratio of ${predictor} is not finite, so no crude value is given.`);
+  if (!crudeOk && fit.converged && !profileFailed) notes.push(`The odds ratio of ${predictor} is not finite, so no crude value is given.`);
   const crude = crudeOk
     ? {
         estimate: slope.oddsRatio,

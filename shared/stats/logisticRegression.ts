@@ -33,6 +33,8 @@ export interface LogisticRegressionOptions {
    * unless n * p^3 exceeds 2e6, where the many refits would be slow).
    */
   firthIntervals?: "auto" | "profile" | "wald";
+  /** Iterations allowed to each refit of a profile (default 200, as the Firth fit itself). */
+  profileMaxIterations?: number;
 }
 
 export interface LogisticCoefficient {
@@ -44,6 +46,12 @@ export interface LogisticCoefficient {
   ci: [number, number];
   oddsRatio: number;
   oddsRatioCi: [number, number];
+  /**
+   * Firth profile intervals only: false when a refit of this coefficient's profile (or of its
+   * penalized likelihood ratio test) did not converge; its interval and p-value are then NaN
+   * ("did not converge: interval not reported").
+   */
+  profileConverged?: boolean;
 }
 
 export interface LogisticTermTest {
@@ -74,6 +82,8 @@ export interface LogisticRegressionResult {
   firthReason?: "separation" | "requested";
   /** l(beta) + (1/2) ln det I(beta) at the Firth estimate. */
   penalizedLogLik?: number;
+  /** Firth profile intervals only: every refit behind the intervals, p-values and term tests converged. */
+  profileConverged?: boolean;
   ciMethod: "wald" | "profile";
   pValueMethod: "wald" | "penalized-likelihood-ratio";
   terms?: LogisticTermTest[];
@@ -214,16 +224,27 @@ export function logisticRegression(
   const firth = fitNewton(design, y, { penalized: true, start, maxIterations: FIRTH_MAX_ITERATIONS, tolerance: FIRTH_TOLERANCE });
   const covariance = choleskyInverse(firth.lower, p);
   const profile = firthIntervals === "profile" || (firthIntervals === "auto" && n * p * p * p <= PROFILE_WORK_LIMIT);
+  const profileMaxIterations = opts.profileMaxIterations ?? FIRTH_MAX_ITERATIONS;
+  if (!Number.isInteger(profileMaxIterations) || profileMaxIterations < 1) {
+    throw new Error(`${FN}: profileMaxIterations is ${profileMaxIterations}; it must be a positive integer`);
+  }
+  // A refit that does not converge gives NaN, so no interval, p-value or test rests on it.
+  let profileConverged = true;
   const refit = (fixedValues: Map<number, number>, from: ArrayLike<number>): number => {
     const startAt = Float64Array.from(from);
     for (const [j, value] of fixedValues) startAt[j] = value;
-    return fitNewton(design, y, {
+    const fit = fitNewton(design, y, {
       penalized: true,
       start: startAt,
       fixed: new Set(fixedValues.keys()),
-      maxIterations: FIRTH_MAX_ITERATIONS,
+      maxIterations: profileMaxIterations,
       tolerance: FIRTH_TOLERANCE,
-    }).objective;
+    });
+    if (!fit.converged) {
+      profileConverged = false;
+      return NaN;
+    }
+    return fit.objective;
   };
   const chiSquareCritical = z * z;
   const coefficients = coefficientNames.map((name, j) => {
@@ -231,20 +252,31 @@ export function logisticRegression(
     const se = Math.sqrt(covariance[j * p + j]);
     if (!profile) return coefficient(name, estimate, se, normalTwoSidedP(estimate / se), [estimate - z * se, estimate + z * se]);
     // Penalized likelihood ratio statistic for beta_j = b, maximising over the other coefficients.
+    const before = profileConverged;
+    profileConverged = true;
     const statistic = (b: number): number => 2 * (firth.objective - refit(new Map([[j, b]]), firth.beta));
     const limit = (direction: 1 | -1): number => {
       const excess = (offset: number): number => statistic(estimate + direction * offset) - chiSquareCritical;
       let low = 0;
       let high = Math.max(se, 1e-3);
-      while (excess(high) < 0) {
+      for (let value = excess(high); value < 0; value = excess(high)) {
         low = high;
         high *= 2;
         if (high > 1e4 * Math.max(1, Math.abs(estimate), se)) return direction * Infinity;
       }
+      if (!profileConverged) return NaN;
+      // brentRoot gives NaN when its own search does not converge.
       return estimate + direction * brentRoot(excess, low, high, 1e-9 * Math.max(se, 1));
     };
+    const ci: [number, number] = [limit(-1), limit(1)];
     const lrStatistic = Math.max(0, statistic(0));
-    return coefficient(name, estimate, se, chiSquareUpperTail(lrStatistic, 1), [limit(-1), limit(1)]);
+    const converged = profileConverged && !Number.isNaN(ci[0]) && !Number.isNaN(ci[1]) && !Number.isNaN(lrStatistic);
+    profileConverged = before && converged;
+    const result = converged
+      ? coefficient(name, estimate, se, chiSquareUpperTail(lrStatistic, 1), ci)
+      : coefficient(name, estimate, se, NaN, [NaN, NaN]);
+    result.profileConverged = converged;
+    return result;
   });
   const result: LogisticRegressionResult = {
     ...base,
@@ -261,10 +293,12 @@ export function logisticRegression(
   if (terms) {
     result.termTestMethod = "penalized-likelihood-ratio";
     result.terms = terms.map((term) => {
-      const chiSquare = Math.max(0, 2 * (firth.objective - refit(new Map(term.columns.map((c) => [c + 1, 0])), firth.beta)));
-      return { name: term.name, columns: term.columns, df: term.columns.length, chiSquare, pValue: chiSquareUpperTail(chiSquare, term.columns.length) };
+      const reduced = refit(new Map(term.columns.map((c) => [c + 1, 0])), firth.beta);
+      const chiSquare = Number.isNaN(reduced) ? NaN : Math.max(0, 2 * (firth.objective - reduced));
+      return { name: term.name, columns: term.columns, df: term.columns.length, chiSquare, pValue: Number.isNaN(chiSquare) ? NaN : chiSquareUpperTail(chiSquare, term.columns.length) };
     });
   }
+  if (profile) result.profileConverged = profileConverged;
   return result;
 }
 

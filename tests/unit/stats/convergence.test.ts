@@ -29,4 +29,27 @@ describe("numerical routines say when they did not converge", () => {
     // (docs/sources.md section 5): ln((4.5 x 4.5) / (0.5 x 2.5)).
     expect(fit.coefficients[1].estimate).toBeCloseTo(Math.log((4.5 * 4.5) / (0.5 * 2.5)), 6);
   });
+
+  it("Firth's profile refits carry their convergence to the result: an unconverged profile reports no interval", () => {
+    // The same separated table: the profile interval of the slope needs refits with the slope held
+    // fixed; one iteration each cannot converge, so the interval and p-value are not reported.
+    const x = [[1], [1], [1], [1], [0], [0], [0], [0], [0], [0]];
+    const y = [1, 1, 1, 1, 1, 0, 0, 1, 0, 0];
+    const starved = logisticRegression(x, y, { firth: true, firthIntervals: "profile", profileMaxIterations: 1, terms: [{ name: "x", columns: [0] }] });
+    expect(starved.converged).toBe(true); // the Firth fit itself converged
+    expect(starved.profileConverged).toBe(false);
+    expect(starved.coefficients[1].profileConverged).toBe(false);
+    expect(starved.coefficients[1].ci.every(Number.isNaN)).toBe(true);
+    expect(starved.coefficients[1].pValue).toBeNaN();
+    expect(starved.terms![0].chiSquare).toBeNaN();
+    // The estimate itself does not depend on the refits: still the Haldane-corrected log odds ratio (docs/sources.md section 5).
+    expect(starved.coefficients[1].estimate).toBeCloseTo(Math.log((4.5 * 4.5) / (0.5 * 2.5)), 6);
+    // With the default budget every refit converges and the interval is finite and holds the estimate.
+    const full = logisticRegression(x, y, { firth: true, firthIntervals: "profile" });
+    expect(full.profileConverged).toBe(true);
+    expect(full.coefficients[1].profileConverged).toBe(true);
+    const [low, high] = full.coefficients[1].ci;
+    expect(low).toBeLessThan(full.coefficients[1].estimate);
+    expect(high).toBeGreaterThan(full.coefficients[1].estimate);
+  });
 });
