@@ -11,7 +11,7 @@ import { eq, sql } from "drizzle-orm";
 import { connectDatabase } from "../server/db";
 import { memberships, studies, traits, users } from "../db/schema/index";
 import { SUGGESTED_CODEBOOK } from "../shared/codebook";
-import { createImportService } from "../server/services/imports";
+import { createImportService } from "../server/services/traitTableImports";
 import { createTaxonService } from "../server/services/taxa";
 import { loadCodebook } from "../server/services/taxonState";
 import { taxaListQuerySchema } from "../shared/schemas/taxa";

@@ -3,17 +3,12 @@
 // name, so a large body is never held in memory; a refused or failed upload leaves no file.
 import type { Request, RequestHandler } from "express";
 import { randomUUID } from "node:crypto";
-import { mkdir, rm } from "node:fs/promises";
+import { mkdir } from "node:fs/promises";
 import multer from "multer";
+import type { UploadedFile } from "../services/uploadLifecycle";
 import { badRequest } from "./errors";
 
-/** A file multer wrote into UPLOAD_DIR for this request. */
-export interface UploadedFile {
-  originalname: string;
-  /** Where the file waits; the service keeps it (as the upload's stored file) or removes it. */
-  path: string;
-  size: number;
-}
+export type { UploadedFile };
 
 /** Middleware that streams the form field "file" (at most `maxBytes`) into `uploadDir`; over the limit multer answers 413 and removes the part written. */
 export function csvUpload(uploadDir: string, maxBytes: number): RequestHandler {
@@ -34,14 +29,4 @@ export function uploadedFile(req: Request): UploadedFile {
   const file = req.file;
   if (!file) throw badRequest('Attach the CSV file as the form field "file".', { file: "A CSV file is required" });
   return { originalname: file.originalname, path: file.path, size: file.size };
-}
-
-/** Runs `work` with the uploaded file; when it fails, the file is removed before the error goes on. */
-export async function removingOnFailure<T>(file: UploadedFile, work: () => Promise<T>): Promise<T> {
-  try {
-    return await work();
-  } catch (err) {
-    await rm(file.path, { force: true });
-    throw err;
-  }
 }

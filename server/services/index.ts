@@ -15,7 +15,7 @@ import { createTraitService } from "./traits";
 import { createTaxonService } from "./taxa";
 import { createTaxaGrid } from "./taxaGrid";
 import { createDecisionService } from "./decisions";
-import { createImportService } from "./imports";
+import { createImportService } from "./traitTableImports";
 import { createOccurrenceService } from "./occurrences";
 import { createExportService } from "./exports";
 import { createModernListService } from "./modernLists";

@@ -1,67 +1,18 @@
-// Modern species lists. Upload: the file is parsed and kept outside the served folder. Preview: every
-// problem by row and column. Commit: the list and all its valid species in one transaction, or
-// nothing; leaving invalid rows out must be asked for. The crosswalk pairs the list's trait columns
-// with the study's codebook and is saved with the list; values it cannot read are listed.
-import { chmod, readFile, rm } from "node:fs/promises";
+// Modern species lists of a study: their uploads (modernListUploads.ts), the lists with their species per
+// threat category, and the crosswalk that pairs a list's trait columns with the study's codebook (saved
+// with the list; values it cannot read are listed).
 import { and, count, desc, eq, inArray, sql } from "drizzle-orm";
 import type { Database, DbOrTx } from "../db";
 import { activity, comparisons, imports, modernLists, modernSpecies, users } from "../../db/schema/index";
-import { parseCsv, type CsvDelimiter } from "../../shared/csv/parse";
-import { csvTextProblem } from "../../shared/csv/textCheck";
-import {
-  crosswalkCoverage,
-  crosswalkProblems,
-  listColumns,
-  modernMappingProblems,
-  suggestCrosswalk,
-  suggestModernListMapping,
-  validateModernListRows,
-  type Crosswalk,
-  type CrosswalkTrait,
-} from "../../shared/comparison/index";
+import { crosswalkCoverage, crosswalkProblems, listColumns, suggestCrosswalk, type Crosswalk, type CrosswalkTrait } from "../../shared/comparison/index";
 import { IUCN_CATEGORIES, type IucnCategory } from "../../shared/iucn";
-import { IMPORT_MAX_PROBLEMS_LISTED } from "../../shared/schemas/imports";
-import {
-  MODERN_LIST_MAX_BYTES,
-  MODERN_LIST_MAX_LABEL,
-  type CrosswalkSaved,
-  type ModernList,
-  type ModernListCommitInput,
-  type ModernListList,
-  type ModernListMapping,
-  type ModernListPreview,
-  type ModernListSummary,
-  type ModernListUpload,
-  type ModernUploadSummary,
-} from "../../shared/schemas/modernLists";
+import type { CrosswalkSaved, ModernList, ModernListCommitInput, ModernListList, ModernListMapping, ModernListSummary } from "../../shared/schemas/modernLists";
 import type { Trait } from "../../shared/schemas/traits";
-import { detailedError, DomainError, invalidInput, notFound } from "../domain/errors";
-import { removingOnFailure, type UploadedFile } from "../http/uploads";
+import { invalidInput, notFound } from "../domain/errors";
+import { createModernListUploadService, emptyCategoryCounts } from "./modernListUploads";
 import { loadCodebook } from "./taxonState";
-import { readStoredUpload, refuseMappingProblems } from "./storedUploads";
 
-const TARGET = "modern";
-const SAMPLE_ROWS = 10;
-const PREVIEW_SAMPLE = 50;
-const INSERT_BATCH = 2000;
-
-/** What imports.mapping holds for a modern list upload: the file's shape, and the mapping last previewed. */
-interface StoredUploadInfo {
-  columns: string[];
-  delimiter: CsvDelimiter;
-  mapping?: ModernListMapping;
-}
-
-type UploadRow = typeof imports.$inferSelect;
 type ListRow = typeof modernLists.$inferSelect;
-
-const NOTES = [
-  "Each row is a species: its name (once per file), higher taxon, threat category and trait columns.",
-  "Threat categories are read as IUCN Red List Categories and Criteria 3.1 codes or names, ignoring case.",
-  "Trait cells are kept as written; the crosswalk decides which trait and state each value means.",
-];
-
-const emptyCounts = (): Record<IucnCategory, number> => Object.fromEntries(IUCN_CATEGORIES.map((c) => [c, 0])) as Record<IucnCategory, number>;
 
 /** The codebook as the crosswalk reads it. */
 export const crosswalkTraits = (codebook: Trait[]): CrosswalkTrait[] =>
@@ -102,40 +53,6 @@ export async function listForComparison(db: DbOrTx, studyId: string, listId: str
 export function createModernListService(db: Database) {
   const creator = (id: string | null, name: string | null) => (id ? { id, name: name ?? "" } : null);
 
-  function uploadSummary(row: UploadRow, creatorName: string | null): ModernUploadSummary {
-    return {
-      id: row.id,
-      fileName: row.fileName,
-      status: row.status as ModernUploadSummary["status"],
-      rowCount: row.rowCount,
-      validCount: row.validCount,
-      errorCount: row.errorCount,
-      failureReason: row.failureReason,
-      createdBy: creator(row.createdBy, creatorName),
-      createdAt: row.createdAt.toISOString(),
-    };
-  }
-
-  async function uploadRow(studyId: string, uploadId: string): Promise<{ row: UploadRow; creatorName: string | null }> {
-    const [found] = await db
-      .select({ row: imports, creatorName: users.name })
-      .from(imports)
-      .leftJoin(users, eq(users.id, imports.createdBy))
-      .where(and(eq(imports.id, uploadId), eq(imports.studyId, studyId), eq(imports.target, TARGET)));
-    if (!found) throw notFound("This study has no such upload of a modern list.");
-    return found;
-  }
-
-  const closed = (row: UploadRow) =>
-    new DomainError("conflict",
-      "upload_closed",
-      row.status === "committing"
-        ? "This list is being saved right now."
-        : row.status === "discarded"
-          ? "This upload was discarded; upload the file again."
-          : "This upload was already saved as a list; upload the file again to add it anew.",
-    );
-
   /** Species per category and comparisons per list, for the lists given. */
   async function listCounts(listIds: string[]) {
     if (listIds.length === 0) return { categories: new Map<string, Record<IucnCategory, number>>(), comparisonCounts: new Map<string, number>() };
@@ -149,7 +66,7 @@ export function createModernListService(db: Database) {
     ]);
     const categories = new Map<string, Record<IucnCategory, number>>();
     for (const r of byCategory) {
-      const counts = categories.get(r.listId) ?? emptyCounts();
+      const counts = categories.get(r.listId) ?? emptyCategoryCounts();
       if ((IUCN_CATEGORIES as readonly string[]).includes(r.category)) counts[r.category as IucnCategory] = r.n;
       categories.set(r.listId, counts);
     }
@@ -169,7 +86,7 @@ export function createModernListService(db: Database) {
       id: list.id,
       name: list.name,
       speciesCount: list.speciesCount,
-      categories: categories.get(list.id) ?? emptyCounts(),
+      categories: categories.get(list.id) ?? emptyCategoryCounts(),
       fileName,
       crosswalkSaved: savedCrosswalk(list) !== null,
       comparisonCount: comparisonCounts.get(list.id) ?? 0,
@@ -210,147 +127,15 @@ export function createModernListService(db: Database) {
     };
   }
 
+  const uploads = createModernListUploadService(db);
+
   return {
-    /** Reads the file multer stored in UPLOAD_DIR and keeps it as the upload's file; removes it when anything fails. */
-    upload(studyId: string, user: { id: string }, file: UploadedFile): Promise<ModernListUpload> {
-      return removingOnFailure(file, async () => {
-        if (file.size > MODERN_LIST_MAX_BYTES) throw new DomainError("too_large", "too_large", `The file is larger than the upload limit of ${MODERN_LIST_MAX_LABEL}.`);
-        const content = await readFile(file.path);
-        const bytes = new Uint8Array(content.buffer, content.byteOffset, content.byteLength);
-        const notText = csvTextProblem(bytes);
-        if (notText) throw new DomainError("unsupported_media", "not_csv_text", notText, { file: notText });
-        const parsed = parseCsv(bytes);
-        if (parsed.header.length === 0) throw invalidInput("The file is empty: it needs a header row and at least one species.", { file: "The file is empty" });
-        if (parsed.rows.length === 0) throw invalidInput("The file has a header row but no species rows.", { file: "No data rows" });
-        const storedPath = file.path;
-        await chmod(storedPath, 0o600);
-        const fileName = file.originalname.replace(/[\\/]/g, "_").slice(0, 255) || "modern-list.csv";
-        const info: StoredUploadInfo = { columns: parsed.header, delimiter: parsed.delimiter };
-        const [row] = await db
-          .insert(imports)
-          .values({ studyId, target: TARGET, fileName, storedPath, status: "previewed", mapping: info as never, rowCount: parsed.rows.length, createdBy: user.id })
-          .returning({ id: imports.id });
-        const { row: stored, creatorName } = await uploadRow(studyId, row.id);
-        return {
-          upload: uploadSummary(stored, creatorName),
-          columns: parsed.header,
-          delimiter: parsed.delimiter,
-          encoding: parsed.encoding,
-          hadBom: parsed.hadBom,
-          rowCount: parsed.rows.length,
-          sampleRows: parsed.rows.slice(0, SAMPLE_ROWS).map((r) => r.cells),
-          suggestedMapping: suggestModernListMapping(parsed.header),
-          suggestedName: fileName.replace(/\.(csv|tsv|txt)$/i, "").replace(/[-_]+/g, " ").trim().slice(0, 120) || "Modern list",
-          maxBytes: MODERN_LIST_MAX_BYTES,
-        };
-      });
-    },
-
-    async preview(studyId: string, uploadId: string, mapping: ModernListMapping): Promise<ModernListPreview> {
-      const { row } = await uploadRow(studyId, uploadId);
-      if (row.status !== "previewed") throw closed(row);
-      const parsed = await readStoredUpload(row);
-      refuseMappingProblems(modernMappingProblems(mapping, parsed.header));
-      const result = validateModernListRows(parsed, mapping);
-      const categories = emptyCounts();
-      for (const r of result.rows) categories[r.category]++;
-      await db
-        .update(imports)
-        .set({ mapping: { ...(row.mapping as unknown as StoredUploadInfo), mapping } as never, rowCount: result.rowCount, validCount: result.rows.length, errorCount: result.invalidRowCount })
-        .where(eq(imports.id, uploadId));
-      const { row: updated, creatorName } = await uploadRow(studyId, uploadId);
-      return {
-        upload: uploadSummary(updated, creatorName),
-        counts: { rows: result.rowCount, valid: result.rows.length, invalid: result.invalidRowCount },
-        categories,
-        problems: result.problems.slice(0, IMPORT_MAX_PROBLEMS_LISTED),
-        problemCount: result.problems.length,
-        sample: result.rows.slice(0, PREVIEW_SAMPLE).map(({ row: r, name, higherTaxon, category, traits }) => ({ row: r, name, higherTaxon, category, traits })),
-        notes: NOTES,
-      };
-    },
-
-    /**
-     * Saves the list with its valid species in one transaction. With invalid rows and skipInvalid
-     * false nothing is written and the problems are listed (400).
-     */
-    async commit(studyId: string, uploadId: string, user: { id: string }, input: ModernListCommitInput & { mapping: ModernListMapping }): Promise<ModernList> {
-      const claimed = await db
-        .update(imports)
-        .set({ status: "committing", failureReason: null })
-        .where(and(eq(imports.id, uploadId), eq(imports.studyId, studyId), eq(imports.target, TARGET), eq(imports.status, "previewed")))
-        .returning();
-      if (claimed.length === 0) throw closed((await uploadRow(studyId, uploadId)).row);
-      const row = claimed[0];
-      try {
-        const parsed = await readStoredUpload(row);
-        refuseMappingProblems(modernMappingProblems(input.mapping, parsed.header));
-        const checked = validateModernListRows(parsed, input.mapping);
-        if (checked.problems.length && !input.skipInvalid) {
-          throw detailedError("invalid",
-            "list_has_problems",
-            `Nothing was saved: ${checked.invalidRowCount} of ${checked.rowCount} rows have problems. Correct them, or choose to leave the invalid rows out.`,
-            { problems: checked.problems.slice(0, IMPORT_MAX_PROBLEMS_LISTED), problemCount: checked.problems.length },
-          );
-        }
-        if (checked.rows.length === 0) throw invalidInput("No valid rows to save.", { file: "No valid rows" });
-        const columnNames = input.mapping.traitColumns;
-        const columns = listColumns(
-          checked.rows.map((r) => r.traits),
-          columnNames,
-        ).map((c) => ({ name: c.name, values: c.values.map((v) => v.value).sort((a, b) => a.localeCompare(b, "en", { numeric: true })) }));
-        const name = input.name.trim();
-        const listId = await db.transaction(async (tx) => {
-          const [list] = await tx
-            .insert(modernLists)
-            .values({ studyId, name, importId: uploadId, speciesCount: checked.rows.length, columns, crosswalk: {}, createdBy: user.id })
-            .returning({ id: modernLists.id });
-          for (let i = 0; i < checked.rows.length; i += INSERT_BATCH) {
-            await tx.insert(modernSpecies).values(
-              checked.rows.slice(i, i + INSERT_BATCH).map((r) => ({ listId: list.id, name: r.name, higherTaxon: r.higherTaxon, category: r.category, rawTraits: r.traits })),
-            );
-          }
-          await tx
-            .update(imports)
-            .set({
-              status: "committed",
-              progress: 1,
-              mapping: { ...(row.mapping as unknown as StoredUploadInfo), mapping: input.mapping } as never,
-              rowCount: checked.rowCount,
-              validCount: checked.rows.length,
-              errorCount: checked.invalidRowCount,
-              createdCount: checked.rows.length,
-              skippedInvalid: checked.invalidRowCount,
-              storedPath: null,
-              committedAt: new Date(),
-            })
-            .where(eq(imports.id, uploadId));
-          await tx.insert(activity).values({
-            studyId,
-            userId: user.id,
-            kind: "modern_list.added",
-            summary: `Added the modern list "${name}" from ${row.fileName}: ${checked.rows.length} species${checked.invalidRowCount ? `, ${checked.invalidRowCount} invalid rows left out` : ""}`,
-            refType: "modern_list",
-            refId: list.id,
-          });
-          return list.id;
-        });
-        await rm(row.storedPath!, { force: true });
-        return detail(studyId, listId);
-      } catch (err) {
-        const message = err instanceof DomainError ? err.message : "Saving the list failed; nothing was written.";
-        await db.update(imports).set({ status: "previewed", failureReason: message }).where(eq(imports.id, uploadId));
-        throw err;
-      }
-    },
-
-    /** Drops an upload that was never saved, and its stored file. */
-    async discard(studyId: string, uploadId: string): Promise<void> {
-      const { row } = await uploadRow(studyId, uploadId);
-      if (row.status !== "previewed") throw closed(row);
-      await db.update(imports).set({ status: "discarded", storedPath: null }).where(and(eq(imports.id, uploadId), eq(imports.status, "previewed")));
-      if (row.storedPath) await rm(row.storedPath, { force: true });
-    },
+    upload: uploads.upload,
+    preview: uploads.preview,
+    /** Saves the list from the upload (modernListUploads.ts) and answers with the list. */
+    commit: async (studyId: string, uploadId: string, user: { id: string }, input: ModernListCommitInput & { mapping: ModernListMapping }): Promise<ModernList> =>
+      detail(studyId, await uploads.saveList(studyId, uploadId, user, input)),
+    discard: uploads.discard,
 
     list: async (studyId: string): Promise<ModernListList> => ({ lists: await summaries(eq(modernLists.studyId, studyId)) }),
 

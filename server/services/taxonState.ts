@@ -25,6 +25,22 @@ export interface TaxonState {
   deletedAt: Date | null;
 }
 
+/** A taxon not yet stored: a new id, version 1, nothing set but its name and higher taxon. */
+export const newTaxonState = (name: string, higherTaxon = ""): TaxonState => ({
+  id: randomUUID(),
+  name,
+  higherTaxon,
+  fadMa: null,
+  fadInterval: null,
+  ladMa: null,
+  ladInterval: null,
+  notes: "",
+  traitValues: {},
+  version: 1,
+  updatedAt: new Date(),
+  deletedAt: null,
+});
+
 /** The value of a whole taxon in a coding decision (create, delete, restore). */
 export interface TaxonSnapshot {
   name: string;

@@ -8,7 +8,7 @@ import { tmpdir } from "node:os";
 import { join } from "node:path";
 import pg from "pg";
 import { connectDatabase } from "../../server/db";
-import { createImportService } from "../../server/services/imports";
+import { createImportService } from "../../server/services/traitTableImports";
 import { call, pollUntil, signUpThrough, startAppProcess, type AppProcess } from "../support/appProcess";
 
 const db = new pg.Pool({ connectionString: process.env.DATABASE_URL, max: 2 });
