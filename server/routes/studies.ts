@@ -1,5 +1,6 @@
 import type { OpenAPIRegistry } from "@asteasolutions/zod-to-openapi";
 import { studyParamsSchema } from "../../shared/schemas/common";
+import { importSettingsSchema } from "../../shared/schemas/importChecks";
 import { studyCreateSchema, studyListSchema, studySchema, studyUpdateSchema } from "../../shared/schemas/studies";
 import type { AppContext } from "../context";
 import { ApiRouter } from "../http/route";
@@ -77,6 +78,31 @@ export function studiesRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
     params: studyParamsSchema,
     response: { status: 204 },
     handler: ({ params }) => studies.remove(params.studyId),
+  });
+
+  api.add({
+    method: "get",
+    path: "/studies/:studyId/import-settings",
+    operationId: "getImportSettings",
+    summary: "The study's import settings: missing-value tokens read as missing in every import",
+    tags: ["studies"],
+    access: "study.read",
+    params: studyParamsSchema,
+    response: { status: 200, schema: importSettingsSchema },
+    handler: ({ params }) => studies.importSettings(params.studyId),
+  });
+
+  api.add({
+    method: "put",
+    path: "/studies/:studyId/import-settings",
+    operationId: "updateImportSettings",
+    summary: "Replace the study's missing-value tokens (who may change the codebook may change them); later previews and commits read them",
+    tags: ["studies"],
+    access: "codebook.edit",
+    params: studyParamsSchema,
+    body: importSettingsSchema,
+    response: { status: 200, schema: importSettingsSchema },
+    handler: ({ params, user, body }) => studies.updateImportSettings(params.studyId, user!.id, body),
   });
 
   return api;

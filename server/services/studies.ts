@@ -7,6 +7,8 @@ import type { Member, Study, StudyUpdateInput } from "../../shared/schemas/studi
 import { DomainError, notFound } from "../domain/errors";
 import { addActivity } from "./activity";
 
+import { loadImportSettings, saveImportSettings } from "./importSettings";
+import type { ImportSettings } from "../../shared/schemas/importChecks";
 type StudyRow = typeof studies.$inferSelect;
 
 function toStudy(row: StudyRow, role: StudyRole, memberCount: number): Study {
@@ -74,6 +76,11 @@ export function createStudyService(db: Database) {
         .from(memberships)
         .innerJoin(users, eq(users.id, memberships.userId))
         .where(eq(memberships.studyId, studyId))
+    /** The study's declared missing-value tokens (see ./importSettings). */
+    importSettings: (studyId: string): Promise<ImportSettings> => loadImportSettings(db, studyId),
+    updateImportSettings: (studyId: string, userId: string, input: ImportSettings): Promise<ImportSettings> =>
+      db.transaction((tx) => saveImportSettings(tx, studyId, userId, input)),
+
         .orderBy(users.name);
       const members: Member[] = rows.map((r) => ({ ...r, joinedAt: r.joinedAt.toISOString() }));
       const pending = await db

@@ -14,6 +14,8 @@ export const queryKeys = {
     list: (studyId: string) => ["studies", "detail", studyId, "traits"] as const,
     usage: (studyId: string, traitId: string) => ["studies", "detail", studyId, "traits", traitId, "usage"] as const,
   },
+  // The study's own time bins (read by the time-bins screen, the trait table's range cells and imports).
+  timeBins: (studyId: string) => ["studies", "detail", studyId, "time-bins"] as const,
   taxa: {
     all: (studyId: string) => ["studies", "detail", studyId, "taxa"] as const,
     page: (studyId: string, query: string) => ["studies", "detail", studyId, "taxa", "page", query] as const,
@@ -27,6 +29,7 @@ export const queryKeys = {
     all: (studyId: string) => ["studies", "detail", studyId, "imports"] as const,
     list: (studyId: string, page: number) => ["studies", "detail", studyId, "imports", "list", page] as const,
     detail: (studyId: string, importId: string) => ["studies", "detail", studyId, "imports", "detail", importId] as const,
+    settings: (studyId: string) => ["studies", "detail", studyId, "imports", "settings"] as const,
   },
   // Modern comparison: lists and comparisons (the runs it scores with are the runs' own keys).
   modernComparison: {

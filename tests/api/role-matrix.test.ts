@@ -138,6 +138,11 @@ const MATRIX: Record<string, Row> = {
   "GET /api/studies/{studyId}": { allowed: MEMBERS, call: (a, { studyId }) => a.get(`/api/studies/${studyId}`) },
   "PATCH /api/studies/{studyId}": { allowed: ["owner"], call: (a, { studyId }) => a.patch(`/api/studies/${studyId}`).send({ description: "Edited" }) },
   "DELETE /api/studies/{studyId}": { allowed: ["owner"], freshStudy: true, call: (a, { studyId }) => a.delete(`/api/studies/${studyId}`) },
+  "GET /api/studies/{studyId}/import-settings": { allowed: MEMBERS, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/import-settings`) },
+  "PUT /api/studies/{studyId}/import-settings": {
+    allowed: ["owner", "coder"],
+    call: (a, { studyId }) => a.put(`/api/studies/${studyId}/import-settings`).send({ missingTokens: ["Indet.", "?"] }),
+  },
   "GET /api/studies/{studyId}/members": { allowed: MEMBERS, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/members`) },
   "POST /api/studies/{studyId}/invitations": {
     allowed: ["owner"],

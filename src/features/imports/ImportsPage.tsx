@@ -9,6 +9,7 @@ import { useDocumentTitle } from "../../lib/useDocumentTitle";
 import { useTraits } from "../../lib/queries/codebook";
 import { ImportHistory } from "./ImportHistory";
 import { ImportWizard } from "./ImportWizard";
+import { MissingValuesCard } from "./MissingValuesCard";
 import { OccurrenceWizard } from "./occurrences/OccurrenceWizard";
 import { RangesFromOccurrences } from "./occurrences/RangesFromOccurrences";
 
@@ -30,6 +31,7 @@ export function ImportsPage() {
         {!canImport && <Notice>As {ROLE_LABELS[study.role]} you can read the import history. Coders and study leads import and revert files.</Notice>}
         {canImport && traits.isPending && <LoadingState label="Loading the codebook" />}
         {canImport && traits.isError && <ErrorState error={traits.error} title="The codebook could not be loaded" onRetry={() => void traits.refetch()} />}
+        <MissingValuesCard studyId={study.id} canEdit={can(study.role, "codebook.edit")} />
         {canImport && traits.isSuccess && <ImportWizard studyId={study.id} traits={traits.data.traits} />}
         <ImportHistory studyId={study.id} traits={traitsById} canRevert={canImport} />
         {canImport && <OccurrenceWizard studyId={study.id} />}

@@ -1,6 +1,7 @@
 // The imports screen's API hooks: one per endpoint, keys from src/lib/queryKeys.ts.
 import { keepPreviousData, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
 import type { DecisionList } from "@shared/schemas/decisions";
+import type { ImportSettings, NameMerges } from "@shared/schemas/importChecks";
 import type {
   ImportCommitInput,
   ImportList,
@@ -54,7 +55,8 @@ export function useUploadImport(studyId: string) {
 /** POST /api/studies/:studyId/imports/:importId/preview: every problem by row and column, and what would change. */
 export function usePreviewImport(studyId: string) {
   return useMutation({
-    mutationFn: ({ importId, mapping }: { importId: string; mapping: ImportMapping }) => api.post<ImportPreview>(`${importPath(studyId, importId)}/preview`, { mapping }),
+    mutationFn: ({ importId, mapping, nameMerges = {} }: { importId: string; mapping: ImportMapping; nameMerges?: NameMerges }) =>
+      api.post<ImportPreview>(`${importPath(studyId, importId)}/preview`, { mapping, nameMerges }),
   });
 }
 
@@ -106,3 +108,20 @@ export function useImportDecisions(studyId: string, importId: string, page: numb
 }
 
 /** GET /api/studies/:studyId/exports/template.csv: an empty file with the codebook's columns. */
+
+/** GET /api/studies/:studyId/import-settings: the study's declared missing-value tokens. */
+export function useImportSettings(studyId: string) {
+  return useQuery({
+    queryKey: queryKeys.imports.settings(studyId),
+    queryFn: ({ signal }) => api.get<ImportSettings>(`${studyApiPath(studyId)}/import-settings`, signal),
+  });
+}
+
+/** PUT /api/studies/:studyId/import-settings: replaces the tokens (owner and coder). */
+export function useSaveImportSettings(studyId: string) {
+  const queryClient = useQueryClient();
+  return useMutation({
+    mutationFn: (input: ImportSettings) => api.put<ImportSettings>(`${studyApiPath(studyId)}/import-settings`, input),
+    onSuccess: (saved) => queryClient.setQueryData(queryKeys.imports.settings(studyId), saved),
+  });
+}
