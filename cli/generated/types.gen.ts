@@ -160,6 +160,13 @@ export type StudyUpdate = {
     description?: string;
 };
 
+export type ImportSettings = {
+    /**
+     * Cell texts read as missing (not as a value or state) in every import of the study; matched whole, trimmed, ignoring case
+     */
+    missingTokens: Array<string>;
+};
+
 export type MemberList = {
     members: Array<Member>;
     invitations: Array<PendingInvitation>;
@@ -303,7 +310,7 @@ export type OutcomesResult = {
      */
     window: number;
     /**
-     * The stage whose duration gave the window, when no window was given; null when the window was given
+     * The stage whose base ends the default window (the stage the boundary falls in), when no window was given; null when the window was given
      */
     windowDefaultFrom: {
         name: string;
@@ -311,6 +318,10 @@ export type OutcomesResult = {
         base: number;
         top: number;
         duration: number;
+        /**
+         * True when the boundary is the stage's top (the window is its duration); false for an age inside the stage (the window reaches down to its base)
+         */
+        wholeStage: boolean;
     } | null;
     timescaleVersion: string;
     /**
@@ -949,6 +960,18 @@ export type Run = {
     id: string;
     studyId: string;
     name: string;
+    /**
+     * The version of the app that computed it
+     */
+    appVersion: string;
+    createdBy: {
+        id: string;
+        name: string;
+    } | null;
+    /**
+     * ISO 8601 date-time
+     */
+    createdAt: string;
     status: RunStatus;
     /**
      * 0..1 while queued or running
@@ -975,7 +998,6 @@ export type Run = {
      * Why the run failed
      */
     error: string | null;
-    appVersion: string;
     /**
      * 1, plus one for each retry
      */
@@ -984,14 +1006,6 @@ export type Run = {
      * The run whose parameters this one re-ran on the data of its day
      */
     rerunOf: string | null;
-    createdBy: {
-        id: string;
-        name: string;
-    } | null;
-    /**
-     * ISO 8601 date-time
-     */
-    createdAt: string;
     /**
      * ISO 8601 date-time
      */
@@ -1466,6 +1480,18 @@ export type RunSummary = {
     id: string;
     studyId: string;
     name: string;
+    /**
+     * The version of the app that computed it
+     */
+    appVersion: string;
+    createdBy: {
+        id: string;
+        name: string;
+    } | null;
+    /**
+     * ISO 8601 date-time
+     */
+    createdAt: string;
     status: RunStatus;
     /**
      * 0..1 while queued or running
@@ -1492,7 +1518,6 @@ export type RunSummary = {
      * Why the run failed
      */
     error: string | null;
-    appVersion: string;
     /**
      * 1, plus one for each retry
      */
@@ -1501,14 +1526,6 @@ export type RunSummary = {
      * The run whose parameters this one re-ran on the data of its day
      */
     rerunOf: string | null;
-    createdBy: {
-        id: string;
-        name: string;
-    } | null;
-    /**
-     * ISO 8601 date-time
-     */
-    createdAt: string;
     /**
      * ISO 8601 date-time
      */
@@ -1538,6 +1555,18 @@ export type RunDiff = {
         id: string;
         studyId: string;
         name: string;
+        /**
+         * The version of the app that computed it
+         */
+        appVersion: string;
+        createdBy: {
+            id: string;
+            name: string;
+        } | null;
+        /**
+         * ISO 8601 date-time
+         */
+        createdAt: string;
         status: RunStatus;
         /**
          * 0..1 while queued or running
@@ -1564,7 +1593,6 @@ export type RunDiff = {
          * Why the run failed
          */
         error: string | null;
-        appVersion: string;
         /**
          * 1, plus one for each retry
          */
@@ -1573,14 +1601,6 @@ export type RunDiff = {
          * The run whose parameters this one re-ran on the data of its day
          */
         rerunOf: string | null;
-        createdBy: {
-            id: string;
-            name: string;
-        } | null;
-        /**
-         * ISO 8601 date-time
-         */
-        createdAt: string;
         /**
          * ISO 8601 date-time
          */
@@ -1893,6 +1913,14 @@ export type TaxonRow = {
      */
     updatedAt: string;
     openThreads: OpenThreads;
+    /**
+     * Finds of this taxon (occurrences whose taxon is this name); on grid pages only
+     */
+    occurrences?: number;
+    /**
+     * Distinct collections among those finds; on grid pages only
+     */
+    collections?: number;
 };
 
 /**
@@ -2027,6 +2055,14 @@ export type TaxonConflict = {
          */
         updatedAt: string;
         openThreads: OpenThreads;
+        /**
+         * Finds of this taxon (occurrences whose taxon is this name); on grid pages only
+         */
+        occurrences?: number;
+        /**
+         * Distinct collections among those finds; on grid pages only
+         */
+        collections?: number;
     };
     /**
      * One entry per field of the edit: what it holds now, who set it, when and why
@@ -3433,6 +3469,18 @@ export type Comparison = {
     id: string;
     studyId: string;
     name: string;
+    /**
+     * The version of the app that computed it
+     */
+    appVersion: string;
+    createdBy: {
+        id: string;
+        name: string;
+    } | null;
+    /**
+     * ISO 8601 date-time
+     */
+    createdAt: string;
     listId: string;
     listName: string;
     runId: string;
@@ -3443,17 +3491,8 @@ export type Comparison = {
      */
     dataHash: string;
     dataHashShort: string;
-    appVersion: string;
     auc: number | null;
     worthALookCount: number;
-    createdBy: {
-        id: string;
-        name: string;
-    } | null;
-    /**
-     * ISO 8601 date-time
-     */
-    createdAt: string;
     results: ComparisonResults;
 };
 
@@ -3704,6 +3743,18 @@ export type ComparisonSummary = {
     id: string;
     studyId: string;
     name: string;
+    /**
+     * The version of the app that computed it
+     */
+    appVersion: string;
+    createdBy: {
+        id: string;
+        name: string;
+    } | null;
+    /**
+     * ISO 8601 date-time
+     */
+    createdAt: string;
     listId: string;
     listName: string;
     runId: string;
@@ -3714,17 +3765,8 @@ export type ComparisonSummary = {
      */
     dataHash: string;
     dataHashShort: string;
-    appVersion: string;
     auc: number | null;
     worthALookCount: number;
-    createdBy: {
-        id: string;
-        name: string;
-    } | null;
-    /**
-     * ISO 8601 date-time
-     */
-    createdAt: string;
 };
 
 export type GetHealthData = {
@@ -4384,6 +4426,92 @@ export type UpdateStudyResponses = {
 };
 
 export type UpdateStudyResponse = UpdateStudyResponses[keyof UpdateStudyResponses];
+
+export type GetImportSettingsData = {
+    body?: never;
+    path: {
+        studyId: string;
+    };
+    query?: never;
+    url: '/api/studies/{studyId}/import-settings';
+};
+
+export type GetImportSettingsErrors = {
+    /**
+     * Invalid input; `fields` names each field at fault
+     */
+    400: ApiError;
+    /**
+     * No session: sign in
+     */
+    401: ApiError;
+    /**
+     * The caller's role does not allow this
+     */
+    403: ApiError;
+    /**
+     * Too many attempts; see Retry-After
+     */
+    429: ApiError;
+    /**
+     * The database is unreachable
+     */
+    503: ApiError;
+};
+
+export type GetImportSettingsError = GetImportSettingsErrors[keyof GetImportSettingsErrors];
+
+export type GetImportSettingsResponses = {
+    /**
+     * Success
+     */
+    200: ImportSettings;
+};
+
+export type GetImportSettingsResponse = GetImportSettingsResponses[keyof GetImportSettingsResponses];
+
+export type UpdateImportSettingsData = {
+    body?: ImportSettings;
+    path: {
+        studyId: string;
+    };
+    query?: never;
+    url: '/api/studies/{studyId}/import-settings';
+};
+
+export type UpdateImportSettingsErrors = {
+    /**
+     * Invalid input; `fields` names each field at fault
+     */
+    400: ApiError;
+    /**
+     * No session: sign in
+     */
+    401: ApiError;
+    /**
+     * The caller's role does not allow this
+     */
+    403: ApiError;
+    /**
+     * Too many attempts; see Retry-After
+     */
+    429: ApiError;
+    /**
+     * The database is unreachable
+     */
+    503: ApiError;
+};
+
+export type UpdateImportSettingsError = UpdateImportSettingsErrors[keyof UpdateImportSettingsErrors];
+
+export type UpdateImportSettingsResponses = {
+    /**
+     * Success
+     */
+    200: ImportSettings;
+};
+
+export type UpdateImportSettingsResponse = UpdateImportSettingsResponses[keyof UpdateImportSettingsResponses];
 
 export type ListMembersData = {
     body?: never;

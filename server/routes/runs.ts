@@ -1,8 +1,7 @@
 import type { OpenAPIRegistry } from "@asteasolutions/zod-to-openapi";
 import { studyParamsSchema } from "../../shared/schemas/common";
+import { runDiffQuerySchema, runDiffSchema } from "../../shared/schemas/runDiff";
 import {
-  runDiffQuerySchema,
-  runDiffSchema,
   runExportQuerySchema,
   runListQuerySchema,
   runListSchema,

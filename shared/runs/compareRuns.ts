@@ -1,7 +1,9 @@
 // Comparing two runs of a study side by side (the "what changed" of a re-run): parameters, data
 // hash, row counts and, boundary by boundary and trait by trait, the numbers that moved. Pure, so
 // the server answers the diff route with it and anything else can compare two stored runs.
-import { CORRECTION_LABELS, type Run, type RunDiff, type RunParams } from "../schemas/runs";
+import { CORRECTION_LABELS, type RunParams } from "../schemas/runParams";
+import type { Run } from "../schemas/runs";
+import type { RunDiff } from "../schemas/runDiff";
 
 type Pair = { base: number | null; run: number | null };
 const pair = (base: number | null | undefined, run: number | null | undefined): Pair => ({ base: base ?? null, run: run ?? null });

@@ -3,7 +3,8 @@
 // parameters, a hash of the exact data read, results, who and when; exported as CSV.
 import { z } from "zod";
 import type { ComparisonResult } from "../comparison/types";
-import { exportQuerySchema, isoDateSchema, uuidSchema, personOrNoneSchema, type Same, cautionsSchema } from "./common";
+import { exportQuerySchema, uuidSchema, type Same, cautionsSchema } from "./common";
+import { savedAnalysisSummarySchema } from "./savedAnalysis";
 import { crosswalkSchema, iucnCategorySchema, listNameSchema } from "./modernLists";
 
 /** Default probability from which a species listed LC or DD is "worth a look": more likely than not to have died out in the past crisis. */
@@ -138,11 +139,8 @@ export const comparisonResultsSchema = comparisonResultSchema
   .meta({ id: "ComparisonResults" });
 export type ComparisonResults = z.infer<typeof comparisonResultsSchema>;
 
-export const comparisonSummarySchema = z
-  .object({
-    id: z.uuid(),
-    studyId: z.uuid(),
-    name: z.string(),
+export const comparisonSummarySchema = savedAnalysisSummarySchema
+  .extend({
     listId: z.uuid(),
     listName: z.string(),
     runId: z.uuid(),
@@ -150,11 +148,8 @@ export const comparisonSummarySchema = z
     params: comparisonParamsSchema,
     dataHash: z.string().meta({ description: "SHA-256 (hex) of the exact data read: the species as read through the crosswalk, the crosswalk, and the run's model" }),
     dataHashShort: z.string(),
-    appVersion: z.string(),
     auc: z.number().nullable(),
     worthALookCount: z.number().int(),
-    createdBy: personOrNoneSchema,
-    createdAt: isoDateSchema,
   })
   .meta({ id: "ComparisonSummary" });
 export type ComparisonSummary = z.infer<typeof comparisonSummarySchema>;

@@ -12,6 +12,7 @@ export * from "./decisions";
 export * from "./imports";
 export * from "./exports";
 export * from "./runs";
+export * from "./runDiff";
 export * from "./threads";
 export * from "./notifications";
 export * from "./activity";

@@ -1,6 +1,7 @@
 import { Fragment, useId, useState } from "react";
 import { Link, useSearchParams } from "react-router-dom";
-import type { RunDiff, RunSummary } from "@shared/schemas/runs";
+import type { RunDiff } from "@shared/schemas/runDiff";
+import type { RunSummary } from "@shared/schemas/runs";
 import { Button, ButtonLink } from "../../components/Button";
 import { Card } from "../../components/Card";
 import { EmptyState } from "../../components/EmptyState";

@@ -1,4 +1,4 @@
-import type { RunDiff } from "@shared/schemas/runs";
+import type { RunDiff } from "@shared/schemas/runDiff";
 import { Card } from "../../components/Card";
 import { ErrorState } from "../../components/ErrorState";
 import { cx } from "../../lib/cx";

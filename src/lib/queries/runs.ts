@@ -1,7 +1,8 @@
 // Saved runs, read by the Selectivity screen and its report, the Runs screens and the modern
 // comparison (which scores with a run's model); and the run actions several screens offer.
 import { keepPreviousData, queryOptions, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
-import type { Run, RunDiff, RunList, RunParams, RunRerunInput, RunSummary } from "@shared/schemas/runs";
+import type { RunDiff } from "@shared/schemas/runDiff";
+import type { Run, RunList, RunParams, RunRerunInput, RunSummary } from "@shared/schemas/runs";
 import { api } from "../api";
 import { queryKeys } from "../queryKeys";
 import { runApiPath, studyApiPath } from "./paths";
