@@ -12,7 +12,7 @@ import { stageBelow } from "../../shared/timescale/index";
 import type { RunBoundaryDesign, RunParams } from "../../shared/schemas/runs";
 import type { OutcomesResult } from "../../shared/schemas/outcomes";
 import type { Trait } from "../../shared/schemas/traits";
-import type { ClassifiedTaxon } from "./outcomes";
+import type { ClassifiedTaxon } from "./outcomeClassification";
 import { DomainError, invalidInput } from "../domain/errors";
 
 /** What a run needs from the services that own the data. */
