@@ -3,30 +3,84 @@ import type { Database } from "../db";
 import { invitations, memberships, studies, traits, users } from "../../db/schema/index";
 import { SUGGESTED_CODEBOOK } from "../../shared/codebook";
 import { ROLE_LABELS, type StudyRole } from "../../shared/roles";
-import type { Member, Study, StudyUpdateInput } from "../../shared/schemas/studies";
-import { DomainError, notFound } from "../domain/errors";
+import type { MainBoundary, Member, Study, StudyUpdateInput } from "../../shared/schemas/studies";
+import { findUnit } from "../../shared/timescale/index";
+import { DomainError, invalidInput, notFound } from "../domain/errors";
 import { addActivity } from "./activity";
-
 import { loadImportSettings, saveImportSettings } from "./importSettings";
 import type { ImportSettings } from "../../shared/schemas/importChecks";
+
 type StudyRow = typeof studies.$inferSelect;
 
-function toStudy(row: StudyRow, role: StudyRole, memberCount: number): Study {
+/** What the newest run (not failed) says about the study's boundary: its crisis boundary, or its first. */
+interface LastRunBoundary {
+  runId: string;
+  runName: string;
+  createdAt: string;
+  boundaryMa: number | null;
+  windowMyr: number | null;
+}
+
+/** The choice kept in studies.settings.mainBoundary (no column of its own). */
+interface StoredMainBoundary {
+  boundaryMa: number;
+  unit: string | null;
+  setAt: string;
+}
+
+/** The main boundary: the later of the choice on the overview and the newest run's crisis boundary. */
+function mainBoundaryOf(row: StudyRow, lastRun: LastRunBoundary | null): MainBoundary | null {
+  const stored = (row.settings as { mainBoundary?: StoredMainBoundary }).mainBoundary;
+  const fromRun: MainBoundary | null =
+    lastRun && typeof lastRun.boundaryMa === "number"
+      ? {
+          boundaryMa: lastRun.boundaryMa,
+          unit: null,
+          windowMyr: typeof lastRun.windowMyr === "number" ? lastRun.windowMyr : null,
+          source: "run",
+          runId: lastRun.runId,
+          runName: lastRun.runName,
+          setAt: new Date(lastRun.createdAt).toISOString(),
+        }
+      : null;
+  const fromStudy: MainBoundary | null =
+    stored && typeof stored.boundaryMa === "number"
+      ? { boundaryMa: stored.boundaryMa, unit: stored.unit ?? null, windowMyr: null, source: "study", runId: null, runName: null, setAt: stored.setAt }
+      : null;
+  if (fromRun && fromStudy) return Date.parse(fromRun.setAt) > Date.parse(fromStudy.setAt) ? fromRun : fromStudy;
+  return fromRun ?? fromStudy;
+}
+
+function toStudy(row: StudyRow, role: StudyRole, memberCount: number, lastRun: LastRunBoundary | null = null): Study {
   return {
     id: row.id,
     name: row.name,
     description: row.description,
     role,
     memberCount,
+    mainBoundary: mainBoundaryOf(row, lastRun),
     createdAt: row.createdAt.toISOString(),
     updatedAt: row.updatedAt.toISOString(),
   };
 }
 
 const memberCountSql = sql<number>`(SELECT count(*)::int FROM memberships m2 WHERE m2.study_id = ${studies.id})`;
+// The newest run that did not fail, with the boundary it names the crisis (its first when none is named); runs_study_idx serves it.
+// The outer table is named in full: drizzle writes ${studies.id} as a bare "id", which inside this subquery would mean the run's.
+const lastRunBoundarySql = sql<LastRunBoundary | null>`(
+  SELECT jsonb_build_object(
+    'runId', r.id, 'runName', r.name, 'createdAt', r.created_at,
+    'boundaryMa', r.params -> 'boundaries' -> COALESCE((r.params ->> 'crisisBoundary')::int, 0) -> 'boundaryMa',
+    'windowMyr', r.params -> 'boundaries' -> COALESCE((r.params ->> 'crisisBoundary')::int, 0) -> 'windowMyr')
+  FROM runs r WHERE r.study_id = "studies"."id" AND r.status <> 'failed' ORDER BY r.created_at DESC LIMIT 1)`;
 
 export function createStudyService(db: Database) {
   const service = {
+    /** The study's declared missing-value tokens (see ./importSettings). */
+    importSettings: (studyId: string): Promise<ImportSettings> => loadImportSettings(db, studyId),
+    updateImportSettings: (studyId: string, userId: string, input: ImportSettings): Promise<ImportSettings> =>
+      db.transaction((tx) => saveImportSettings(tx, studyId, userId, input)),
+
     async roleOf(studyId: string, userId: string): Promise<StudyRole | null> {
       const row = await db.query.memberships.findFirst({
         where: and(eq(memberships.studyId, studyId), eq(memberships.userId, userId)),
@@ -37,32 +91,43 @@ export function createStudyService(db: Database) {
 
     async listFor(userId: string): Promise<Study[]> {
       const rows = await db
-        .select({ study: studies, role: memberships.role, memberCount: memberCountSql })
+        .select({ study: studies, role: memberships.role, memberCount: memberCountSql, lastRun: lastRunBoundarySql })
         .from(memberships)
         .innerJoin(studies, eq(studies.id, memberships.studyId))
         .where(eq(memberships.userId, userId))
         .orderBy(desc(studies.updatedAt));
-      return rows.map((r) => toStudy(r.study, r.role, Number(r.memberCount)));
+      return rows.map((r) => toStudy(r.study, r.role, Number(r.memberCount), r.lastRun));
     },
 
     async get(studyId: string, role: StudyRole): Promise<Study> {
-      const [row] = await db.select({ study: studies, memberCount: memberCountSql }).from(studies).where(eq(studies.id, studyId));
+      const [row] = await db.select({ study: studies, memberCount: memberCountSql, lastRun: lastRunBoundarySql }).from(studies).where(eq(studies.id, studyId));
       if (!row) throw notFound("Study not found.");
-      return toStudy(row.study, role, Number(row.memberCount));
+      return toStudy(row.study, role, Number(row.memberCount), row.lastRun);
     },
 
-    /** The creator becomes the study's owner; the study starts from the suggested codebook. */
-    async create(userId: string, input: { name: string; description: string }): Promise<Study> {
+    /** The creator becomes the study's owner; the codebook starts empty unless the suggested one is asked for. */
+    async create(userId: string, input: { name: string; description: string; suggestedCodebook?: boolean }): Promise<Study> {
+      const { suggestedCodebook = false, ...fields } = input;
       return db.transaction(async (tx) => {
-        const [row] = await tx.insert(studies).values({ ...input, createdBy: userId }).returning();
+        const [row] = await tx.insert(studies).values({ ...fields, createdBy: userId }).returning();
         await tx.insert(memberships).values({ studyId: row.id, userId, role: "owner" });
-        await tx.insert(traits).values(SUGGESTED_CODEBOOK.map((t, i) => ({ ...t, studyId: row.id, sortOrder: i })));
+        if (suggestedCodebook) await tx.insert(traits).values(SUGGESTED_CODEBOOK.map((t, i) => ({ ...t, studyId: row.id, sortOrder: i })));
         return toStudy(row, "owner", 1);
       });
     },
 
     async update(studyId: string, role: StudyRole, input: StudyUpdateInput): Promise<Study> {
-      await db.update(studies).set({ ...input, updatedAt: new Date() }).where(eq(studies.id, studyId));
+      const { mainBoundary, ...fields } = input;
+      const changes: Partial<typeof studies.$inferInsert> = { ...fields, updatedAt: new Date() };
+      if (mainBoundary === null) {
+        changes.settings = sql`${studies.settings} - 'mainBoundary'` as never;
+      } else if (mainBoundary !== undefined) {
+        const unit = mainBoundary.unit !== undefined ? findUnit(mainBoundary.unit) : undefined;
+        if (mainBoundary.unit !== undefined && !unit) throw invalidInput(`"${mainBoundary.unit}" is not a unit of the time scale.`, { "mainBoundary.unit": "Not a unit of the time scale" });
+        const stored: StoredMainBoundary = { boundaryMa: unit ? unit.base : (mainBoundary.boundaryMa as number), unit: unit?.name ?? null, setAt: new Date().toISOString() };
+        changes.settings = sql`jsonb_set(${studies.settings}, '{mainBoundary}', ${JSON.stringify(stored)}::jsonb)` as never;
+      }
+      await db.update(studies).set(changes).where(eq(studies.id, studyId));
       return service.get(studyId, role);
     },
 
@@ -76,11 +141,6 @@ export function createStudyService(db: Database) {
         .from(memberships)
         .innerJoin(users, eq(users.id, memberships.userId))
         .where(eq(memberships.studyId, studyId))
-    /** The study's declared missing-value tokens (see ./importSettings). */
-    importSettings: (studyId: string): Promise<ImportSettings> => loadImportSettings(db, studyId),
-    updateImportSettings: (studyId: string, userId: string, input: ImportSettings): Promise<ImportSettings> =>
-      db.transaction((tx) => saveImportSettings(tx, studyId, userId, input)),
-
         .orderBy(users.name);
       const members: Member[] = rows.map((r) => ({ ...r, joinedAt: r.joinedAt.toISOString() }));
       const pending = await db

@@ -1,7 +1,9 @@
 import { z } from "zod";
 import { STUDY_ROLES } from "../roles";
+import { findUnit } from "../timescale/lookup";
 import { emailSchema } from "./auth";
 import { isoDateSchema, oneLine, uuidSchema, wellFormed } from "./common";
+import { boundaryMaSchema } from "./outcomes";
 
 export const studyRoleSchema = z.enum(STUDY_ROLES, { message: `Role must be one of ${STUDY_ROLES.join(", ")}` });
 
@@ -12,15 +14,55 @@ export const studyCreateSchema = z
   .strictObject({
     name: studyNameSchema,
     description: studyDescriptionSchema.default(""),
+    suggestedCodebook: z
+      .boolean({ message: "suggestedCodebook must be true or false" })
+      .default(false)
+      .meta({ description: "Start the codebook from the five suggested traits (environment, life habit, feeding mode, body size, geographic range); default: an empty codebook" }),
   })
   .meta({ id: "StudyCreate" });
 export type StudyCreateInput = z.input<typeof studyCreateSchema>;
+
+/**
+ * The study's main boundary as a person sets it: the base of a unit of the time scale, or an age.
+ * The Boundary screen opens there and the modern comparison starts from a run that tests it.
+ */
+export const mainBoundaryInputSchema = z
+  .strictObject({
+    unit: z
+      .string({ message: "Unit must be the name of a unit of the time scale" })
+      .trim()
+      .min(1, "Unit must be the name of a unit of the time scale")
+      .max(80, "Unit must have at most 80 characters")
+      .refine((name) => findUnit(name) !== undefined, "Unit is not a unit of the time scale")
+      .optional()
+      .meta({ description: "A unit of the time scale whose base is the boundary, e.g. Turonian" }),
+    boundaryMa: boundaryMaSchema.optional().meta({ description: "Or a custom boundary age in Ma" }),
+  })
+  .superRefine((b, ctx) => {
+    if ((b.unit === undefined) === (b.boundaryMa === undefined)) ctx.addIssue({ code: "custom", path: ["unit"], message: "Give either a unit of the time scale or a boundary age in Ma" });
+  })
+  .meta({ id: "MainBoundaryInput" });
+export type MainBoundaryInput = z.input<typeof mainBoundaryInputSchema>;
+
+export const mainBoundarySchema = z
+  .object({
+    boundaryMa: z.number().meta({ description: "Boundary age in Ma" }),
+    unit: z.string().nullable().meta({ description: "The unit of the time scale it was chosen as, when it was chosen by name" }),
+    windowMyr: z.number().nullable().meta({ description: "The window the run used, when it gave one; null: the default window" }),
+    source: z.enum(["study", "run"]).meta({ description: "study: set on the study's overview; run: the crisis boundary of the study's newest run (newer than any choice on the overview)" }),
+    runId: z.uuid().nullable(),
+    runName: z.string().nullable(),
+    setAt: isoDateSchema,
+  })
+  .meta({ id: "MainBoundary" });
+export type MainBoundary = z.infer<typeof mainBoundarySchema>;
 
 /** Only the given fields change (no defaults here: `.partial()` of the create schema would empty a description left out). */
 export const studyUpdateSchema = z
   .strictObject({
     name: studyNameSchema.optional(),
     description: studyDescriptionSchema.optional(),
+    mainBoundary: mainBoundaryInputSchema.nullable().optional().meta({ description: "The study's main boundary; null clears the choice (the newest run's crisis boundary then counts)" }),
   })
   .meta({ id: "StudyUpdate" });
 export type StudyUpdateInput = z.input<typeof studyUpdateSchema>;
@@ -32,6 +74,7 @@ export const studySchema = z
     description: z.string(),
     role: studyRoleSchema,
     memberCount: z.number().int(),
+    mainBoundary: mainBoundarySchema.nullable().meta({ description: "The boundary the study is about: the latest of the choice on the overview and the newest run's crisis boundary; null when neither exists" }),
     createdAt: isoDateSchema,
     updatedAt: isoDateSchema,
   })

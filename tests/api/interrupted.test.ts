@@ -33,9 +33,9 @@ afterAll(async () => {
 
 const count = async (query: string, params: unknown[]) => Number((await db.query(query, params)).rows[0].n);
 
-/** A study made through the API: a new study starts with the suggested codebook. */
+/** A study made through the API, asking for the suggested codebook. */
 async function newStudy(base: string, cookie: string, name: string) {
-  const study = (await call(base, "POST", "/api/studies", cookie, { name })).body as { id: string };
+  const study = (await call(base, "POST", "/api/studies", cookie, { name, suggestedCodebook: true })).body as { id: string };
   const traits = (await call(base, "GET", `/api/studies/${study.id}/traits`, cookie)).body.traits as Array<{ id: string; key: string }>;
   return { id: study.id, trait: Object.fromEntries(traits.map((t) => [t.key, t.id])) };
 }

@@ -17,8 +17,18 @@ beforeAll(async () => {
 afterAll(() => app.close());
 
 describe("the suggested codebook", () => {
-  it("a new study starts with it: environment, life habit, feeding mode, body size, geographic range", async () => {
-    const created = await cast.people.owner.agent.post("/api/studies").send({ name: "Invented codebook study" });
+  it("is a choice at creation, not a default: a study created without asking has an empty codebook", async () => {
+    const created = await cast.people.owner.agent.post("/api/studies").send({ name: "Invented empty codebook study" });
+    expect(created.status).toBe(201);
+    const res = await cast.people.owner.agent.get(`/api/studies/${created.body.id}/traits`);
+    expect(res.body.traits).toEqual([]);
+    const refused = await cast.people.owner.agent.post("/api/studies").send({ name: "Invented study", suggestedCodebook: "yes" });
+    expect(refused.status).toBe(400);
+    expect(refused.body.error.fields).toHaveProperty("suggestedCodebook");
+  });
+
+  it("a new study asking for it starts with: environment, life habit, feeding mode, body size, geographic range", async () => {
+    const created = await cast.people.owner.agent.post("/api/studies").send({ name: "Invented codebook study", suggestedCodebook: true });
     const res = await cast.people.owner.agent.get(`/api/studies/${created.body.id}/traits`);
     expect(res.body.traits.map((t: { key: string; kind: string }) => [t.key, t.kind])).toEqual([
       ["environment", "binary"],

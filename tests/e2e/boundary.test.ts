@@ -192,7 +192,8 @@ describe("boundary screen", () => {
       await overrides.getByLabel("Show", { exact: true }).selectOption("revoked");
       expect(await overrides.locator('[data-override-taxon="Vessirella brevis"]').innerText()).toContain("Checked again: the Turonian shells are in place");
 
-      // A custom age inside the Cenomanian, 94.2 Ma; the default window is still the Cenomanian's 6.6 Myr (to 100.8 Ma).
+      // A custom age inside the Cenomanian, 94.2 Ma; the default window reaches down to the Cenomanian's base:
+      // 100.5 - 94.2 = 6.3 Myr (the stage's whole 6.6 Myr would run past its base to 100.8 Ma).
       // Worked by hand: fragilis and obscurus (last seen at 93.9) now cross it and survive (10); tenuis, ornata, gracilis
       // and plana (last seen 94.2-97) are victims (4); the same 5 are not at risk.
       await page.getByText("Custom age", { exact: true }).click();
@@ -201,6 +202,10 @@ describe("boundary screen", () => {
       await page.waitForURL(/[?&]age=94\.2(&|$)/);
       await page.getByTestId("boundary-headline").filter({ hasText: "94.2 Ma, a custom age, inside the Cenomanian" }).waitFor();
       await waitForCounts(page, [10, 4, 5]);
+      expect(await page.getByRole("region", { name: "Outcomes across the boundary" }).innerText()).toContain(
+        "window 6.3 Myr (to 100.5 Ma), down to the base of the Cenomanian, the stage this age falls in",
+      );
+      await page.getByText("the distance down to the base of the Cenomanian, the stage this age falls in, 6.3 Myr").waitFor();
     });
   });
 });

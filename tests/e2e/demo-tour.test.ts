@@ -199,6 +199,8 @@ describe("first start of a new account", () => {
         await page.getByRole("link", { name: "Create a study and pick a boundary" }).click();
         await page.getByText("Once it is created, the study opens on its Boundary screen.").waitFor();
         await page.getByLabel("Name").fill("Invented first study");
+        // The suggested codebook is a choice, not a default.
+        await page.getByRole("checkbox", { name: /Start from the suggested codebook/ }).check();
         await page.getByRole("button", { name: "Create study" }).click();
         await page.waitForURL(/\/studies\/[0-9a-f-]{36}\/boundary$/);
         const studyPath = new URL(page.url()).pathname.replace(/\/boundary$/, "");

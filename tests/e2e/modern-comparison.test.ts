@@ -61,7 +61,7 @@ async function studyWithFinishedRun() {
   const { context } = browser;
   const signup = await context.request.post(`${server.url}/api/auth/signup`, { data: { email: uniqueEmail("lead"), password: PASSWORD, name: "Invented Study Lead" } });
   expect(signup.status()).toBe(201);
-  const created = await context.request.post(`${server.url}/api/studies`, { data: { name: `Invented basin crisis ${randomUUID().slice(0, 6)}`, description: "Invented example study." } });
+  const created = await context.request.post(`${server.url}/api/studies`, { data: { name: `Invented basin crisis ${randomUUID().slice(0, 6)}`, description: "Invented example study.", suggestedCodebook: true } });
   expect(created.status()).toBe(201);
   const studyId = ((await created.json()) as { id: string }).id;
   const api = `${server.url}/api/studies/${studyId}`;

@@ -50,11 +50,11 @@ async function buildStudy(page: Page): Promise<{ studyId: string; userId: string
   expect(signup.status()).toBe(201);
   const userId = ((await signup.json()) as { id: string }).id;
   const created = await page.request.post(`${server.url}/api/studies`, {
-    data: { name: `Invented Orrent Basin crisis ${randomUUID().slice(0, 6)}`, description: "Invented example data with planted effects." },
+    data: { name: `Invented Orrent Basin crisis ${randomUUID().slice(0, 6)}`, description: "Invented example data with planted effects.", suggestedCodebook: true },
   });
   expect(created.status()).toBe(201);
   const studyId = ((await created.json()) as { id: string }).id;
-  // A new study starts with the suggested codebook, which holds both traits (and states no taxon here has).
+  // The study asked for the suggested codebook, which holds both traits (and states no taxon here has).
   const codebook = await page.request.get(`${server.url}/api/studies/${studyId}/traits`);
   expect(codebook.status()).toBe(200);
   const byKey = new Map(((await codebook.json()) as { traits: Array<{ id: string; key: string }> }).traits.map((t) => [t.key, t.id]));

@@ -43,7 +43,7 @@ describe("threads", () => {
     // Set-up through the API: a study lead with a study holding one invented taxon, a coder, and
     // the reviewer signed in in the browser; memberships written directly (invitations are not the subject).
     const lead = await account("Invented Lead");
-    const created = await lead.api.post("/api/studies", { data: { name: `Invented Vessiran Basin crisis ${randomUUID().slice(0, 6)}` } });
+    const created = await lead.api.post("/api/studies", { data: { name: `Invented Vessiran Basin crisis ${randomUUID().slice(0, 6)}`, suggestedCodebook: true } });
     const studyId = ((await created.json()) as { id: string }).id;
     const traits = ((await (await lead.api.get(`/api/studies/${studyId}/traits`)).json()) as { traits: Array<{ id: string; key: string }> }).traits;
     const bodySize = traits.find((t) => t.key === "body_size")!.id;

@@ -1,4 +1,4 @@
-import { useMemo, useState, type ReactNode } from "react";
+import { useEffect, useMemo, useState, type ReactNode } from "react";
 import { useSearchParams } from "react-router-dom";
 import { can } from "@shared/roles";
 import type { OutcomesResult, OutcomeTaxon } from "@shared/schemas/outcomes";
@@ -17,7 +17,7 @@ import { turnoverCsvUrl, useOutcomes, useTurnover, type OutcomesRequest } from "
 import { BoundaryScorecard } from "./BoundaryScorecard";
 import { TurnoverSection } from "./TurnoverSection";
 import { BoundaryPicker } from "./BoundaryPicker";
-import { readBoundaryView, withChoice, withList, withWindow, type BoundaryView } from "./boundaryParams";
+import { mainBoundarySearch, readBoundaryView, withChoice, withList, withWindow, type BoundaryView } from "./boundaryParams";
 import { ClassificationRules } from "./ClassificationRules";
 import { SamplingCompleteness } from "./SamplingCompleteness";
 import { ThreeTimerChart } from "./ThreeTimerChart";
@@ -48,7 +48,13 @@ export function BoundaryPage() {
   const study = useCurrentStudy();
   useDocumentTitle(`Boundary · ${study.name}`);
   const [search, setSearch] = useSearchParams();
-  const view = readBoundaryView(search);
+  // An address without a boundary opens at the study's main boundary (set on the overview, or the newest run's crisis).
+  const opening = !search.has("unit") && !search.has("age") && study.mainBoundary ? mainBoundarySearch(search, study.mainBoundary) : null;
+  const openingKey = opening?.toString();
+  useEffect(() => {
+    if (openingKey !== undefined) setSearch(new URLSearchParams(openingKey), { replace: true });
+  }, [openingKey, setSearch]);
+  const view = readBoundaryView(opening ?? search);
   const request = requestOf(view);
   const timescale = useTimescale();
   const scale = useMemo(() => (timescale.data ? indexScale(timescale.data.units) : null), [timescale.data]);
@@ -95,6 +101,14 @@ export function BoundaryPage() {
             onChoose={(choice) => setSearch(withChoice(search, choice))}
             onWindow={(window) => setSearch(withWindow(search, window))}
           />
+        )}
+
+        {study.mainBoundary && boundary !== null && Math.abs(study.mainBoundary.boundaryMa - boundary) < 1e-9 && (
+          <p className="text-sm text-stone-600" data-testid="main-boundary-note">
+            {study.mainBoundary.source === "run"
+              ? `The study’s main boundary: the crisis boundary of its newest run, “${study.mainBoundary.runName ?? "a run"}”.`
+              : "The study’s main boundary, as set on the study’s overview."}
+          </p>
         )}
 
         {view.problems.length > 0 && (

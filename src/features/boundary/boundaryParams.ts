@@ -5,6 +5,7 @@
 //   &list=victim&page=2       which list is open, and its page
 // The address is checked with the same schema the server uses for the outcomes query.
 import { BOUNDARY_OUTCOMES, outcomesQuerySchema, type BoundaryOutcomeName } from "@shared/schemas/outcomes";
+import type { MainBoundary } from "@shared/schemas/studies";
 import { issuesToFieldErrors } from "../../lib/forms";
 
 export type BoundaryChoice = { kind: "unit"; name: string } | { kind: "age"; age: number };
@@ -52,6 +53,12 @@ export function withChoice(search: URLSearchParams, choice: BoundaryChoice): URL
   if (choice.kind === "unit") next.set(PARAM.unit, choice.name);
   else next.set(PARAM.age, String(choice.age));
   return next;
+}
+
+/** The address that opens the study's main boundary: its unit by name, or its age, with the run's window when it gave one. */
+export function mainBoundarySearch(search: URLSearchParams, main: MainBoundary): URLSearchParams {
+  const next = withChoice(search, main.unit ? { kind: "unit", name: main.unit } : { kind: "age", age: main.boundaryMa });
+  return main.windowMyr !== null && !search.has(PARAM.window) ? withWindow(next, main.windowMyr) : next;
 }
 
 /** The address with a window in Myr, or without one (undefined: the default window). */

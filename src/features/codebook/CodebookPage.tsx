@@ -21,6 +21,7 @@ import { codebookCsvUrl } from "../../lib/queries/paths";
 import { useReorderTraits, useUpdateTrait } from "./api";
 import { TraitEditor } from "./TraitEditor";
 import { TraitSummary } from "./TraitSummary";
+import { TimeBinsSummary } from "./TimeBinsSummary";
 
 type Editing = { mode: "new" } | { mode: "edit"; traitId: string } | null;
 
@@ -72,7 +73,7 @@ export function CodebookPage() {
       <PageHeader
         eyebrow={study.name}
         title="Codebook"
-        description="The traits recorded for every taxon of this study: their states or units, and the rule coders follow. A new study starts from a suggested codebook; edit, extend or retire its traits to fit your question."
+        description="The traits recorded for every taxon of this study: their states or units, and the rule coders follow. A new study starts empty or from the suggested codebook; edit, extend or retire traits to fit your question."
         actions={
           <>
             <a className={buttonClasses("secondary")} href={codebookCsvUrl(study.id)} download>
@@ -198,6 +199,8 @@ export function CodebookPage() {
           </ul>
         </Card>
       )}
+
+      <TimeBinsSummary studyId={study.id} />
 
       {discussing && (
         <ThreadDrawer

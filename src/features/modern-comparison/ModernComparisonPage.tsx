@@ -142,7 +142,7 @@ export function ModernComparisonPage() {
                 {finishedRuns.length === 0 && "A comparison needs a finished selectivity run of this study; none has finished yet."}
               </p>
             )}
-            {lists.data && runs.data && readyLists.length > 0 && finishedRuns.length > 0 && <NewComparisonForm studyId={study.id} lists={lists.data.lists} runs={finishedRuns} />}
+            {lists.data && runs.data && readyLists.length > 0 && finishedRuns.length > 0 && <NewComparisonForm studyId={study.id} lists={lists.data.lists} runs={finishedRuns} mainBoundary={study.mainBoundary} />}
           </Card>
         )}
 

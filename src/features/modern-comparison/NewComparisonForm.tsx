@@ -3,6 +3,8 @@ import { useNavigate } from "react-router-dom";
 import { comparisonParamsSchema, DEFAULT_WORTH_A_LOOK_MIN } from "@shared/schemas/comparisons";
 import type { ModernListSummary } from "@shared/schemas/modernLists";
 import type { RunSummary } from "@shared/schemas/runs";
+import type { MainBoundary } from "@shared/schemas/studies";
+import { defaultRunAndBoundary } from "./defaultRun";
 import { Button } from "../../components/Button";
 import { FormError } from "../../components/Notice";
 import { Select } from "../../components/Select";
@@ -22,12 +24,13 @@ const LEVELS = [
 ];
 
 /** Choose a list (with its saved crosswalk), a finished run and one of its boundaries; score, compare and save. */
-export function NewComparisonForm({ studyId, lists, runs }: { studyId: string; lists: ModernListSummary[]; runs: RunSummary[] }) {
+export function NewComparisonForm({ studyId, lists, runs, mainBoundary }: { studyId: string; lists: ModernListSummary[]; runs: RunSummary[]; mainBoundary: MainBoundary | null }) {
   const navigate = useNavigate();
   const ready = lists.filter((l) => l.crosswalkSaved);
   const [listId, setListId] = useState(ready[0]?.id ?? "");
-  const [runId, setRunId] = useState(runs[0]?.id ?? "");
-  const [boundaryIndex, setBoundaryIndex] = useState("0");
+  const [initial] = useState(() => defaultRunAndBoundary(runs, mainBoundary));
+  const [runId, setRunId] = useState(initial.runId);
+  const [boundaryIndex, setBoundaryIndex] = useState(String(initial.boundaryIndex));
   const [name, setName] = useState("");
   const [worthALookMin, setWorthALookMin] = useState(String(DEFAULT_WORTH_A_LOOK_MIN));
   const [level, setLevel] = useState("0.95");
@@ -77,7 +80,8 @@ export function NewComparisonForm({ studyId, lists, runs }: { studyId: string; l
           value={runId}
           onChange={(e) => {
             setRunId(e.target.value);
-            setBoundaryIndex("0");
+            const next = runs.find((r) => r.id === e.target.value);
+            setBoundaryIndex(String(next ? defaultRunAndBoundary([next], mainBoundary).boundaryIndex : 0));
           }}
           error={errors.runId}
           hint="Finished runs; its fitted model scores every species."

@@ -7,6 +7,7 @@ import type { Timescale } from "@shared/schemas/timescale";
 import type { Trait } from "@shared/schemas/traits";
 import { Button, ButtonLink } from "../../components/Button";
 import { Card } from "../../components/Card";
+import { EmptyState } from "../../components/EmptyState";
 import { ErrorState } from "../../components/ErrorState";
 import { focusRing } from "../../components/focus";
 import { cx } from "../../lib/cx";
@@ -24,6 +25,7 @@ import { paths } from "../../lib/paths";
 import { useDocumentTitle } from "../../lib/useDocumentTitle";
 import { useTraits } from "../../lib/queries/codebook";
 import { useRun, useStartRun } from "../../lib/queries/runs";
+import { useStudyTaxaTotal } from "../../lib/queries/taxaTotal";
 import { useTimescale } from "../../lib/queries/timescale";
 import { useRunPreview } from "./api";
 import { BoundariesCard } from "./BoundariesCard";
@@ -62,6 +64,7 @@ export function SelectivityPage() {
   const timescale = useTimescale();
   const scale = useMemo(() => (timescale.data ? indexScale(timescale.data.units) : null), [timescale.data]);
   const run = useRun(study.id, runId);
+  const taxaTotal = useStudyTaxaTotal(study.id);
 
   useEffect(() => {
     if (runId) {
@@ -82,6 +85,8 @@ export function SelectivityPage() {
   else if (traits.isError) body = <ErrorState error={traits.error} title="The codebook could not be loaded" onRetry={() => void traits.refetch()} />;
   else if (timescale.isError) body = <ErrorState error={timescale.error} title="The time scale could not be loaded" onRetry={() => void timescale.refetch()} />;
   else if (runId && run.isPending) body = <LoadingState label="Opening the run" lines={5} />;
+  else if (!runId && taxaTotal.isPending) body = <LoadingState label="Loading the study’s taxa" lines={5} />;
+  else if (!runId && taxaTotal.data === 0) body = <NothingToTestYet study={study} traitsInUse={traits.data.traits.filter((t) => !t.retired).length} />;
   else
     body = (
       <Workspace
@@ -117,6 +122,42 @@ export function SelectivityPage() {
       />
       {body}
     </>
+  );
+}
+
+/** An empty study: no set-up to show yet, only what to do first (as the trait table says). */
+function NothingToTestYet({ study, traitsInUse }: { study: Study; traitsInUse: number }) {
+  const imports = can(study.role, "imports.run");
+  const editsCodebook = can(study.role, "codebook.edit");
+  return (
+    <EmptyState
+      title="This study has no taxa yet"
+      description={
+        <>
+          A selectivity test needs taxa with first and last appearances and coded traits.{" "}
+          {traitsInUse === 0
+            ? editsCodebook
+              ? "First define the codebook (the traits to test), then import a CSV of taxa with their ranges and trait values."
+              : "The codebook has no traits yet either: a coder or the study lead defines it, then imports the taxa."
+            : imports
+              ? "First import a CSV of taxa with their ranges and trait values, or add taxa in the trait table; the set-up of a run appears here once there are taxa."
+              : "A coder or the study lead imports them; the set-up of a run appears here once there are taxa."}
+        </>
+      }
+      action={
+        <>
+          {traitsInUse === 0 && editsCodebook && <ButtonLink to={`${paths.study(study.id)}/codebook`}>Define the codebook</ButtonLink>}
+          {imports && (
+            <ButtonLink to={`${paths.study(study.id)}/imports`} variant={traitsInUse === 0 && editsCodebook ? "secondary" : "primary"}>
+              Import taxa
+            </ButtonLink>
+          )}
+          <ButtonLink to={`${paths.study(study.id)}/table`} variant="secondary">
+            Open the trait table
+          </ButtonLink>
+        </>
+      }
+    />
   );
 }
 

@@ -144,7 +144,7 @@ function NoStudiesYet() {
             </ButtonLink>
           }
         >
-          A study starts from five suggested traits ({traitNames}), each with a coding rule. Change them, add your own states or traits, or retire the ones you do not need.
+          Add the traits your question needs, or start the new study from five suggested ones ({traitNames}), each with a coding rule, and change or retire them later.
         </FirstStep>
         <FirstStep
           number={2}

@@ -37,7 +37,9 @@ export function FirstSteps({ study }: { study: Study }) {
           }
         >
           {editsCodebook
-            ? "The study starts from suggested ecological traits. Check their states and coding rules, and add the traits your question needs before coding begins."
+            ? activeTraits === 0
+              ? "The codebook is empty: add the traits your question needs, each with its states and coding rule, before coding begins."
+              : "Check the traits’ states and coding rules, and add the traits your question needs before coding begins."
             : "The traits, their states and the rule for coding each. A coder or the study lead edits them."}
         </Step>
         <Step

@@ -20,6 +20,7 @@ import { useDocumentTitle } from "../../lib/useDocumentTitle";
 import { ActivityFeed } from "./ActivityFeed";
 import { useDeleteStudy, useUpdateStudy } from "./api";
 import { FirstSteps } from "./FirstSteps";
+import { MainBoundaryCard } from "./MainBoundaryCard";
 import { MentionEmailsCard } from "./MentionEmailsCard";
 
 export function StudyOverviewPage() {
@@ -43,6 +44,7 @@ export function StudyOverviewPage() {
               </p>
             )}
           </Card>
+          <MainBoundaryCard study={study} canEdit={canEdit} />
           <ActivityFeed studyId={study.id} />
           {canEdit && <EditStudyCard key={study.id} study={study} />}
           {canDelete && <DeleteStudyCard study={study} />}

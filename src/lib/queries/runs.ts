@@ -63,6 +63,8 @@ function useRunChanged(studyId: string) {
   const queryClient = useQueryClient();
   return (run: Run) => {
     queryClient.setQueryData(queryKeys.runs.detail(studyId, run.id), run);
+    // The newest run's crisis boundary becomes the study's main boundary (part of the study's own record).
+    void queryClient.invalidateQueries({ queryKey: queryKeys.studies.detail(studyId), exact: true });
     return queryClient.invalidateQueries({ queryKey: queryKeys.runs.lists(studyId) });
   };
 }

@@ -1,0 +1,114 @@
+// Browser journeys through the rough edges of the flows: the Boundary screen opens at the study's main
+// boundary (the newest run's crisis, or the study lead's choice on the Overview), the modern
+// comparison starts from the run that tests it, a new study's codebook is a choice, and an empty
+// study's Selectivity screen says what to do first. The demo study and every name are invented.
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { launchBrowser, withScreenshotOnFailure } from "../support/browser";
+import { seedDemoStudy, signInAs, type DemoFixture } from "../support/demo";
+import { PASSWORD, startTestServer, uniqueEmail } from "../support/server";
+
+type Server = Awaited<ReturnType<typeof startTestServer>>;
+type Browser = Awaited<ReturnType<typeof launchBrowser>>;
+
+let server: Server;
+let browser: Browser;
+let demo: DemoFixture;
+
+beforeAll(async () => {
+  server = await startTestServer();
+  browser = await launchBrowser();
+  demo = await seedDemoStudy(server);
+});
+
+afterAll(async () => {
+  await browser?.close();
+  await server?.close();
+});
+
+describe("the study's main boundary", () => {
+  it("opens the Boundary screen at the newest run's crisis, starts the modern comparison from that run, and follows the lead's choice on the Overview", async () => {
+    const { context } = browser;
+    await withScreenshotOnFailure(context, "flows-main-boundary", async () => {
+      await signInAs(context, server.url, demo.account.owner);
+      const study = (await (await context.request.get(`${server.url}/api/studies/${demo.studyId}`)).json()) as {
+        mainBoundary: { boundaryMa: number; source: string; runId: string; runName: string } | null;
+      };
+      // The demo's runs name the base of the Turonian (93.9 Ma, ICS v2024/12) as the crisis.
+      expect(study.mainBoundary).toMatchObject({ boundaryMa: 93.9, source: "run" });
+
+      const page = await context.newPage();
+      await page.goto(`${demo.studyUrl}/boundary`);
+      await page.waitForURL(/[?&]age=93\.9(&|$)/);
+      await page.getByTestId("boundary-headline").filter({ hasText: "base of the Turonian stage, 93.9 Ma" }).waitFor();
+      await page.getByTestId("main-boundary-note").filter({ hasText: `the crisis boundary of its newest run, “${study.mainBoundary!.runName}”` }).waitFor();
+      await page.getByRole("region", { name: "Outcomes across the boundary" }).waitFor();
+      expect(await page.getByRole("heading", { name: "Choose a boundary" }).count()).toBe(0);
+
+      // The modern comparison's form starts from the run that tests the main boundary, at that boundary.
+      await page.goto(`${demo.studyUrl}/modern-comparison`);
+      const form = page.getByRole("form", { name: "Compare a list with a run" });
+      await form.waitFor();
+      expect(await form.getByLabel("Run", { exact: true }).inputValue()).toBe(study.mainBoundary!.runId);
+      const boundarySelect = form.getByLabel("Boundary of the run");
+      await page.waitForFunction(() => !document.body.innerText.includes("Loading the run…"));
+      expect(await boundarySelect.locator("option:checked").innerText()).toMatch(/Turonian|93\.9/);
+
+      // The study lead sets the base of the Campanian on the Overview (83.6 Ma, ICS v2024/12); the Boundary screen opens there.
+      await page.goto(demo.studyUrl);
+      const card = page.getByRole("region", { name: "Main boundary" });
+      await card.getByRole("button", { name: "Change" }).click();
+      await card.getByLabel("Period", { exact: true }).selectOption("Cretaceous");
+      await card.getByLabel("Epoch", { exact: true }).selectOption("UpperCretaceous");
+      await card.getByLabel("Stage", { exact: true }).selectOption("Campanian");
+      await card.getByRole("button", { name: "Save the base of the Campanian" }).click();
+      await card.getByTestId("main-boundary").filter({ hasText: "base of the Campanian, 83.6 Ma" }).waitFor();
+      await card.getByText("Set on this overview.").waitFor();
+      await page.getByRole("navigation", { name: "Study" }).getByRole("link", { name: "Boundary" }).click();
+      await page.waitForURL(/[?&]unit=Campanian(&|$)/);
+      await page.getByTestId("main-boundary-note").filter({ hasText: "as set on the study’s overview" }).waitFor();
+      await page.close();
+    });
+  });
+});
+
+describe("a new study", () => {
+  it("offers the suggested codebook as a choice (empty when not ticked), and its Selectivity screen says what to do first", async () => {
+    const browser2 = await launchBrowser();
+    const { context } = browser2;
+    try {
+      await withScreenshotOnFailure(context, "flows-new-study", async () => {
+        const signup = await context.request.post(`${server.url}/api/auth/signup`, { data: { email: uniqueEmail("lead"), password: PASSWORD, name: "Invented Study Lead" } });
+        expect(signup.status()).toBe(201);
+        const page = await context.newPage();
+        await page.goto(`${server.url}/studies/new`);
+        const choice = page.getByRole("checkbox", { name: /Start from the suggested codebook/ });
+        expect(await choice.isChecked()).toBe(false);
+        await page.getByLabel("Name").fill("Invented empty study");
+        await page.getByRole("button", { name: "Create study" }).click();
+        await page.waitForURL(/\/studies\/[0-9a-f-]{36}$/);
+        const studyPath = new URL(page.url()).pathname;
+        const traits = (await (await context.request.get(`${server.url}/api${studyPath}/traits`)).json()) as { traits: unknown[] };
+        expect(traits.traits).toEqual([]);
+        await page.getByRole("region", { name: "First steps" }).getByText("No traits yet").waitFor();
+
+        await page.goto(`${server.url}${studyPath}/selectivity`);
+        await page.getByRole("heading", { name: "This study has no taxa yet" }).waitFor();
+        await page.getByText("First define the codebook (the traits to test), then import a CSV of taxa").waitFor();
+        await page.getByRole("link", { name: "Define the codebook" }).waitFor();
+        await page.getByRole("link", { name: "Import taxa" }).waitFor();
+
+        // Ticked, the study starts with the five suggested traits.
+        await page.goto(`${server.url}/studies/new`);
+        await page.getByLabel("Name").fill("Invented study with the suggested codebook");
+        await page.getByRole("checkbox", { name: /Start from the suggested codebook/ }).check();
+        await page.getByRole("button", { name: "Create study" }).click();
+        await page.waitForURL(/\/studies\/[0-9a-f-]{36}$/);
+        const second = new URL(page.url()).pathname;
+        const suggested = (await (await context.request.get(`${server.url}/api${second}/traits`)).json()) as { traits: Array<{ key: string }> };
+        expect(suggested.traits.map((t) => t.key)).toEqual(["environment", "life_habit", "feeding", "body_size", "geographic_range"]);
+      });
+    } finally {
+      await browser2.close();
+    }
+  });
+});
