@@ -64,6 +64,18 @@ export function importsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
   });
 
   api.add({
+    method: "get",
+    path: "/studies/:studyId/imports/:importId/upload",
+    operationId: "resumeImport",
+    summary: "An upload not yet committed, read again to resume at the mapping step: columns, sample rows and the mapping last previewed (else a suggested one)",
+    tags: ["imports"],
+    access: "imports.run",
+    params: importParamsSchema,
+    response: { status: 200, schema: importUploadSchema, description: "409: the upload was committed, discarded or its file is no longer kept" },
+    handler: ({ params }) => imports.resume(params.studyId, params.importId),
+  });
+
+  api.add({
     method: "post",
     path: "/studies/:studyId/imports/:importId/preview",
     operationId: "previewImport",

@@ -55,6 +55,24 @@ export function createImportService(db: Database) {
 
     get: lifecycle.summary,
 
+    /** An upload left before its commit, read again so the mapping step can resume: the upload's answer, with the mapping last previewed when there is one. */
+    async resume(studyId: string, importId: string): Promise<ImportUpload> {
+      const upload = await lifecycle.openRow(studyId, importId);
+      const parsed = await readStoredUpload(upload);
+      const lastMapping = (upload.mapping as { mapping?: ImportMapping }).mapping;
+      const codebook = await loadCodebook(db, studyId);
+      const [study] = await db.select({ settings: studies.settings }).from(studies).where(eq(studies.id, studyId));
+      const remembered = ((study?.settings as { importMapping?: RememberedMapping } | undefined)?.importMapping ?? {}) as RememberedMapping;
+      const suggestion = suggestMapping(parsed.header, codebook, remembered);
+      return {
+        import: await lifecycle.summary(studyId, importId),
+        ...fileAsRead(parsed),
+        suggestedMapping: lastMapping ?? suggestion.mapping,
+        rememberedColumns: lastMapping ? [] : suggestion.rememberedColumns,
+        maxBytes: IMPORT_MAX_BYTES,
+      };
+    },
+
     async list(studyId: string, q: { page: number; pageSize: number }): Promise<ImportList> {
       const { rows, total } = await lifecycle.summaries(studyId, { limit: q.pageSize, offset: (q.page - 1) * q.pageSize });
       return { rows, total, page: q.page, pageSize: q.pageSize };

@@ -305,6 +305,10 @@ const MATRIX: Record<string, Row> = {
     freshStudy: true,
     call: async (a, { studyId, cast }) => a.get(`/api/studies/${studyId}/imports/${await codedImport(cast.people.owner.agent, studyId, false)}`),
   },
+  "GET /api/studies/{studyId}/imports/{importId}/upload": {
+    allowed: ["owner", "coder"],
+    call: async (a, { studyId, cast }) => a.get(`/api/studies/${studyId}/imports/${await codedImport(cast.people.owner.agent, studyId, false)}/upload`),
+  },
   "POST /api/studies/{studyId}/imports/{importId}/preview": {
     allowed: ["owner", "coder"],
     call: async (a, { studyId, cast }) =>
