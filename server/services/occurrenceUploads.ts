@@ -3,7 +3,7 @@
 // taxon, duplicates), commit (every valid row in one transaction, or none; leaving invalid rows out
 // must be asked for), revert (the upload's rows removed) and discard.
 import { sql } from "drizzle-orm";
-import type { Database } from "../db";
+import type { Database, DbOrTx } from "../db";
 import { describeOccurrenceProblem, readOccurrenceRows } from "../../shared/occurrences/readOccurrenceRows";
 import type { ImportSummary } from "../../shared/schemas/imports";
 import {
@@ -13,12 +13,16 @@ import {
   type OccurrenceMapping,
   type OccurrenceMappingDraft,
   type OccurrencePreview,
+  type OccurrenceRow,
   type OccurrenceRevertResult,
   type OccurrenceUpload,
   type OccurrenceUploadList,
 } from "../../shared/schemas/occurrences";
 import { detailedError, invalidInput } from "../domain/errors";
 import { recordActivity } from "./taxonState";
+import type { AgeCell } from "../../shared/imports/agePlausibility";
+import type { NameMerges } from "../../shared/schemas/importChecks";
+import { collectImportChecks, prepareImportFile } from "./importChecks";
 import { createUploadLifecycle, fileAsRead, readStoredUpload, refuseMappingProblems, TABLE_UPLOAD_REFUSALS, type UploadedFile, type UploadKind, type UploadRow } from "./uploadLifecycle";
 
 export const OCCURRENCE_UPLOAD: UploadKind = {
@@ -82,11 +86,28 @@ function mappingProblems(mapping: OccurrenceMapping, header: string[]): Record<s
   return problems;
 }
 
-/** The stored file read through a mapping: valid rows, row problems, duplicates. */
-async function readThrough(upload: UploadRow, mapping: OccurrenceMapping, dropDuplicates: boolean) {
-  const parsed = await readStoredUpload(upload);
-  refuseMappingProblems(mappingProblems(mapping, parsed.header));
-  return readOccurrenceRows(parsed, mapping, { dropDuplicates });
+/**
+ * The stored file read through a mapping: valid rows, row problems, duplicates. The study's
+ * missing-value tokens are blanked in the mapped columns and the chosen spellings merged first
+ * (importChecks.ts), in preview and commit alike.
+ */
+async function readThrough(db: DbOrTx, studyId: string, upload: UploadRow, mapping: OccurrenceMapping, dropDuplicates: boolean, nameMerges: NameMerges) {
+  const raw = await readStoredUpload(upload);
+  refuseMappingProblems(mappingProblems(mapping, raw.header));
+  const prepared = await prepareImportFile(db, studyId, raw, { name: mapping.taxon, mapped: Object.values(mapping) }, nameMerges);
+  return { ...readOccurrenceRows(prepared.parsed, mapping, { dropDuplicates }), prepared };
+}
+
+/** Ages read from the Ma columns (interval names resolve to the chart and are not checked), for the plausibility warnings. */
+function agesOf(rows: OccurrenceRow[], mapping: OccurrenceMapping): AgeCell[] {
+  const ages: AgeCell[] = [];
+  if (mapping.maxMa === null) return ages;
+  for (const r of rows) {
+    if (r.earlyInterval !== null) continue;
+    ages.push({ row: r.row, column: mapping.maxMa, taxon: r.taxon, ma: r.maxMa });
+    if (mapping.minMa !== null && r.minMa !== r.maxMa) ages.push({ row: r.row, column: mapping.minMa, taxon: r.taxon, ma: r.minMa });
+  }
+  return ages;
 }
 
 export function createOccurrenceUploadService(db: Database) {
@@ -114,9 +135,10 @@ export function createOccurrenceUploadService(db: Database) {
       return { rows: (await lifecycle.summaries(studyId, { limit: LIST_LIMIT, offset: 0 })).rows };
     },
 
-    async preview(studyId: string, uploadId: string, input: { mapping: OccurrenceMapping; duplicates: "keep" | "drop" }): Promise<OccurrencePreview> {
+    async preview(studyId: string, uploadId: string, input: { mapping: OccurrenceMapping; duplicates: "keep" | "drop"; nameMerges: NameMerges }): Promise<OccurrencePreview> {
       const upload = await lifecycle.openRow(studyId, uploadId);
-      const read = await readThrough(upload, input.mapping, input.duplicates === "drop");
+      const read = await readThrough(db, studyId, upload, input.mapping, input.duplicates === "drop", input.nameMerges);
+      const checks = await collectImportChecks(db, studyId, read.prepared, { ages: agesOf(read.rows, input.mapping), higherTaxa: read.rows });
       await lifecycle.recordPreview(upload, input.mapping, { rowCount: read.rowCount, validCount: read.rows.length, errorCount: read.invalidRowCount });
       return {
         upload: await lifecycle.summary(studyId, uploadId),
@@ -132,13 +154,14 @@ export function createOccurrenceUploadService(db: Database) {
         duplicates: read.duplicates.slice(0, OCCURRENCE_MAX_PROBLEMS_LISTED),
         sample: read.rows.slice(0, PREVIEW_SAMPLE),
         notes: NOTES,
+        checks,
       };
     },
 
     /** Writes every valid row in one transaction, or nothing; progress (0..1) is polled through `get`. */
-    async commit(studyId: string, uploadId: string, user: { id: string }, input: Required<OccurrenceCommitInput> & { mapping: OccurrenceMapping }): Promise<ImportSummary> {
+    async commit(studyId: string, uploadId: string, user: { id: string }, input: Required<Omit<OccurrenceCommitInput, "nameMerges">> & { mapping: OccurrenceMapping; nameMerges?: NameMerges }): Promise<ImportSummary> {
       await lifecycle.commit(studyId, uploadId, user, async (tx, upload, progress) => {
-        const read = await readThrough(upload, input.mapping, input.duplicates === "drop");
+        const read = await readThrough(tx, studyId, upload, input.mapping, input.duplicates === "drop", input.nameMerges ?? {});
         if (read.problems.length && !input.skipInvalid) {
           throw detailedError(
             "invalid",

@@ -8,7 +8,8 @@ import { IMPORT_MAX_PROBLEMS_LISTED, type ImportCommitInput, type ImportMapping 
 import type { TraitValue } from "../../shared/schemas/taxa";
 import { detailedError, DomainError, invalidInput } from "../domain/errors";
 import { insertDecisions, insertTaxaWithDecisions, isUniqueViolation, loadCodebook, newTaxonState, setField, taxaByName, writeTaxa, type NewDecision, type TaxonState } from "./taxonState";
-import { namesIn, planRow, rememberMapping, validateTraitTable } from "./traitTablePlan";
+import { namesIn, planRow, rememberMapping, traitTableColumns, validateTraitTable } from "./traitTablePlan";
+import { prepareImportFile } from "./importChecks";
 import { readStoredUpload, refuseMappingProblems, type UploadLifecycle } from "./uploadLifecycle";
 
 /**
@@ -28,9 +29,11 @@ export async function commitTraitTable(
     importId,
     user,
     async (tx, upload, progress) => {
-      const parsed = await readStoredUpload(upload);
+      const raw = await readStoredUpload(upload);
       const codebook = await loadCodebook(db, studyId);
-      refuseMappingProblems(mappingProblems(input.mapping, parsed.header, codebook));
+      refuseMappingProblems(mappingProblems(input.mapping, raw.header, codebook));
+      // Read as the preview read it: declared missing-value tokens blanked, chosen spellings merged.
+      const { parsed } = await prepareImportFile(tx, studyId, raw, traitTableColumns(input.mapping), input.nameMerges ?? {});
       const reason = input.reason || `Imported from ${upload.fileName}`;
       // The taxa this file names, locked: an edit in the grid meanwhile waits for the commit.
       const existing = new Map((await taxaByName(tx, studyId, namesIn(parsed, input.mapping), true)).map((s) => [s.name, s]));

@@ -19,7 +19,9 @@ import {
 } from "../../shared/schemas/imports";
 import { loadCodebook, taxaByName } from "./taxonState";
 import { commitTraitTable } from "./traitTableCommit";
-import { namesIn, planRow, rememberMapping, TRAIT_TABLE_UPLOAD, validateTraitTable } from "./traitTablePlan";
+import { namesIn, planRow, rememberMapping, traitTableAges, traitTableColumns, TRAIT_TABLE_UPLOAD, validateTraitTable } from "./traitTablePlan";
+import { collectImportChecks, prepareImportFile } from "./importChecks";
+import type { NameMerges } from "../../shared/schemas/importChecks";
 import { revertTraitTable } from "./traitTableRevert";
 import { createUploadLifecycle, fileAsRead, createUploadSweeps, readStoredUpload, refuseMappingProblems, type UploadedFile } from "./uploadLifecycle";
 
@@ -78,11 +80,14 @@ export function createImportService(db: Database) {
       return { rows, total, page: q.page, pageSize: q.pageSize };
     },
 
-    async preview(studyId: string, importId: string, mapping: ImportMapping): Promise<ImportPreview> {
+    async preview(studyId: string, importId: string, mapping: ImportMapping, nameMerges: NameMerges = {}): Promise<ImportPreview> {
       const upload = await lifecycle.openRow(studyId, importId);
-      const parsed = await readStoredUpload(upload);
+      const raw = await readStoredUpload(upload);
       const codebook = await loadCodebook(db, studyId);
-      refuseMappingProblems(mappingProblems(mapping, parsed.header, codebook));
+      refuseMappingProblems(mappingProblems(mapping, raw.header, codebook));
+      // Declared missing-value tokens blanked and chosen spellings merged, as the commit reads the file.
+      const prepared = await prepareImportFile(db, studyId, raw, traitTableColumns(mapping), nameMerges);
+      const parsed = prepared.parsed;
       const existing = new Map((await taxaByName(db, studyId, namesIn(parsed, mapping), false)).map((s) => [s.name, s]));
       const result = validateTraitTable(parsed, mapping, codebook, existing);
       const plans = result.rows.map((r) => planRow(r, existing.get(r.name) ?? null));
@@ -94,6 +99,7 @@ export function createImportService(db: Database) {
         update: plans.filter((p) => p.existing && p.changes.length).length,
         unchanged: plans.filter((p) => p.existing && !p.changes.length).length,
       };
+      const checks = await collectImportChecks(db, studyId, prepared, { ages: traitTableAges(result.rows, mapping), higherTaxa: result.rows });
       await lifecycle.recordPreview(upload, mapping, { rowCount: counts.rows, validCount: counts.valid, errorCount: counts.invalid });
       await rememberMapping(db, studyId, mapping);
       return {
@@ -108,6 +114,7 @@ export function createImportService(db: Database) {
           changes: p.changes,
         })),
         notes: NOTES,
+        checks,
       };
     },
 

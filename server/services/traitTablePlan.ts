@@ -8,6 +8,7 @@ import { mappingToRemember } from "../../shared/csv/mapping";
 import { validateImportRows, type ImportRowChanges, type ImportValidation } from "../../shared/csv/validate";
 import { sameValue } from "../../shared/csv/values";
 import type { ImportMapping } from "../../shared/schemas/imports";
+import type { AgeCell } from "../../shared/imports/agePlausibility";
 import type { Trait } from "../../shared/schemas/traits";
 import { TABLE_UPLOAD_REFUSALS, type UploadKind } from "./uploadLifecycle";
 import { fieldValue, type TaxonState } from "./taxonState";
@@ -67,4 +68,19 @@ export async function rememberMapping(db: DbOrTx, studyId: string, mapping: Impo
   await db.execute(sql`
     UPDATE studies SET settings = jsonb_set(settings, '{importMapping}', COALESCE(settings -> 'importMapping', '{}'::jsonb) || ${JSON.stringify(remembered)}::jsonb)
     WHERE id = ${studyId}`);
+}
+
+/** The name column and every mapped column of a trait-table mapping (missing-value tokens apply to these). */
+export function traitTableColumns(mapping: ImportMapping): { name: string; mapped: Array<string | null> } {
+  return { name: mapping.name, mapped: [mapping.name, mapping.higherTaxon, mapping.firstAppearance, mapping.lastAppearance, mapping.notes, ...Object.values(mapping.traits)] };
+}
+
+/** Range ends the valid rows give in Ma (interval names resolve to the chart or the study's bins and are not checked), for the plausibility warnings. */
+export function traitTableAges(rows: ImportRowChanges[], mapping: ImportMapping): AgeCell[] {
+  const ages: AgeCell[] = [];
+  for (const r of rows) {
+    if (r.fad && r.fad.interval === null && mapping.firstAppearance) ages.push({ row: r.row, column: mapping.firstAppearance, taxon: r.name, ma: r.fad.ma });
+    if (r.lad && r.lad.interval === null && mapping.lastAppearance) ages.push({ row: r.row, column: mapping.lastAppearance, taxon: r.name, ma: r.lad.ma });
+  }
+  return ages;
 }

@@ -4,3 +4,4 @@ export * from "./missingTokens";
 export * from "./agePlausibility";
 export * from "./nameHygiene";
 export * from "./qualifiedHigherTaxon";
+export * from "./importChecks";

@@ -1,6 +1,7 @@
 // Names that differ only by case, spacing or punctuation ("Idiospira" and "idiospira ") are almost
 // always one taxon written two ways; imported as they are, they become two taxa (one may end up a
 // survivor, the other a victim). These helpers find such spellings and read one as another.
+import type { ParsedCsv } from "../csv/parse";
 import type { NameMerges, SimilarNames } from "../schemas/importChecks";
 
 /**
@@ -66,4 +67,35 @@ export function similarNames(fileNames: Iterable<{ row: number; name: string }>,
 /** A name as the chosen merges read it: its chosen spelling, or itself. */
 export function mergedName(name: string, merges: NameMerges): string {
   return Object.prototype.hasOwnProperty.call(merges, name) ? merges[name]! : name;
+}
+
+/** The names of one column (by header) with their rows, empty cells left out; none when the column is absent. */
+export function namesInColumn(parsed: ParsedCsv, column: string | null): Array<{ row: number; name: string }> {
+  const index = column === null ? -1 : parsed.header.indexOf(column);
+  if (index < 0) return [];
+  const out: Array<{ row: number; name: string }> = [];
+  for (const r of parsed.rows) {
+    const name = (r.cells[index] ?? "").trim();
+    if (name) out.push({ row: r.row, name });
+  }
+  return out;
+}
+
+/**
+ * The file with the names of one column read through the merges (a cell whose trimmed text is a
+ * merged spelling becomes the chosen spelling). The input is not changed; untouched rows are shared.
+ * @example renameInColumn(parseCsv("name\nidiospira\n"), "name", { idiospira: "Idiospira" }).rows[0].cells // ["Idiospira"]
+ */
+export function renameInColumn(parsed: ParsedCsv, column: string | null, merges: NameMerges): ParsedCsv {
+  const index = column === null ? -1 : parsed.header.indexOf(column);
+  if (index < 0 || Object.keys(merges).length === 0) return parsed;
+  const rows = parsed.rows.map((r) => {
+    const name = (r.cells[index] ?? "").trim();
+    const to = name ? mergedName(name, merges) : name;
+    if (to === name) return r;
+    const cells = [...r.cells];
+    cells[index] = to;
+    return { row: r.row, cells };
+  });
+  return { ...parsed, rows };
 }

@@ -48,7 +48,7 @@ export function qualifiedHigherTaxon(text: string | null | undefined): Qualified
 }
 
 /** The distinct qualified higher taxa of a file, with how many rows give each, in order of first row. */
-export function qualifiedHigherTaxaIn(rows: Iterable<{ row: number; higherTaxon: string | null | undefined }>): QualifiedHigherTaxonDto[] {
+export function qualifiedHigherTaxaIn(rows: Iterable<{ row: number; higherTaxon?: string | null }>): QualifiedHigherTaxonDto[] {
   const seen = new Map<string, QualifiedHigherTaxonDto | null>();
   for (const { row, higherTaxon } of rows) {
     if (!higherTaxon) continue;

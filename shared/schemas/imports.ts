@@ -3,6 +3,7 @@
 import { z } from "zod";
 import { isoDateSchema, uuidSchema } from "./common";
 import { decisionUserSchema, reasonSchema } from "./taxa";
+import { importChecksSchema, nameMergesSchema } from "./importChecks";
 
 export const IMPORT_MAX_BYTES = 50 * 1024 * 1024;
 /** The limit as the upload screen states it. */
@@ -112,7 +113,7 @@ export const importProblemSchema = z
   .meta({ id: "ImportProblem" });
 export type ImportProblem = z.infer<typeof importProblemSchema>;
 
-export const importPreviewRequestSchema = z.strictObject({ mapping: importMappingSchema }).meta({ id: "ImportPreviewRequest" });
+export const importPreviewRequestSchema = z.strictObject({ mapping: importMappingSchema, nameMerges: nameMergesSchema }).meta({ id: "ImportPreviewRequest" });
 export type ImportPreviewRequest = z.input<typeof importPreviewRequestSchema>;
 
 export const importCountsSchema = z
@@ -143,6 +144,7 @@ export const importPreviewSchema = z
       )
       .meta({ description: "The first 50 valid rows and what committing them changes" }),
     notes: z.array(z.string()).meta({ description: "How the mapping is read, e.g. that empty cells keep existing values" }),
+    checks: importChecksSchema.meta({ description: "Warnings that do not block a commit: implausible ages, similar names, missing-value tokens read, qualified higher taxa" }),
   })
   .meta({ id: "ImportPreview" });
 export type ImportPreview = z.infer<typeof importPreviewSchema>;
@@ -150,6 +152,7 @@ export type ImportPreview = z.infer<typeof importPreviewSchema>;
 export const importCommitSchema = z
   .strictObject({
     mapping: importMappingSchema,
+    nameMerges: nameMergesSchema,
     skipInvalid: z.boolean({ message: "skipInvalid is required: say whether invalid rows are left out (true) or block the import (false)" }),
     reason: reasonSchema.default("").meta({ description: "Recorded on every coding decision; default: the file name" }),
   })

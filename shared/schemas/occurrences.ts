@@ -4,6 +4,7 @@
 import { z } from "zod";
 import { AGE_LIMIT_MA, uuidSchema } from "./common";
 import { importSummarySchema } from "./imports";
+import { importChecksSchema, nameMergesSchema } from "./importChecks";
 import { reasonSchema } from "./taxa";
 
 /** Problems one preview or refused commit lists; the count is always complete. */
@@ -91,7 +92,7 @@ const duplicatesSchema = z
   .default("keep")
   .meta({ description: "Rows identical to an earlier row in every mapped column: keep them (default) or drop them" });
 
-export const occurrencePreviewRequestSchema = z.strictObject({ mapping: occurrenceMappingSchema, duplicates: duplicatesSchema }).meta({ id: "OccurrencePreviewRequest" });
+export const occurrencePreviewRequestSchema = z.strictObject({ mapping: occurrenceMappingSchema, duplicates: duplicatesSchema, nameMerges: nameMergesSchema }).meta({ id: "OccurrencePreviewRequest" });
 export type OccurrencePreviewRequest = z.input<typeof occurrencePreviewRequestSchema>;
 
 export const occurrenceProblemSchema = z
@@ -139,6 +140,7 @@ export const occurrencePreviewSchema = z
     duplicates: z.array(occurrenceDuplicateSchema).meta({ description: `At most ${OCCURRENCE_MAX_PROBLEMS_LISTED} listed` }),
     sample: z.array(occurrenceRowSchema).meta({ description: "The first 20 valid rows as they would be stored" }),
     notes: z.array(z.string()),
+    checks: importChecksSchema.meta({ description: "Warnings that do not block a commit: implausible ages, similar names, missing-value tokens read, qualified higher taxa" }),
   })
   .meta({ id: "OccurrencePreview" });
 export type OccurrencePreview = z.infer<typeof occurrencePreviewSchema>;
@@ -147,6 +149,7 @@ export const occurrenceCommitSchema = z
   .strictObject({
     mapping: occurrenceMappingSchema,
     duplicates: duplicatesSchema,
+    nameMerges: nameMergesSchema,
     skipInvalid: z.boolean({ message: "skipInvalid is required: say whether invalid rows are left out (true) or block the upload (false)" }),
   })
   .meta({ id: "OccurrenceCommit" });

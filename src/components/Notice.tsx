@@ -1,11 +1,12 @@
 import type { ReactNode } from "react";
 import { cx } from "../lib/cx";
 
-export type NoticeTone = "info" | "success" | "error";
+export type NoticeTone = "info" | "success" | "warning" | "error";
 
 const tones: Record<NoticeTone, string> = {
   info: "border-stone-200 bg-stone-100/70 text-stone-800",
   success: "border-accent-200 bg-accent-50 text-accent-900",
+  warning: "border-amber-300 bg-amber-50 text-amber-950",
   error: "border-red-200 bg-red-50 text-red-900",
 };
 

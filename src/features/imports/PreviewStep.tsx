@@ -8,7 +8,9 @@ import { FormError, Notice } from "../../components/Notice";
 import { TextField } from "../../components/TextField";
 import { ApiError, errorMessage } from "../../lib/api";
 import { formatCount, pluralize } from "../../lib/format";
-import { useCommitImport, useImportSummary } from "./api";
+import type { NameMerges } from "@shared/schemas/importChecks";
+import { useCommitImport, useImportSummary, usePreviewImport } from "./api";
+import { ImportChecksPanel } from "./ImportChecksPanel";
 import { fieldLabel, formatImportValue } from "./formatValue";
 import { ProgressBar } from "../../components/ProgressBar";
 
@@ -27,7 +29,11 @@ const ACTION_WORDS = { create: "Adds", update: "Changes", unchanged: "No change"
  * Step 2 and 3: what the import would do, every problem by row and column, then the commit: all
  * valid rows in one transaction, or nothing. Leaving out invalid rows is an explicit choice.
  */
-export function PreviewStep({ studyId, mapping, preview, traits, onBack, onCommitted }: PreviewStepProps) {
+export function PreviewStep({ studyId, mapping, preview: firstPreview, traits, onBack, onCommitted }: PreviewStepProps) {
+  // A choice about similar names makes the preview again; the commit uses the same choice.
+  const [preview, setPreview] = useState(firstPreview);
+  const [nameMerges, setNameMerges] = useState<NameMerges>({});
+  const again = usePreviewImport(studyId);
   const { counts } = preview;
   const [skipInvalid, setSkipInvalid] = useState(false);
   const [reason, setReason] = useState("");
@@ -52,7 +58,7 @@ export function PreviewStep({ studyId, mapping, preview, traits, onBack, onCommi
       setChoiceError(`Tick the box to leave out the ${pluralize(counts.invalid, "invalid row")}, or fix the file and upload it again.`);
       return;
     }
-    const parsed = importCommitSchema.safeParse({ mapping, skipInvalid: counts.invalid > 0 && skipInvalid, reason });
+    const parsed = importCommitSchema.safeParse({ mapping, nameMerges, skipInvalid: counts.invalid > 0 && skipInvalid, reason });
     if (!parsed.success) {
       setChoiceError(parsed.error.issues[0]?.message ?? "The import cannot be committed.");
       return;
@@ -90,6 +96,22 @@ export function PreviewStep({ studyId, mapping, preview, traits, onBack, onCommi
           ))}
         </ul>
       )}
+
+      <ImportChecksPanel
+        checks={preview.checks}
+        merges={nameMerges}
+        busy={again.isPending || commit.isPending}
+        onMergesChange={(next) => {
+          setChoiceError(null);
+          again.mutate({ importId: preview.import.id, mapping, nameMerges: next }, {
+            onSuccess: (result) => {
+              setNameMerges(next);
+              setPreview(result);
+            },
+          });
+        }}
+      />
+      {again.error && <FormError message={`The preview could not be made again: ${errorMessage(again.error)}`} />}
 
       {problems.length > 0 ? (
         <ProblemTable problems={problems} problemCount={preview.problemCount} invalidRows={counts.invalid} />

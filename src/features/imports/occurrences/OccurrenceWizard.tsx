@@ -19,6 +19,8 @@ import { WizardSteps } from "../../../components/WizardSteps";
 import { ApiError, errorMessage } from "../../../lib/api";
 import { formatCount, pluralize } from "../../../lib/format";
 import { useCommitOccurrences, useDiscardOccurrences, useOccurrenceUploadProgress, usePreviewOccurrences, useUploadOccurrences } from "./api";
+import type { NameMerges } from "@shared/schemas/importChecks";
+import { ImportChecksPanel } from "../ImportChecksPanel";
 
 type Stage =
   | { step: "upload" }
@@ -211,7 +213,11 @@ function OccurrencePreviewStep({
   onBack: () => void;
   onCommitted: (summary: ImportSummary) => void;
 }) {
-  const { preview, mapping, duplicates, upload } = stage;
+  const { mapping, duplicates, upload } = stage;
+  // A choice about similar names makes the preview again; the commit uses the same choice.
+  const [preview, setPreview] = useState(stage.preview);
+  const [nameMerges, setNameMerges] = useState<NameMerges>({});
+  const again = usePreviewOccurrences(studyId);
   const [skipInvalid, setSkipInvalid] = useState(false);
   const commit = useCommitOccurrences(studyId);
   const progress = useOccurrenceUploadProgress(studyId, upload.upload.id, commit.isPending);
@@ -241,6 +247,23 @@ function OccurrencePreviewStep({
           invalidRows={counts.invalid}
         />
       )}
+      <ImportChecksPanel
+        checks={preview.checks}
+        merges={nameMerges}
+        busy={again.isPending || commit.isPending}
+        onMergesChange={(next) =>
+          again.mutate(
+            { uploadId: upload.upload.id, mapping, duplicates, nameMerges: next },
+            {
+              onSuccess: (result) => {
+                setNameMerges(next);
+                setPreview(result);
+              },
+            },
+          )
+        }
+      />
+      {again.error && <FormError message={`The preview could not be made again: ${errorMessage(again.error)}`} />}
       {counts.duplicates > 0 && (
         <Notice tone="info" title={`${pluralize(counts.duplicates, "duplicate row")} (${duplicates === "drop" ? "dropped" : "kept"})`}>
           {preview.duplicates
@@ -270,7 +293,7 @@ function OccurrencePreviewStep({
         <Button
           busy={commit.isPending}
           disabled={counts.valid === 0 || (counts.invalid > 0 && !skipInvalid)}
-          onClick={() => commit.mutate({ uploadId: upload.upload.id, input: { mapping, duplicates, skipInvalid } }, { onSuccess: onCommitted })}
+          onClick={() => commit.mutate({ uploadId: upload.upload.id, input: { mapping, duplicates, nameMerges, skipInvalid } }, { onSuccess: onCommitted })}
         >
           Write {pluralize(counts.valid, "occurrence")}
         </Button>

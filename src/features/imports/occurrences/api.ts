@@ -19,6 +19,7 @@ import { api } from "../../../lib/api";
 import { queryKeys } from "../../../lib/queryKeys";
 import { studyApiPath } from "../../../lib/queries/paths";
 import { uploadWithProgress, type UploadProgress } from "../../../lib/uploadWithProgress";
+import type { NameMerges } from "@shared/schemas/importChecks";
 
 const uploadsPath = (studyId: string) => studyApiPath(studyId, "/occurrence-uploads");
 const uploadPath = (studyId: string, uploadId: string) => `${uploadsPath(studyId)}/${encodeURIComponent(uploadId)}`;
@@ -66,8 +67,8 @@ export function useUploadOccurrences(studyId: string) {
 /** POST .../occurrence-uploads/:uploadId/preview */
 export function usePreviewOccurrences(studyId: string) {
   return useMutation({
-    mutationFn: ({ uploadId, mapping, duplicates }: { uploadId: string; mapping: OccurrenceMapping; duplicates: "keep" | "drop" }) =>
-      api.post<OccurrencePreview>(`${uploadPath(studyId, uploadId)}/preview`, { mapping, duplicates }),
+    mutationFn: ({ uploadId, mapping, duplicates, nameMerges = {} }: { uploadId: string; mapping: OccurrenceMapping; duplicates: "keep" | "drop"; nameMerges?: NameMerges }) =>
+      api.post<OccurrencePreview>(`${uploadPath(studyId, uploadId)}/preview`, { mapping, duplicates, nameMerges }),
   });
 }
 
