@@ -13,7 +13,7 @@ import { memberships, studies, traits, users } from "../db/schema/index";
 import { SUGGESTED_CODEBOOK } from "../shared/codebook";
 import { createImportService } from "../server/services/traitTableImports";
 import { createTaxonService } from "../server/services/taxa";
-import { loadCodebook } from "../server/services/taxonState";
+import { loadCodebook } from "../server/services/codebookStore";
 import { taxaListQuerySchema } from "../shared/schemas/taxa";
 import type { ImportMapping } from "../shared/schemas/imports";
 import { mulberry32, pick } from "../scripts/seed/demo/names";

@@ -12,7 +12,7 @@ import type { Comparison, ComparisonList, ComparisonParams, ComparisonResults, C
 import type { RunResults } from "../../shared/schemas/runs";
 import { conflict, invalidInput, notFound } from "../domain/errors";
 import { crosswalkTraits, listForComparison, savedCrosswalk } from "./modernLists";
-import { loadCodebook } from "./taxonState";
+import { loadCodebook } from "./codebookStore";
 
 
 type ComparisonRow = typeof comparisons.$inferSelect;

@@ -9,23 +9,10 @@ import { checkTraitValue, rangeProblem, sameValue } from "../../shared/csv/value
 import type { Decision, DecisionList, DecisionListQuery, RevertResult } from "../../shared/schemas/decisions";
 import type { HistoryEntry, RangeEnd, TaxonHistory } from "../../shared/schemas/taxa";
 import { detailedError, notFound } from "../domain/errors";
-import {
-  applySnapshot,
-  fieldValue,
-  insertDecisions,
-  lastSetters,
-  loadCodebookById,
-  lockTaxaById,
-  newBatchId,
-  recordActivity,
-  setField,
-  snapshotField,
-  snapshotOf,
-  writeTaxa,
-  type NewDecision,
-  type TaxonSnapshot,
-  type TaxonState,
-} from "./taxonState";
+import { applySnapshot, fieldValue, setField, snapshotField, snapshotOf, type TaxonSnapshot, type TaxonState } from "./taxonModel";
+import { loadCodebookById } from "./codebookStore";
+import { lockTaxaById, writeTaxa } from "./taxaStore";
+import { insertDecisions, lastSetters, newBatchId, recordActivity, type NewDecision } from "./decisionLog";
 
 type DecisionRow = typeof codingDecisions.$inferSelect;
 

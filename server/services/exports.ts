@@ -8,7 +8,9 @@ import { csvRow } from "../../shared/csv/write";
 import { TAXON_CSV_COLUMNS, type TaxaExportQuery } from "../../shared/schemas/exports";
 import type { Trait } from "../../shared/schemas/traits";
 import { notFound } from "../domain/errors";
-import { loadCodebook, stateFromRow, type TaxonState } from "./taxonState";
+import type { TaxonState } from "./taxonModel";
+import { loadCodebook } from "./codebookStore";
+import { stateFromRow } from "./taxaStore";
 
 /** Rows read per query while streaming. */
 const PAGE = 5000;

@@ -10,7 +10,7 @@ import type { CrosswalkSaved, ModernList, ModernListCommitInput, ModernListList,
 import type { Trait } from "../../shared/schemas/traits";
 import { invalidInput, notFound } from "../domain/errors";
 import { createModernListUploadService, emptyCategoryCounts } from "./modernListUploads";
-import { loadCodebook } from "./taxonState";
+import { loadCodebook } from "./codebookStore";
 
 type ListRow = typeof modernLists.$inferSelect;
 

@@ -2,7 +2,7 @@
 // columns of the trait table, counted fresh for the page's rows by name (occurrences name their taxon).
 import { sql } from "drizzle-orm";
 import type { DbOrTx } from "../db";
-import { anyUuid } from "./taxonState";
+import { anyUuid } from "./sqlHelpers";
 
 export interface TaxonOccurrenceCounts {
   occurrences: number;

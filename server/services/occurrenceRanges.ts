@@ -6,23 +6,12 @@ import type { Database, DbOrTx } from "../db";
 import { imports } from "../../db/schema/index";
 import { deriveRanges } from "../../shared/occurrences/index";
 import type { RangeDerivation, RangesApplyResult, RangesPreview } from "../../shared/schemas/occurrences";
-import { DomainError, invalidInput } from "../domain/errors";
+import { invalidInput } from "../domain/errors";
 import { loadStudyOccurrences } from "./occurrenceFinds";
 import { OCCURRENCE_UPLOAD } from "./occurrenceUploads";
-import {
-  fieldValue,
-  insertDecisions,
-  insertTaxaWithDecisions,
-  isUniqueViolation,
-  newBatchId,
-  newTaxonState,
-  recordActivity,
-  setField,
-  taxaByName,
-  writeTaxa,
-  type NewDecision,
-  type TaxonState,
-} from "./taxonState";
+import { fieldValue, newTaxonState, setField, type TaxonState } from "./taxonModel";
+import { insertTaxaWithDecisions, isUniqueViolation, nameTakenMeanwhile, taxaByName, writeTaxa } from "./taxaStore";
+import { insertDecisions, newBatchId, recordActivity, type NewDecision } from "./decisionLog";
 
 /** The committed occurrence uploads of the study, oldest first. */
 function committedUploads(tx: DbOrTx, studyId: string) {
@@ -134,7 +123,7 @@ export async function applyRanges(db: Database, studyId: string, user: { id: str
       return { batchId, changed: updated.length, created: created.length, unchanged, reason };
     });
   } catch (err) {
-    if (isUniqueViolation(err)) throw new DomainError("conflict", "name_taken", "A taxon of the same name was added meanwhile; preview again.");
+    if (isUniqueViolation(err)) throw nameTakenMeanwhile();
     throw err;
   }
 }

@@ -21,28 +21,10 @@ import type {
 import { BULK_FIELDS, TAXA_MAX_BULK, taxonChangesSchema, type TaxaIds, type TaxaIdsQuery } from "../../shared/schemas/taxa";
 import type { Trait } from "../../shared/schemas/traits";
 import { detailedError, DomainError, invalidInput, notFound } from "../domain/errors";
-import {
-  fieldValue,
-  getTaxonState,
-  insertDecisions,
-  insertTaxa,
-  isEmptyValue,
-  isUniqueViolation,
-  lastSetters,
-  loadCodebookById,
-  loadTaxaById,
-  lockTaxaById,
-  newBatchId,
-  openThreadsFor,
-  recordActivity,
-  setField,
-  snapshotOf,
-  taxonRowOf,
-  toTaxonRow,
-  writeTaxa,
-  type NewDecision,
-  type TaxonState,
-} from "./taxonState";
+import { fieldValue, isEmptyValue, setField, snapshotOf, type TaxonState } from "./taxonModel";
+import { loadCodebookById } from "./codebookStore";
+import { getTaxonState, insertTaxa, isUniqueViolation, loadTaxaById, lockTaxaById, openThreadsFor, taxonRowOf, toTaxonRow, writeTaxa } from "./taxaStore";
+import { insertDecisions, lastSetters, newBatchId, recordActivity, type NewDecision } from "./decisionLog";
 import { createTaxaGrid, type TaxaGrid } from "./taxaGrid";
 import { occurrenceCountsOf } from "./occurrenceCounts";
 

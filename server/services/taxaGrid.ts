@@ -13,7 +13,7 @@ import type { Database, DbOrTx } from "../db";
 import { RepeatingTask } from "../jobs/repeatingTask";
 import type { TaxaListQuery, TraitValue } from "../../shared/schemas/taxa";
 import type { Trait } from "../../shared/schemas/traits";
-import { anyUuid } from "./taxonState";
+import { anyUuid } from "./sqlHelpers";
 import { emptyColumns, GridDerived, isOccurrenceColumn, pageOf, rowTest, type GridColumns, type OccurrenceCounts } from "./taxaGridQuery";
 
 export interface TaxaGridOptions {

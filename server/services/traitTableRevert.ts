@@ -4,7 +4,7 @@
 import { and, eq, inArray } from "drizzle-orm";
 import { codingDecisions } from "../../db/schema/index";
 import { revertDecisions } from "./decisions";
-import { recordActivity } from "./taxonState";
+import { recordActivity } from "./decisionLog";
 import type { UploadLifecycle } from "./uploadLifecycle";
 
 export function revertTraitTable(lifecycle: UploadLifecycle, studyId: string, importId: string, user: { id: string }, input: { reason: string; skipChanged: boolean }) {

@@ -8,7 +8,10 @@ import { traits } from "../../db/schema/index";
 import { traitDefinitionProblems, type Trait, type TraitCreateInput, type TraitList, type TraitUpdateInput, type TraitUpdateResult, type TraitUsage } from "../../shared/schemas/traits";
 import type { TraitKind } from "../../shared/codebook";
 import { conflict, detailedError, invalidInput, notFound } from "../domain/errors";
-import { insertDecisions, loadCodebook, loadTrait, newBatchId, recordActivity, stateFromRow, toTrait, writeTaxa, type NewDecision, type TaxonState } from "./taxonState";
+import type { TaxonState } from "./taxonModel";
+import { loadCodebook, loadTrait, toTrait } from "./codebookStore";
+import { stateFromRow, writeTaxa } from "./taxaStore";
+import { insertDecisions, newBatchId, recordActivity, type NewDecision } from "./decisionLog";
 
 const SAMPLE_SIZE = 10;
 const keyTaken = (key: string) => conflict(`The key "${key}" is already used by another trait of this study.`, { key: "This key is already used in this study" });

@@ -18,7 +18,7 @@ import { TIMESCALE_VERSION, timescaleStages } from "../../shared/timescale/index
 import { DEFAULT_BREADTH_SHARE, type TurnoverParams, type TurnoverResult } from "../../shared/schemas/turnover";
 import { MASS_EXTINCTION_TEACHING_THRESHOLD } from "../../shared/schemas/outcomes";
 import type { Trait } from "../../shared/schemas/traits";
-import { loadCodebook } from "./taxonState";
+import { loadCodebook } from "./codebookStore";
 import type { OutcomeService } from "./outcomes";
 import { invalidInput } from "../domain/errors";
 

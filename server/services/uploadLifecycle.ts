@@ -22,7 +22,7 @@ import { csvTextProblem } from "../../shared/csv/textCheck";
 import { IMPORT_MAX_BYTES, type ImportSummary } from "../../shared/schemas/imports";
 import { DomainError, invalidInput, notFound } from "../domain/errors";
 import { RepeatingTask } from "../jobs/repeatingTask";
-import { recordActivity } from "./taxonState";
+import { recordActivity } from "./decisionLog";
 
 export type UploadRow = typeof imports.$inferSelect;
 export type UploadTarget = "taxa" | "occurrences" | "modern";

@@ -13,7 +13,7 @@ import { commitOccurrences } from "../support/occurrences";
 import { createUniformSource } from "@shared/stats/random";
 import { randomUUID } from "node:crypto";
 import { createTaxaGrid } from "../../server/services/taxaGrid";
-import { loadCodebookById } from "../../server/services/taxonState";
+import { loadCodebookById } from "../../server/services/codebookStore";
 import { TAXA_MAX_BULK, taxaListQuerySchema } from "../../shared/schemas/taxa";
 
 let app: TestApp;
