@@ -31,6 +31,7 @@ import { taxaRouter } from "./routes/taxa";
 import { decisionsRouter } from "./routes/decisions";
 import { importsRouter } from "./routes/imports";
 import { occurrencesRouter } from "./routes/occurrences";
+import { timeBinsRouter } from "./routes/timeBins";
 import { exportsRouter } from "./routes/exports";
 import { modernListsRouter } from "./routes/modernLists";
 import { comparisonsRouter } from "./routes/comparisons";
@@ -44,7 +45,7 @@ export interface BuiltApp {
   routes: RegisteredRoute[];
 }
 
-const RESOURCE_ROUTERS = [healthRouter, authRouter, apiTokensRouter, studiesRouter, membersRouter, invitationsRouter, outboxRouter, timescaleRouter, outcomesRouter, overridesRouter, ratesRouter, runsRouter, traitsRouter, taxaRouter, decisionsRouter, importsRouter, occurrencesRouter, exportsRouter, threadsRouter, notificationsRouter, activityRouter, modernListsRouter, comparisonsRouter];
+const RESOURCE_ROUTERS = [healthRouter, authRouter, apiTokensRouter, studiesRouter, membersRouter, invitationsRouter, outboxRouter, timescaleRouter, outcomesRouter, overridesRouter, ratesRouter, runsRouter, traitsRouter, taxaRouter, decisionsRouter, importsRouter, occurrencesRouter, timeBinsRouter, exportsRouter, threadsRouter, notificationsRouter, activityRouter, modernListsRouter, comparisonsRouter];
 
 export function buildOpenApi(registry: OpenAPIRegistry) {
   registry.registerComponent("securitySchemes", "session", { type: "apiKey", in: "cookie", name: "ss_session" });

@@ -27,6 +27,8 @@ export const STUDY_ACTIONS = {
   "members.read": ["owner", "coder", "analyst", "reviewer", "viewer"],
   "members.manage": ["owner"],
   "codebook.edit": ["owner", "coder"],
+  // A study's own time bins are part of its definitions, edited by the codebook's editors.
+  "timeBins.edit": ["owner", "coder"],
   "taxa.edit": ["owner", "coder"],
   "imports.run": ["owner", "coder"],
   "outcomes.override": ["owner", "coder", "analyst"],

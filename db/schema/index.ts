@@ -8,3 +8,4 @@ export * from "./analysis";
 export * from "./discussion";
 export * from "./occurrences";
 export * from "./apiTokens";
+export * from "./timeBins";

@@ -17,6 +17,7 @@ import { createTaxaGrid } from "./taxaGrid";
 import { createDecisionService } from "./decisions";
 import { createImportService } from "./traitTableImports";
 import { createOccurrenceService } from "./occurrences";
+import { createTimeBinService } from "./timeBins";
 import { createExportService } from "./exports";
 import { createModernListService } from "./modernLists";
 import { createComparisonService } from "./comparisons";
@@ -58,6 +59,7 @@ export function createServices(db: Database, mailer: Mailer, appUrl: string, run
     decisions: createDecisionService(db),
     imports: createImportService(db),
     occurrences: createOccurrenceService(db),
+    timeBins: createTimeBinService(db),
     exports: createExportService(db),
     modernLists: createModernListService(db),
     comparisons: createComparisonService(db),

@@ -4,6 +4,7 @@
 // must be asked for), revert (the upload's rows removed) and discard.
 import { sql } from "drizzle-orm";
 import type { Database, DbOrTx } from "../db";
+import { studyIntervalLookup } from "./timeBins";
 import { describeOccurrenceProblem, readOccurrenceRows } from "../../shared/occurrences/readOccurrenceRows";
 import type { ImportSummary } from "../../shared/schemas/imports";
 import {
@@ -95,7 +96,7 @@ async function readThrough(db: DbOrTx, studyId: string, upload: UploadRow, mappi
   const raw = await readStoredUpload(upload);
   refuseMappingProblems(mappingProblems(mapping, raw.header));
   const prepared = await prepareImportFile(db, studyId, raw, { name: mapping.taxon, mapped: Object.values(mapping) }, nameMerges);
-  return { ...readOccurrenceRows(prepared.parsed, mapping, { dropDuplicates }), prepared };
+  return { ...readOccurrenceRows(prepared.parsed, mapping, { dropDuplicates, intervals: await studyIntervalLookup(db, studyId) }), prepared };
 }
 
 /** Ages read from the Ma columns (interval names resolve to the chart and are not checked), for the plausibility warnings. */

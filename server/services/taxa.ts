@@ -26,6 +26,8 @@ import { loadCodebookById } from "./codebookStore";
 import { getTaxonState, insertTaxa, isUniqueViolation, loadTaxaById, lockTaxaById, openThreadsFor, taxonRowOf, toTaxonRow, writeTaxa } from "./taxaStore";
 import { insertDecisions, lastSetters, newBatchId, recordActivity, type NewDecision } from "./decisionLog";
 import { createTaxaGrid, type TaxaGrid } from "./taxaGrid";
+import { studyIntervalLookup } from "./timeBins";
+import type { IntervalLookup } from "../../shared/timebins/intervalLookup";
 import { occurrenceCountsOf } from "./occurrenceCounts";
 
 interface Person {
@@ -41,6 +43,7 @@ export function createTaxonService(db: Database, grid: TaxaGrid = createTaxaGrid
     state: TaxonState,
     changes: { name?: string; higherTaxon?: string; notes?: string; fad?: unknown; lad?: unknown; values?: Record<string, TraitValue | null> },
     codebook: Map<string, Trait>,
+    intervals: IntervalLookup,
   ): Array<{ field: string; traitId: string | null; from: unknown; to: unknown }> {
     const out: Array<{ field: string; traitId: string | null; from: unknown; to: unknown }> = [];
     const fields: Record<string, string> = {};
@@ -53,7 +56,7 @@ export function createTaxonService(db: Database, grid: TaxaGrid = createTaxaGrid
     if (changes.notes !== undefined) add("notes", null, changes.notes);
     for (const end of ["fad", "lad"] as const) {
       if (changes[end] === undefined) continue;
-      const r = resolveRangeEnd(changes[end] as never, end);
+      const r = resolveRangeEnd(changes[end] as never, end, intervals);
       if (!r.ok) fields[`changes.${end}`] = r.message;
       else add(end, null, r.value);
     }
@@ -153,7 +156,7 @@ export function createTaxonService(db: Database, grid: TaxaGrid = createTaxaGrid
             updatedAt: new Date(),
             deletedAt: null,
           };
-          const changes = resolveChanges(state, { fad: input.fad ?? null, lad: input.lad ?? null, values: input.values ?? {} }, codebook);
+          const changes = resolveChanges(state, { fad: input.fad ?? null, lad: input.lad ?? null, values: input.values ?? {} }, codebook, await studyIntervalLookup(tx, studyId));
           for (const c of changes) setField(state, c.field, c.to);
           const problem = rangeProblem(fieldValue(state, "fad") as RangeEnd, fieldValue(state, "lad") as RangeEnd);
           if (problem) throw invalidInput(problem, { fad: problem });
@@ -184,7 +187,7 @@ export function createTaxonService(db: Database, grid: TaxaGrid = createTaxaGrid
             throw await versionConflict(tx, studyId, state, wanted);
           }
           const codebook = await loadCodebookById(tx, studyId);
-          const resolved = resolveChanges(state, changes, codebook);
+          const resolved = resolveChanges(state, changes, codebook, await studyIntervalLookup(tx, studyId));
           if (resolved.length === 0) return { taxon: await taxonRowOf(tx, studyId, state), decisions: 0 };
           const replaced = resolved.filter((c) => !isEmptyValue(c.from));
           if (replaced.length && !input.reason) {
@@ -241,7 +244,7 @@ export function createTaxonService(db: Database, grid: TaxaGrid = createTaxaGrid
           what = field === "fad" ? "first appearance" : field === "lad" ? "last appearance" : field === "higherTaxon" ? "higher taxon" : "notes";
           if (field === "fad" || field === "lad") {
             if (input.value !== null && (typeof input.value !== "object" || input.value === null)) throw invalidInput(`${what} takes { ma } or { interval }`, { value: "Give { ma } or { interval }" });
-            const r = resolveRangeEnd(input.value as never, field);
+            const r = resolveRangeEnd(input.value as never, field, await studyIntervalLookup(tx, studyId));
             if (!r.ok) throw invalidInput(r.message, { value: r.message });
             value = r.value;
           } else {

@@ -3,6 +3,7 @@
 // out must be asked for. The upload lifecycle claims the import, holds its commit lock and writes
 // the progress this reports.
 import type { Database } from "../db";
+import { studyIntervalLookup } from "./timeBins";
 import { mappingProblems } from "../../shared/csv/mapping";
 import { IMPORT_MAX_PROBLEMS_LISTED, type ImportCommitInput, type ImportMapping } from "../../shared/schemas/imports";
 import type { TraitValue } from "../../shared/schemas/taxa";
@@ -37,7 +38,7 @@ export async function commitTraitTable(
       const reason = input.reason || `Imported from ${upload.fileName}`;
       // The taxa this file names, locked: an edit in the grid meanwhile waits for the commit.
       const existing = new Map((await taxaByName(tx, studyId, namesIn(parsed, input.mapping), true)).map((s) => [s.name, s]));
-      const checked = validateTraitTable(parsed, input.mapping, codebook, existing);
+      const checked = validateTraitTable(parsed, input.mapping, codebook, existing, await studyIntervalLookup(tx, studyId));
       if (checked.problems.length && !input.skipInvalid) {
         throw detailedError(
           "invalid",

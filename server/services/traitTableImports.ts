@@ -4,6 +4,7 @@
 // (traitTableCommit.ts), revert (traitTableRevert.ts) and discard.
 import { eq } from "drizzle-orm";
 import type { Database } from "../db";
+import { studyIntervalLookup } from "./timeBins";
 import { studies } from "../../db/schema/index";
 import { mappingProblems, suggestMapping, type RememberedMapping } from "../../shared/csv/mapping";
 import {
@@ -89,7 +90,7 @@ export function createImportService(db: Database) {
       const prepared = await prepareImportFile(db, studyId, raw, traitTableColumns(mapping), nameMerges);
       const parsed = prepared.parsed;
       const existing = new Map((await taxaByName(db, studyId, namesIn(parsed, mapping), false)).map((s) => [s.name, s]));
-      const result = validateTraitTable(parsed, mapping, codebook, existing);
+      const result = validateTraitTable(parsed, mapping, codebook, existing, await studyIntervalLookup(db, studyId));
       const plans = result.rows.map((r) => planRow(r, existing.get(r.name) ?? null));
       const counts = {
         rows: result.rowCount,

@@ -3,6 +3,7 @@
 // the fields that differ from the taxon of that name.
 import { sql } from "drizzle-orm";
 import type { DbOrTx } from "../db";
+import type { IntervalLookup } from "../../shared/timebins/intervalLookup";
 import type { ParsedCsv } from "../../shared/csv/parse";
 import { mappingToRemember } from "../../shared/csv/mapping";
 import { validateImportRows, type ImportRowChanges, type ImportValidation } from "../../shared/csv/validate";
@@ -46,9 +47,10 @@ export function planRow(row: ImportRowChanges, existing: TaxonState | null): Pla
   return { row, existing, changes };
 }
 
-/** Validates against the codebook and, for ranges, the stored taxa of the same names. */
-export function validateTraitTable(parsed: ParsedCsv, mapping: ImportMapping, codebook: Trait[], existing: Map<string, TaxonState>): ImportValidation {
+/** Validates against the codebook and, for ranges, the stored taxa of the same names; interval names resolve through `intervals` (the study's time bins first, then the ICS chart). */
+export function validateTraitTable(parsed: ParsedCsv, mapping: ImportMapping, codebook: Trait[], existing: Map<string, TaxonState>, intervals: IntervalLookup): ImportValidation {
   return validateImportRows(parsed, mapping, codebook, {
+    intervals,
     existing: (name) => {
       const s = existing.get(name);
       return s ? { fad: fieldValue(s, "fad") as never, lad: fieldValue(s, "lad") as never } : undefined;

@@ -3,6 +3,7 @@
 import { oneLineProblem } from "../schemas/common";
 import type { ImportMapping } from "../schemas/imports";
 import type { RangeEnd } from "../schemas/taxa";
+import type { IntervalLookup } from "../timebins/intervalLookup";
 import type { ParsedCsv } from "./parse";
 import { checkRows, type CheckedRows } from "./rowChecks";
 import { readRangeCell, readTraitCell, rangeProblem, type CodebookTrait } from "./values";
@@ -39,7 +40,7 @@ export function validateImportRows(
   parsed: ParsedCsv,
   mapping: ImportMapping,
   traits: CodebookTrait[],
-  opts: { existing?: (name: string) => ExistingRange | undefined } = {},
+  opts: { existing?: (name: string) => ExistingRange | undefined; /** The study's interval lookup (its time bins first, then the ICS chart); the chart alone unless given. */ intervals?: IntervalLookup } = {},
 ): ImportValidation {
   const decimalComma = parsed.delimiter !== ",";
   const col = (header: string | null) => (header === null ? -1 : parsed.header.indexOf(header));
@@ -71,7 +72,7 @@ export function validateImportRows(
       [ladCol, "lad"],
     ] as const) {
       if (index < 0) continue;
-      const r = readRangeCell(cells[index], end, { decimalComma });
+      const r = readRangeCell(cells[index], end, { decimalComma, intervals: opts.intervals });
       if (!r.ok) problem(index, `${end === "fad" ? "First" : "Last"} appearance: ${r.message}`);
       else if (r.value) changes[end] = r.value;
     }

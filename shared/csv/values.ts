@@ -2,7 +2,7 @@
 // into the grid (JSON) and for cells of an imported CSV file (text). Messages name the trait and
 // say what is allowed, so the grid and the import preview can show them as they are.
 import type { NumericTransform, TraitKind, TraitState } from "../codebook";
-import { findUnit } from "../timescale/lookup";
+import { chartInterval, hasBins, numberedIntervalHint, type IntervalLookup } from "../timebins/intervalLookup";
 import { AGE_LIMIT_MA, AGE_LIMIT_MESSAGE } from "../schemas/common";
 import type { RangeEnd, RangeEndInput } from "../schemas/taxa";
 
@@ -93,33 +93,55 @@ export function readTraitCell(trait: CodebookTrait, text: string, opts: { decima
   return ok(state.code);
 }
 
-/** A range end as given (age or interval name) to the stored form; an interval resolves to its base (first appearance) or top (last appearance). */
-export function resolveRangeEnd(input: RangeEndInput, end: "fad" | "lad"): Checked<RangeEnd> {
+/**
+ * A range end as given (age or interval name) to the stored form; an interval resolves to its base
+ * (first appearance) or top (last appearance) through `intervals` (the study's bins, then the ICS
+ * chart; the chart alone unless given).
+ */
+export function resolveRangeEnd(input: RangeEndInput, end: "fad" | "lad", intervals: IntervalLookup = chartInterval): Checked<RangeEnd> {
   if (input === null) return ok(null);
   if ("ma" in input) {
     if (!Number.isFinite(input.ma) || input.ma < 0) return fail("Age must be a number of Ma, 0 or more");
     if (input.ma > AGE_LIMIT_MA) return fail(AGE_LIMIT_MESSAGE);
     return ok({ ma: input.ma, interval: null });
   }
-  const unit = findUnit(input.interval);
-  if (!unit) return fail(`Unknown interval "${input.interval}": not a unit of the time scale`);
-  return ok({ ma: end === "fad" ? unit.base : unit.top, interval: unit.label });
+  const found = intervals(input.interval);
+  if (!found) return fail(`Unknown interval "${input.interval}": not one of the study's time bins nor a unit of the time scale${numberedIntervalHint(input.interval, hasBins(intervals))}`);
+  return ok({ ma: end === "fad" ? found.baseMa : found.topMa, interval: found.name });
 }
 
-/** A CSV cell for a range end: an age in Ma, or an interval name; null when missing. */
-export function readRangeCell(text: string, end: "fad" | "lad", opts: { decimalComma: boolean }): Checked<RangeEnd> {
+/** "12 Ma": an age said to be one, which a number naming a study bin would otherwise not be. */
+const EXPLICIT_AGE = /^([+-]?[\d.,]+(?:[eE][+-]?\d+)?)\s*Ma$/;
+
+/**
+ * A CSV cell for a range end: an age in Ma, or an interval name; null when missing. With the study's
+ * `intervals`, a name (a number too) of one of its bins is read as that bin before anything else, so
+ * numbered slices are not taken for ages; "12 Ma" is always an age.
+ */
+export function readRangeCell(text: string, end: "fad" | "lad", opts: { decimalComma: boolean; intervals?: IntervalLookup }): Checked<RangeEnd> {
   if (isMissingCell(text)) return ok(null);
-  const t = text.trim();
-  if (/^[+-]?[\d.,]/.test(t)) {
+  const intervals = opts.intervals ?? chartInterval;
+  const raw = text.trim();
+  const bin = hasBins(intervals) ? intervals(raw) : undefined;
+  if (bin?.source === "bin") return ok({ ma: end === "fad" ? bin.baseMa : bin.topMa, interval: bin.name });
+  const explicitAge = EXPLICIT_AGE.exec(raw);
+  const t = explicitAge ? explicitAge[1]! : raw;
+  if (explicitAge || /^[+-]?[\d.,]/.test(t)) {
     const n = parseNumberCell(t, opts);
     if (!n.ok) return n;
     if (n.value < 0) return fail(`${t} is not an age: ages are in Ma before present and cannot be negative`);
     if (n.value > AGE_LIMIT_MA) return fail(`${t} is not an age: ${AGE_LIMIT_MESSAGE.charAt(0).toLowerCase()}${AGE_LIMIT_MESSAGE.slice(1)}`);
     return ok({ ma: n.value, interval: null });
   }
-  const unit = findUnit(t);
-  if (!unit) return fail(`Unknown interval name "${t}": not a unit of the time scale (give an age in Ma or a name such as Maastrichtian)`);
-  return ok({ ma: end === "fad" ? unit.base : unit.top, interval: unit.label });
+  const found = intervals(t);
+  if (!found) {
+    return fail(
+      !hasBins(intervals)
+        ? `Unknown interval name "${t}": not a unit of the time scale (give an age in Ma or a name such as Maastrichtian)`
+        : `Unknown interval name "${t}": not one of the study's time bins nor a unit of the time scale (give an age in Ma or a name such as Maastrichtian)`,
+    );
+  }
+  return ok({ ma: end === "fad" ? found.baseMa : found.topMa, interval: found.name });
 }
 
 /**

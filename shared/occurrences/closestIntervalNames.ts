@@ -10,7 +10,7 @@ function normalize(name: string): string {
 }
 
 /** Levenshtein (1966) edit distance: insertions, deletions and substitutions of one character each cost 1. */
-function editDistance(a: string, b: string): number {
+export function editDistance(a: string, b: string): number {
   let previous = Array.from({ length: b.length + 1 }, (_, j) => j);
   for (let i = 1; i <= a.length; i++) {
     const current = [i];

@@ -1,7 +1,8 @@
 import type { ParsedCsv } from "../csv/parse";
 import { isMissingCell, parseNumberCell } from "../csv/values";
 import { oneLineProblem } from "../schemas/common";
-import { findUnit, TIMESCALE_VERSION } from "../timescale/index";
+import { TIMESCALE_VERSION } from "../timescale/index";
+import { chartInterval, closestBinNames, hasBins, numberedIntervalHint, type IntervalLookup, type ResolvedInterval } from "../timebins/intervalLookup";
 import { EARTH_AGE_MA, type OccurrenceMapping, type OccurrenceProblem, type OccurrenceRow } from "../schemas/occurrences";
 import { closestIntervalNames } from "./closestIntervalNames";
 
@@ -28,13 +29,16 @@ export function describeOccurrenceProblem(p: OccurrenceProblem): string {
  * Reads an uploaded occurrence table through a column mapping. Ages come from the Ma columns where their cells
  * are filled (a cell may also hold an interval name: the maximum reads its base, the minimum its top), else
  * from the interval-name columns (early: base, late: top; an empty late cell means the early interval).
- * Interval names are units of the ICS chart, matched ignoring case, spaces and punctuation; an unknown one is
- * a problem that offers the closest names. Problems: empty or too long taxon, missing or unreadable age,
+ * Interval names are the study's own time bins (`intervals`, a number in an interval column names a bin) and then
+ * units of the ICS chart, matched ignoring case, spaces and punctuation; an unknown one is a problem that offers
+ * the closest names. Problems: empty or too long taxon, missing or unreadable age,
  * negative age, age older than the Earth, maximum younger than minimum, count not a whole number >= 1.
  * Rows are numbered as a spreadsheet shows them (the header is row 1). With `dropDuplicates`, valid rows
  * identical to an earlier valid row in every mapped column are left out (they are listed either way).
  */
-export function readOccurrenceRows(parsed: ParsedCsv, mapping: OccurrenceMapping, opts: { dropDuplicates: boolean }): ReadOccurrences {
+export function readOccurrenceRows(parsed: ParsedCsv, mapping: OccurrenceMapping, opts: { dropDuplicates: boolean; intervals?: IntervalLookup }): ReadOccurrences {
+  const intervals = opts.intervals ?? chartInterval;
+  const withBins = hasBins(intervals);
   const column = (header: string | null) => (header === null ? -1 : parsed.header.indexOf(header));
   const at = {
     taxon: column(mapping.taxon),
@@ -56,16 +60,16 @@ export function readOccurrenceRows(parsed: ParsedCsv, mapping: OccurrenceMapping
     if (!n) numbers.set(text, (n = parseNumberCell(text, { decimalComma })));
     return n;
   };
-  const units = new Map<string, ReturnType<typeof findUnit> | null>();
+  const units = new Map<string, ResolvedInterval | null>();
   const unitNamed = (name: string) => {
     let unit = units.get(name);
-    if (unit === undefined) units.set(name, (unit = findUnit(name) ?? null));
+    if (unit === undefined) units.set(name, (unit = intervals(name) ?? null));
     return unit;
   };
   const closest = new Map<string, string[]>();
   const closestTo = (name: string) => {
     let names = closest.get(name);
-    if (!names) closest.set(name, (names = closestIntervalNames(name)));
+    if (!names) closest.set(name, (names = withBins ? [...new Set([...closestBinNames(name, intervals, 2), ...closestIntervalNames(name, 2)])] : closestIntervalNames(name)));
     return names;
   };
 
@@ -89,9 +93,10 @@ export function readOccurrenceRows(parsed: ParsedCsv, mapping: OccurrenceMapping
   // An interval name resolved to one of its limits, or null after reporting why not.
   const interval = (index: number, name: string, end: "base" | "top"): number | null => {
     const unit = unitNamed(name);
-    if (unit) return end === "base" ? unit.base : unit.top;
+    if (unit) return end === "base" ? unit.baseMa : unit.topMa;
     const offer = closestTo(name);
-    problem(index, `Unknown interval name "${name}": not a unit of the ICS chart ${TIMESCALE_VERSION}${offer.length ? `; closest: ${offer.join(", ")}` : ""}`, offer);
+    const where = withBins ? `not one of the study's time bins nor a unit of the ICS chart ${TIMESCALE_VERSION}` : `not a unit of the ICS chart ${TIMESCALE_VERSION}`;
+    problem(index, `Unknown interval name "${name}": ${where}${numberedIntervalHint(name, withBins)}${offer.length ? `; closest: ${offer.join(", ")}` : ""}`, offer);
     return null;
   };
   // A Ma cell: a number, or an interval name read at the given limit.
@@ -141,7 +146,7 @@ export function readOccurrenceRows(parsed: ParsedCsv, mapping: OccurrenceMapping
       else minMa = age(at.minMa, "top");
     } else if (earlyGiven) {
       maxMa = interval(at.earlyInterval, earlyInterval!, "base");
-      minMa = lateInterval === null ? (maxMa === null ? null : unitNamed(earlyInterval!)!.top) : interval(at.lateInterval, lateInterval, "top");
+      minMa = lateInterval === null ? (maxMa === null ? null : unitNamed(earlyInterval!)!.topMa) : interval(at.lateInterval, lateInterval, "top");
       if (maxMa !== null && minMa !== null && minMa >= maxMa) {
         problem(at.lateInterval, `The late interval "${lateInterval}" ends (${minMa} Ma) before the early interval "${earlyInterval}" begins (${maxMa} Ma): are the two swapped?`);
       }

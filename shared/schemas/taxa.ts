@@ -2,7 +2,6 @@
 // paginated grid with sorting and filtering, edits guarded by a row version, bulk edits, and the
 // history of every cell.
 import { z } from "zod";
-import { findUnit } from "../timescale/lookup";
 import { AGE_LIMIT_MA, AGE_LIMIT_MESSAGE, isoDateSchema, oneLine, uuidSchema, wellFormed } from "./common";
 
 /** Largest page of the grid one request returns. */
@@ -48,10 +47,12 @@ export const rangeEndInputSchema = z
     }),
     z.strictObject({
       interval: z
-        .string({ message: "Interval must be a name of the time scale" })
+        .string({ message: "Interval must be a name of the time scale or of the study's time bins" })
         .trim()
-        .min(1, "Interval must be a name of the time scale")
-        .refine((n) => findUnit(n) !== undefined, "Unknown interval: not a unit of the time scale (e.g. Maastrichtian, Late Cretaceous)"),
+        .min(1, "Interval must be a name of the time scale or of the study's time bins")
+        .max(300, "Interval must have at most 300 characters")
+        // Known names depend on the study (its own time bins come first): the service resolves them and names an unknown one.
+        .meta({ description: "A name of one of the study's time bins or of a unit of the ICS chart (bins first)" }),
     }),
   ])
   .nullable()

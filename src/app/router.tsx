@@ -48,6 +48,7 @@ export const router = createBrowserRouter([
               { index: true, lazy: screen(() => import("../features/study-overview/StudyOverviewPage"), "StudyOverviewPage") },
               { path: "table", lazy: screen(() => import("../features/trait-table/TraitTablePage"), "TraitTablePage") },
               { path: "codebook", lazy: screen(() => import("../features/codebook/CodebookPage"), "CodebookPage") },
+              { path: "codebook/time-bins", lazy: screen(() => import("../features/time-bins/TimeBinsPage"), "TimeBinsPage") },
               { path: "imports", lazy: screen(() => import("../features/imports/ImportsPage"), "ImportsPage") },
               { path: "boundary", lazy: screen(() => import("../features/boundary/BoundaryPage"), "BoundaryPage") },
               { path: "selectivity", lazy: screen(() => import("../features/selectivity/SelectivityPage"), "SelectivityPage") },

@@ -367,6 +367,15 @@ const MATRIX: Record<string, Row> = {
       return a.post(`/api/studies/${studyId}/occurrences/ranges/apply`).send({ taxa: ["Matrixia"] });
     },
   },
+  "GET /api/studies/{studyId}/time-bins": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/time-bins`) },
+  "PUT /api/studies/{studyId}/time-bins": {
+    allowed: ["owner", "coder"],
+    call: (a, { studyId }) => a.put(`/api/studies/${studyId}/time-bins`).send({ bins: [{ name: "Matrix slice 1", baseMa: 70, topMa: 68 }, { name: "Matrix slice 2", baseMa: 68, topMa: 66 }] }),
+  },
+  "POST /api/studies/{studyId}/time-bins/csv": {
+    allowed: ["owner", "coder"],
+    call: (a, { studyId }) => a.post(`/api/studies/${studyId}/time-bins/csv`).attach("file", Buffer.from("name,base_ma,top_ma\n1,70,68\n2,68,66\n", "utf8"), "matrix-bins.csv"),
+  },
   "GET /api/studies/{studyId}/occurrences/three-timer": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/occurrences/three-timer?boundaryMa=66`) },
   "GET /api/studies/{studyId}/exports/template.csv": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/exports/template.csv`) },
   "GET /api/studies/{studyId}/exports/taxa.csv": { allowed: MEMBERS, freshStudy: true, call: (a, { studyId }) => a.get(`/api/studies/${studyId}/exports/taxa.csv?form=long`) },

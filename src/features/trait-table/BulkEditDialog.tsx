@@ -14,6 +14,7 @@ import { useBulkEditTaxa } from "./api";
 import { INTERVAL_LIST_ID } from "./CellEditor";
 import { decimalCommaProblem } from "./cellValues";
 import { ModalDialog } from "../../components/ModalDialog";
+import { useIntervalLookup } from "../../lib/queries/timeBins";
 
 const CLEAR = "__clear__";
 const TAXON_FIELDS = [
@@ -48,6 +49,7 @@ function BulkEditForm({ studyId, taxonIds, traits, onClose, onDone }: Omit<BulkE
   const [reason, setReason] = useState("");
   const [errors, setErrors] = useState<FieldErrors>({});
   const bulk = useBulkEditTaxa(studyId);
+  const intervals = useIntervalLookup(studyId);
   const toast = useToast();
   const trait = active.find((t) => t.id === field);
 
@@ -67,7 +69,7 @@ function BulkEditForm({ studyId, taxonIds, traits, onClose, onDone }: Omit<BulkE
     if (field === "fad" || field === "lad") {
       const comma = decimalCommaProblem(value);
       if (comma) return { ok: false, message: comma };
-      const read = readRangeCell(value, field, { decimalComma: false });
+      const read = readRangeCell(value, field, { decimalComma: false, intervals });
       if (!read.ok) return read;
       if (read.value === null) return { ok: true, value: null };
       return { ok: true, value: read.value.interval ? { interval: read.value.interval } : { ma: read.value.ma } };

@@ -1,6 +1,8 @@
 import { useEffect, useRef, useState, type KeyboardEvent } from "react";
 import type { TaxonRow } from "@shared/schemas/taxa";
 import { cx } from "../../lib/cx";
+import { useCurrentStudy } from "../../lib/currentStudy";
+import { useIntervalLookup } from "../../lib/queries/timeBins";
 import { readCellEdit, type CellChange, type GridColumn } from "./cellValues";
 
 export const INTERVAL_LIST_ID = "grid-interval-names";
@@ -17,7 +19,7 @@ interface CellEditorProps {
 
 const HINTS: Record<GridColumn["kind"], string> = {
   text: "Enter saves, Esc cancels",
-  range: "An age in Ma or an interval name; empty clears",
+  range: "An age in Ma or an interval name (the study's time bins first); empty clears",
   trait: "Enter saves, Esc cancels; empty clears",
   count: "Counted from the occurrences; not editable",
 };
@@ -28,6 +30,7 @@ const HINTS: Record<GridColumn["kind"], string> = {
  */
 export function CellEditor({ column, row, initialText, onCommit, onCancel }: CellEditorProps) {
   const [text, setText] = useState(initialText);
+  const intervals = useIntervalLookup(useCurrentStudy().id);
   const [error, setError] = useState<string | null>(null);
   const inputRef = useRef<HTMLInputElement>(null);
   // Enter and Esc end the edit themselves; the blur that follows must not end it again.
@@ -42,7 +45,7 @@ export function CellEditor({ column, row, initialText, onCommit, onCancel }: Cel
   }, []);
 
   function commit(move: "stay" | "down" | "right" | "left"): boolean {
-    const read = readCellEdit(column, row, text);
+    const read = readCellEdit(column, row, text, intervals);
     if (!read.ok) {
       setError(read.message);
       return false;

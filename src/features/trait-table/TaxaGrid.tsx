@@ -19,6 +19,8 @@ import { useVirtualizer } from "@tanstack/react-virtual";
 import type { TaxonRow } from "@shared/schemas/taxa";
 import { timescaleUnits } from "@shared/timescale/units";
 import { cx } from "../../lib/cx";
+import { useCurrentStudy } from "../../lib/currentStudy";
+import { useIntervalLookup } from "../../lib/queries/timeBins";
 import { CellEditor, INTERVAL_LIST_ID, stateListId } from "./CellEditor";
 import { cellValue, displayText, editText, isEmptyValue, type CellChange, type GridColumn } from "./cellValues";
 
@@ -172,6 +174,8 @@ function CellContent({ column, row, onShowFinds }: { column: GridColumn; row: Ta
  * column frozen, usable from the keyboard (arrows move, Enter edits, Esc cancels).
  */
 export function TaxaGrid(props: TaxaGridProps) {
+  // The study's own time bins are offered first in range cells, as they are read first.
+  const intervals = useIntervalLookup(useCurrentStudy().id);
   const { columns, rows, rowOffset, total, sort, onSortChange, columnVisibility, rowSelection, onRowSelectionChange, canEdit, savingCells, stale } = props;
   const { onCommit, onShowHistory, onShowFinds, openTraitThreads } = props;
   const scrollRef = useRef<HTMLDivElement>(null);
@@ -496,6 +500,11 @@ export function TaxaGrid(props: TaxaGridProps) {
         </datalist>
       ))}
       <datalist id={INTERVAL_LIST_ID}>
+        {(intervals.binNames ?? []).map((name) => (
+          <option key={`bin-${name}`} value={name}>
+            Time bin of this study
+          </option>
+        ))}
         {timescaleUnits.map((u) => (
           <option key={u.name} value={u.label} />
         ))}

@@ -2,6 +2,7 @@
 // cell go through the same readers as a CSV import (shared/csv), so the grid and an import accept
 // and refuse the same things with the same words.
 import { checkTraitValue, rangeProblem, readRangeCell, readTraitCell, sameValue, type Checked } from "@shared/csv/values";
+import type { IntervalLookup } from "@shared/timebins/intervalLookup";
 import type { RangeEnd, RangeEndInput, TaxonChanges, TaxonRow } from "@shared/schemas/taxa";
 import type { Trait } from "@shared/schemas/traits";
 import { formatMeasurement } from "../../lib/format";
@@ -125,7 +126,8 @@ function toRangeInput(end: RangeEnd): RangeEndInput {
  * Reads what was typed into a cell. An empty cell (or NA) clears a trait value or a range end;
  * a state trait takes a code or a label, case-blind. `null` means nothing changed.
  */
-export function readCellEdit(column: GridColumn, row: TaxonRow, text: string): Checked<CellChange | null> {
+/** `intervals`: the study's interval lookup (its time bins, then the ICS chart), as the server reads the names. */
+export function readCellEdit(column: GridColumn, row: TaxonRow, text: string, intervals?: IntervalLookup): Checked<CellChange | null> {
   const oldValue = cellValue(column, row);
   if (column.kind === "trait") {
     const comma = column.trait.kind === "numeric" ? decimalCommaProblem(text) : null;
@@ -145,7 +147,7 @@ export function readCellEdit(column: GridColumn, row: TaxonRow, text: string): C
   if (column.kind === "range") {
     const comma = decimalCommaProblem(text);
     if (comma) return { ok: false, message: comma };
-    const read = readRangeCell(text, column.field, { decimalComma: false });
+    const read = readRangeCell(text, column.field, { decimalComma: false, intervals });
     if (!read.ok) return read;
     const other = column.field === "fad" ? cellValue({ ...column, id: "lad", field: "lad" }, row) : cellValue({ ...column, id: "fad", field: "fad" }, row);
     const problem = column.field === "fad" ? rangeProblem(read.value, other as RangeEnd) : rangeProblem(other as RangeEnd, read.value);
