@@ -290,7 +290,7 @@ function NumbersTable({ stages, crosserQ, boundaryIndex }: { stages: ThreeTimerR
               <th scope="row" className="px-3 py-1.5 text-left font-medium text-stone-900">
                 {s.label}
               </th>
-              <td className={cell}>
+              <td className={cx(cell, "whitespace-nowrap")}>
                 {formatAgeNumber(s.baseMa)}–{formatAgeNumber(s.topMa)}
               </td>
               <td className={cell}>{formatCount(s.occurrences)}</td>
