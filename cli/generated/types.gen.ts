@@ -141,6 +141,33 @@ export type Study = {
     role: 'owner' | 'coder' | 'analyst' | 'reviewer' | 'viewer';
     memberCount: number;
     /**
+     * The boundary the study is about: the latest of the choice on the overview and the newest run's crisis boundary; null when neither exists
+     */
+    mainBoundary: {
+        /**
+         * Boundary age in Ma
+         */
+        boundaryMa: number;
+        /**
+         * The unit of the time scale it was chosen as, when it was chosen by name
+         */
+        unit: string | null;
+        /**
+         * The window the run used, when it gave one; null: the default window
+         */
+        windowMyr: number | null;
+        /**
+         * study: set on the study's overview; run: the crisis boundary of the study's newest run (newer than any choice on the overview)
+         */
+        source: 'study' | 'run';
+        runId: string | null;
+        runName: string | null;
+        /**
+         * ISO 8601 date-time
+         */
+        setAt: string;
+    } | null;
+    /**
      * ISO 8601 date-time
      */
     createdAt: string;
@@ -153,11 +180,28 @@ export type Study = {
 export type StudyCreate = {
     name: string;
     description?: string;
+    /**
+     * Start the codebook from the five suggested traits (environment, life habit, feeding mode, body size, geographic range); default: an empty codebook
+     */
+    suggestedCodebook?: boolean;
 };
 
 export type StudyUpdate = {
     name?: string;
     description?: string;
+    /**
+     * The study's main boundary; null clears the choice (the newest run's crisis boundary then counts)
+     */
+    mainBoundary?: {
+        /**
+         * A unit of the time scale whose base is the boundary, e.g. Turonian
+         */
+        unit?: string;
+        /**
+         * Or a custom boundary age in Ma
+         */
+        boundaryMa?: number;
+    } | null;
 };
 
 export type ImportSettings = {
@@ -1113,6 +1157,10 @@ export type SelectivityResult = {
          * Taxa without a higher taxon, left out of the clade-adjusted estimates
          */
         withoutClade?: number;
+        /**
+         * Taxa whose higher taxon carries a qualifier (?, cf., aff.): each such name is a clade of its own in the clade-adjusted estimates, not pooled into the clade it names
+         */
+        withQualifiedClade?: number;
     };
     /**
      * How the confounding flag is decided, with citations
@@ -1956,6 +2004,9 @@ export type TaxonCreate = {
     fad?: {
         ma: number;
     } | {
+        /**
+         * A name of one of the study's time bins or of a unit of the ICS chart (bins first)
+         */
         interval: string;
     } | null;
     /**
@@ -1964,6 +2015,9 @@ export type TaxonCreate = {
     lad?: {
         ma: number;
     } | {
+        /**
+         * A name of one of the study's time bins or of a unit of the ICS chart (bins first)
+         */
         interval: string;
     } | null;
     notes?: string;
@@ -2008,6 +2062,9 @@ export type TaxaBulkEdit = {
     value: string | number | {
         ma: number;
     } | {
+        /**
+         * A name of one of the study's time bins or of a unit of the ICS chart (bins first)
+         */
         interval: string;
     } | null;
     reason: string;
@@ -2124,6 +2181,9 @@ export type TaxonChanges = {
 export type RangeEndInput = {
     ma: number;
 } | {
+    /**
+     * A name of one of the study's time bins or of a unit of the ICS chart (bins first)
+     */
     interval: string;
 } | null;
 
@@ -2381,6 +2441,40 @@ export type ImportPreview = {
      * How the mapping is read, e.g. that empty cells keep existing values
      */
     notes: Array<string>;
+    /**
+     * Warnings that do not block a commit: implausible ages, similar names, missing-value tokens read, qualified higher taxa
+     */
+    checks: {
+        /**
+         * By row; at most 2000 listed
+         */
+        warnings: Array<ImportWarning>;
+        warningCount: number;
+        /**
+         * The span the ages were compared with; null when there is none to compare with
+         */
+        ageSpan: {
+            oldestMa: number;
+            youngestMa: number;
+            /**
+             * study: the ranges of the study's taxa; file: the middle half of this file's ages (the study has no ages yet)
+             */
+            source: 'study' | 'file';
+        } | null;
+        /**
+         * Cells read as missing because they hold one of the study's declared tokens
+         */
+        missingRead: Array<MissingRead>;
+        missingTokens: Array<string>;
+        /**
+         * Names of the file that differ from each other or from the study's taxa only by case, spaces or punctuation
+         */
+        similarNames: Array<SimilarNames>;
+        /**
+         * Higher taxa written with a qualifier (?, cf., aff.): kept as written
+         */
+        qualifiedHigherTaxa: Array<QualifiedHigherTaxon>;
+    };
 };
 
 export type ImportCounts = {
@@ -2413,8 +2507,78 @@ export type ImportProblem = {
     message: string;
 };
 
+export type ImportWarning = {
+    /**
+     * Row as a spreadsheet shows it: the header is row 1, so the first data row is row 2
+     */
+    row: number;
+    /**
+     * The CSV header of the cell
+     */
+    column: string;
+    taxon: string;
+    kind: 'age_interval_number' | 'age_far_outside';
+    message: string;
+};
+
+export type MissingRead = {
+    column: string;
+    /**
+     * The declared token as the study lists it
+     */
+    token: string;
+    count: number;
+    /**
+     * Up to 5 rows (header is row 1)
+     */
+    firstRows: Array<number>;
+};
+
+export type SimilarNames = {
+    /**
+     * The name with case, spaces and punctuation removed
+     */
+    key: string;
+    spellings: Array<NameSpelling>;
+    /**
+     * The spelling chosen for all of them in this preview; null: kept apart
+     */
+    mergedInto: string | null;
+};
+
+export type NameSpelling = {
+    name: string;
+    /**
+     * Rows of the file with this exact spelling
+     */
+    fileRows: number;
+    /**
+     * Up to 5 of them (header is row 1)
+     */
+    firstRows: Array<number>;
+    /**
+     * A taxon of the study already has this exact name
+     */
+    inStudy: boolean;
+};
+
+export type QualifiedHigherTaxon = {
+    /**
+     * As written, e.g. Anazygidae?
+     */
+    name: string;
+    /**
+     * The name without its qualifier
+     */
+    base: string;
+    qualifier: string;
+    rows: number;
+    firstRow: number;
+};
+
 export type ImportPreviewRequest = {
     mapping: ImportMapping;
+    nameMerges?: NameMerges;
 };
 
 export type ImportMapping = {
@@ -2440,6 +2604,13 @@ export type ImportMapping = {
     };
 };
 
+/**
+ * Spelling -> the spelling to read it as (only names that differ by case, spaces or punctuation)
+ */
+export type NameMerges = {
+    [key: string]: string;
+};
+
 export type ImportProblemsError = {
     error: {
         code: 'import_has_problems';
@@ -2451,6 +2622,7 @@ export type ImportProblemsError = {
 
 export type ImportCommit = {
     mapping: ImportMapping;
+    nameMerges?: NameMerges;
     skipInvalid: boolean;
     /**
      * Recorded on every coding decision; default: the file name
@@ -2541,6 +2713,40 @@ export type OccurrencePreview = {
      */
     sample: Array<OccurrenceRow>;
     notes: Array<string>;
+    /**
+     * Warnings that do not block a commit: implausible ages, similar names, missing-value tokens read, qualified higher taxa
+     */
+    checks: {
+        /**
+         * By row; at most 2000 listed
+         */
+        warnings: Array<ImportWarning>;
+        warningCount: number;
+        /**
+         * The span the ages were compared with; null when there is none to compare with
+         */
+        ageSpan: {
+            oldestMa: number;
+            youngestMa: number;
+            /**
+             * study: the ranges of the study's taxa; file: the middle half of this file's ages (the study has no ages yet)
+             */
+            source: 'study' | 'file';
+        } | null;
+        /**
+         * Cells read as missing because they hold one of the study's declared tokens
+         */
+        missingRead: Array<MissingRead>;
+        missingTokens: Array<string>;
+        /**
+         * Names of the file that differ from each other or from the study's taxa only by case, spaces or punctuation
+         */
+        similarNames: Array<SimilarNames>;
+        /**
+         * Higher taxa written with a qualifier (?, cf., aff.): kept as written
+         */
+        qualifiedHigherTaxa: Array<QualifiedHigherTaxon>;
+    };
 };
 
 export type OccurrenceProblem = {
@@ -2590,6 +2796,7 @@ export type OccurrencePreviewRequest = {
      * Rows identical to an earlier row in every mapped column: keep them (default) or drop them
      */
     duplicates?: 'keep' | 'drop';
+    nameMerges?: NameMerges;
 };
 
 export type OccurrenceMapping = {
@@ -2639,6 +2846,7 @@ export type OccurrenceCommit = {
      * Rows identical to an earlier row in every mapped column: keep them (default) or drop them
      */
     duplicates?: 'keep' | 'drop';
+    nameMerges?: NameMerges;
     skipInvalid: boolean;
 };
 
@@ -2844,6 +3052,109 @@ export type ThreeTimerRow = {
     samplingCompleteness: number | null;
     extinction: number | null;
     origination: number | null;
+};
+
+export type TimeBinList = {
+    /**
+     * Oldest first
+     */
+    bins: Array<TimeBin>;
+    /**
+     * How an interval name is read: study bins first, then the ICS chart
+     */
+    resolutionOrder: string;
+    /**
+     * Bins whose name is also a chart unit's name: there the bin is used
+     */
+    shadowedChartUnits: Array<{
+        bin: string;
+        chartUnit: string;
+    }>;
+    /**
+     * ISO 8601 date-time
+     */
+    updatedAt: string | null;
+    updatedBy: {
+        id: string;
+        name: string;
+    } | null;
+};
+
+export type TimeBin = {
+    /**
+     * 1 for the oldest bin
+     */
+    position: number;
+    name: string;
+    baseMa: number;
+    topMa: number;
+    chartUnit: string | null;
+};
+
+export type TimeBinSet = {
+    /**
+     * Oldest first, not overlapping (gaps are allowed); an empty list removes the study's bins
+     */
+    bins: Array<TimeBinInput>;
+};
+
+export type TimeBinInput = {
+    name: string;
+    /**
+     * Older limit in Ma
+     */
+    baseMa: number;
+    /**
+     * Younger limit in Ma
+     */
+    topMa: number;
+    /**
+     * The ICS chart unit the bin is tied to (correlates with); null or empty for none
+     */
+    chartUnit?: string | null;
+};
+
+export type TimeBinCsv = {
+    fileName: string;
+    /**
+     * The header read for each part of a bin, null when the file has none
+     */
+    columns: {
+        name: string | null;
+        baseMa: string | null;
+        topMa: string | null;
+        chartUnit: string | null;
+    };
+    /**
+     * Every data row as read, in file order; nothing is saved until the set is sent to PUT /time-bins
+     */
+    bins: Array<{
+        row: number;
+        name: string;
+        baseMa: number | null;
+        topMa: number | null;
+        chartUnit: string | null;
+    }>;
+    problems: Array<TimeBinProblem>;
+};
+
+export type TimeBinProblem = {
+    /**
+     * Row as a spreadsheet shows it: the header is row 1
+     */
+    row: number;
+    /**
+     * The CSV header of the cell at fault
+     */
+    column: string | null;
+    message: string;
+};
+
+export type TimeBinUploadForm = {
+    /**
+     * CSV with columns name, base_ma, top_ma and optionally chart_unit (comma, semicolon or tab separated)
+     */
+    file: Blob | File;
 };
 
 /**
@@ -6541,6 +6852,50 @@ export type GetImportResponses = {
 
 export type GetImportResponse = GetImportResponses[keyof GetImportResponses];
 
+export type ResumeImportData = {
+    body?: never;
+    path: {
+        studyId: string;
+        importId: string;
+    };
+    query?: never;
+    url: '/api/studies/{studyId}/imports/{importId}/upload';
+};
+
+export type ResumeImportErrors = {
+    /**
+     * Invalid input; `fields` names each field at fault
+     */
+    400: ApiError;
+    /**
+     * No session: sign in
+     */
+    401: ApiError;
+    /**
+     * The caller's role does not allow this
+     */
+    403: ApiError;
+    /**
+     * Too many attempts; see Retry-After
+     */
+    429: ApiError;
+    /**
+     * The database is unreachable
+     */
+    503: ApiError;
+};
+
+export type ResumeImportError = ResumeImportErrors[keyof ResumeImportErrors];
+
+export type ResumeImportResponses = {
+    /**
+     * 409: the upload was committed, discarded or its file is no longer kept
+     */
+    200: ImportUpload;
+};
+
+export type ResumeImportResponse = ResumeImportResponses[keyof ResumeImportResponses];
+
 export type PreviewImportData = {
     body?: ImportPreviewRequest;
     path: {
@@ -7158,6 +7513,135 @@ export type GetThreeTimerRatesResponses = {
 };
 
 export type GetThreeTimerRatesResponse = GetThreeTimerRatesResponses[keyof GetThreeTimerRatesResponses];
+
+export type ListTimeBinsData = {
+    body?: never;
+    path: {
+        studyId: string;
+    };
+    query?: never;
+    url: '/api/studies/{studyId}/time-bins';
+};
+
+export type ListTimeBinsErrors = {
+    /**
+     * Invalid input; `fields` names each field at fault
+     */
+    400: ApiError;
+    /**
+     * No session: sign in
+     */
+    401: ApiError;
+    /**
+     * The caller's role does not allow this
+     */
+    403: ApiError;
+    /**
+     * Too many attempts; see Retry-After
+     */
+    429: ApiError;
+    /**
+     * The database is unreachable
+     */
+    503: ApiError;
+};
+
+export type ListTimeBinsError = ListTimeBinsErrors[keyof ListTimeBinsErrors];
+
+export type ListTimeBinsResponses = {
+    /**
+     * Success
+     */
+    200: TimeBinList;
+};
+
+export type ListTimeBinsResponse = ListTimeBinsResponses[keyof ListTimeBinsResponses];
+
+export type ReplaceTimeBinsData = {
+    body?: TimeBinSet;
+    path: {
+        studyId: string;
+    };
+    query?: never;
+    url: '/api/studies/{studyId}/time-bins';
+};
+
+export type ReplaceTimeBinsErrors = {
+    /**
+     * Invalid input; `fields` names each field at fault
+     */
+    400: ApiError;
+    /**
+     * No session: sign in
+     */
+    401: ApiError;
+    /**
+     * The caller's role does not allow this
+     */
+    403: ApiError;
+    /**
+     * Too many attempts; see Retry-After
+     */
+    429: ApiError;
+    /**
+     * The database is unreachable
+     */
+    503: ApiError;
+};
+
+export type ReplaceTimeBinsError = ReplaceTimeBinsErrors[keyof ReplaceTimeBinsErrors];
+
+export type ReplaceTimeBinsResponses = {
+    /**
+     * Saved. 400: `fields` names each bin and field at fault, e.g. bins.3.baseMa
+     */
+    200: TimeBinList;
+};
+
+export type ReplaceTimeBinsResponse = ReplaceTimeBinsResponses[keyof ReplaceTimeBinsResponses];
+
+export type ReadTimeBinsCsvData = {
+    body?: TimeBinUploadForm;
+    path: {
+        studyId: string;
+    };
+    query?: never;
+    url: '/api/studies/{studyId}/time-bins/csv';
+};
+
+export type ReadTimeBinsCsvErrors = {
+    /**
+     * Invalid input; `fields` names each field at fault
+     */
+    400: ApiError;
+    /**
+     * No session: sign in
+     */
+    401: ApiError;
+    /**
+     * The caller's role does not allow this
+     */
+    403: ApiError;
+    /**
+     * Too many attempts; see Retry-After
+     */
+    429: ApiError;
+    /**
+     * The database is unreachable
+     */
+    503: ApiError;
+};
+
+export type ReadTimeBinsCsvError = ReadTimeBinsCsvErrors[keyof ReadTimeBinsCsvErrors];
+
+export type ReadTimeBinsCsvResponses = {
+    /**
+     * Read: the rows and every problem. Send the rows to PUT /time-bins to save them. 413: larger than 1 MB
+     */
+    200: TimeBinCsv;
+};
+
+export type ReadTimeBinsCsvResponse = ReadTimeBinsCsvResponses[keyof ReadTimeBinsCsvResponses];
 
 export type ExportImportTemplateData = {
     body?: never;
