@@ -20,7 +20,7 @@ import {
   type OccurrenceUploadList,
 } from "../../shared/schemas/occurrences";
 import { detailedError, invalidInput } from "../domain/errors";
-import { recordActivity } from "./taxonState";
+import { recordActivity } from "./decisionLog";
 import type { AgeCell } from "../../shared/imports/agePlausibility";
 import type { NameMerges } from "../../shared/schemas/importChecks";
 import { collectImportChecks, prepareImportFile } from "./importChecks";
@@ -174,7 +174,7 @@ export function createOccurrenceUploadService(db: Database) {
         if (read.rows.length === 0) throw invalidInput("No valid rows to write.", { file: "No valid rows" });
         for (let i = 0; i < read.rows.length; i += INSERT_CHUNK) {
           const chunk = read.rows.slice(i, i + INSERT_CHUNK);
-          // One JSON document per statement with one-letter keys, unpacked by PostgreSQL (as taxonState writes taxa).
+          // One JSON document per statement with one-letter keys, unpacked by PostgreSQL (as taxaStore writes taxa).
           const records = chunk.map((o) => ({ r: o.row, t: o.taxon, h: o.higherTaxon, x: o.maxMa, n: o.minMa, e: o.earlyInterval, l: o.lateInterval, c: o.collection, k: o.count }));
           await tx.execute(sql`
             INSERT INTO occurrences (study_id, upload_id, source_row, taxon, higher_taxon, max_ma, min_ma, early_interval, late_interval, collection, count)

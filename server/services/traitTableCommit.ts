@@ -7,8 +7,11 @@ import { studyIntervalLookup } from "./timeBins";
 import { mappingProblems } from "../../shared/csv/mapping";
 import { IMPORT_MAX_PROBLEMS_LISTED, type ImportCommitInput, type ImportMapping } from "../../shared/schemas/imports";
 import type { TraitValue } from "../../shared/schemas/taxa";
-import { detailedError, DomainError, invalidInput } from "../domain/errors";
-import { insertDecisions, insertTaxaWithDecisions, isUniqueViolation, loadCodebook, newTaxonState, setField, taxaByName, writeTaxa, type NewDecision, type TaxonState } from "./taxonState";
+import { detailedError, invalidInput } from "../domain/errors";
+import { newTaxonState, setField, type TaxonState } from "./taxonModel";
+import { loadCodebook } from "./codebookStore";
+import { insertTaxaWithDecisions, isUniqueViolation, nameTakenMeanwhile, taxaByName, writeTaxa } from "./taxaStore";
+import { insertDecisions, type NewDecision } from "./decisionLog";
 import { namesIn, planRow, rememberMapping, traitTableColumns, validateTraitTable } from "./traitTablePlan";
 import { prepareImportFile } from "./importChecks";
 import { readStoredUpload, refuseMappingProblems, type UploadLifecycle } from "./uploadLifecycle";
@@ -98,7 +101,7 @@ export async function commitTraitTable(
         },
       };
     },
-    (err) => (isUniqueViolation(err) ? new DomainError("conflict", "name_taken", "A taxon of the same name was added meanwhile; preview again.") : undefined),
+    (err) => (isUniqueViolation(err) ? nameTakenMeanwhile() : undefined),
   );
   await rememberMapping(db, studyId, input.mapping);
 }

@@ -18,7 +18,8 @@ import {
   type ImportSummary,
   type ImportUpload,
 } from "../../shared/schemas/imports";
-import { loadCodebook, taxaByName } from "./taxonState";
+import { loadCodebook } from "./codebookStore";
+import { taxaByName } from "./taxaStore";
 import { commitTraitTable } from "./traitTableCommit";
 import { namesIn, planRow, rememberMapping, traitTableAges, traitTableColumns, TRAIT_TABLE_UPLOAD, validateTraitTable } from "./traitTablePlan";
 import { collectImportChecks, prepareImportFile } from "./importChecks";

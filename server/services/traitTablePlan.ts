@@ -12,7 +12,7 @@ import type { ImportMapping } from "../../shared/schemas/imports";
 import type { AgeCell } from "../../shared/imports/agePlausibility";
 import type { Trait } from "../../shared/schemas/traits";
 import { TABLE_UPLOAD_REFUSALS, type UploadKind } from "./uploadLifecycle";
-import { fieldValue, type TaxonState } from "./taxonState";
+import { fieldValue, type TaxonState } from "./taxonModel";
 
 export const TRAIT_TABLE_UPLOAD: UploadKind = {
   target: "taxa",
