@@ -137,6 +137,11 @@ export const selectivityResultSchema = z
       droppedByTrait: z.record(z.string(), z.number().int()),
       completeCases: z.number().int(),
       withoutClade: z.number().int().optional().meta({ description: "Taxa without a higher taxon, left out of the clade-adjusted estimates" }),
+      withQualifiedClade: z
+        .number()
+        .int()
+        .optional()
+        .meta({ description: "Taxa whose higher taxon carries a qualifier (?, cf., aff.): each such name is a clade of its own in the clade-adjusted estimates, not pooled into the clade it names" }),
     }),
     confoundingMethod: z.string().optional().meta({ description: "How the confounding flag is decided, with citations" }),
     traits: z.array(traitResultSchema),

@@ -14,6 +14,7 @@ import { countCladeStates, stateContrasts, type CladeStateCounts } from "./state
 import { testNumericTrait } from "./testNumericTrait";
 import { testStateTrait, type TraitTest } from "./testStateTrait";
 import type { ContrastResult, SelectivityInput, SelectivityResult, SelectivityTaxon, StateRow, TraitResult } from "./types";
+import { QUALIFIED_HIGHER_TAXON_RULE, qualifiedHigherTaxon } from "../imports/qualifiedHigherTaxon";
 
 const CORRECTIONS = ["bh", "holm", "bonferroni"];
 
@@ -48,6 +49,9 @@ export function analyzeSelectivity(input: SelectivityInput): SelectivityResult {
   const cladeNames: string[] = [];
   let victims = 0;
   let withoutClade = 0;
+  // Qualified higher taxa ("Anazygidae?", "cf. Orthida") stay clades of their own, as written (QUALIFIED_HIGHER_TAXON_RULE); counted to say so.
+  const cladeQualified: boolean[] = [];
+  let withQualifiedClade = 0;
   for (let i = 0; i < n; i++) {
     const taxon = taxa[i];
     outcome[i] = taxon.outcome;
@@ -64,8 +68,10 @@ export function analyzeSelectivity(input: SelectivityInput): SelectivityResult {
       c = cladeNames.length;
       cladeIndex.set(name, c);
       cladeNames.push(name);
+      cladeQualified.push(qualifiedHigherTaxon(name) !== null);
     }
     clade[i] = c;
+    if (cladeQualified[c]) withQualifiedClade++;
   }
 
   const results: TraitResult[] = [];
@@ -194,10 +200,13 @@ export function analyzeSelectivity(input: SelectivityInput): SelectivityResult {
     if (withoutClade > 0 && result.contrasts.some((c) => c.cladeAdjusted)) {
       result.notes.push(`${withoutClade} ${withoutClade === 1 ? "taxon has" : "taxa have"} no higher taxon and ${withoutClade === 1 ? "is" : "are"} left out of the clade-adjusted odds ratios.`);
     }
+    if (withQualifiedClade > 0 && result.contrasts.some((c) => c.cladeAdjusted)) {
+      result.notes.push(`${withQualifiedClade} ${withQualifiedClade === 1 ? "taxon has" : "taxa have"} a qualified higher taxon (?, cf., aff.). ${QUALIFIED_HIGHER_TAXON_RULE}`);
+    }
   }
 
   return {
-    design: { victims, survivors: n - victims, droppedByTrait, completeCases: fit.completeCases, withoutClade },
+    design: { victims, survivors: n - victims, droppedByTrait, completeCases: fit.completeCases, withoutClade, withQualifiedClade },
     confoundingMethod: confoundingMethod(options.confoundingThreshold, level, minClades),
     traits: results,
     model: fit.model,

@@ -3,6 +3,7 @@ import { cx } from "../../lib/cx";
 import { contrastWords, type ContrastData, type SelectivityResultData } from "./resultRows";
 import { Body, ColHead, HeadRow, ResultTable, td, tdNum, thNum } from "./ResultTable";
 import { formatChange, formatEstimate, formatInterval, formatP, formatWholePercent, levelWords } from "./words";
+import { QUALIFIED_HIGHER_TAXON_RULE } from "@shared/imports/qualifiedHigherTaxon";
 
 function OddsCell({ value, ci }: { value: number | undefined; ci: [number, number] | undefined }) {
   if (value === undefined || !ci) return <td className={cx(tdNum, "text-stone-500")}>—</td>;
@@ -117,6 +118,7 @@ export function ConfoundingCard({ result, level, threshold }: { result: Selectiv
             within-clade odds ratio and how many clades carry information. A small Breslow-Day p says the odds ratio differs between clades, so one common figure
             summarises them poorly.
             {result.design.withoutClade ? ` ${result.design.withoutClade} taxa without a higher taxon are left out of the clade-adjusted odds ratios.` : ""}
+            {result.design.withQualifiedClade ? ` ${result.design.withQualifiedClade} taxa have a qualified higher taxon (?, cf., aff.): ${QUALIFIED_HIGHER_TAXON_RULE.charAt(0).toLowerCase()}${QUALIFIED_HIGHER_TAXON_RULE.slice(1)}` : ""}
           </p>
         ) : (
           <p className="text-sm text-stone-600">

@@ -18,6 +18,7 @@ import {
 import { useVirtualizer } from "@tanstack/react-virtual";
 import type { TaxonRow } from "@shared/schemas/taxa";
 import { timescaleUnits } from "@shared/timescale/units";
+import { qualifiedHigherTaxon } from "@shared/imports/qualifiedHigherTaxon";
 import { cx } from "../../lib/cx";
 import { useCurrentStudy } from "../../lib/currentStudy";
 import { useIntervalLookup } from "../../lib/queries/timeBins";
@@ -126,6 +127,17 @@ function MissingMark() {
   );
 }
 
+/** A higher taxon written with a qualifier ("Anazygidae?", "cf. Orthida"): kept as written, marked as uncertain. */
+function QualifiedMark({ qualifier, base }: { qualifier: string; base: string }) {
+  const label = `Qualified higher taxon (${qualifier} ${base}): a clade of its own in clade-adjusted results`;
+  return (
+    <span className="ml-1.5 shrink-0 rounded bg-amber-100 px-1 text-[11px] font-semibold text-amber-900 ring-1 ring-amber-300" title={label}>
+      <span aria-hidden="true">qualified</span>
+      <span className="sr-only">{label}</span>
+    </span>
+  );
+}
+
 function ThreadDot({ label }: { label: string }) {
   return <span className="ml-1.5 inline-block size-2 shrink-0 rounded-full bg-caution-700" role="img" aria-label={label} title={label} />;
 }
@@ -152,6 +164,7 @@ function CellContent({ column, row, onShowFinds }: { column: GridColumn; row: Ta
   const text = displayText(column, row);
   const threadOnValue = column.kind === "trait" && row.openThreads.traitIds.includes(column.id);
   const threadOnTaxon = column.id === "name" && row.openThreads.count > 0;
+  const qualified = column.id === "higherTaxon" && typeof value === "string" ? qualifiedHigherTaxon(value) : null;
   const outsideCodebook =
     column.kind === "trait" && column.trait.kind !== "numeric" && !isEmptyValue(value) && !column.trait.states.some((s) => s.code === value);
   return (
@@ -163,6 +176,7 @@ function CellContent({ column, row, onShowFinds }: { column: GridColumn; row: Ta
           {text}
         </span>
       )}
+      {qualified && <QualifiedMark qualifier={qualified.qualifier} base={qualified.base} />}
       {threadOnValue && <ThreadDot label="Open thread about this value" />}
       {threadOnTaxon && <ThreadDot label={`${row.openThreads.count} open thread${row.openThreads.count === 1 ? "" : "s"} about this taxon`} />}
     </span>
