@@ -21,6 +21,14 @@ interface SessionPerson {
 
 /** An active override as the classification applies it. */
 export type ActiveOverride = Pick<typeof outcomeOverrides.$inferSelect, "id" | "taxonId" | "boundaryMa" | "outcome" | "reason" | "source">;
+const ACTIVE_OVERRIDE_COLUMNS = {
+  id: outcomeOverrides.id,
+  taxonId: outcomeOverrides.taxonId,
+  boundaryMa: outcomeOverrides.boundaryMa,
+  outcome: outcomeOverrides.outcome,
+  reason: outcomeOverrides.reason,
+  source: outcomeOverrides.source,
+};
 
 export function sameBoundary(a: number | null, b: number | null): boolean {
   if (a === null || b === null) return a === b;
@@ -140,14 +148,7 @@ export function createOverrideStore(db: Database) {
   /** Active overrides of these taxa set for exactly this boundary (or, for null, for any boundary). */
   async function activeMatching(tx: Transaction, studyId: string, taxonIds: Set<string>, boundaryMa: number | null): Promise<ActiveOverride[]> {
     const rows = await tx
-      .select({
-        id: outcomeOverrides.id,
-        taxonId: outcomeOverrides.taxonId,
-        boundaryMa: outcomeOverrides.boundaryMa,
-        outcome: outcomeOverrides.outcome,
-        reason: outcomeOverrides.reason,
-        source: outcomeOverrides.source,
-      })
+      .select(ACTIVE_OVERRIDE_COLUMNS)
       .from(outcomeOverrides)
       .where(and(eq(outcomeOverrides.studyId, studyId), isNull(outcomeOverrides.revokedAt), boundarySql(boundaryMa)));
     return rows.filter((r) => taxonIds.has(r.taxonId));
@@ -195,14 +196,7 @@ export function createOverrideStore(db: Database) {
     /** For each taxon of the study, the active override that applies at `boundary` (see overridesAt). */
     async activeAt(studyId: string, boundary: number): Promise<Map<string, ActiveOverride>> {
       const activeRows = await db
-        .select({
-          id: outcomeOverrides.id,
-          taxonId: outcomeOverrides.taxonId,
-          boundaryMa: outcomeOverrides.boundaryMa,
-          outcome: outcomeOverrides.outcome,
-          reason: outcomeOverrides.reason,
-          source: outcomeOverrides.source,
-        })
+        .select(ACTIVE_OVERRIDE_COLUMNS)
         .from(outcomeOverrides)
         .where(and(eq(outcomeOverrides.studyId, studyId), isNull(outcomeOverrides.revokedAt)))
         .orderBy(asc(outcomeOverrides.createdAt), asc(outcomeOverrides.id));

@@ -44,6 +44,18 @@ export function runResults(read: StudyData, computed: SelectivityTaskOutput): Ru
   };
 }
 
+/** The columns of a run whose analyses succeeded: done, with the data hash, the rows read and the results. */
+export function succeededColumns(read: StudyData, results: RunResults) {
+  return {
+    status: "succeeded" as const,
+    progress: 1,
+    progressNote: "Done",
+    dataHash: read.dataHash,
+    rowCount: read.rowCount,
+    results: results as unknown as Record<string, unknown>,
+  };
+}
+
 /**
  * Computes a run in this process, without the job queue, and stores it as succeeded with its
  * "started" and "finished" activity. It reads, hashes, analyses and stores exactly as a run job does;
@@ -72,12 +84,7 @@ export async function computeRunNow(
         studyId,
         name: params.name,
         params: params as unknown as Record<string, unknown>,
-        status: "succeeded",
-        progress: 1,
-        progressNote: "Done",
-        dataHash: read.dataHash,
-        rowCount: read.rowCount,
-        results: results as unknown as Record<string, unknown>,
+        ...succeededColumns(read, results),
         appVersion: APP_VERSION,
         createdBy: user.id,
         createdAt: at,

@@ -15,7 +15,7 @@ import { runParamsSchema } from "../../shared/schemas/runs";
 import { DomainError } from "../domain/errors";
 import { crisisCheck, robustnessItems, robustnessResult, type RobustnessTaskOutput } from "./runChecks";
 import { plural, readStudyData, type RunDataSources } from "./runData";
-import { analysisInput, runResults, type SelectivityTaskInput, type SelectivityTaskOutput } from "./runAnalysis";
+import { analysisInput, runResults, succeededColumns, type SelectivityTaskInput, type SelectivityTaskOutput } from "./runAnalysis";
 
 /** The job kind every app process works. */
 export const SELECTIVITY_RUN_JOB = "selectivity-run";
@@ -136,12 +136,7 @@ export function createRunJob(db: Database, runtime: RunRuntime, sources: RunData
       const [stored] = await db
         .update(runs)
         .set({
-          status: "succeeded",
-          progress: 1,
-          progressNote: "Done",
-          dataHash: read.dataHash,
-          rowCount: read.rowCount,
-          results: results as unknown as Record<string, unknown>,
+          ...succeededColumns(read, results),
           finishedAt: sql`now()`,
           heartbeatAt: sql`now()`,
         })

@@ -4,7 +4,7 @@
 import { z } from "zod";
 import type { ComparisonResult } from "../comparison/types";
 import { exportQuerySchema, uuidSchema, type Same, cautionsSchema } from "./common";
-import { savedAnalysisSummarySchema } from "./savedAnalysis";
+import { confidenceLevelSchema, savedAnalysisSummarySchema } from "./savedAnalysis";
 import { crosswalkSchema, iucnCategorySchema, listNameSchema } from "./modernLists";
 
 /** Default probability from which a species listed LC or DD is "worth a look": more likely than not to have died out in the past crisis. */
@@ -27,12 +27,7 @@ export const comparisonParamsSchema = z
       .max(0.99, "Worth-a-look threshold must be at most 0.99")
       .default(DEFAULT_WORTH_A_LOOK_MIN)
       .meta({ description: "Species listed LC or DD predicted at least this likely to have died out in the past crisis are listed as worth a look; default 0.5" }),
-    level: z
-      .number({ message: "level must be a number between 0.5 and 0.999" })
-      .min(0.5, "level must be at least 0.5")
-      .max(0.999, "level must be at most 0.999")
-      .default(0.95)
-      .meta({ description: "Confidence level of the intervals" }),
+    level: confidenceLevelSchema,
   })
   .meta({ id: "ComparisonParams" });
 export type ComparisonParamsInput = z.input<typeof comparisonParamsSchema>;

@@ -2,6 +2,7 @@
 // them and a run stores them (defaults filled in), and the body of a re-run.
 import { z } from "zod";
 import { AGE_LIMIT_MA, oneLine, uuidSchema } from "./common";
+import { confidenceLevelSchema } from "./savedAnalysis";
 import { numericTransformSchema } from "./traits";
 import { crisisBoundaryParamSchema, robustnessParamsSchema } from "./runChecks";
 
@@ -80,12 +81,7 @@ export const runParamsSchema = z
       .default("bh")
       .meta({ description: "Multiple-testing correction over the traits' tests: bh (Benjamini-Hochberg, default), holm or bonferroni" }),
     forceFirth: z.boolean({ message: "forceFirth must be true or false" }).default(false).meta({ description: "Fit Firth's bias-reduced regression even when the data do not separate" }),
-    level: z
-      .number({ message: "level must be a number between 0.5 and 0.999" })
-      .min(0.5, "level must be at least 0.5")
-      .max(0.999, "level must be at most 0.999")
-      .default(0.95)
-      .meta({ description: "Confidence level of the intervals" }),
+    level: confidenceLevelSchema,
     confoundingThreshold: z
       .number({ message: "confoundingThreshold must be a number between 0.01 and 1" })
       .min(0.01, "confoundingThreshold must be at least 0.01")

@@ -1,5 +1,6 @@
 // What every saved analysis of a study (a selectivity run, a modern comparison) says about itself:
-// which study, its name, who saved it, when, and with which version of the app.
+// which study, its name, who saved it, when, and with which version of the app; and the confidence
+// level both take.
 import { z } from "zod";
 import { isoDateSchema, personOrNoneSchema } from "./common";
 
@@ -12,3 +13,11 @@ export const savedAnalysisSummarySchema = z.object({
   createdBy: personOrNoneSchema,
   createdAt: isoDateSchema,
 });
+
+/** The confidence level of an analysis's intervals, 0.95 unless given. */
+export const confidenceLevelSchema = z
+  .number({ message: "level must be a number between 0.5 and 0.999" })
+  .min(0.5, "level must be at least 0.5")
+  .max(0.999, "level must be at most 0.999")
+  .default(0.95)
+  .meta({ description: "Confidence level of the intervals" });
