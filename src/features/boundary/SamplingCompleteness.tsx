@@ -32,13 +32,8 @@ export function SamplingCompleteness({ studyId, boundaryMa }: { studyId: string;
   if (threeTimer.isPending) return <LoadingState label="Reading the occurrences" />;
   if (threeTimer.isError) return <ErrorState error={threeTimer.error} title="Sampling could not be computed" onRetry={() => void threeTimer.refetch()} />;
   const data = threeTimer.data;
-  if (data.occurrenceCount === 0) {
-    return (
-      <Card title="Sampling around the boundary" description="Needs occurrences: upload the dated finds on the Imports screen to see how well each stage was sampled.">
-        <p className="text-sm text-stone-600">No occurrences in this study yet.</p>
-      </Card>
-    );
-  }
+  // Without finds there is nothing to say about the boundary: the three-timer chart below shows the empty state.
+  if (data.occurrenceCount === 0) return null;
   const boundary = data.boundary;
   return (
     <Card title="Sampling around the boundary" description={data.method}>
