@@ -8,11 +8,24 @@ interface ToastItem {
   id: number;
   message: string;
   tone: ToastTone;
+  key?: string;
+}
+
+export interface ToastOptions {
+  /**
+   * Names a toast that follows something going on (a run in the queue): showing again with the same
+   * key replaces its words in place, and `dismiss(key)` takes it away once the thing it reports is over.
+   */
+  key?: string;
 }
 
 interface ToastApi {
   /** A short confirmation that outlives a page change, e.g. "Study deleted". */
-  show: (message: string, tone?: ToastTone) => void;
+  show: (message: string, tone?: ToastTone, options?: ToastOptions) => void;
+  /** Changes the words of the toast with this key, if it is still shown (never brings one back). */
+  update: (key: string, message: string, tone?: ToastTone) => void;
+  /** Takes away the toast with this key, if it is shown. */
+  dismiss: (key: string) => void;
 }
 
 const ToastContext = createContext<ToastApi | null>(null);
@@ -32,15 +45,22 @@ export function ToastProvider({ children }: { children: ReactNode }) {
   const dismiss = useCallback((id: number) => setToasts((current) => current.filter((t) => t.id !== id)), []);
 
   const show = useCallback(
-    (message: string, tone: ToastTone = "success") => {
+    (message: string, tone: ToastTone = "success", options: ToastOptions = {}) => {
       const id = nextId.current++;
-      setToasts((current) => [...current.slice(-2), { id, message, tone }]);
+      const { key } = options;
+      setToasts((current) => [...current.filter((t) => key === undefined || t.key !== key).slice(-2), { id, message, tone, key }]);
       window.setTimeout(() => dismiss(id), TOAST_VISIBLE_MS);
     },
     [dismiss],
   );
 
-  const value = useMemo(() => ({ show }), [show]);
+  const update = useCallback((key: string, message: string, tone?: ToastTone) => {
+    setToasts((current) => (current.some((t) => t.key === key) ? current.map((t) => (t.key === key ? { ...t, message, tone: tone ?? t.tone } : t)) : current));
+  }, []);
+
+  const dismissKey = useCallback((key: string) => setToasts((current) => (current.some((t) => t.key === key) ? current.filter((t) => t.key !== key) : current)), []);
+
+  const value = useMemo(() => ({ show, update, dismiss: dismissKey }), [show, update, dismissKey]);
 
   return (
     <ToastContext value={value}>
@@ -50,6 +70,7 @@ export function ToastProvider({ children }: { children: ReactNode }) {
           <div
             key={toast.id}
             role={toast.tone === "error" ? "alert" : "status"}
+            data-toast-key={toast.key}
             className={cx("pointer-events-auto flex w-full items-start gap-3 rounded-lg border bg-white py-3 pr-2 pl-4 shadow-lg", tones[toast.tone].box)}
           >
             <span className={cx("mt-2 size-2 shrink-0 rounded-full", tones[toast.tone].mark)} aria-hidden="true" />

@@ -1,4 +1,5 @@
 import { useId, useState } from "react";
+import { BOUNDARY_MARK_COLOUR, REFERENCE_COLOUR, RISK_COLOUR, SUMMARY_COLOUR } from "../../components/chartColours";
 import { ResponsiveBar, type BarCustomLayerProps, type BarSvgProps, type BarTooltipProps } from "@nivo/bar";
 import type { RatesResult, StageRates } from "@shared/schemas/outcomes";
 import { Card } from "../../components/Card";
@@ -19,7 +20,8 @@ const MEASURES: ReadonlyArray<{ value: Measure; label: string; axis: string }> =
 ];
 
 const FONT = '"Inter Tight", system-ui, sans-serif';
-const COLOR = { bar: "#a8a29e", crisis: "#b91c1c", boundary: "#135a51", threshold: "#8a5a12", text: "#57534e" };
+// From the app's one palette: other stages in the reference grey, the crisis in the red of "more extinction".
+const COLOR = { bar: REFERENCE_COLOUR, crisis: RISK_COLOUR.higher, boundary: BOUNDARY_MARK_COLOUR, threshold: SUMMARY_COLOUR, text: "#57534e" };
 
 // nivo takes its font only through the theme.
 const CHART_THEME: NonNullable<BarSvgProps<StageDatum>["theme"]> = {

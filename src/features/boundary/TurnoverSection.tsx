@@ -1,4 +1,5 @@
 import { useId } from "react";
+import { BOUNDARY_MARK_COLOUR, REFERENCE_COLOUR, TURNOVER_SERIES_COLOUR } from "../../components/chartColours";
 import { ResponsiveLine, type LineCustomSvgLayerProps, type LineSvgProps } from "@nivo/line";
 import type { TurnoverResult, TurnoverStage } from "@shared/schemas/turnover";
 import { Card } from "../../components/Card";
@@ -14,14 +15,14 @@ import type { useTurnover } from "./api";
 import { formatRate } from "./words";
 
 const FONT = '"Inter Tight", system-ui, sans-serif';
-// The Boundary screen's colours: the crisis red and the boundary green of the extinction chart; origination in the
-// survivors' teal; diversity in the neutral stone of the background bars.
+// The Boundary screen's colours, from the app's one palette (components/chartColours): extinction in the red of
+// "more extinction", origination in a blue of its own, the boundary in ink, background stages in the reference grey.
 export const TURNOVER_COLOR = {
-  extinction: "#b91c1c",
-  origination: "#3f9b8d",
-  boundary: "#135a51",
-  diversity: "#57534e",
-  background: "#a8a29e",
+  extinction: TURNOVER_SERIES_COLOUR.extinction,
+  origination: TURNOVER_SERIES_COLOUR.origination,
+  boundary: BOUNDARY_MARK_COLOUR,
+  diversity: TURNOVER_SERIES_COLOUR.diversity,
+  background: REFERENCE_COLOUR,
   band: "#f5f5f4",
   text: "#57534e",
 };

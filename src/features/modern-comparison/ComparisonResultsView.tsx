@@ -2,6 +2,7 @@ import type { ReactNode } from "react";
 import { IUCN_CATEGORY_NAMES, IUCN_SOURCE } from "@shared/iucn";
 import type { Comparison } from "@shared/schemas/comparisons";
 import { Caution } from "../../components/Caution";
+import { COMPARISON_COLOUR, REFERENCE_COLOUR } from "../../components/chartColours";
 import { cx } from "../../lib/cx";
 import { formatCount, formatDateTime, pluralize } from "../../lib/format";
 import { CategoryBadge } from "./CategoryBadge";
@@ -11,7 +12,6 @@ import { aucReading, formatInterval, formatOdds, formatP, formatProbability, for
 type Results = Comparison["results"];
 type Contrast = Results["traits"][number]["contrasts"][number];
 
-const COLORS = { today: "#135a51", past: "#8a5a12" };
 /** Species rows shown on screen; the CSV holds every one. */
 const SPECIES_SHOWN = 300;
 
@@ -37,23 +37,62 @@ function Figure({ label, value, detail }: { label: string; value: string; detail
   );
 }
 
-/** Two odds ratios with intervals on one log scale: today's above, the past crisis's below. */
+const MINI = { width: 220, left: 12, right: 12, today: 10, past: 24, axis: 34, height: 50 };
+
+/** Tick values of a side-by-side plot: the powers of ten inside the span, with 0.2, 0.5, 2, 5 when those are too few. */
+export function miniTicks(domain: [number, number]): number[] {
+  const inside = (v: number) => v >= domain[0] * 0.999 && v <= domain[1] * 1.001;
+  const decades = [0.01, 0.1, 1, 10, 100].filter(inside);
+  if (decades.length >= 3) return decades;
+  return [...new Set([...decades, ...[0.2, 0.5, 2, 5, 20, 50].filter(inside)])].sort((a, b) => a - b);
+}
+
+/** An arrowhead at the end of an interval that runs past the plotted span. */
+function Arrow({ x, y, pointing, color }: { x: number; y: number; pointing: "left" | "right"; color: string }) {
+  const d = pointing === "left" ? `M ${x} ${y} l 6 -4 l 0 8 z` : `M ${x} ${y} l -6 -4 l 0 8 z`;
+  return <path d={d} fill={color} data-arrow={pointing} />;
+}
+
+/** Two odds ratios with intervals on one log scale: today's above, the past crisis's below; ticks under them, arrows where an interval runs off the scale. */
 function SideBySide({ contrast, domain }: { contrast: Contrast; domain: [number, number] }) {
-  const width = 200;
+  const { width, left, right } = MINI;
   const [lo, hi] = domain.map(Math.log) as [number, number];
-  const x = (v: number) => 8 + ((Math.log(Math.min(Math.max(v, domain[0]), domain[1])) - lo) / (hi - lo)) * (width - 16);
+  const x = (v: number) => left + ((Math.log(Math.min(Math.max(v, domain[0]), domain[1])) - lo) / (hi - lo)) * (width - left - right);
   const row = (y: number, interval: { estimate: number; ci: [number, number] } | null, color: string) =>
     interval && (
       <g>
         <line x1={x(interval.ci[0])} x2={x(interval.ci[1])} y1={y} y2={y} stroke={color} strokeWidth={2} />
+        {interval.ci[0] < domain[0] && <Arrow x={x(domain[0]) - 6} y={y} pointing="left" color={color} />}
+        {interval.ci[1] > domain[1] && <Arrow x={x(domain[1]) + 6} y={y} pointing="right" color={color} />}
         <circle cx={x(interval.estimate)} cy={y} r={4} fill={color} />
       </g>
     );
+  const words = (name: string, interval: { estimate: number; ci: [number, number] } | null) =>
+    interval
+      ? `${name} ${formatOdds(interval.estimate)} (${formatInterval(interval.ci)})${interval.ci[0] < domain[0] || interval.ci[1] > domain[1] ? ", the interval running off the scale" : ""}`
+      : `${name} not estimated`;
   return (
-    <svg width={width} height={34} role="img" aria-label={`Odds ratio today ${formatOdds(contrast.today?.estimate)}, in the past crisis ${formatOdds(contrast.pastCrude?.estimate)}`}>
-      <line x1={x(1)} x2={x(1)} y1={2} y2={32} stroke="#a8a29e" strokeDasharray="3 3" />
-      {row(10, contrast.today, COLORS.today)}
-      {row(24, contrast.pastCrude, COLORS.past)}
+    <svg
+      width={width}
+      height={MINI.height}
+      role="img"
+      data-testid="side-by-side"
+      aria-label={`Odds ratio ${words("today", contrast.today)}; ${words("in the past crisis", contrast.pastCrude)}`}
+    >
+      <line x1={x(1)} x2={x(1)} y1={2} y2={MINI.axis} stroke={REFERENCE_COLOUR} strokeDasharray="3 3" />
+      {row(MINI.today, contrast.today, COMPARISON_COLOUR.today)}
+      {row(MINI.past, contrast.pastCrude, COMPARISON_COLOUR.past)}
+      <g fontSize={10} fill="#57534e" style={{ fontVariantNumeric: "tabular-nums" }}>
+        <line x1={left} x2={width - right} y1={MINI.axis} y2={MINI.axis} stroke="#d6d3d1" />
+        {miniTicks(domain).map((t) => (
+          <g key={t}>
+            <line x1={x(t)} x2={x(t)} y1={MINI.axis} y2={MINI.axis + 3} stroke="#a8a29e" />
+            <text x={x(t)} y={MINI.axis + 13} textAnchor="middle" data-tick={t}>
+              {formatOdds(t)}
+            </text>
+          </g>
+        ))}
+      </g>
     </svg>
   );
 }
@@ -212,12 +251,12 @@ export function ComparisonResultsView({ comparison, print = false }: { compariso
       >
         <div className="mb-3 flex flex-wrap gap-4 text-sm text-stone-600">
           <span className="inline-flex items-center gap-2">
-            <span className="inline-block size-3 rounded-full" style={{ background: COLORS.today }} aria-hidden="true" /> Today
+            <span className="inline-block size-3 rounded-full" style={{ background: COMPARISON_COLOUR.today }} aria-hidden="true" /> Today
           </span>
           <span className="inline-flex items-center gap-2">
-            <span className="inline-block size-3 rounded-full" style={{ background: COLORS.past }} aria-hidden="true" /> Past crisis (crude)
+            <span className="inline-block size-3 rounded-full" style={{ background: COMPARISON_COLOUR.past }} aria-hidden="true" /> Past crisis (crude)
           </span>
-          <span>Log scale, from {formatOdds(domain[0])} to {formatOdds(domain[1])}; the dashed line is 1.</span>
+          <span>Log scale, from {formatOdds(domain[0])} to {formatOdds(domain[1])}; the dashed line is 1; an arrow marks an interval running past the edge.</span>
         </div>
         <div className="overflow-x-auto">
           <table className="min-w-full text-sm">

@@ -1,10 +1,12 @@
 import { useId } from "react";
+import { COMPARISON_COLOUR, REFERENCE_COLOUR } from "../../components/chartColours";
 import { Line, ResponsiveLine, type LineCustomSvgLayerProps, type LineSvgProps, type PointTooltipProps } from "@nivo/line";
 import type { ComparisonResults } from "@shared/schemas/comparisons";
 import { formatProbability, formatTwo } from "./words";
 
 const FONT = '"Inter Tight", system-ui, sans-serif';
-const COLOR = { curve: "#135a51", chance: "#a8a29e", text: "#57534e" };
+// Today's listing ranked by the past crisis's scores: the "today" colour of the comparison; chance in the reference grey.
+const COLOR = { curve: COMPARISON_COLOUR.today, chance: REFERENCE_COLOUR, text: "#57534e" };
 
 type RocSeries = { id: string; data: Array<{ x: number; y: number; threshold: number | null }> };
 

@@ -48,6 +48,20 @@ function CladeCell({ contrast }: { contrast: ContrastData }) {
 }
 
 /**
+ * The contrasts' notes, each said once: a note shared by several contrasts (the regression being
+ * Firth's, say) names them all in one item instead of repeating itself per contrast.
+ */
+export function groupNotes(contrasts: ReadonlyArray<{ name: string; notes: readonly string[] }>): string[] {
+  const byNote = new Map<string, string[]>();
+  for (const c of contrasts) for (const note of c.notes) byNote.set(note, [...(byNote.get(note) ?? []), c.name]);
+  return [...byNote].map(([note, names]) => {
+    if (names.length === 1) return `${names[0]}: ${note}`;
+    if (names.length === contrasts.length) return `Every contrast: ${note}`;
+    return `${names.length} contrasts, ${names.slice(0, -1).join(", ")} and ${names[names.length - 1]}: ${note}`;
+  });
+}
+
+/**
  * The confounding check: each contrast's crude odds ratio beside the same odds ratio adjusted for
  * clade (Mantel-Haenszel, with Breslow-Day's test of one common odds ratio across clades) and for
  * the other traits (the multiple regression), flagged when it moves by more than the threshold.
@@ -58,7 +72,7 @@ export function ConfoundingCard({ result, level, threshold }: { result: Selectiv
   const percent = levelWords(level);
   const rows = result.traits.flatMap((trait) => trait.contrasts.map((contrast) => ({ trait, contrast })));
   const flagged = rows.filter((r) => r.contrast.flagged);
-  const notes = rows.flatMap((r) => r.contrast.notes.map((note) => `${r.trait.label}, ${contrastWords(r.trait, r.contrast)}: ${note}`));
+  const notes = groupNotes(rows.map((r) => ({ name: `${r.trait.label} (${contrastWords(r.trait, r.contrast)})`, notes: r.contrast.notes })));
 
   return (
     <Card

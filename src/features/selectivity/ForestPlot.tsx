@@ -1,4 +1,5 @@
 import { useId } from "react";
+import { ESTIMATE_COLOUR } from "../../components/chartColours";
 import { formatCompact } from "../../lib/format";
 import { formatEstimate } from "./words";
 
@@ -21,10 +22,11 @@ export interface ForestRow {
   estimates: Array<ForestEstimate | null>;
 }
 
+// Series colours from the one palette (components/chartColours): none of them is the red or teal of a direction.
 export const ESTIMATE_STYLE: Record<EstimateKind, { label: string; color: string }> = {
-  crude: { label: "Crude", color: "#57534e" },
-  clade: { label: "Adjusted for clade (Mantel-Haenszel)", color: "#176f63" },
-  model: { label: "Adjusted for the other traits (regression)", color: "#9a5b0c" },
+  crude: { label: "Crude", color: ESTIMATE_COLOUR.crude },
+  clade: { label: "Adjusted for clade (Mantel-Haenszel)", color: ESTIMATE_COLOUR.clade },
+  model: { label: "Adjusted for the other traits (regression)", color: ESTIMATE_COLOUR.model },
 };
 export const ESTIMATE_KINDS: readonly EstimateKind[] = ["crude", "clade", "model"];
 

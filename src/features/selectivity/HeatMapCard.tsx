@@ -1,5 +1,7 @@
 import { useId, useState } from "react";
 import { Card } from "../../components/Card";
+import { MISSING_COLOUR, RISK_COLOUR } from "../../components/chartColours";
+import { ColourLegend } from "../../components/ColourLegend";
 import { cx } from "../../lib/cx";
 import { ChartFigure } from "./ChartFigure";
 import { ESTIMATE_KINDS, ESTIMATE_STYLE } from "./ForestPlot";
@@ -32,7 +34,7 @@ export function HeatMapCard({
   return (
     <Card
       title="Traits across boundaries"
-      description="Log odds ratios of extinction, traits by boundary, so a crisis can be set against background intervals. Red: the state raised the odds of extinction; teal: it lowered them; pale: about even."
+      description="Log odds ratios of extinction, traits by boundary, so a crisis can be set against background intervals."
       className="break-inside-avoid"
     >
       <fieldset className="print:hidden">
@@ -52,7 +54,17 @@ export function HeatMapCard({
           ))}
         </div>
       </fieldset>
-      <div className="mt-4 overflow-x-auto">
+      <ColourLegend
+        label="Colours of the heat map"
+        className="mt-4"
+        entries={[
+          { colour: RISK_COLOUR.higher, label: "Raised the odds of extinction (odds ratio above 1)" },
+          { colour: RISK_COLOUR.lower, label: "Lowered them (below 1)" },
+          { colour: RISK_COLOUR.even, label: "About even" },
+          { colour: MISSING_COLOUR, label: "Not estimable" },
+        ]}
+      />
+      <div className="mt-3 overflow-x-auto">
         <ChartFigure
           fileName={`${filePrefix}_heat-map_${measure}`}
           numbersOpen={printable}

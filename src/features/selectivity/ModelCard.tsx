@@ -1,9 +1,10 @@
+import type { ReactNode } from "react";
 import { Card } from "../../components/Card";
 import { cx } from "../../lib/cx";
 import { Notice } from "../../components/Notice";
-import { formatCount } from "../../lib/format";
+import { formatCount, pluralize } from "../../lib/format";
 import type { SelectivityResultData } from "./resultRows";
-import { Body, ColHead, HeadRow, ResultTable, td, tdNum } from "./ResultTable";
+import { Body, ColHead, HeadRow, ResultTable, td, tdNum, th, thNum } from "./ResultTable";
 import { formatEstimate, formatInterval, formatP, levelWords } from "./words";
 
 /** Why Firth's bias-reduced fit was used, in words. */
@@ -33,43 +34,63 @@ export function ModelCard({ result, level }: { result: SelectivityResultData; le
               <p className="mt-1">{firthWords(model)}</p>
             </div>
           )}
-          <dl className="grid grid-cols-2 gap-x-6 gap-y-3 rounded-lg bg-stone-50 px-4 py-3 sm:grid-cols-3 lg:grid-cols-6">
-            <Figure label="Taxa used" value={formatCount(model.n)} />
-            <Figure label="Of them victims" value={formatCount(model.victims)} />
-            <Figure label="Left out (incomplete)" value={formatCount(model.droppedIncomplete)} />
-            <Figure label="Deviance" value={formatEstimate(model.deviance)} />
-            <Figure label="Null deviance" value={formatEstimate(model.nullDeviance)} />
-            <Figure label="AIC" value={formatEstimate(model.aic)} />
-          </dl>
+          <ModelFit model={model} />
           <p className="text-sm text-stone-600">
             {model.method}
             {!model.converged && " The fit did not converge: treat the estimates as unreliable."}
           </p>
 
-          <ResultTable caption={`Coefficients of the multiple logistic regression with ${percent} intervals`} minWidth="48rem">
-            <HeadRow>
-              <ColHead>Term</ColHead>
-              <ColHead numeric>Estimate</ColHead>
-              <ColHead numeric>SE</ColHead>
-              <ColHead numeric>Odds ratio</ColHead>
-              <ColHead numeric>{percent} interval</ColHead>
-              <ColHead numeric>z</ColHead>
-              <ColHead numeric>p</ColHead>
-            </HeadRow>
+          <ResultTable caption={`Each term of the model: its odds ratio with ${percent} interval and p, and the same on the log-odds scale`} minWidth="50rem">
+            <thead className="border-b border-stone-200 bg-stone-50">
+              <tr>
+                <th scope="col" rowSpan={2} className={cx(th, "align-bottom")}>
+                  Term
+                </th>
+                <th scope="colgroup" colSpan={3} className={cx(th, "border-b border-stone-200 pb-1 text-center")}>
+                  What the term does to the odds of extinction
+                </th>
+                <th scope="colgroup" colSpan={3} className={cx(th, "border-b border-l border-stone-200 pb-1 text-center")}>
+                  On the log-odds scale
+                </th>
+              </tr>
+              <tr>
+                <th scope="col" className={thNum}>Odds ratio</th>
+                <th scope="col" className={thNum}>{percent} interval</th>
+                <th scope="col" className={thNum}>p</th>
+                <th scope="col" className={cx(thNum, "border-l border-stone-200")}>
+                  Coefficient<span className="block font-normal normal-case">log odds ratio</span>
+                </th>
+                <th scope="col" className={thNum}>
+                  Uncertainty<span className="block font-normal normal-case">standard error</span>
+                </th>
+                <th scope="col" className={thNum}>
+                  Coefficient ÷ uncertainty<span className="block font-normal normal-case">Wald z</span>
+                </th>
+              </tr>
+            </thead>
             <Body>
-              {model.coefficients.map((c) => (
-                <tr key={c.name} data-coefficient={c.name} className={c.name === "(Intercept)" ? "text-stone-500" : undefined}>
-                  <th scope="row" className={cx(td, "font-medium")}>
-                    {c.label}
-                  </th>
-                  <td className={tdNum}>{formatEstimate(c.estimate)}</td>
-                  <td className={tdNum}>{formatEstimate(c.se)}</td>
-                  <td className={tdNum}>{c.name === "(Intercept)" ? "—" : formatEstimate(c.oddsRatio)}</td>
-                  <td className={tdNum}>{c.name === "(Intercept)" ? "—" : formatInterval(c.oddsRatioCi)}</td>
-                  <td className={tdNum}>{formatEstimate(c.z)}</td>
-                  <td className={tdNum}>{formatP(c.pValue)}</td>
-                </tr>
-              ))}
+              {model.coefficients.map((c) => {
+                const baseline = c.name === "(Intercept)";
+                return (
+                  <tr key={c.name} data-coefficient={c.name} className={baseline ? "text-stone-500" : undefined}>
+                    <th scope="row" className={cx(td, "font-medium")}>
+                      {baseline ? (
+                        <>
+                          Baseline<span className="block text-xs font-normal">odds of a taxon with every reference state (intercept)</span>
+                        </>
+                      ) : (
+                        c.label
+                      )}
+                    </th>
+                    <td className={tdNum}>{baseline ? "—" : formatEstimate(c.oddsRatio)}</td>
+                    <td className={tdNum}>{baseline ? "—" : formatInterval(c.oddsRatioCi)}</td>
+                    <td className={tdNum}>{formatP(c.pValue)}</td>
+                    <td className={cx(tdNum, "border-l border-stone-100")}>{formatEstimate(c.estimate)}</td>
+                    <td className={tdNum}>{formatEstimate(c.se)}</td>
+                    <td className={tdNum}>{formatEstimate(c.z)}</td>
+                  </tr>
+                );
+              })}
             </Body>
           </ResultTable>
 
@@ -109,11 +130,42 @@ export function ModelCard({ result, level }: { result: SelectivityResultData; le
   );
 }
 
-function Figure({ label, value }: { label: string; value: string }) {
+/**
+ * How well the model fits, in plain words with the technical name beside each figure: how many
+ * taxa it rests on, how much misfit is left with and without the traits, and the information
+ * criterion that weighs fit against the number of terms.
+ */
+function ModelFit({ model }: { model: NonNullable<SelectivityResultData["model"]> }) {
+  const terms = model.coefficients.filter((c) => c.name !== "(Intercept)").length;
+  const explained = model.nullDeviance - model.deviance;
   return (
-    <div>
-      <dt className="text-xs font-semibold tracking-wide text-stone-500 uppercase">{label}</dt>
-      <dd className="text-[15px] font-medium text-stone-900 tabular-nums">{value}</dd>
+    <section aria-label="Model fit" className="rounded-lg border border-stone-200 px-4 py-3" data-testid="model-fit">
+      <p className="text-sm font-semibold text-stone-800">Model fit</p>
+      <dl className="mt-2 grid gap-x-8 gap-y-3 sm:grid-cols-2 lg:grid-cols-4">
+        <FitItem label="Taxa in the model" value={formatCount(model.n)}>
+          {pluralize(model.victims, "victim")}, {pluralize(model.n - model.victims, "survivor")}
+          {model.droppedIncomplete > 0 && `; ${formatCount(model.droppedIncomplete)} left out for a missing value`}
+        </FitItem>
+        <FitItem label="Misfit with no traits" value={formatEstimate(model.nullDeviance)}>
+          null deviance
+        </FitItem>
+        <FitItem label="Misfit left with the traits" value={formatEstimate(model.deviance)}>
+          residual deviance; the traits take away {formatEstimate(explained)} with {pluralize(terms, "term")}
+        </FitItem>
+        <FitItem label="Fit weighed against size" value={formatEstimate(model.aic)}>
+          Akaike information criterion (AIC); lower is better between models of the same taxa
+        </FitItem>
+      </dl>
+    </section>
+  );
+}
+
+function FitItem({ label, value, children }: { label: string; value: string; children: ReactNode }) {
+  return (
+    <div className="min-w-0">
+      <dt className="text-sm text-stone-600">{label}</dt>
+      <dd className="text-lg font-semibold text-stone-900 tabular-nums">{value}</dd>
+      <dd className="text-xs text-stone-500">{children}</dd>
     </div>
   );
 }

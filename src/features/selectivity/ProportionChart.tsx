@@ -1,10 +1,12 @@
 import { ResponsiveBar, type BarCustomLayerProps, type BarSvgProps } from "@nivo/bar";
+import { directionOfShare, NEUTRAL_COLOUR, REFERENCE_COLOUR, RISK_COLOUR, SUMMARY_COLOUR } from "../../components/chartColours";
+import { ColourLegend, type LegendEntry } from "../../components/ColourLegend";
 import { formatCount } from "../../lib/format";
 import type { TraitResultData } from "./resultRows";
 import { formatPercent, levelWords } from "./words";
 
 const FONT = '"Inter Tight", system-ui, sans-serif';
-const COLOR = { bar: "#3f9b8d", reference: "#a8a29e", whisker: "#1c1917", overall: "#8a5a12", text: "#57534e" };
+const COLOR = { whisker: "#1c1917", overall: SUMMARY_COLOUR, text: "#57534e" };
 
 type StateDatum = { state: string; proportion?: number };
 
@@ -22,6 +24,34 @@ const THEME: NonNullable<BarSvgProps<StateDatum>["theme"]> = {
 /** "Deposit feeder (n = 120)": the axis names each state with its number of taxa. */
 function axisName(row: TraitResultData["table"][number]): string {
   return `${row.label} (n = ${formatCount(row.victims + row.survivors)})`;
+}
+
+type TableRow = TraitResultData["table"][number];
+
+/**
+ * A bar's colour says what it does against the reference state, as the heat map does: clay red for a
+ * larger share lost, teal for a smaller one, grey for the reference. Quarters of a numeric trait have
+ * no reference, so they stay neutral (the slope's odds ratio carries the direction).
+ */
+export function proportionBarColour(trait: Pick<TraitResultData, "kind" | "reference" | "table">, row: TableRow): string {
+  if (trait.kind === "numeric") return NEUTRAL_COLOUR;
+  if (row.state === trait.reference) return REFERENCE_COLOUR;
+  const reference = trait.table.find((r) => r.state === trait.reference);
+  const direction = directionOfShare(row.proportion, reference?.proportion);
+  return direction === "even" ? NEUTRAL_COLOUR : RISK_COLOUR[direction];
+}
+
+/** The legend of the bars: only the colours the chart uses. */
+export function proportionLegend(trait: Pick<TraitResultData, "kind" | "reference" | "table">): LegendEntry[] {
+  if (trait.kind === "numeric") return [{ colour: NEUTRAL_COLOUR, label: "Share lost in each quarter of values" }];
+  const used = new Set(trait.table.map((row) => proportionBarColour(trait, row)));
+  const entries: LegendEntry[] = [
+    { colour: REFERENCE_COLOUR, label: "Reference state" },
+    { colour: RISK_COLOUR.higher, label: "More lost than the reference" },
+    { colour: RISK_COLOUR.lower, label: "Fewer lost than the reference" },
+    { colour: NEUTRAL_COLOUR, label: "As many lost as the reference" },
+  ];
+  return entries.filter((e) => used.has(e.colour));
 }
 
 /** The extinction proportion of all taxa in the trait's table. */
@@ -78,35 +108,41 @@ export function ProportionChart({ trait, level }: { trait: TraitResultData; leve
   };
 
   return (
-    <div className="h-64" data-testid={`proportion-chart-${trait.key}`}>
-      <ResponsiveBar<StateDatum>
-        data={data}
-        keys={["proportion"]}
-        indexBy="state"
-        margin={{ top: 18, right: 12, bottom: crowded ? 86 : 44, left: 58 }}
-        padding={0.35}
-        valueScale={{ type: "linear", min: 0, max: 1 }}
-        colors={(bar) => (byName.get(String(bar.indexValue))?.state === trait.reference ? COLOR.reference : COLOR.bar)}
-        theme={THEME}
-        enableLabel={false}
-        animate={false}
-        isInteractive={false}
-        axisBottom={{ tickSize: 4, tickPadding: 6, tickRotation: crowded ? -30 : 0 }}
-        axisLeft={{
-          tickSize: 4,
-          tickPadding: 6,
-          tickValues: [0, 0.25, 0.5, 0.75, 1],
-          format: (v: number) => `${Math.round(v * 100)}%`,
-          legend: "Extinct",
-          legendPosition: "middle",
-          legendOffset: -48,
-        }}
-        layers={["grid", "axes", "bars", Overall, Whiskers]}
-        role="img"
-        ariaLabel={`Extinction proportion per state of ${trait.label}, with ${levelWords(level)} Wilson intervals: ${rows
-          .map((r) => `${r.label} ${formatPercent(r.proportion)}`)
-          .join(", ")}`}
-      />
+    <div data-testid={`proportion-chart-${trait.key}`}>
+      <ColourLegend entries={proportionLegend(trait)} label={`Colours of the bars of ${trait.label}`} className="mb-2" />
+      <div className="h-64">
+        <ResponsiveBar<StateDatum>
+          data={data}
+          keys={["proportion"]}
+          indexBy="state"
+          margin={{ top: 18, right: 12, bottom: crowded ? 86 : 44, left: 58 }}
+          padding={0.35}
+          valueScale={{ type: "linear", min: 0, max: 1 }}
+          colors={(bar) => {
+            const row = byName.get(String(bar.indexValue));
+            return row ? proportionBarColour(trait, row) : NEUTRAL_COLOUR;
+          }}
+          theme={THEME}
+          enableLabel={false}
+          animate={false}
+          isInteractive={false}
+          axisBottom={{ tickSize: 4, tickPadding: 6, tickRotation: crowded ? -30 : 0 }}
+          axisLeft={{
+            tickSize: 4,
+            tickPadding: 6,
+            tickValues: [0, 0.25, 0.5, 0.75, 1],
+            format: (v: number) => `${Math.round(v * 100)}%`,
+            legend: "Extinct",
+            legendPosition: "middle",
+            legendOffset: -48,
+          }}
+          layers={["grid", "axes", "bars", Overall, Whiskers]}
+          role="img"
+          ariaLabel={`Extinction proportion per state of ${trait.label}, with ${levelWords(level)} Wilson intervals: ${rows
+            .map((r) => `${r.label} ${formatPercent(r.proportion)}`)
+            .join(", ")}`}
+        />
+      </div>
     </div>
   );
 }

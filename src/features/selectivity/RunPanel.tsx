@@ -1,3 +1,4 @@
+import { useEffect } from "react";
 import { can } from "@shared/roles";
 import { RUN_EXPORT_TABLES, type Run, type RunResults } from "@shared/schemas/runs";
 import type { Study } from "@shared/schemas/studies";
@@ -34,9 +35,28 @@ const TABLE_LABEL: Record<(typeof RUN_EXPORT_TABLES)[number], string> = {
 
 export const reportPath = (studyId: string, runId: string) => `${paths.study(studyId)}/runs/${runId}/report`;
 
+/** The key of the toast that says a run was queued: the run's panel follows it and takes it away once the run is over. */
+export const runToastKey = (runId: string) => `run:${runId}`;
+
+/** Keeps the "queued" toast of a run in step with the run: "running" while it computes, gone when its results (or its failure) show. */
+function useRunToast(run: Run | undefined) {
+  const toast = useToast();
+  const status = run?.status;
+  const id = run?.id;
+  const name = run?.name;
+  useEffect(() => {
+    if (!id || !status) return;
+    if (status === "running") toast.update(runToastKey(id), `“${name}” is running. Its progress shows below.`);
+    else if (status === "succeeded" || status === "failed") toast.dismiss(runToastKey(id));
+  }, [toast, id, name, status]);
+  // Leaving the run takes its toast along: it speaks of what this panel shows.
+  useEffect(() => (id ? () => toast.dismiss(runToastKey(id)) : undefined), [toast, id]);
+}
+
 /** One run on the Selectivity screen: its status while it computes, the reason when it failed, its results when done. */
 export function RunPanel({ study, runId, onRerun }: { study: Study; runId: string; onRerun: (run: Run) => void }) {
   const run = useRun(study.id, runId);
+  useRunToast(run.data);
 
   if (run.isPending) return <LoadingState label="Opening the run" lines={4} />;
   if (run.isError) {
@@ -80,7 +100,7 @@ function RunHeader({ study, run, onRerun }: { study: Study; run: Run; onRerun: (
       { runId: run.id, input: {} },
       {
         onSuccess: (created) => {
-          toast.show(`Re-running “${created.name}” on today’s data.`);
+          toast.show(`Re-running “${created.name}” on today’s data.`, "success", { key: runToastKey(created.id) });
           onRerun(created);
         },
       },

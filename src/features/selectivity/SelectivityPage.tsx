@@ -32,7 +32,7 @@ import { BoundariesCard } from "./BoundariesCard";
 import { checkDraft, draftFromParams, EMPTY_DRAFT, suggestedName, withTraitToggled, type Draft } from "./configDraft";
 import { DesignSummary } from "./DesignSummary";
 import { OptionsCard } from "./OptionsCard";
-import { RunPanel } from "./RunPanel";
+import { RunPanel, runToastKey } from "./RunPanel";
 import { TraitsCard } from "./TraitsCard";
 import { useDebounced } from "./useDebounced";
 
@@ -206,7 +206,7 @@ function Workspace({ study, codebook, timescale, scale, runId, openedRun, onOpen
     if (!check.ok) return;
     start.mutate(check.params as RunParams, {
       onSuccess: (created) => {
-        toast.show(`“${created.name}” is queued. Its progress shows below.`);
+        toast.show(`“${created.name}” is queued. Its progress shows below.`, "success", { key: runToastKey(created.id) });
         onOpenRun(created.id);
       },
       onError: (error) => {
