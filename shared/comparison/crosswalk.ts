@@ -42,11 +42,31 @@ function stateFor(trait: CrosswalkTrait, value: string): string | null {
 }
 
 /**
+ * The list values whose name is a state's code or label (case, spaces and punctuation ignored), as
+ * value -> state code; values already decided in `decided` are left as they are. Used when a column
+ * is paired, by the suggestion or by hand, so identical state names never wait for a decision.
+ *
+ * @example
+ * statesWithSameName(habit, ["Burrowing", "free", "sessile"], {}) // => { Burrowing: "burrowing", free: "free" }
+ */
+export function statesWithSameName(trait: CrosswalkTrait, values: string[], decided: Record<string, string | null> = {}): Record<string, string | null> {
+  const states: Record<string, string | null> = { ...decided };
+  if (trait.kind === "numeric") return states;
+  for (const value of values) {
+    if (value in states) continue;
+    const code = stateFor(trait, value);
+    if (code) states[value] = code;
+  }
+  return states;
+}
+
+/**
  * A first crosswalk for a list: a trait paired as an earlier crosswalk of the study paired it (when
- * that column exists here; its value mappings come along), else with a column named like the
- * trait's key or label; values are matched to states by code or label. Unmatched values stay out,
- * so the screen lists them for a decision. Retired traits are never suggested; each column serves
- * one trait at most.
+ * that column exists here; its value mappings come along), else with a column of the same name as
+ * the trait's key or label (case, spaces and punctuation ignored: "Life habit" meets life_habit,
+ * but "habit" does not meet "life habit" nor "habitat" "habit"); values are matched to states by
+ * code or label. Unmatched values stay out, so the screen lists them for a decision. Retired traits
+ * are never suggested; each column serves one trait at most.
  *
  * @example
  * suggestCrosswalk([{ name: "Feeding", values: [{ value: "predator", count: 4 }, { value: "parasite", count: 1 }], missing: 0 }], [feeding], [])
@@ -61,8 +81,7 @@ export function suggestCrosswalk(columns: ListColumn[], traits: CrosswalkTrait[]
     const remembered = earlier.flatMap((c) => c.pairs).find((p) => p.traitId === trait.id && byName.has(p.column) && !used.has(p.column));
     const column =
       remembered?.column ??
-      columns.find((c) => !used.has(c.name) && (normal(c.name) === normal(trait.key) || normal(c.name) === normal(trait.label)))?.name ??
-      columns.find((c) => !used.has(c.name) && (normal(c.name).startsWith(normal(trait.key)) || normal(c.name).startsWith(normal(trait.label))))?.name;
+      columns.find((c) => !used.has(c.name) && (normal(c.name) === normal(trait.key) || normal(c.name) === normal(trait.label)))?.name;
     if (!column) continue;
     used.add(column);
     const states: Record<string, string | null> = {};

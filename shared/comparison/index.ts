@@ -4,7 +4,7 @@
 
 export type * from "./types";
 export { compareWithThreatList, ROC_MAX_POINTS, type CompareInput } from "./compareWithThreatList";
-export { crosswalkCoverage, crosswalkProblems, listColumns, readSpeciesTraits, readThroughPair, suggestCrosswalk, type CrosswalkReading } from "./crosswalk";
+export { crosswalkCoverage, crosswalkProblems, listColumns, readSpeciesTraits, readThroughPair, statesWithSameName, suggestCrosswalk, type CrosswalkReading } from "./crosswalk";
 export { modernMappingProblems, suggestModernListMapping, validateModernListRows, type ModernListRow, type ModernListValidation } from "./readModernList";
 
 /** Shown at the top of every comparison's results, and in every export and report (docs/architecture.md, "Where a rule lives"). */

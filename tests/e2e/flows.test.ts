@@ -1,8 +1,14 @@
 // Browser journeys through the rough edges of the flows: the Boundary screen opens at the study's main
 // boundary (the newest run's crisis, or the study lead's choice on the Overview), the modern
-// comparison starts from the run that tests it, a new study's codebook is a choice, and an empty
-// study's Selectivity screen says what to do first. The demo study and every name are invented.
+// comparison starts from the run that tests it, a new study's codebook is a choice, an empty
+// study's Selectivity screen says what to do first, an upload left at the mapping step is resumed
+// from the import history, and the crosswalk pairs equal names for review. The demo study and every
+// name are invented.
+import { mkdtempSync, writeFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { modernLists, modernSpecies } from "../../db/schema/index";
 import { launchBrowser, withScreenshotOnFailure } from "../support/browser";
 import { seedDemoStudy, signInAs, type DemoFixture } from "../support/demo";
 import { PASSWORD, startTestServer, uniqueEmail } from "../support/server";
@@ -110,5 +116,79 @@ describe("a new study", () => {
     } finally {
       await browser2.close();
     }
+  });
+});
+
+describe("an upload left at the mapping step", () => {
+  it("is resumed from the import history after leaving the page", async () => {
+    const { context } = browser;
+    await withScreenshotOnFailure(context, "flows-resume-upload", async () => {
+      await signInAs(context, server.url, demo.account.coder);
+      const dir = mkdtempSync(join(tmpdir(), "flows-"));
+      const csvPath = join(dir, "invented-resume.csv");
+      writeFileSync(csvPath, "taxon,clade,first,last\nResumella prima (invented),Resumellidae,99,88\n");
+      const page = await context.newPage();
+      await page.goto(`${demo.studyUrl}/imports`);
+      await page.getByLabel("CSV file", { exact: true }).setInputFiles(csvPath);
+      await page.getByRole("button", { name: "Upload and read the file" }).click();
+      await page.getByRole("form", { name: "Map the columns" }).waitFor();
+
+      // Leave the page: the wizard's state is gone, the upload stays in the history.
+      await page.goto(demo.studyUrl);
+      await page.goto(`${demo.studyUrl}/imports`);
+      const row = page.locator('[data-import-file="invented-resume.csv"]');
+      await row.getByText("Not committed").waitFor();
+      await row.getByRole("button", { name: "Resume the upload of invented-resume.csv" }).click();
+      const mapping = page.getByRole("form", { name: "Map the columns" });
+      await mapping.waitFor();
+      await page.getByText("Resumed: invented-resume.csv").waitFor();
+      await mapping.getByLabel("Name", { exact: true }).selectOption("taxon");
+      await mapping.getByLabel("Higher taxon").selectOption("clade");
+      await mapping.getByLabel("First appearance").selectOption("first");
+      await mapping.getByLabel("Last appearance").selectOption("last");
+      await mapping.getByRole("button", { name: "Check every row" }).click();
+      await page.getByRole("button", { name: "Import 1 row" }).waitFor();
+      await page.close();
+    });
+  });
+});
+
+describe("the crosswalk", () => {
+  it("pairs columns and values with equal names for review (never a name that only looks alike), and matches a hand-paired column's values", async () => {
+    const { context } = browser;
+    await withScreenshotOnFailure(context, "flows-crosswalk", async () => {
+      const [list] = await server.ctx.db
+        .insert(modernLists)
+        .values({
+          studyId: demo.studyId,
+          name: "Invented shelf list",
+          speciesCount: 3,
+          columns: [
+            { name: "LIFE HABIT", values: ["Infaunal", "epifaunal", "digging"] },
+            { name: "habitat zone", values: ["marine"] },
+          ],
+        })
+        .returning();
+      await server.ctx.db.insert(modernSpecies).values([
+        { listId: list.id, name: "Listella una (invented)", category: "LC", rawTraits: { "LIFE HABIT": "Infaunal", "habitat zone": "marine" } },
+        { listId: list.id, name: "Listella duo (invented)", category: "EN", rawTraits: { "LIFE HABIT": "epifaunal", "habitat zone": "marine" } },
+        { listId: list.id, name: "Listella tres (invented)", category: "VU", rawTraits: { "LIFE HABIT": "digging", "habitat zone": "marine" } },
+      ]);
+      await signInAs(context, server.url, demo.account.analyst);
+      const page = await context.newPage();
+      await page.goto(`${demo.studyUrl}/modern-comparison/lists/${list.id}`);
+      await page.getByText("Paired by name, for your review").waitFor();
+      // "LIFE HABIT" is Life habit's own name (case and spaces aside); its equal values are matched, "digging" waits.
+      expect(await page.getByLabel("List column for Life habit").inputValue()).toBe("LIFE HABIT");
+      expect(await page.getByLabel("State of Life habit for “Infaunal”").inputValue()).toBe("infaunal");
+      expect(await page.getByLabel("State of Life habit for “epifaunal”").inputValue()).toBe("epifaunal");
+      expect(await page.getByLabel("State of Life habit for “digging”").inputValue()).toBe("__undecided");
+      expect(await page.getByText("same name", { exact: true }).count()).toBe(2);
+      // "habitat zone" is not Environment's name: not paired until a person pairs it; then "marine" is matched.
+      expect(await page.getByLabel("List column for Environment").inputValue()).toBe("");
+      await page.getByLabel("List column for Environment").selectOption("habitat zone");
+      expect(await page.getByLabel("State of Environment for “marine”").inputValue()).toBe("marine");
+      await page.close();
+    });
   });
 });

@@ -28,10 +28,12 @@ interface ImportHistoryProps {
   studyId: string;
   traits: Map<string, Trait>;
   canRevert: boolean;
+  /** Opens an upload not yet committed at the mapping step again. */
+  onResume?: (importId: string) => void;
 }
 
 /** Who imported what and when, with counts; each committed import can be opened and reverted. */
-export function ImportHistory({ studyId, traits, canRevert }: ImportHistoryProps) {
+export function ImportHistory({ studyId, traits, canRevert, onResume }: ImportHistoryProps) {
   const [page, setPage] = useState(1);
   const imports = useImports(studyId, page);
   const [open, setOpen] = useState<string | null>(null);
@@ -82,9 +84,16 @@ export function ImportHistory({ studyId, traits, canRevert }: ImportHistoryProps
                     {item.failureReason && <p className="text-sm text-red-700">Last attempt failed, nothing was written: {item.failureReason}</p>}
                   </div>
                   {item.status === "previewed" && canRevert && (
-                    <Button variant="ghost" size="sm" className="shrink-0" busy={discard.isPending && discard.variables === item.id} onClick={() => discard.mutate(item.id)}>
-                      Discard upload<span className="sr-only"> {item.fileName}</span>
-                    </Button>
+                    <div className="flex shrink-0 gap-2">
+                      {onResume && (
+                        <Button variant="secondary" size="sm" onClick={() => onResume(item.id)}>
+                          Resume<span className="sr-only"> the upload of {item.fileName}</span>
+                        </Button>
+                      )}
+                      <Button variant="ghost" size="sm" busy={discard.isPending && discard.variables === item.id} onClick={() => discard.mutate(item.id)}>
+                        Discard upload<span className="sr-only"> {item.fileName}</span>
+                      </Button>
+                    </div>
                   )}
                   {(item.status === "committed" || item.status === "reverted") && (
                     <div className="flex shrink-0 gap-2">

@@ -1,4 +1,4 @@
-import { useMemo, useState } from "react";
+import { useEffect, useMemo, useState } from "react";
 import type { ImportMapping, ImportPreview, ImportSummary, ImportUpload } from "@shared/schemas/imports";
 import type { Trait } from "@shared/schemas/traits";
 import { ButtonLink, Button } from "../../components/Button";
@@ -7,7 +7,9 @@ import { WizardSteps } from "../../components/WizardSteps";
 import { Notice } from "../../components/Notice";
 import { pluralize } from "../../lib/format";
 import { paths } from "../../lib/paths";
-import { useDiscardImport } from "./api";
+import { ErrorState } from "../../components/ErrorState";
+import { LoadingState } from "../../components/LoadingState";
+import { useDiscardImport, useResumeImport } from "./api";
 import { MappingStep } from "./MappingStep";
 import { PreviewStep } from "./PreviewStep";
 import { UploadStep } from "./UploadStep";
@@ -25,10 +27,15 @@ const STEPS = [
 ] as const;
 
 
-/** Upload, map, preview and commit one CSV file. */
-export function ImportWizard({ studyId, traits }: { studyId: string; traits: Trait[] }) {
+/** Upload, map, preview and commit one CSV file; or resume an upload left at the mapping step (chosen in the history). */
+export function ImportWizard({ studyId, traits, resumeImportId = null, onResumeDone }: { studyId: string; traits: Trait[]; resumeImportId?: string | null; onResumeDone?: () => void }) {
   const [stage, setStage] = useState<Stage>({ step: "upload" });
   const discard = useDiscardImport(studyId);
+  const resume = useResumeImport(studyId);
+  const { mutate: resumeUpload } = resume;
+  useEffect(() => {
+    if (resumeImportId) resumeUpload(resumeImportId, { onSuccess: (upload) => setStage({ step: "map", upload }) });
+  }, [resumeImportId, resumeUpload]);
   const traitsById = useMemo(() => new Map(traits.map((t) => [t.id, t])), [traits]);
 
   function startOver(importId?: string) {
@@ -40,7 +47,28 @@ export function ImportWizard({ studyId, traits }: { studyId: string; traits: Tra
   return (
     <Card title="Import a CSV file" description="Each row is a taxon: its name, higher taxon, range and trait values.">
       <WizardSteps label="Steps of the import" steps={STEPS} current={stage.step === "upload" ? -1 : STEPS.findIndex((s) => s.key === stage.step)} />
-      {stage.step === "upload" && <UploadStep studyId={studyId} onUploaded={(upload) => setStage({ step: "map", upload })} />}
+      {stage.step === "upload" && resume.isPending && <LoadingState label="Opening the upload again" lines={3} />}
+      {stage.step === "upload" && resume.isError && (
+        <ErrorState
+          error={resume.error}
+          title="The upload could not be resumed"
+          actions={
+            <Button
+              variant="secondary"
+              onClick={() => {
+                resume.reset();
+                onResumeDone?.();
+              }}
+            >
+              Upload a file instead
+            </Button>
+          }
+        />
+      )}
+      {stage.step === "upload" && !resume.isPending && !resume.isError && <UploadStep studyId={studyId} onUploaded={(upload) => setStage({ step: "map", upload })} />}
+      {stage.step === "map" && resumeImportId && (
+        <Notice title={`Resumed: ${stage.upload.import.fileName}`}>The file as uploaded, with the mapping last checked. Check every row again before committing.</Notice>
+      )}
       {stage.step === "map" && (
         <MappingStep
           studyId={studyId}

@@ -1,4 +1,4 @@
-import { useMemo } from "react";
+import { useMemo, useState } from "react";
 import { can, ROLE_LABELS } from "@shared/roles";
 import { ErrorState } from "../../components/ErrorState";
 import { LoadingState } from "../../components/LoadingState";
@@ -19,6 +19,8 @@ export function ImportsPage() {
   const canImport = can(study.role, "imports.run");
   const traits = useTraits(study.id);
   const traitsById = useMemo(() => new Map((traits.data?.traits ?? []).map((t) => [t.id, t])), [traits.data]);
+  // An upload chosen in the history to resume at the mapping step; the wizard opens it.
+  const [resuming, setResuming] = useState<string | null>(null);
 
   return (
     <>
@@ -32,8 +34,16 @@ export function ImportsPage() {
         {canImport && traits.isPending && <LoadingState label="Loading the codebook" />}
         {canImport && traits.isError && <ErrorState error={traits.error} title="The codebook could not be loaded" onRetry={() => void traits.refetch()} />}
         <MissingValuesCard studyId={study.id} canEdit={can(study.role, "codebook.edit")} />
-        {canImport && traits.isSuccess && <ImportWizard studyId={study.id} traits={traits.data.traits} />}
-        <ImportHistory studyId={study.id} traits={traitsById} canRevert={canImport} />
+        {canImport && traits.isSuccess && <ImportWizard key={resuming ?? "new"} studyId={study.id} traits={traits.data.traits} resumeImportId={resuming} onResumeDone={() => setResuming(null)} />}
+        <ImportHistory
+          studyId={study.id}
+          traits={traitsById}
+          canRevert={canImport}
+          onResume={(importId) => {
+            setResuming(importId);
+            window.scrollTo({ top: 0, behavior: "smooth" });
+          }}
+        />
         {canImport && <OccurrenceWizard studyId={study.id} />}
         <RangesFromOccurrences studyId={study.id} role={study.role} />
       </div>

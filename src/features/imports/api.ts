@@ -52,6 +52,13 @@ export function useUploadImport(studyId: string) {
   });
 }
 
+/** GET /api/studies/:studyId/imports/:importId/upload: an upload not yet committed, read again to resume at the mapping step. */
+export function useResumeImport(studyId: string) {
+  return useMutation({
+    mutationFn: (importId: string) => api.get<ImportUpload>(`${importPath(studyId, importId)}/upload`),
+  });
+}
+
 /** POST /api/studies/:studyId/imports/:importId/preview: every problem by row and column, and what would change. */
 export function usePreviewImport(studyId: string) {
   return useMutation({

@@ -1,12 +1,13 @@
 import { useMemo, useState } from "react";
 import { useParams } from "react-router-dom";
-import { crosswalkCoverage, crosswalkProblems, type Crosswalk, type CrosswalkTrait } from "@shared/comparison";
+import { crosswalkCoverage, crosswalkProblems, statesWithSameName, type Crosswalk, type CrosswalkTrait } from "@shared/comparison";
 import { can } from "@shared/roles";
 import { crosswalkSchema, type ModernList } from "@shared/schemas/modernLists";
 import type { Trait } from "@shared/schemas/traits";
 import { Button, ButtonLink } from "../../components/Button";
 import { Card } from "../../components/Card";
 import { controlClasses } from "../../components/Field";
+import { Select } from "../../components/Select";
 import { cx } from "../../lib/cx";
 import { ErrorState } from "../../components/ErrorState";
 import { LoadingState } from "../../components/LoadingState";
@@ -92,14 +93,29 @@ export function CrosswalkPage() {
 
 function CrosswalkEditor({ studyId, list, traits, canEdit }: { studyId: string; list: ModernList; traits: Trait[]; canEdit: boolean }) {
   const active = useMemo(() => traits.filter((t) => !t.retired), [traits]);
-  const [draft, setDraft] = useState<Draft>(() => draftFrom(list.crosswalk ?? list.suggestedCrosswalk, active));
+  const cwTraits = useMemo(() => toCrosswalkTraits(traits), [traits]);
+  // Before a first save, columns and values with the same name as a trait or state are paired for review.
+  const [draft, setDraft] = useState<Draft>(() => {
+    const start = draftFrom(list.crosswalk ?? list.suggestedCrosswalk, active);
+    if (list.crosswalk) return start;
+    for (const trait of cwTraits) {
+      const d = start[trait.id];
+      const column = d?.column ? list.columns.find((c) => c.name === d.column) : undefined;
+      if (column) d.states = statesWithSameName(trait, column.values.map((v) => v.value), d.states);
+    }
+    return start;
+  });
+  // What was paired by name, not by a person: marked on screen until changed or saved.
+  const [byName, setByName] = useState<Record<string, { column: boolean; values: Set<string> }>>(() =>
+    list.crosswalk ? {} : Object.fromEntries(Object.entries(draft).filter(([, d]) => d.column).map(([id, d]) => [id, { column: true, values: new Set(Object.keys(d.states).filter((v) => d.states[v] !== null)) }])),
+  );
   const [dirty, setDirty] = useState(list.crosswalk === null);
   const [errors, setErrors] = useState<Record<string, string>>({});
   const save = useSaveCrosswalk(studyId, list.id);
   const toast = useToast();
   const columns = list.columns;
   const crosswalk = crosswalkFrom(draft, active);
-  const cwTraits = useMemo(() => toCrosswalkTraits(traits), [traits]);
+  const pairedByName = Object.values(byName).some((b) => b.column || b.values.size > 0);
   const coverage = crosswalkCoverage(columns, crosswalk, cwTraits, { decimalComma: list.decimalComma });
   const unusable = coverage.pairs.filter((p) => p.unusable.length > 0);
   const retiredInSaved = (list.crosswalk?.pairs ?? []).filter((p) => traits.find((t) => t.id === p.traitId)?.retired);
@@ -111,6 +127,26 @@ function CrosswalkEditor({ studyId, list, traits, canEdit }: { studyId: string; 
     setErrors({});
   }
 
+  /** A column chosen by hand: its values with a state's name are matched at once (marked for review). */
+  function pairColumn(trait: Trait, columnName: string) {
+    const column = columns.find((c) => c.name === columnName);
+    const cwTrait = cwTraits.find((t) => t.id === trait.id)!;
+    const states = column ? statesWithSameName(cwTrait, column.values.map((v) => v.value)) : {};
+    update(trait.id, (p) => ({ ...p, column: columnName, states }));
+    setByName((current) => ({ ...current, [trait.id]: { column: false, values: new Set(Object.keys(states)) } }));
+  }
+
+  /** A value's state chosen by hand is no longer "matched by name". */
+  function decidedByHand(traitId: string, value: string) {
+    setByName((current) => {
+      const entry = current[traitId];
+      if (!entry?.values.has(value)) return current;
+      const values = new Set(entry.values);
+      values.delete(value);
+      return { ...current, [traitId]: { ...entry, values } };
+    });
+  }
+
   function submit() {
     const parsed = crosswalkSchema.safeParse(crosswalk);
     const problems = parsed.success ? crosswalkProblems(parsed.data, cwTraits, columns.map((c) => c.name)) : Object.fromEntries(parsed.error.issues.map((i) => [i.path.join("."), i.message]));
@@ -118,6 +154,7 @@ function CrosswalkEditor({ studyId, list, traits, canEdit }: { studyId: string; 
     save.mutate(parsed.data, {
       onSuccess: (saved) => {
         setDirty(false);
+        setByName({});
         const left = saved.coverage.pairs.reduce((n, p) => n + p.unusableSpecies, 0);
         toast.show(left ? `Crosswalk saved; ${pluralize(left, "species")} hold a value with no state` : "Crosswalk saved", left ? "info" : "success");
       },
@@ -167,6 +204,12 @@ function CrosswalkEditor({ studyId, list, traits, canEdit }: { studyId: string; 
         )}
       </section>
 
+      {pairedByName && (
+        <Notice title="Paired by name, for your review">
+          Columns named like a trait, and values named like one of its states (case and spaces aside), are paired for you and marked “same name” below.
+          Check each one, change what does not fit, then save the crosswalk: nothing is used before it is saved.
+        </Notice>
+      )}
       {retiredInSaved.length > 0 && <Notice>The saved crosswalk pairs retired traits; they are left out here and when saved.</Notice>}
       {!canEdit && <Notice>Your role can read this crosswalk; a study lead or an analyst can change it.</Notice>}
 
@@ -188,24 +231,19 @@ function CrosswalkEditor({ studyId, list, traits, canEdit }: { studyId: string; 
             }
           >
             <div className="grid gap-4 sm:grid-cols-[minmax(0,16rem)_1fr] sm:items-start">
-              <label className="flex flex-col gap-1.5 text-sm font-medium text-stone-800">
-                List column
-                <select
-                  aria-label={`List column for ${trait.label}`}
-                  className={cx(controlClasses(Boolean(errorFor(index, "column"))), "h-10")}
-                  value={d.column}
-                  disabled={!canEdit}
-                  onChange={(e) => update(trait.id, (p) => ({ ...p, column: e.target.value }))}
-                >
-                  <option value="">— Not paired —</option>
-                  {columnOptions.map((c) => (
-                    <option key={c.name} value={c.name}>
-                      {c.name}
-                    </option>
-                  ))}
-                </select>
-                {errorFor(index, "column") && <span className="font-medium text-red-700">{errorFor(index, "column")}</span>}
-              </label>
+              <Select
+                label={
+                  <>
+                    List column<span className="sr-only"> for {trait.label}</span>
+                  </>
+                }
+                value={d.column}
+                disabled={!canEdit}
+                error={errorFor(index, "column")}
+                hint={byName[trait.id]?.column && d.column ? <span className="font-medium text-accent-800">Same name: paired for review</span> : undefined}
+                onChange={(e) => pairColumn(trait, e.target.value)}
+                options={[{ value: "", label: "— Not paired —" }, ...columnOptions.map((c) => ({ value: c.name, label: c.name }))]}
+              />
               {column && cover && (
                 <p className="text-sm text-stone-600 sm:pt-7">
                   {pluralize(cover.usable, "species", "species")} read, {formatCount(cover.missing)} without a value
@@ -255,34 +293,37 @@ function CrosswalkEditor({ studyId, list, traits, canEdit }: { studyId: string; 
                     {column.values.map(({ value, count }) => {
                       const chosen = value in d.states ? (d.states[value] ?? NO_STATE) : NOT_DECIDED;
                       const fieldError = errorFor(index, `states.${value}`);
+                      const sameName = byName[trait.id]?.values.has(value) ?? false;
                       return (
                         <tr key={value} className={chosen === NOT_DECIDED || chosen === NO_STATE ? "bg-caution-50/60" : undefined}>
                           <td className="py-1.5 pr-4 font-medium text-stone-900">{value}</td>
                           <td className="py-1.5 pr-4 text-right tabular-nums text-stone-600">{formatCount(count)}</td>
                           <td className="py-1.5">
-                            <select
-                              aria-label={`State of ${trait.label} for “${value}”`}
-                              className={cx(controlClasses(Boolean(fieldError)), "h-9 max-w-xs")}
-                              value={chosen}
-                              disabled={!canEdit}
-                              onChange={(e) =>
-                                update(trait.id, (p) => {
-                                  const states = { ...p.states };
-                                  if (e.target.value === NOT_DECIDED) delete states[value];
-                                  else states[value] = e.target.value === NO_STATE ? null : e.target.value;
-                                  return { ...p, states };
-                                })
-                              }
-                            >
-                              <option value={NOT_DECIDED}>— No state chosen —</option>
-                              <option value={NO_STATE}>Matches no state</option>
-                              {trait.states.map((s) => (
-                                <option key={s.code} value={s.code}>
-                                  {s.label} ({s.code})
-                                </option>
-                              ))}
-                            </select>
-                            {fieldError && <p className="mt-1 font-medium text-red-700">{fieldError}</p>}
+                            <div className="flex flex-wrap items-center gap-2">
+                              <Select
+                                label={`State of ${trait.label} for “${value}”`}
+                                hideLabel
+                                className="w-full max-w-xs"
+                                value={chosen}
+                                disabled={!canEdit}
+                                error={fieldError}
+                                onChange={(e) => {
+                                  decidedByHand(trait.id, value);
+                                  update(trait.id, (p) => {
+                                    const states = { ...p.states };
+                                    if (e.target.value === NOT_DECIDED) delete states[value];
+                                    else states[value] = e.target.value === NO_STATE ? null : e.target.value;
+                                    return { ...p, states };
+                                  });
+                                }}
+                                options={[
+                                  { value: NOT_DECIDED, label: "— No state chosen —" },
+                                  { value: NO_STATE, label: "Matches no state" },
+                                  ...trait.states.map((s) => ({ value: s.code, label: `${s.label} (${s.code})` })),
+                                ]}
+                              />
+                              {sameName && <span className="rounded-full bg-accent-50 px-2 py-0.5 text-xs font-semibold text-accent-800 ring-1 ring-accent-200">same name</span>}
+                            </div>
                           </td>
                         </tr>
                       );

@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { crosswalkCoverage, crosswalkProblems, listColumns, readSpeciesTraits, suggestCrosswalk, type CrosswalkTrait } from "@shared/comparison";
+import { crosswalkCoverage, crosswalkProblems, listColumns, readSpeciesTraits, statesWithSameName, suggestCrosswalk, type CrosswalkTrait } from "@shared/comparison";
 import { MODERN_CROSSWALK, generateDemoStudy } from "../../../scripts/seed/demo/generator";
 import { HABIT_CROSSWALK, HABIT_TRAIT } from "./helpers";
 
@@ -63,6 +63,21 @@ describe("suggestCrosswalk", () => {
     const columns = listColumns([{ position: "digging" }, { position: "unknown" }, { position: "gliding" }], ["position"]);
     const earlier = { pairs: [{ ...HABIT_CROSSWALK.pairs[0], states: { ...HABIT_CROSSWALK.pairs[0].states, unknown: null } }] };
     expect(suggestCrosswalk(columns, [HABIT_TRAIT], [earlier]).pairs[0].states).toEqual({ digging: "burrowing", unknown: null });
+  });
+
+  it("pairs only equal names (case, spaces and punctuation ignored), never a name that merely starts like a trait's", () => {
+    const columns = listColumns([{ "HABIT ": "free", habitat: "reef", habit_notes: "x" }], ["HABIT ", "habitat", "habit_notes"]);
+    expect(suggestCrosswalk(columns, [HABIT_TRAIT]).pairs.map((p) => p.column)).toEqual(["HABIT "]);
+    expect(suggestCrosswalk(listColumns([{ habitat: "reef" }], ["habitat"]), [HABIT_TRAIT])).toEqual({ pairs: [] });
+    const lifeHabit = { ...HABIT_TRAIT, key: "life_habit", label: "Life habit" };
+    expect(suggestCrosswalk(listColumns([{ habit: "free" }], ["habit"]), [lifeHabit])).toEqual({ pairs: [] });
+    expect(suggestCrosswalk(listColumns([{ "Life Habit": "free" }], ["Life Habit"]), [lifeHabit]).pairs[0].column).toBe("Life Habit");
+  });
+
+  it("matches values with a state's code or label once a column is paired, keeping choices already made", () => {
+    expect(statesWithSameName(HABIT_TRAIT, ["Burrowing", "free", "sessile filter feeder"])).toEqual({ Burrowing: "burrowing", free: "free" });
+    expect(statesWithSameName(HABIT_TRAIT, ["free", "digging"], { free: null })).toEqual({ free: null });
+    expect(statesWithSameName(SIZE_TRAIT, ["12"])).toEqual({});
   });
 
   it("does not pair retired traits", () => {
