@@ -1,4 +1,6 @@
 import { buildDesignMatrix, logisticRegression, type DesignMatrix, type DesignVariable, type LogisticRegressionResult } from "../stats";
+import { chiSquareUpperTail } from "../stats/distributions";
+import { choleskyDecompose, choleskySolve } from "../stats/linalg";
 import type { EncodedTrait } from "./encodeTrait";
 import { numericPredictorLabel, type NumericScaling } from "./scaleNumericTrait";
 import { plainMessage } from "./testNumericTrait";
@@ -113,7 +115,7 @@ export function fitSelectivityModel(traits: ModelTraitInput[], outcome: Uint8Arr
   const encoding = modelEncoding(members, design, referenceCodes);
   const labels = columnLabels(members, design, referenceCodes);
   const finite = (v: number): boolean => Number.isFinite(v);
-  const allFinite =
+  const allFinite = (): boolean =>
     fit.coefficients.every((c) => [c.estimate, c.se, c.z, c.pValue, c.ci[0], c.ci[1], c.oddsRatio, c.oddsRatioCi[0], c.oddsRatioCi[1]].every(finite)) &&
     fit.covariance.every((row) => row.every(finite)) &&
     [fit.deviance, fit.nullDeviance, fit.aic].every(finite) &&
@@ -122,9 +124,18 @@ export function fitSelectivityModel(traits: ModelTraitInput[], outcome: Uint8Arr
     return noModel(`The multiple logistic regression did not converge in ${fit.iterations} iterations: interval not reported.`);
   }
   if (fit.profileConverged === false) {
-    return noModel("The profile penalized likelihood refits of the multiple logistic regression did not converge: interval not reported.");
+    // Profile intervals rest on refits that did not converge: not reported; the Firth fit's Wald intervals are shown instead, said in a note.
+    try {
+      fit = logisticRegression(design, y, { names: design.names, firth: true, firthIntervals: "wald", level: opts.level });
+    } catch (error) {
+      return noModel(`The multiple logistic regression could not be fitted: ${plainMessage(error)}.`);
+    }
+    fit.terms = (design.terms ?? []).map((term) => waldTermTest(fit, term));
+    notes.push(
+      "The profile penalized likelihood refits did not converge: profile intervals and penalized likelihood ratio tests not reported; the intervals shown are Wald intervals of Firth's fit and each trait is tested by a Wald test.",
+    );
   }
-  if (!allFinite) {
+  if (!allFinite()) {
     return noModel(
       "The multiple logistic regression gave estimates or intervals that are not finite numbers: the data carry too little information for this many terms; choose fewer traits.",
     );
@@ -315,12 +326,27 @@ function interval(fit: LogisticRegressionResult, j: number): Interval {
   return { estimate: c.oddsRatio, ci: [c.oddsRatioCi[0], c.oddsRatioCi[1]] };
 }
 
+/** Wald test of a term's coefficients together: b' V^-1 b on as many degrees of freedom as columns (Wald 1943). */
+function waldTermTest(fit: LogisticRegressionResult, term: { name: string; columns: number[] }): NonNullable<LogisticRegressionResult["terms"]>[number] {
+  const k = term.columns.length;
+  const index = term.columns.map((c) => c + 1);
+  const v = new Float64Array(k * k);
+  index.forEach((a, r) => index.forEach((b, c) => (v[r * k + c] = fit.covariance[a][b])));
+  const estimate = index.map((j) => fit.coefficients[j].estimate);
+  const lower = new Float64Array(k * k);
+  if (choleskyDecompose(v, k, lower) >= 0) return { name: term.name, columns: term.columns, df: k, chiSquare: NaN, pValue: NaN };
+  const solved = choleskySolve(lower, k, estimate, new Float64Array(k));
+  const chiSquare = estimate.reduce((sum, b, r) => sum + b * solved[r], 0);
+  return { name: term.name, columns: term.columns, df: k, chiSquare, pValue: chiSquareUpperTail(chiSquare, k) };
+}
+
 function modelMethod(fit: LogisticRegressionResult): string {
   if (!fit.firth) {
     return "Multiple logistic regression by iteratively reweighted least squares; Wald intervals and z tests per coefficient; likelihood ratio test per trait. Deviance and AIC as for any binomial generalised linear model.";
   }
   const intervals = fit.ciMethod === "profile" ? "profile penalized likelihood intervals and penalized likelihood ratio tests per coefficient" : "Wald intervals and z tests per coefficient";
-  return `Firth's bias-reduced multiple logistic regression (Firth 1993); ${intervals}; penalized likelihood ratio test per trait (Heinze & Schemper 2002). Deviance and AIC are those of the ordinary fit.`;
+  const termTests = fit.ciMethod === "profile" ? "penalized likelihood ratio test per trait (Heinze & Schemper 2002)" : "Wald test per trait";
+  return `Firth's bias-reduced multiple logistic regression (Firth 1993); ${intervals}; ${termTests}. Deviance and AIC are those of the ordinary fit.`;
 }
 
 /** Says that Firth's regression was used and why, naming in plain words what separates the outcomes. */

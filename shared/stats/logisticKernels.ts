@@ -190,6 +190,8 @@ export interface NewtonFit {
   objective: number;
   iterations: number;
   converged: boolean;
+  /** Rise of the objective over the last ten iterations (Infinity before ten): tells a creep along a flat ridge from a fit still climbing. */
+  recentGain: number;
   information: Float64Array;
   lower: Float64Array;
 }
@@ -239,7 +241,9 @@ export function fitNewton(design: Design, y: ArrayLike<number>, options: NewtonO
   let converged = false;
   let previousObjective = current.objective;
   let flatSteps = 0;
+  const history: number[] = [];
   while (iterations < options.maxIterations) {
+    history.push(current.objective);
     // Score at beta (the information and its factor are current from the last evaluation).
     if (options.penalized) modifiedScorePass(design, y, beta, work);
     for (let a = 0; a < q; a++) {
@@ -304,7 +308,8 @@ export function fitNewton(design: Design, y: ArrayLike<number>, options: NewtonO
     }
   }
   // The information and factor in the workspace belong to the last evaluated point, which is beta.
-  return { beta, logLik: current.logLik, objective: current.objective, iterations, converged, information: work.information, lower: work.lower };
+  const recentGain = history.length >= 10 ? current.objective - history[history.length - 10] : Infinity;
+  return { beta, logLik: current.logLik, objective: current.objective, iterations, converged, recentGain, information: work.information, lower: work.lower };
 }
 
 /** Largest |x_i' step| over the rows: how far the last iteration moved any linear predictor. */

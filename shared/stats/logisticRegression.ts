@@ -228,8 +228,11 @@ export function logisticRegression(
   if (!Number.isInteger(profileMaxIterations) || profileMaxIterations < 1) {
     throw new Error(`${FN}: profileMaxIterations is ${profileMaxIterations}; it must be a positive integer`);
   }
-  // A refit that does not converge gives NaN, so no interval, p-value or test rests on it.
+  // A refit that does not converge reaches at most the constrained maximum, so it only bounds the
+  // statistic from above: enough to place a point inside an interval, never to place it outside
+  // or to give a p-value. Where that is not enough, the interval or test is not reported.
   let profileConverged = true;
+  let lastRefitConverged = true;
   const refit = (fixedValues: Map<number, number>, from: ArrayLike<number>): number => {
     const startAt = Float64Array.from(from);
     for (const [j, value] of fixedValues) startAt[j] = value;
@@ -240,10 +243,9 @@ export function logisticRegression(
       maxIterations: profileMaxIterations,
       tolerance: FIRTH_TOLERANCE,
     });
-    if (!fit.converged) {
-      profileConverged = false;
-      return NaN;
-    }
+    // A refit creeping along a flat ridge (the constrained maximum lies at infinity) has settled to
+    // within 1e-8 of its supremum over its last ten iterations: its statistic is as good as converged.
+    lastRefitConverged = fit.converged || fit.recentGain < 1e-8;
     return fit.objective;
   };
   const chiSquareCritical = z * z;
@@ -256,7 +258,11 @@ export function logisticRegression(
     profileConverged = true;
     const statistic = (b: number): number => 2 * (firth.objective - refit(new Map([[j, b]]), firth.beta));
     const limit = (direction: 1 | -1): number => {
-      const excess = (offset: number): number => statistic(estimate + direction * offset) - chiSquareCritical;
+      const excess = (offset: number): number => {
+        const value = statistic(estimate + direction * offset) - chiSquareCritical;
+        if (!lastRefitConverged && !(value < 0)) profileConverged = false;
+        return value;
+      };
       let low = 0;
       let high = Math.max(se, 1e-3);
       for (let value = excess(high); value < 0; value = excess(high)) {
@@ -270,6 +276,7 @@ export function logisticRegression(
     };
     const ci: [number, number] = [limit(-1), limit(1)];
     const lrStatistic = Math.max(0, statistic(0));
+    if (!lastRefitConverged) profileConverged = false;
     const converged = profileConverged && !Number.isNaN(ci[0]) && !Number.isNaN(ci[1]) && !Number.isNaN(lrStatistic);
     profileConverged = before && converged;
     const result = converged
@@ -294,7 +301,8 @@ export function logisticRegression(
     result.termTestMethod = "penalized-likelihood-ratio";
     result.terms = terms.map((term) => {
       const reduced = refit(new Map(term.columns.map((c) => [c + 1, 0])), firth.beta);
-      const chiSquare = Number.isNaN(reduced) ? NaN : Math.max(0, 2 * (firth.objective - reduced));
+      if (!lastRefitConverged) profileConverged = false;
+      const chiSquare = lastRefitConverged ? Math.max(0, 2 * (firth.objective - reduced)) : NaN;
       return { name: term.name, columns: term.columns, df: term.columns.length, chiSquare, pValue: Number.isNaN(chiSquare) ? NaN : chiSquareUpperTail(chiSquare, term.columns.length) };
     });
   }
