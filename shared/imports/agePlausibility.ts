@@ -29,7 +29,8 @@ export const MAX_INTERVAL_NUMBER = 99;
 export function referenceSpan(study: { oldestMa: number; youngestMa: number } | null, fileAges: readonly number[]): AgeSpan | null {
   if (study) return { oldestMa: study.oldestMa, youngestMa: study.youngestMa, source: "study" };
   if (fileAges.length < MIN_FILE_AGES_FOR_SPAN) return null;
-  const sorted = [...fileAges].sort((a, b) => a - b);
+  // A typed array sorts numerically and fast (a million ages of a large occurrence file).
+  const sorted = Float64Array.from(fileAges).sort();
   const rank = (p: number) => sorted[Math.max(0, Math.ceil(p * sorted.length) - 1)]!;
   return { oldestMa: rank(0.75), youngestMa: rank(0.25), source: "file" };
 }
