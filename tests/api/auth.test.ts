@@ -40,6 +40,16 @@ describe("accounts and sessions", () => {
     // moment apart: a few seconds of slack, far below a session's days.
     expect(Math.abs(expiryOf(signup.headers["set-cookie"]) - (Date.now() + ttlMs))).toBeLessThan(60_000);
     expect(Math.abs(expiryOf(signup.headers["set-cookie"]) - expiryOf(login.headers["set-cookie"]))).toBeLessThan(5_000);
+    // Every other attribute (Path, HttpOnly, SameSite, Secure) is the same too: only the token and the date differ.
+    const attributes = (setCookie: unknown) =>
+      String(setCookie)
+        .split(";")
+        .slice(1)
+        .map((part) => part.trim())
+        .filter((part) => !/^Expires=/i.test(part))
+        .sort();
+    expect(attributes(signup.headers["set-cookie"])).toEqual(attributes(login.headers["set-cookie"]));
+    expect(attributes(signup.headers["set-cookie"])).toContain("HttpOnly");
   });
 
   it("tells who is signed in without a 401 for nobody (a browser prints every 401 as a console error)", async () => {

@@ -85,6 +85,9 @@ describe("a new study", () => {
       await withScreenshotOnFailure(context, "flows-new-study", async () => {
         const signup = await context.request.post(`${server.url}/api/auth/signup`, { data: { email: uniqueEmail("lead"), password: PASSWORD, name: "Invented Study Lead" } });
         expect(signup.status()).toBe(201);
+        // The sign-up's session outlives the browser as a sign-in's does: a cookie with a date days ahead, not one for the session only (-1).
+        const session = (await context.cookies(server.url)).find((c) => c.name === "ss_session")!;
+        expect(session.expires).toBeGreaterThan(Date.now() / 1000 + 24 * 3600);
         const page = await context.newPage();
         await page.goto(`${server.url}/studies/new`);
         const choice = page.getByRole("checkbox", { name: /Start from the suggested codebook/ });
