@@ -129,6 +129,19 @@ export async function benchFirstVisit(): Promise<FirstVisitFigure[]> {
           unit: "ms",
           note: "from the click on Sign in to the Overview without a loading state (demo study); target ~300 ms",
         });
+        // The Boundary screen from there, as a person goes on: it opens at the study's main boundary
+        // (the demo's crisis run), so the outcomes, turnover and sampling of that boundary are in the figure.
+        const toBoundary = performance.now();
+        await page.getByRole("navigation", { name: "Study" }).getByRole("link", { name: "Boundary" }).click();
+        await page.waitForURL(/\/boundary\?/);
+        await page.getByRole("region", { name: "Outcomes across the boundary" }).waitFor({ timeout: 30_000 });
+        await settled(page);
+        figures.push({
+          name: "Boundary screen settled from the Overview",
+          value: performance.now() - toBoundary,
+          unit: "ms",
+          note: "click on Boundary in the study's navigation to no loading state, at the main boundary (demo study); target ~300 ms",
+        });
       } finally {
         await browser.close();
       }
@@ -198,7 +211,7 @@ export async function benchFirstVisit(): Promise<FirstVisitFigure[]> {
       });
     }
     const boundary = visits.find((v) => v.name === "boundary");
-    if (boundary) figures.push({ name: "Boundary screen settled, cold cache", value: boundary.settleMs, unit: "ms", note: "from navigation to no loading state (demo study); target ~300 ms" });
+    if (boundary) figures.push({ name: "Boundary screen settled, cold cache", value: boundary.settleMs, unit: "ms", note: "from navigation in an empty browser to no loading state, at the main boundary (demo study); scripts fetched and started" });
   } finally {
     await server.close();
   }

@@ -2,6 +2,9 @@ import { QueryClientProvider } from "@tanstack/react-query";
 import { RouterProvider } from "react-router-dom";
 import { ToastProvider } from "../components/Toast";
 import { paths, withNext } from "../lib/paths";
+import { studyQuery } from "../lib/queries/study";
+import { timescaleQuery } from "../lib/queries/timescale";
+import { meQuery } from "../lib/session";
 import { isPublicPath } from "./publicRoutes";
 import { createQueryClient } from "./queryClient";
 import { router } from "./router";
@@ -14,6 +17,17 @@ function redirectToSignIn() {
 }
 
 const queryClient = createQueryClient(redirectToSignIn);
+
+// The first screen's own data is asked for at once, while its chunks are still arriving, instead of
+// after them: the session, the study of a study address, and the time scale of the screens that draw it.
+function prefetchFirstScreen(pathname: string) {
+  if (isPublicPath(pathname)) return;
+  void queryClient.prefetchQuery(meQuery());
+  const studyId = /^\/studies\/([0-9a-f-]{36})(\/|$)/.exec(pathname)?.[1];
+  if (studyId) void queryClient.prefetchQuery(studyQuery(studyId));
+  if (studyId && /\/(boundary|selectivity)(\/|$)/.test(pathname)) void queryClient.prefetchQuery(timescaleQuery());
+}
+prefetchFirstScreen(window.location.pathname);
 
 export function AppProviders() {
   return (

@@ -1,6 +1,6 @@
 // The signed-in account. Many screens need it (the top bar, the account form, the invitation
 // page), so its one query hook lives here rather than in a feature.
-import { useQuery } from "@tanstack/react-query";
+import { queryOptions, useQuery } from "@tanstack/react-query";
 import type { Me, Session } from "@shared/schemas/auth";
 import { api, ApiError } from "./api";
 import { queryKeys } from "./queryKeys";
@@ -16,12 +16,16 @@ async function fetchMe(signal: AbortSignal): Promise<Me> {
   return { user: session.user, environment: session.environment };
 }
 
-export function useMe() {
-  return useQuery({
+/** GET /api/auth/session as a query; started early (at load, right after signing in) so screens find it answered. */
+export const meQuery = () =>
+  queryOptions({
     queryKey: queryKeys.me,
     queryFn: ({ signal }) => fetchMe(signal),
     staleTime: 5 * 60 * 1000,
   });
+
+export function useMe() {
+  return useQuery(meQuery());
 }
 
 /**

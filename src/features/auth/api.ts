@@ -1,4 +1,6 @@
 import { useMutation, useQueryClient } from "@tanstack/react-query";
+import { studiesQuery } from "../../lib/queries/study";
+import { meQuery } from "../../lib/session";
 import type { LoginInput, SignupAnswer, SignupInput, User } from "@shared/schemas/auth";
 import { api } from "../../lib/api";
 
@@ -14,9 +16,15 @@ function useForgetCachedData() {
 /** POST /api/auth/login (401 for a wrong e-mail or password, 429 with Retry-After when limited). */
 export function useSignIn() {
   const forget = useForgetCachedData();
+  const queryClient = useQueryClient();
   return useMutation({
     mutationFn: (input: LoginInput) => api.post<User>("/auth/login", input),
-    onSuccess: forget,
+    onSuccess: () => {
+      forget();
+      // The next screens need the session and the list of studies: ask for both now, side by side.
+      void queryClient.prefetchQuery(meQuery());
+      void queryClient.prefetchQuery(studiesQuery());
+    },
   });
 }
 
