@@ -2,6 +2,7 @@ import { conditionalLogLik, prepareConditionalStrata } from "../stats/conditiona
 import { normalTwoSidedP } from "../stats/distributions";
 import { createUniformSource } from "../stats/random";
 import { fitStratifiedSlope } from "./stratifiedSlope";
+import { answerIsClear, EARLY_STOP_BATCH, EARLY_STOP_TAXA } from "./bootstrapStopping";
 import { expit, fractionalSlope } from "./fractionalSlope";
 import type { ConfoundingJudgement } from "./types";
 
@@ -64,7 +65,9 @@ export function judgeCladeConfounding(allGroups: CladeGroup[], options: CladeCon
   const taxaCount = groups.reduce((a, g) => a + g.x.length, 0);
   // Large studies: fewer replicates (each one touches every taxon); their differences are either
   // far beyond or well within the noise, so 50 replicates judge them as well.
-  const replicates = options.replicates ?? (taxaCount > 20_000 ? 50 : CLADE_CONFOUNDING_REPLICATES);
+  const largeStudy = taxaCount > EARLY_STOP_TAXA;
+  const planned = options.replicates ?? (largeStudy ? 50 : CLADE_CONFOUNDING_REPLICATES);
+  let replicates = planned;
   const seed = options.seed ?? CLADE_CONFOUNDING_SEED;
   const prepared = groups.map((g) => (options.kind === "numeric" ? (prepareConditionalStrata(g.x, g.y, new Int32Array(g.x.length), 1)[0] ?? null) : null));
   const informative = options.kind === "numeric" ? prepared.filter((p) => p !== null).length : groups.filter(informativeForStates).length;
@@ -83,7 +86,12 @@ export function judgeCladeConfounding(allGroups: CladeGroup[], options: CladeCon
   const random = createUniformSource(seed);
   const draws: number[] = [];
   const cells = options.kind === "states" ? groups.map(cellCounts) : [];
-  for (let b = 0; b < replicates; b++) {
+  for (let b = 0; b < planned; b++) {
+    // Large studies stop at a look once the flag's answer is clear (see answerIsClear).
+    if (largeStudy && options.replicates === undefined && b > 0 && b % EARLY_STOP_BATCH === 0 && answerIsClear(draws, difference, change, options)) {
+      replicates = b;
+      break;
+    }
     if (options.kind === "states") {
       // States: resample each clade's four cells (state/reference x victim/survivor) by count.
       const d = statesDifference(cells.map((c) => resampleCells(c, random)));
@@ -128,7 +136,7 @@ export function judgeCladeConfounding(allGroups: CladeGroup[], options: CladeCon
   const percent = String(Number((options.threshold * 100).toFixed(1)));
   const method =
     `Flag when the clade-standardised marginal odds ratio differs from the crude one (${options.kind === "states" ? "both over the clades holding both states, standardised directly" : "the standardised one from the conditional slope"}) by more than ${percent}% (change-in-estimate threshold; common practice, no source) ` +
-    `and by more than its own uncertainty: ln(crude / standardised) over its standard error from a bootstrap stratified by clade (${replicates} replicates, seed ${seed}), two-sided p below ${formatLevel(1 - options.level)}` +
+    `and by more than its own uncertainty: ln(crude / standardised) over its standard error from a bootstrap stratified by clade (${replicates} replicates${replicates < planned ? ` of up to ${planned}, stopped once the answer was clear` : ""}, seed ${seed}), two-sided p below ${formatLevel(1 - options.level)}` +
     `${se === null ? " (too many replicates could not be estimated, so no flag)" : ""}; ` +
     `${CONFOUNDING_CITATION}. Estimates from fewer than ${options.minInformativeClades} informative clades are thin and never flag.`;
   return {

@@ -1,9 +1,10 @@
 import type { DesignMatrix } from "../stats";
 import { normalTwoSidedP } from "../stats/distributions";
 import { choleskyDecompose, choleskySolve } from "../stats/linalg";
-import { fitMaximumLikelihood, informationPass, Workspace, type Design } from "../stats/logisticKernels";
+import { fitMaximumLikelihood, Workspace, type Design } from "../stats/logisticKernels";
 import { createUniformSource } from "../stats/random";
 import { CLADE_CONFOUNDING_REPLICATES, CLADE_CONFOUNDING_SEED } from "./cladeConfounding";
+import { answerIsClear, EARLY_STOP_BATCH, EARLY_STOP_TAXA } from "./bootstrapStopping";
 import { expit, fractionalSlope } from "./fractionalSlope";
 import type { ConfoundingJudgement } from "./types";
 
@@ -38,55 +39,61 @@ export function judgeModelConfounding(
   options: { threshold: number; level: number; replicates?: number; seed?: number },
 ): Map<string, Map<string, ConfoundingJudgement>> {
   // Large studies: fewer replicates (each one passes over every taxon).
-  const replicates = options.replicates ?? (design.rows > 20_000 ? 20 : CLADE_CONFOUNDING_REPLICATES);
+  const largeStudy = design.rows > EARLY_STOP_TAXA;
+  const planned = options.replicates ?? (largeStudy ? 20 : CLADE_CONFOUNDING_REPLICATES);
+  let replicates = planned;
   const seed = options.seed ?? CLADE_CONFOUNDING_SEED;
   const n = design.rows;
   const p = design.columns + 1;
   const full = withIntercept(design);
   const out = new Map<string, Map<string, ConfoundingJudgement>>();
-  const all = Int32Array.from({ length: n }, (_, i) => i);
-  let fitted: Float64Array | null = null;
+  const d: Design = { data: full, n, p };
+  const ys = Float64Array.from({ length: n }, (_, i) => y[i]);
+  // Built once and reused by every replicate: which side of each state contrast a taxon is on,
+  // and the distinct values of each numeric contrast (taxa sharing a value share their terms).
+  const prepared = contrasts.map((c) => prepareContrast(d, c));
   const work = new Workspace(p);
-  const estimate = (rows: Int32Array): number[] | null => {
-    const data = new Float64Array(rows.length * p);
-    const ys = new Float64Array(rows.length);
-    rows.forEach((r, i) => {
-      data.set(full.subarray(r * p, r * p + p), i * p);
-      ys[i] = y[r];
-    });
-    const sub: Design = { data, n: rows.length, p };
-    let beta: Float64Array;
-    if (!fitted) {
-      let fit;
-      try {
-        fit = fitMaximumLikelihood(sub, ys, 25, 1e-8);
-      } catch {
-        return null;
-      }
-      if (!fit.converged) return null;
-      beta = fit.beta;
-      fitted = Float64Array.from(fit.beta);
-    } else {
-      // A replicate: one Newton step from the full-sample fit (a one-step bootstrap, first-order
-      // equivalent to refitting and far cheaper on large studies).
-      informationPass(sub, ys, fitted, work);
-      if (choleskyDecompose(work.information, p, work.lower) >= 0) return null;
-      choleskySolve(work.lower, p, work.score, work.step);
-      beta = Float64Array.from(fitted, (b, j) => b + work.step[j]);
+  const eta = new Float64Array(n);
+  const weights = new Float64Array(n).fill(1);
+  let fitted: Float64Array;
+  try {
+    const fit = fitMaximumLikelihood(d, ys, 25, 1e-8);
+    if (!fit.converged) return out;
+    fitted = Float64Array.from(fit.beta);
+  } catch {
+    return out;
+  }
+  /** ln(crude) - ln(standardised) of every contrast for taxa weighted by `weights` (bootstrap counts), the model at beta. */
+  const differences = (beta: Float64Array): number[] => {
+    for (let i = 0; i < n; i++) {
+      let sum = 0;
+      for (let k = 0; k < p; k++) sum += full[i * p + k] * beta[k];
+      eta[i] = sum;
     }
-    return contrasts.map((c) => crudeLog(sub, ys, c) - standardisedLog(sub, beta, c));
+    return prepared.map((c) => crudeLog(c, d, ys, weights) - standardisedLog(c, d, eta, beta, weights));
   };
-  const observed = estimate(all);
-  if (!observed) return out;
-  const crudeObserved = contrasts.map((c) => crudeLog({ data: full, n, p }, Float64Array.from(y), c));
+  const observed = differences(fitted);
+  const crudeObserved = prepared.map((c) => crudeLog(c, d, ys, weights));
   const random = createUniformSource(seed);
   const draws: number[][] = contrasts.map(() => []);
-  const rows = new Int32Array(n);
-  for (let b = 0; b < replicates; b++) {
-    for (let i = 0; i < n; i++) rows[i] = Math.floor(random() * n);
-    const d = estimate(rows);
-    if (!d) continue;
-    d.forEach((v, k) => {
+  const step = new Float64Array(p);
+  const changes = observed.map((d) => Math.abs(Math.exp(-d) - 1));
+  for (let b = 0; b < planned; b++) {
+    // Large studies stop at a look once every contrast's answer is clear (see answerIsClear).
+    if (largeStudy && options.replicates === undefined && b > 0 && b % EARLY_STOP_BATCH === 0 && draws.every((sample, k) => !Number.isFinite(observed[k]) || answerIsClear(sample, observed[k], changes[k], options))) {
+      replicates = b;
+      break;
+    }
+    // A replicate: n taxa drawn with replacement, held as counts instead of copied rows.
+    weights.fill(0);
+    for (let i = 0; i < n; i++) weights[Math.floor(random() * n)]++;
+    // The model re-estimated by one Newton step from the full-sample fit (a one-step bootstrap,
+    // first-order equivalent to refitting and far cheaper on large studies).
+    weightedInformationPass(d, ys, weights, fitted, work);
+    if (choleskyDecompose(work.information, p, work.lower) >= 0) continue;
+    choleskySolve(work.lower, p, work.score, step);
+    const beta = Float64Array.from(fitted, (v, j) => v + step[j]);
+    differences(beta).forEach((v, k) => {
       if (Number.isFinite(v)) draws[k].push(v);
     });
   }
@@ -121,7 +128,7 @@ export function judgeModelConfounding(
       method:
         `Flag when the marginal odds ratio standardised over the other traits of the multiple regression (g-computation) differs from the crude one over the same taxa by more than ${percent}% ` +
         `(change-in-estimate threshold; common practice, no source) and by more than its own uncertainty: ln(crude / standardised) over its standard error from a bootstrap over taxa with the model re-estimated (one Newton step) ` +
-        `(${replicates} replicates, seed ${seed}), two-sided p below ${String(Number((1 - options.level).toFixed(4)))}${se === null ? " (too many replicates could not be fitted, so no flag)" : ""}; ` +
+        `(${replicates} replicates${replicates < planned ? ` of up to ${planned}, stopped once every answer was clear` : ""}, seed ${seed}), two-sided p below ${String(Number((1 - options.level).toFixed(4)))}${se === null ? " (too many replicates could not be fitted, so no flag)" : ""}; ` +
         `odds ratios are not collapsible, so the crude one is compared with a standardised marginal one (Greenland, Robins & Pearl 1999, Statistical Science 14:29).`,
     };
     if (!out.has(c.key)) out.set(c.key, new Map());
@@ -140,27 +147,72 @@ function withIntercept(design: DesignMatrix): Float64Array {
   return data;
 }
 
-/** Rows of a state contrast: the state's own taxa and the reference taxa (all dummies of the trait 0). */
-function inContrast(d: Design, i: number, c: Extract<ModelContrast, { kind: "state" }>): 0 | 1 | -1 {
-  if (d.data[i * d.p + c.column + 1] === 1) return 1;
-  for (const other of c.traitColumns) if (d.data[i * d.p + other + 1] !== 0) return -1;
-  return 0;
+/** A contrast with what every replicate reuses. */
+type PreparedContrast =
+  | { kind: "state"; column: number; side: Int8Array }
+  | { kind: "numeric"; column: number; group: Int32Array; values: Float64Array };
+
+/** Side of each taxon in a state contrast: 1 the state, 0 the reference (all dummies of the trait 0), -1 another state. */
+function prepareContrast(d: Design, c: ModelContrast): PreparedContrast {
+  const { n, p, data } = d;
+  if (c.kind === "state") {
+    const side = new Int8Array(n);
+    for (let i = 0; i < n; i++) {
+      if (data[i * p + c.column + 1] === 1) side[i] = 1;
+      else side[i] = c.traitColumns.some((other) => data[i * p + other + 1] !== 0) ? -1 : 0;
+    }
+    return { kind: "state", column: c.column, side };
+  }
+  const x = new Float64Array(n);
+  for (let i = 0; i < n; i++) x[i] = data[i * p + c.column + 1];
+  const values = Float64Array.from(new Set(x)).sort();
+  const index = new Map<number, number>();
+  values.forEach((v, g) => index.set(v, g));
+  const group = Int32Array.from(x, (v) => index.get(v)!);
+  return { kind: "numeric", column: c.column, group, values };
 }
 
-function crudeLog(d: Design, y: ArrayLike<number>, c: ModelContrast): number {
+/** The score and information of the logistic log-likelihood at beta with taxon weights (bootstrap counts). */
+function weightedInformationPass(d: Design, y: Float64Array, weights: Float64Array, beta: Float64Array, work: Workspace): void {
+  const { data, n, p } = d;
+  const info = work.information;
+  const score = work.score;
+  info.fill(0);
+  score.fill(0);
+  for (let i = 0; i < n; i++) {
+    const count = weights[i];
+    if (count === 0) continue;
+    const offset = i * p;
+    let eta = 0;
+    for (let j = 0; j < p; j++) eta += data[offset + j] * beta[j];
+    const mu = expit(eta);
+    const residual = count * (y[i] - mu);
+    const w = count * mu * (1 - mu);
+    for (let a = 0; a < p; a++) {
+      const xa = data[offset + a];
+      score[a] += xa * residual;
+      const wxa = w * xa;
+      const row = a * p;
+      for (let b = a; b < p; b++) info[row + b] += wxa * data[offset + b];
+    }
+  }
+}
+
+function crudeLog(c: PreparedContrast, d: Design, y: Float64Array, weights: Float64Array): number {
   if (c.kind === "state") {
     let a = 0;
     let b = 0;
     let cc = 0;
     let dd = 0;
     for (let i = 0; i < d.n; i++) {
-      const side = inContrast(d, i, c);
-      if (side < 0) continue;
+      const side = c.side[i];
+      const w = weights[i];
+      if (side < 0 || w === 0) continue;
       if (side === 1) {
-        if (y[i] === 1) a++;
-        else b++;
-      } else if (y[i] === 1) cc++;
-      else dd++;
+        if (y[i] === 1) a += w;
+        else b += w;
+      } else if (y[i] === 1) cc += w;
+      else dd += w;
     }
     if (a === 0 || b === 0 || cc === 0 || dd === 0) {
       a += 0.5;
@@ -170,12 +222,17 @@ function crudeLog(d: Design, y: ArrayLike<number>, c: ModelContrast): number {
     }
     return Math.log((a * dd) / (b * cc));
   }
-  const x = new Float64Array(d.n);
-  for (let i = 0; i < d.n; i++) x[i] = d.data[i * d.p + c.column + 1];
-  return fractionalSlope(x, new Float64Array(d.n).fill(1), Float64Array.from(y));
+  // Taxa sharing a value enter the logistic fit as one weighted row with their share of victims (the same likelihood).
+  const groupWeight = new Float64Array(c.values.length);
+  const groupEvents = new Float64Array(c.values.length);
+  for (let i = 0; i < d.n; i++) {
+    groupWeight[c.group[i]] += weights[i];
+    groupEvents[c.group[i]] += weights[i] * y[i];
+  }
+  return fractionalSlope(c.values, groupWeight, Float64Array.from(groupEvents, (e, g) => (groupWeight[g] > 0 ? e / groupWeight[g] : 0)));
 }
 
-function standardisedLog(d: Design, beta: Float64Array, c: ModelContrast): number {
+function standardisedLog(c: PreparedContrast, d: Design, eta: Float64Array, beta: Float64Array, weights: Float64Array): number {
   const { n, p, data } = d;
   const j = c.column + 1;
   if (c.kind === "state") {
@@ -183,40 +240,90 @@ function standardisedLog(d: Design, beta: Float64Array, c: ModelContrast): numbe
     let r0 = 0;
     let count = 0;
     for (let i = 0; i < n; i++) {
-      if (inContrast(d, i, c) < 0) continue;
-      let eta = 0;
-      for (let k = 0; k < p; k++) eta += data[i * p + k] * beta[k];
-      const base = eta - data[i * p + j] * beta[j];
-      r1 += expit(base + beta[j]);
-      r0 += expit(base);
-      count++;
+      const w = weights[i];
+      if (c.side[i] < 0 || w === 0) continue;
+      const base = eta[i] - data[i * p + j] * beta[j];
+      r1 += w * expit(base + beta[j]);
+      r0 += w * expit(base);
+      count += w;
     }
     r1 /= count;
     r0 /= count;
     return r1 > 0 && r1 < 1 && r0 > 0 && r0 < 1 ? Math.log(r1 / (1 - r1)) - Math.log(r0 / (1 - r0)) : NaN;
   }
-  // Numbers: the averaged risk curve on a grid of the trait's quantiles, read at every taxon's value.
-  const base = new Float64Array(n);
-  const x = new Float64Array(n);
+  // Numbers: the averaged risk curve on a grid of the trait's quantiles, read at every value.
+  const groups = c.values.length;
+  const groupWeight = new Float64Array(groups);
+  let total = 0;
   for (let i = 0; i < n; i++) {
-    let eta = 0;
-    for (let k = 0; k < p; k++) eta += data[i * p + k] * beta[k];
-    x[i] = data[i * p + j];
-    base[i] = eta - x[i] * beta[j];
+    groupWeight[c.group[i]] += weights[i];
+    total += weights[i];
   }
-  const sorted = Float64Array.from(x).sort();
-  const grid = Array.from({ length: GRID }, (_, g) => sorted[Math.round((g / (GRID - 1)) * (n - 1))]);
-  const curve = grid.map((value) => {
-    let sum = 0;
-    for (let i = 0; i < n; i++) sum += expit(base[i] + beta[j] * value);
-    return sum / n;
-  });
-  const targets = new Float64Array(n);
-  for (let i = 0; i < n; i++) targets[i] = readCurve(grid, curve, x[i]);
-  return fractionalSlope(x, new Float64Array(n).fill(1), targets);
+  const grid = new Float64Array(GRID);
+  for (let g = 0, k = 0, below = 0; g < GRID; g++) {
+    // The value at (weighted) rank round(g / (GRID - 1) * (total - 1)), as the sorted sample would give.
+    const rank = Math.round((g / (GRID - 1)) * (total - 1));
+    while (k < groups - 1 && below + groupWeight[k] <= rank) below += groupWeight[k++];
+    grid[g] = c.values[k];
+  }
+  const risk = riskAverager(eta, data, p, j, beta[j], weights, n);
+  const curve = Array.from(grid, (value) => risk(value));
+  const targets = Float64Array.from(c.values, (v) => readCurve(grid, curve, v));
+  return fractionalSlope(c.values, groupWeight, targets);
 }
 
-function readCurve(grid: number[], curve: number[], value: number): number {
+/** Bins of the other terms' linear predictor above which the risk curve is averaged over bins instead of taxa. */
+const RISK_BINS = 2048;
+
+/**
+ * Mean over the weighted taxa of expit(base_i + slope * value), base_i the linear predictor without
+ * the trait's own term. Over many taxa the bases are first pooled into RISK_BINS bins, each at its
+ * weighted mean (the error is of second order in the bin width, below 1e-6 in risk).
+ */
+function riskAverager(eta: Float64Array, data: Float64Array, p: number, j: number, slope: number, weights: Float64Array, n: number): (value: number) => number {
+  const base = new Float64Array(n);
+  let low = Infinity;
+  let high = -Infinity;
+  let total = 0;
+  for (let i = 0; i < n; i++) {
+    base[i] = eta[i] - data[i * p + j] * slope;
+    if (weights[i] === 0) continue;
+    total += weights[i];
+    if (base[i] < low) low = base[i];
+    if (base[i] > high) high = base[i];
+  }
+  if (n <= 4 * RISK_BINS || !(high > low)) {
+    return (value) => {
+      let sum = 0;
+      for (let i = 0; i < n; i++) if (weights[i] !== 0) sum += weights[i] * expit(base[i] + slope * value);
+      return sum / total;
+    };
+  }
+  const binWeight = new Float64Array(RISK_BINS);
+  const binSum = new Float64Array(RISK_BINS);
+  const scale = (RISK_BINS - 1e-9) / (high - low);
+  for (let i = 0; i < n; i++) {
+    const w = weights[i];
+    if (w === 0) continue;
+    const at = Math.floor((base[i] - low) * scale);
+    binWeight[at] += w;
+    binSum[at] += w * base[i];
+  }
+  const centres: number[] = [];
+  const masses: number[] = [];
+  for (let b = 0; b < RISK_BINS; b++) {
+    if (binWeight[b] === 0) continue;
+    centres.push(binSum[b] / binWeight[b]);
+    masses.push(binWeight[b]);
+  }
+  return (value) => {
+    let sum = 0;
+    for (let b = 0; b < centres.length; b++) sum += masses[b] * expit(centres[b] + slope * value);
+    return sum / total;
+  };
+}
+
+function readCurve(grid: Float64Array, curve: number[], value: number): number {
   let low = 0;
   let high = grid.length - 1;
   if (value <= grid[0]) return curve[0];

@@ -161,7 +161,10 @@ function fisherExactRxC(table: number[][], opts: FisherExactOptions): FisherExac
     // r x 2 and 2 x c tables: the network over rows reaches far larger tables exactly.
     const twoColumn = compact.rowTotals.length === 2 || compact.columnTotals.length === 2 ? fisherRx2(compact, rxcMethod === "exact" ? 20 * RX2_NODE_LIMIT : RX2_NODE_LIMIT) : null;
     if (twoColumn) return { pValue: Math.exp(twoColumn.logPValue), logPValue: twoColumn.logPValue, alternative: "two-sided", method: "exact-rxc" };
-    const exact = freemanHaltonExact(compact, rxcMethod === "exact" ? Infinity : workLimit);
+    // Over 20,000 taxa in a table larger than 2 x 2 the enumeration cannot finish within its
+    // budget (its networks grow with the margins), so "auto" does not spend the budget finding out.
+    const hopeless = rxcMethod === "auto" && compact.total > 20_000;
+    const exact = hopeless ? null : freemanHaltonExact(compact, rxcMethod === "exact" ? Infinity : workLimit);
     if (exact) return { pValue: Math.exp(exact.logPValue), logPValue: exact.logPValue, alternative: "two-sided", method: "exact-rxc" };
   }
   const simulated = freemanHaltonMonteCarlo(compact, replicates, seed);
