@@ -7,6 +7,7 @@ import { createServices } from "./services";
 import { JobQueue } from "./jobs/queue";
 import { WorkerPool } from "./jobs/workerPool";
 import { registerRunJob } from "./services/runJob";
+import { registerNotificationJobs } from "./services/notifications";
 
 export interface RunningContext extends AppContext {
   fakeSmtp: FakeSmtp | null;
@@ -28,9 +29,9 @@ export async function createContext(config: AppConfig): Promise<RunningContext> 
   const jobs = new JobQueue(config.databaseUrl);
   const workers = new WorkerPool();
   const services = createServices(database.db, mailer, config.appUrl, { jobs, workers, gridMaxTaxa: config.gridMaxTaxa });
-  // Every app process works the shared queue: the job kinds are declared before it starts (the
-  // run job here; the notification service declares its mail jobs when built).
+  // Every app process works the shared queue: the job kinds are declared here, before it starts.
   registerRunJob(jobs, services.runs.job);
+  registerNotificationJobs(jobs, services.notifications);
   await jobs.start({ work: config.jobWorkers });
   services.runs.startSweeping();
   services.imports.startSweeping();

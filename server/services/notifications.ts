@@ -158,13 +158,6 @@ export function createNotificationService(db: Database, mailer: Mailer, appUrl: 
     return { people, mentions };
   }
 
-  jobs.register<MentionMailJob>(MENTION_MAIL_JOB, async (data) => {
-    await deliverMentions(data.notificationIds, data.targetLabel);
-  });
-  jobs.register<{ at: string }>(DIGEST_JOB, async () => {
-    await sendDigests(new Date());
-  });
-
   const clock = new RepeatingTask("digest check not queued", () => jobs.send(DIGEST_JOB, { at: new Date().toISOString() }), DIGEST_CHECK_EVERY_MS);
 
   return {
@@ -289,3 +282,16 @@ export function createNotificationService(db: Database, mailer: Mailer, appUrl: 
   };
 }
 export type NotificationService = ReturnType<typeof createNotificationService>;
+
+/**
+ * Declares the mention-mail and digest job kinds and the handlers this process works them with.
+ * Call it where the process starts, before the queue starts (beside registerRunJob).
+ */
+export function registerNotificationJobs(queue: JobQueue, service: Pick<NotificationService, "deliverMentions" | "sendDigests">): void {
+  queue.register<MentionMailJob>(MENTION_MAIL_JOB, async (data) => {
+    await service.deliverMentions(data.notificationIds, data.targetLabel);
+  });
+  queue.register<{ at: string }>(DIGEST_JOB, async () => {
+    await service.sendDigests(new Date());
+  });
+}

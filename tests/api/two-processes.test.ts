@@ -75,7 +75,7 @@ describe("two app processes on one database", () => {
       body: JSON.stringify({ email: uniqueEmail("queue"), password: PASSWORD, name: "Queue" }),
     });
     const cookie = res.headers.get("set-cookie")!.split(";")[0];
-    const study = (await call(web.url, "POST", "/api/studies", cookie, { name: "Invented two-process study" })).body;
+    const study = (await call(web.url, "POST", "/api/studies", cookie, { name: "Invented two-process study", suggestedCodebook: true })).body;
     const traits = (await call(web.url, "GET", `/api/studies/${study.id}/traits`, cookie)).body.traits as Array<{ id: string; key: string }>;
     const environment = traits.find((t) => t.key === "environment")!;
     // 40 invented taxa across a boundary at 93.9 Ma: 20 marine (12 victims), 20 non-marine (6 victims).
