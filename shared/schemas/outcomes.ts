@@ -27,14 +27,18 @@ const pageSizeSchema = z.coerce
  * `check` states the allowed values; `what` says them in words for the message.
  */
 export const blankAsMissing = (v: unknown) => (typeof v === "string" && v.trim() === "" ? undefined : v);
-export const numberParam = (field: string, what: string, check: (v: number) => boolean) =>
-  z.preprocess(
+export const numberParam = (field: string, what: string, check: (v: number) => boolean) => {
+  // The message is a sentence like every other one ("Window must be…"), naming the field in words ("breadthShare" -> "Breadth share").
+  const words = field.replace(/([a-z])([A-Z])/g, "$1 $2").toLowerCase();
+  const message = `${words.charAt(0).toUpperCase()}${words.slice(1)} must be ${what}`;
+  return z.preprocess(
     blankAsMissing,
     z.coerce
-      .number({ message: `${field} must be ${what}` })
-      .refine((v) => Number.isFinite(v) && check(v), `${field} must be ${what}`)
+      .number({ message })
+      .refine((v) => Number.isFinite(v) && check(v), message)
       .optional(),
   );
+};
 
 /** A boundary given as a number of a form (not a URL): an age in Ma, older than the present. */
 export const boundaryMaSchema = z

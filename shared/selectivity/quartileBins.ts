@@ -1,4 +1,5 @@
 import { formatCompact } from "./formatNumber";
+import { formatQuantityRange } from "../format/units";
 import { proportionRow } from "./stateTable";
 import type { StateRow } from "./types";
 
@@ -37,12 +38,12 @@ export function quartileBins(raw: Float64Array, outcome: Uint8Array, level: numb
     if (value < lows[bin]) lows[bin] = value;
     if (value > highs[bin]) highs[bin] = value;
   }
-  const suffix = unit ? ` ${unit}` : "";
   const rows: StateRow[] = [];
   for (let bin = 0; bin < 4; bin++) {
     if (victims[bin] + survivors[bin] === 0) continue;
-    const range = lows[bin] === highs[bin] ? formatCompact(lows[bin]) : `${formatCompact(lows[bin])}–${formatCompact(highs[bin])}`;
-    rows.push(proportionRow(`Q${bin + 1}`, `${range}${suffix}`, victims[bin], survivors[bin], level));
+    // "1 region", "3–4 regions", "0.15–14.8 mm": the unit in the singular after exactly 1.
+    const range = formatQuantityRange(lows[bin], highs[bin], unit, formatCompact);
+    rows.push(proportionRow(`Q${bin + 1}`, range, victims[bin], survivors[bin], level));
   }
   return rows;
 }

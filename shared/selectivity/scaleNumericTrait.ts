@@ -1,4 +1,5 @@
 import type { SelectivityTraitSpec } from "./types";
+import { perStep } from "../format/units";
 
 /** How a numeric trait enters the regressions: x = (transformed value - center) / scale. */
 export interface NumericScaling {
@@ -45,12 +46,13 @@ export function scaleNumericTrait(spec: SelectivityTraitSpec, transformed: Float
   return { center: mean, scale: Math.sqrt(squares / (count - 1)), count, constant };
 }
 
-/** "per SD", "per 1 log10 unit", "per 1 mm" or "per 1 unit": what one step of a numeric odds ratio is. */
+/** "per SD", "per 1 log10 unit", "per 1 mm", "per 1 region" or "per 1 unit": what one step of a numeric odds ratio is. */
 export function numericStep(spec: SelectivityTraitSpec): string {
   if (spec.standardise) return "per SD";
   if (spec.transform === "log10") return "per 1 log10 unit";
-  // Units are written in the plural in codebooks ("regions"); one step reads in the singular.
-  return spec.unit ? `per 1 ${spec.unit.replace(/(?<=[a-z]{2}[^siue])s$/, "")}` : "per 1 unit";
+  // Units are written in the plural in codebooks ("regions"); one step reads in the singular, and a
+  // unit that only says "count" is one unit ("per 1 unit", not "per 1 count").
+  return perStep(spec.unit);
 }
 
 /** "Body size (log10, per SD)": a numeric predictor named for tables. */

@@ -26,6 +26,6 @@ export function wrapLabel(text: string, maxChars: number, maxLines = Infinity): 
   if (lines.length <= maxLines) return lines;
   const kept = lines.slice(0, maxLines);
   const last = kept[kept.length - 1];
-  kept[kept.length - 1] = `${last.length >= width ? last.slice(0, width - 1) : last}…`;
+  kept[kept.length - 1] = `${(last.length >= width ? last.slice(0, width - 1) : last).trimEnd()}…`;
   return kept;
 }

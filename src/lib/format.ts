@@ -7,6 +7,10 @@ import { formatCompact, formatMeasurement, formatNumber } from "@shared/selectiv
 // server, which writes them into sentences and thread summaries.
 export { formatCompact, formatMeasurement, formatNumber };
 
+// A number with its unit as a scientist writes it ("1 region", "3–4 regions", "per 1 region"); shared
+// with the statistics, which name their steps and ranges the same way.
+export { formatQuantity, formatQuantityRange, perStep, unitAfter, unitSingular } from "@shared/format/units";
+
 const dateFormat = new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "short", year: "numeric" });
 const dateTimeFormat = new Intl.DateTimeFormat("en-GB", {
   day: "numeric",
@@ -42,6 +46,20 @@ export function formatCount(value: number): string {
 /** "1 member", "3 members"; pass the plural when it is not the singular plus "s". */
 export function pluralize(count: number, singular: string, plural = `${singular}s`): string {
   return `${formatCount(count)} ${count === 1 ? singular : plural}`;
+}
+
+/**
+ * A clause that ends a sentence, ready to be followed by more words: "matches no state of the traits."
+ * -> "matches no state of the traits", so "…traits: 1 species" never reads "traits.: 1 species".
+ */
+export function clause(text: string): string {
+  return text.trim().replace(/[.;:,]+$/, "");
+}
+
+/** A message as a sentence: first letter capitalised ("window must be…" -> "Window must be…"). */
+export function sentence(text: string): string {
+  const trimmed = text.trim();
+  return trimmed.charAt(0).toUpperCase() + trimmed.slice(1);
 }
 
 /** Initials for an avatar: "Ada Stone" -> "AS". */

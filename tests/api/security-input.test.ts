@@ -369,7 +369,7 @@ describe("ages older than the Earth (4,567 Ma, common practice) are refused", ()
   it("as a boundary of an outcome query or a run", async () => {
     const outcomes = await cast.people.analyst.agent.get(`/api/studies/${study.studyId}/outcomes?boundary=5000`);
     expect(outcomes.status).toBe(400);
-    expect(outcomes.body.error.fields.boundary).toBe("boundary must be an age in Ma (a number greater than 0, at most 4,567)");
+    expect(outcomes.body.error.fields.boundary).toBe("Boundary must be an age in Ma (a number greater than 0, at most 4,567)");
     const run = await cast.people.analyst.agent
       .post(`/api/studies/${study.studyId}/runs/preview`)
       .send({ name: "Invented run", boundaries: [{ boundaryMa: 1e300 }], traits: [{ traitId: study.trait.feeding.id }] });

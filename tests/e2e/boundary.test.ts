@@ -143,7 +143,7 @@ describe("boundary screen", () => {
       // A narrower window: victims last seen between 93.9 and 96.9 Ma stay victims, Pallidoconcha ornata (97) is no longer at risk.
       await page.getByLabel("Window below the boundary (Myr)").fill("three");
       await page.getByRole("button", { name: "Apply window" }).click();
-      await page.getByText("window must be a duration in Myr").waitFor();
+      await page.getByText("Window must be a duration in Myr").waitFor();
       await page.getByLabel("Window below the boundary (Myr)").fill("3");
       await page.getByRole("button", { name: "Apply window" }).click();
       await page.waitForURL(/[?&]window=3(&|$)/);

@@ -4,7 +4,7 @@ import type { Comparison } from "@shared/schemas/comparisons";
 import { Caution } from "../../components/Caution";
 import { COMPARISON_COLOUR, REFERENCE_COLOUR } from "../../components/chartColours";
 import { cx } from "../../lib/cx";
-import { formatCount, formatDateTime, pluralize } from "../../lib/format";
+import { clause, formatCount, formatDateTime, pluralize } from "../../lib/format";
 import { CategoryBadge } from "./CategoryBadge";
 import { RocChart } from "./RocChart";
 import { aucReading, formatInterval, formatOdds, formatP, formatProbability, formatTwo, spearmanMethodWords } from "./words";
@@ -197,7 +197,7 @@ export function ComparisonResultsView({ comparison, print = false }: { compariso
             <ul className="mt-1 list-disc space-y-1 pl-5 text-sm text-stone-700">
               {r.unscoredReasons.map((u) => (
                 <li key={u.reason}>
-                  {u.reason}: {pluralize(u.count, "species", "species")} (e.g. {u.examples.join(", ")})
+                  {clause(u.reason)}: {pluralize(u.count, "species", "species")} (e.g. {u.examples.join(", ")})
                 </li>
               ))}
             </ul>

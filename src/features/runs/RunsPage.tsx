@@ -15,7 +15,7 @@ import { TextLink } from "../../components/TextLink";
 import { useToast } from "../../components/Toast";
 import { errorMessage } from "../../lib/api";
 import { useCurrentStudy } from "../../lib/currentStudy";
-import { formatCount, formatDateTime, pluralize } from "../../lib/format";
+import { formatCount, formatDateTime, formatMa, pluralize } from "../../lib/format";
 import { paths } from "../../lib/paths";
 import { useDocumentTitle } from "../../lib/useDocumentTitle";
 import { isRunActive, runExportUrl, useRerunRun, useRetryRun, useRunList } from "../../lib/queries/runs";
@@ -217,7 +217,7 @@ interface RunRowProps {
 function RunRow({ studyId, run, chosen, canRun, busy, onToggle, onRerun, onRetry }: RunRowProps) {
   const status = STATUS[run.status];
   const percent = Math.round(run.progress * 100);
-  const boundaries = run.params.boundaries.map((b) => b.label ?? `${b.boundaryMa} Ma`);
+  const boundaries = run.params.boundaries.map((b) => b.label ?? formatMa(b.boundaryMa));
   return (
     <tr data-run={run.name} data-run-id={run.id} className={chosen ? "bg-accent-50/60" : undefined}>
       <td className="px-4 py-3 align-top">

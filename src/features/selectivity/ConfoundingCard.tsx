@@ -1,5 +1,6 @@
 import { Card } from "../../components/Card";
 import { cx } from "../../lib/cx";
+import { pluralize } from "../../lib/format";
 import { contrastWords, type ContrastData, type SelectivityResultData } from "./resultRows";
 import { Body, ColHead, HeadRow, ResultTable, td, tdNum, thNum } from "./ResultTable";
 import { formatChange, formatEstimate, formatInterval, formatP, formatWholePercent, levelWords } from "./words";
@@ -131,7 +132,7 @@ export function ConfoundingCard({ result, level, threshold }: { result: Selectiv
             {result.confoundingMethod} Moves by: |standardised ÷ crude − 1| with the p-value of the move against its bootstrap standard error. The clade column gives the
             within-clade odds ratio and how many clades carry information. A small Breslow-Day p says the odds ratio differs between clades, so one common figure
             summarises them poorly.
-            {result.design.withoutClade ? ` ${result.design.withoutClade} taxa without a higher taxon are left out of the clade-adjusted odds ratios.` : ""}
+            {result.design.withoutClade ? ` ${pluralize(result.design.withoutClade, "taxon", "taxa")} without a higher taxon ${result.design.withoutClade === 1 ? "is" : "are"} left out of the clade-adjusted odds ratios.` : ""}
             {result.design.withQualifiedClade ? ` ${result.design.withQualifiedClade} taxa have a qualified higher taxon (?, cf., aff.): ${QUALIFIED_HIGHER_TAXON_RULE.charAt(0).toLowerCase()}${QUALIFIED_HIGHER_TAXON_RULE.slice(1)}` : ""}
           </p>
         ) : (

@@ -72,7 +72,7 @@ export function TraitResultCard({ trait, level, correction, filePrefix, printabl
             caption={
               <>
                 Share of taxa lost in each {trait.kind === "numeric" ? "quarter of values" : "state"}, with {percent} Wilson score intervals (Wilson 1927); the dashed
-                line is the share over all {formatCount(trait.used)} taxa.{" "}
+                line is the share over all {pluralize(trait.used, "taxon", "taxa")}.{" "}
                 {trait.kind === "numeric"
                   ? "The quarters have no reference, so their bars are neutral; the odds ratio per step below gives the direction."
                   : "The reference state is grey; a state that lost more than the reference is clay red, one that lost fewer is teal, as in the heat map."}{" "}
