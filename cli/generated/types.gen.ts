@@ -955,6 +955,10 @@ export type RunParams = {
      */
     crisisBoundary?: number;
     /**
+     * Sampling covariates added to the multiple regression, from the study's occurrences: occurrences (log10 of the number of finds) and collections (distinct collections). The result compares each trait's odds ratio with and without them; left out: none
+     */
+    samplingCovariates?: Array<'occurrences' | 'collections'>;
+    /**
      * Settings of the robustness panel; left out: the defaults (windows 0.5, 1.5 and 2 times each boundary's, truncation a quarter of the window)
      */
     robustness?: {
@@ -1098,6 +1102,75 @@ export type Run = {
              */
             completeCases: number;
             result: SelectivityResult;
+            /**
+             * Each trait's odds ratio with and without the sampling covariates, when the run asked for them; absent otherwise and in runs stored before this existed
+             */
+            sampling?: {
+                covariates: Array<'occurrences' | 'collections'>;
+                /**
+                 * Victims and survivors with at least one occurrence: the sample of both fits
+                 */
+                taxa: number;
+                /**
+                 * Victims and survivors with no occurrence in the study's uploads: left out of both fits
+                 */
+                withoutOccurrences: number;
+                /**
+                 * The sampling covariates' own odds ratios in the fit that holds them
+                 */
+                covariateTerms: Array<{
+                    covariate: 'occurrences' | 'collections';
+                    label: string;
+                    oddsRatio: {
+                        estimate: number;
+                        ci: [
+                            number,
+                            number
+                        ];
+                    } | null;
+                    pValue: number | null;
+                }>;
+                contrasts: Array<{
+                    traitKey: string;
+                    traitLabel: string;
+                    /**
+                     * The state compared with the reference; null for a numeric trait
+                     */
+                    state: string | null;
+                    contrast: string;
+                    /**
+                     * Odds ratio adjusted for the other traits, over the same taxa, without the sampling covariates
+                     */
+                    withoutSampling: {
+                        estimate: number;
+                        ci: [
+                            number,
+                            number
+                        ];
+                    } | null;
+                    /**
+                     * The same odds ratio once the sampling covariates are in the model
+                     */
+                    withSampling: {
+                        estimate: number;
+                        ci: [
+                            number,
+                            number
+                        ];
+                    } | null;
+                    /**
+                     * holds: the interval excludes 1 on the same side with and without sampling; does_not_hold: it excluded 1 without sampling and no longer does; no_signal: it included 1 without sampling
+                     */
+                    verdict: 'holds' | 'does_not_hold' | 'no_signal' | 'not_estimable';
+                    words: string;
+                }>;
+                /**
+                 * Why there is no comparison (no occurrences, too few taxa, no model), or null
+                 */
+                note: string | null;
+                method: string;
+                caution: string;
+            } | null;
         }>;
         /**
          * The traits tested, as the codebook named them when the run read it
@@ -2471,6 +2544,10 @@ export type ImportPreview = {
          */
         similarNames: Array<SimilarNames>;
         /**
+         * Higher taxa of the file that differ from each other or from the study's only by case, spaces or punctuation (qualified names such as Anazygidae? left out: they differ on purpose)
+         */
+        similarHigherTaxa: Array<SimilarNames>;
+        /**
          * Higher taxa written with a qualifier (?, cf., aff.): kept as written
          */
         qualifiedHigherTaxa: Array<QualifiedHigherTaxon>;
@@ -2579,6 +2656,7 @@ export type QualifiedHigherTaxon = {
 export type ImportPreviewRequest = {
     mapping: ImportMapping;
     nameMerges?: NameMerges;
+    higherTaxonMerges?: NameMerges;
 };
 
 export type ImportMapping = {
@@ -2623,6 +2701,7 @@ export type ImportProblemsError = {
 export type ImportCommit = {
     mapping: ImportMapping;
     nameMerges?: NameMerges;
+    higherTaxonMerges?: NameMerges;
     skipInvalid: boolean;
     /**
      * Recorded on every coding decision; default: the file name
@@ -2743,6 +2822,10 @@ export type OccurrencePreview = {
          */
         similarNames: Array<SimilarNames>;
         /**
+         * Higher taxa of the file that differ from each other or from the study's only by case, spaces or punctuation (qualified names such as Anazygidae? left out: they differ on purpose)
+         */
+        similarHigherTaxa: Array<SimilarNames>;
+        /**
          * Higher taxa written with a qualifier (?, cf., aff.): kept as written
          */
         qualifiedHigherTaxa: Array<QualifiedHigherTaxon>;
@@ -2797,6 +2880,7 @@ export type OccurrencePreviewRequest = {
      */
     duplicates?: 'keep' | 'drop';
     nameMerges?: NameMerges;
+    higherTaxonMerges?: NameMerges;
 };
 
 export type OccurrenceMapping = {
@@ -2847,6 +2931,7 @@ export type OccurrenceCommit = {
      */
     duplicates?: 'keep' | 'drop';
     nameMerges?: NameMerges;
+    higherTaxonMerges?: NameMerges;
     skipInvalid: boolean;
 };
 
@@ -5816,9 +5901,9 @@ export type ExportRunData = {
     query?: {
         format?: 'json' | 'csv';
         /**
-         * CSV only: one table (run: name, parameters, data hash and cautions as field and value; design, states: extinction proportions per trait state, tests, contrasts: odds ratios crude and adjusted, coefficients and terms of the multiple regression; crisis: crisis against background per trait contrast (background, crisis and ratio of odds ratios, the adjusted likelihood-ratio test); robustness: each contrast's crude and adjusted odds ratio under every variant of the robustness panel, with its verdicts); default: all, each row naming its table in the first column
+         * CSV only: one table (run: name, parameters, data hash and cautions as field and value; design, states: extinction proportions per trait state, tests, contrasts: odds ratios crude and adjusted, coefficients and terms of the multiple regression; crisis: crisis against background per trait contrast (background, crisis and ratio of odds ratios, the adjusted likelihood-ratio test); robustness: each contrast's crude and adjusted odds ratio under every variant of the robustness panel, with its verdicts; sampling: each contrast's odds ratio without and with the sampling covariates, and whether it holds); default: all, each row naming its table in the first column
          */
-        table?: 'run' | 'design' | 'states' | 'tests' | 'contrasts' | 'coefficients' | 'terms' | 'crisis' | 'robustness';
+        table?: 'run' | 'design' | 'states' | 'tests' | 'contrasts' | 'coefficients' | 'terms' | 'crisis' | 'robustness' | 'sampling';
     };
     url: '/api/studies/{studyId}/runs/{runId}/export';
 };

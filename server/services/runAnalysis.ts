@@ -5,6 +5,7 @@ import type { Database } from "../db";
 import { APP_VERSION } from "../config";
 import { activity, runs } from "../../db/schema/index";
 import { analyzeSelectivity } from "../../shared/selectivity/index";
+import { samplingCovariateCheck, SAMPLING_CAUTION } from "../../shared/sampling/index";
 import type { SelectivityInput, SelectivityResult } from "../../shared/selectivity/types";
 import { DEFAULT_MIN_INFORMATIVE_CLADES, type RunParams, type RunResults } from "../../shared/schemas/runs";
 import { crisisCheck, crisisComparison, robustnessItems, robustnessPanels, robustnessResult } from "./runChecks";
@@ -20,11 +21,14 @@ export interface SelectivityTaskInput {
 }
 export type SelectivityTaskOutput = SelectivityResult[];
 
+/** The traits as the analyses take them (without the codebook id). */
+const analysisTraits = (data: StudyData) => data.specs.map(({ traitId: _traitId, ...spec }) => spec);
+
 /** One boundary's analysis as the "selectivity" worker task takes it. */
 export function analysisInput(data: StudyData, b: BoundaryData, params: RunParams): SelectivityInput {
   return {
     taxa: b.taxa,
-    traits: data.specs.map(({ traitId: _traitId, ...spec }) => spec),
+    traits: analysisTraits(data),
     options: {
       correction: params.correction,
       forceFirth: params.forceFirth,
@@ -38,9 +42,14 @@ export function analysisInput(data: StudyData, b: BoundaryData, params: RunParam
 /** What a run stores once its analyses are computed (one result per boundary, in order). */
 export function runResults(read: StudyData, computed: SelectivityTaskOutput): RunResults {
   return {
-    boundaries: read.boundaries.map((b, i) => ({ ...b.design, completeCases: computed[i].design.completeCases, result: computed[i] })),
+    boundaries: read.boundaries.map((b, i) => ({
+      ...b.design,
+      completeCases: computed[i].design.completeCases,
+      result: computed[i],
+      ...(read.sampling ? { sampling: samplingCovariateCheck({ taxa: b.taxa, traits: analysisTraits(read), counts: read.sampling.counts, covariates: read.sampling.covariates, options: read.sampling.options }) } : {}),
+    })),
     traits: read.specs.map((s) => ({ traitId: s.traitId, key: s.key, label: s.label })),
-    cautions: [SELECTIVITY_CAUTION, ...read.boundaries.flatMap((b) => b.warnings)],
+    cautions: [SELECTIVITY_CAUTION, ...(read.sampling ? [SAMPLING_CAUTION] : []), ...read.boundaries.flatMap((b) => b.warnings)],
   };
 }
 

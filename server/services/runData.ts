@@ -14,6 +14,9 @@ import type { OutcomesResult } from "../../shared/schemas/outcomes";
 import type { Trait } from "../../shared/schemas/traits";
 import type { ClassifiedTaxon } from "./outcomeClassification";
 import { DomainError, invalidInput } from "../domain/errors";
+import { occurrenceCountsOf } from "./occurrenceCounts";
+import type { SamplingCounts } from "../../shared/sampling/index";
+import type { SamplingCovariate } from "../../shared/schemas/samplingCheck";
 
 /** What a run needs from the services that own the data. */
 export interface RunDataSources {
@@ -35,6 +38,8 @@ export interface BoundaryData {
 export interface StudyData {
   specs: TraitSpec[];
   boundaries: BoundaryData[];
+  /** When the run adds sampling covariates: which, each taxon's finds and collections, and the fit's options. */
+  sampling: { covariates: SamplingCovariate[]; counts: SamplingCounts; options: { forceFirth: boolean; level: number } } | null;
   dataHash: string;
   rowCount: number;
 }
@@ -113,9 +118,13 @@ function warningCautions(label: string, result: OutcomesResult): string[] {
   return out;
 }
 
-/** SHA-256 of a canonical serialisation of exactly the data read: codebook entries and, per boundary, every taxon's id, name, clade, outcome and values, sorted by id. */
-function hashData(specs: TraitSpec[], boundaries: BoundaryData[]): string {
+/**
+ * SHA-256 of a canonical serialisation of exactly the data read: codebook entries and, per boundary, every taxon's id, name, clade, outcome and values,
+ * sorted by id; with sampling covariates, every taxon's finds and collections too (absent otherwise, so earlier runs keep their hash).
+ */
+function hashData(specs: TraitSpec[], boundaries: BoundaryData[], sampling: StudyData["sampling"]): string {
   const canonical = {
+    ...(sampling ? { sampling: Object.keys(sampling.counts).sort().map((id) => [id, sampling.counts[id]!.occurrences, sampling.counts[id]!.collections]) } : {}),
     traits: specs.map((s) => [s.traitId, s.key, s.kind, s.states.map((c) => c.code)]),
     boundaries: boundaries.map((b) => ({
       boundaryMa: b.design.boundaryMa,
@@ -198,5 +207,16 @@ export async function readStudyData(
       warnings: warningCautions(label, result),
     });
   }
-  return { specs, boundaries, dataHash: hashData(specs, boundaries), rowCount: boundaries.reduce((n, b) => n + b.taxa.length, 0) };
+  const sampling = await samplingData(db, studyId, params, boundaries);
+  return { specs, boundaries, sampling, dataHash: hashData(specs, boundaries, sampling), rowCount: boundaries.reduce((n, b) => n + b.taxa.length, 0) };
+}
+
+/** Each tested taxon's finds and distinct collections, when the run adds sampling covariates (taxa named in no occurrence have 0). */
+async function samplingData(db: Database, studyId: string, params: RunParams, boundaries: BoundaryData[]): Promise<StudyData["sampling"]> {
+  const covariates = params.samplingCovariates ?? [];
+  if (covariates.length === 0) return null;
+  const ids = [...new Set(boundaries.flatMap((b) => b.taxa.map((t) => t.id)))];
+  const counts: SamplingCounts = {};
+  for (const [id, c] of await occurrenceCountsOf(db, studyId, ids)) counts[id] = { occurrences: c.occurrences, collections: c.collections };
+  return { covariates, counts, options: { forceFirth: params.forceFirth, level: params.level } };
 }

@@ -52,7 +52,52 @@ const COLUMNS: Record<RunExportTable, string[]> = {
   terms: [...BOUNDARY_COLUMNS, "term", "df", "chi_square", "p_value"],
   crisis: CRISIS_COLUMNS,
   robustness: ROBUSTNESS_COLUMNS,
+  sampling: [
+    ...BOUNDARY_COLUMNS,
+    "covariates",
+    "taxa_with_occurrences",
+    "taxa_without_occurrences",
+    "trait",
+    "contrast",
+    "or_without_sampling",
+    "ci_low_without_sampling",
+    "ci_high_without_sampling",
+    "or_with_sampling",
+    "ci_low_with_sampling",
+    "ci_high_with_sampling",
+    "verdict",
+    "words",
+    "note",
+  ],
 };
+
+/** Each contrast's odds ratio without and with the sampling covariates, per boundary; a boundary without a comparison gives one row with its note. */
+function samplingRows(run: Run): Record_[] {
+  const out: Record_[] = [];
+  for (const b of run.results?.boundaries ?? []) {
+    const s = b.sampling;
+    if (!s) continue;
+    const common = { boundary_ma: b.boundaryMa, window_myr: b.windowMyr, boundary_label: b.label, covariates: s.covariates.join("; "), taxa_with_occurrences: s.taxa, taxa_without_occurrences: s.withoutOccurrences };
+    if (s.contrasts.length === 0) out.push({ ...common, note: s.note });
+    for (const c of s.contrasts) {
+      out.push({
+        ...common,
+        trait: c.traitKey,
+        contrast: c.contrast,
+        or_without_sampling: c.withoutSampling?.estimate ?? null,
+        ci_low_without_sampling: c.withoutSampling?.ci[0] ?? null,
+        ci_high_without_sampling: c.withoutSampling?.ci[1] ?? null,
+        or_with_sampling: c.withSampling?.estimate ?? null,
+        ci_low_with_sampling: c.withSampling?.ci[0] ?? null,
+        ci_high_with_sampling: c.withSampling?.ci[1] ?? null,
+        verdict: c.verdict,
+        words: c.words,
+        note: s.note,
+      });
+    }
+  }
+  return out;
+}
 
 function runRows(run: Run): Record_[] {
   const p = run.params;
@@ -83,6 +128,7 @@ function runRows(run: Run): Record_[] {
     ["level", p.level],
     ["confounding_threshold", p.confoundingThreshold],
     ["min_informative_clades", p.minInformativeClades ?? 3],
+    ["sampling_covariates", (p.samplingCovariates ?? []).join("; ") || null],
     ["crisis_boundary", p.crisisBoundary !== undefined ? (run.results?.boundaries[p.crisisBoundary]?.label ?? `boundary ${p.crisisBoundary + 1}`) : null],
     ...(run.results?.cautions ?? []).map((c): [string, Cell] => ["caution", c]),
   ];
@@ -93,6 +139,7 @@ function tableRows(run: Run, table: RunExportTable): Record_[] {
   if (table === "run") return runRows(run);
   if (table === "crisis") return crisisRows(run);
   if (table === "robustness") return robustnessRows(run);
+  if (table === "sampling") return samplingRows(run);
   const out: Record_[] = [];
   for (const b of run.results?.boundaries ?? []) {
     const where = { boundary_ma: b.boundaryMa, window_myr: b.windowMyr, boundary_label: b.label };

@@ -5,6 +5,7 @@ import { AGE_LIMIT_MA, oneLine, uuidSchema } from "./common";
 import { confidenceLevelSchema } from "./savedAnalysis";
 import { numericTransformSchema } from "./traits";
 import { crisisBoundaryParamSchema, robustnessParamsSchema } from "./runChecks";
+import { samplingCovariatesSchema } from "./samplingCheck";
 
 /** Most boundaries one run tests. */
 export const RUN_MAX_BOUNDARIES = 8;
@@ -96,6 +97,7 @@ export const runParamsSchema = z
       .optional()
       .meta({ description: "Clade-adjusted estimates resting on fewer informative clades than this are marked thin and never flag possible confounding (default 3 when left out)" }),
     crisisBoundary: crisisBoundaryParamSchema,
+    samplingCovariates: samplingCovariatesSchema,
     robustness: robustnessParamsSchema.optional().meta({ description: "Settings of the robustness panel; left out: the defaults (windows 0.5, 1.5 and 2 times each boundary's, truncation a quarter of the window)" }),
   })
   .superRefine((p, ctx) => {

@@ -10,6 +10,7 @@ import { runCrisisSchema, runRobustnessSchema } from "./runChecks";
 import { runParamsSchema } from "./runParams";
 import { selectivityResultSchema } from "./selectivityResult";
 import { savedAnalysisSummarySchema } from "./savedAnalysis";
+import { samplingCheckSchema } from "./samplingCheck";
 
 export * from "./runParams";
 export * from "./selectivityResult";
@@ -80,7 +81,15 @@ export type RunPreview = z.infer<typeof runPreviewSchema>;
 
 export const runResultsSchema = z
   .object({
-    boundaries: z.array(runBoundaryDesignSchema.extend({ result: selectivityResultSchema })),
+    boundaries: z.array(
+      runBoundaryDesignSchema.extend({
+        result: selectivityResultSchema,
+        sampling: samplingCheckSchema
+          .nullable()
+          .optional()
+          .meta({ description: "Each trait's odds ratio with and without the sampling covariates, when the run asked for them; absent otherwise and in runs stored before this existed" }),
+      }),
+    ),
     traits: z
       .array(z.object({ traitId: z.uuid(), key: z.string(), label: z.string() }))
       .meta({ description: "The traits tested, as the codebook named them when the run read it" }),
@@ -140,13 +149,13 @@ export type RunList = z.infer<typeof runListSchema>;
 
 // ---------------------------------------------------------------- export
 
-export const RUN_EXPORT_TABLES = ["run", "design", "states", "tests", "contrasts", "coefficients", "terms", "crisis", "robustness"] as const;
+export const RUN_EXPORT_TABLES = ["run", "design", "states", "tests", "contrasts", "coefficients", "terms", "crisis", "robustness", "sampling"] as const;
 export type RunExportTable = (typeof RUN_EXPORT_TABLES)[number];
 
 export const runExportQuerySchema = exportQuerySchema(
   RUN_EXPORT_TABLES,
   "json",
-  "run: name, parameters, data hash and cautions as field and value; design, states: extinction proportions per trait state, tests, contrasts: odds ratios crude and adjusted, coefficients and terms of the multiple regression; crisis: crisis against background per trait contrast (background, crisis and ratio of odds ratios, the adjusted likelihood-ratio test); robustness: each contrast's crude and adjusted odds ratio under every variant of the robustness panel, with its verdicts",
+  "run: name, parameters, data hash and cautions as field and value; design, states: extinction proportions per trait state, tests, contrasts: odds ratios crude and adjusted, coefficients and terms of the multiple regression; crisis: crisis against background per trait contrast (background, crisis and ratio of odds ratios, the adjusted likelihood-ratio test); robustness: each contrast's crude and adjusted odds ratio under every variant of the robustness panel, with its verdicts; sampling: each contrast's odds ratio without and with the sampling covariates, and whether it holds",
 );
 export type RunExportQuery = z.input<typeof runExportQuerySchema>;
 

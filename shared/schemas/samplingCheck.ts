@@ -16,10 +16,10 @@ export const samplingCovariatesSchema = z
   })
   .max(2, "samplingCovariates lists each of occurrences and collections at most once")
   .refine((list) => new Set(list).size === list.length, "samplingCovariates lists a covariate twice")
-  .default([])
+  .optional()
   .meta({
     description:
-      "Sampling covariates added to the multiple regression, from the study's occurrences: occurrences (log10 of the number of finds) and collections (distinct collections). The result compares each trait's odds ratio with and without them",
+      "Sampling covariates added to the multiple regression, from the study's occurrences: occurrences (log10 of the number of finds) and collections (distinct collections). The result compares each trait's odds ratio with and without them; left out: none",
   });
 
 const oddsRatioSchema = z.object({ estimate: z.number(), ci: z.tuple([z.number(), z.number()]) }).nullable();

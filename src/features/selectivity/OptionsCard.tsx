@@ -4,6 +4,7 @@ import { Card } from "../../components/Card";
 import { Select } from "../../components/Select";
 import type { FieldErrors } from "../../lib/forms";
 import type { Draft } from "./configDraft";
+import { SamplingCovariatesField } from "./SamplingCovariatesField";
 
 const LEVELS = [0.9, 0.95, 0.99];
 const MIN_CLADES = [1, 2, 3, 4, 5, 8, 10];
@@ -81,6 +82,7 @@ export function OptionsCard({ draft, errors, onChange }: OptionsCardProps) {
           {errors.forceFirth && <p className="text-sm font-medium text-red-700">{errors.forceFirth}</p>}
         </div>
       </div>
+      <SamplingCovariatesField draft={draft} error={errors.samplingCovariates} onChange={onChange} />
     </Card>
   );
 }

@@ -31,6 +31,7 @@ const TABLE_LABEL: Record<(typeof RUN_EXPORT_TABLES)[number], string> = {
   terms: "Regression likelihood ratio tests",
   crisis: "Crisis against background",
   robustness: "Robustness panel: every variant",
+  sampling: "Sampling: odds ratios with and without it",
 };
 
 export const reportPath = (studyId: string, runId: string) => `${paths.study(studyId)}/runs/${runId}/report`;

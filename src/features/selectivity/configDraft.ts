@@ -3,6 +3,7 @@
 import type { NumericTransform } from "@shared/codebook";
 import { DEFAULT_CONFOUNDING_THRESHOLD, DEFAULT_MIN_INFORMATIVE_CLADES, runParamsSchema, type RunParams, type RunParamsInput } from "@shared/schemas/runs";
 import type { Trait } from "@shared/schemas/traits";
+import type { SamplingCovariate } from "@shared/schemas/samplingCheck";
 import { formatMa } from "../../components/timescale/ages";
 import type { ScaleIndex } from "../../components/timescale/scaleIndex";
 import { issuesToFieldErrors, type FieldErrors } from "../../lib/forms";
@@ -42,6 +43,8 @@ export interface Draft {
   /** Robustness panel: window factors as typed ("0.5, 1.5, 2") and the truncation distance in Myr; undefined: the defaults. */
   windowFactors?: string;
   truncationMyr?: string;
+  /** Sampling covariates added to the multiple regression (from the study's occurrences); empty: none. */
+  samplingCovariates: SamplingCovariate[];
 }
 
 let nextKey = 1;
@@ -56,6 +59,7 @@ export const EMPTY_DRAFT: Draft = {
   level: 0.95,
   confoundingThreshold: DEFAULT_CONFOUNDING_THRESHOLD,
   minInformativeClades: DEFAULT_MIN_INFORMATIVE_CLADES,
+  samplingCovariates: [],
 };
 
 /** A boundary as a reader knows it: the unit whose base it is, or the age. */
@@ -97,6 +101,7 @@ export function paramsInput(scale: ScaleIndex | null, draft: Draft): RunParamsIn
     minInformativeClades: draft.minInformativeClades,
     ...crisisParam(draft),
     ...robustnessParam(draft),
+    ...(draft.samplingCovariates.length ? { samplingCovariates: draft.samplingCovariates } : {}),
   };
 }
 
@@ -146,6 +151,7 @@ export function draftFromParams(params: RunParams, codebook: readonly Trait[]): 
       level: params.level,
       confoundingThreshold: params.confoundingThreshold,
       minInformativeClades: params.minInformativeClades ?? DEFAULT_MIN_INFORMATIVE_CLADES,
+      samplingCovariates: [...(params.samplingCovariates ?? [])],
     },
     missingTraits: params.traits.length - traits.length,
   };
