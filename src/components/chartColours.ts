@@ -33,6 +33,9 @@ export const ESTIMATE_COLOUR = {
   model: "#9a5b0c",
 } as const;
 
+/** The one drawn with emphasis among its variants (the run's own choice among the robustness variants): ink, not a direction colour. */
+export const EMPHASIS_COLOUR = "#1c1917";
+
 /** The chosen boundary drawn across a chart through time. */
 export const BOUNDARY_MARK_COLOUR = "#292524";
 

@@ -22,10 +22,12 @@ export interface BoundaryResultsProps {
   printable?: boolean;
   /** The boundary's robustness panel, when the run computed one: its verdicts join the odds-ratio table. */
   robustness?: RobustnessPanel | null;
+  /** An earlier boundary of the same page already explained how the confounding flag is decided. */
+  explainedAbove?: boolean;
 }
 
 /** Everything a run found at one boundary: who entered, the forest plot, the confounding check, each trait, the model. */
-export function BoundaryResults({ boundary, params, filePrefix, printable = false, robustness = null }: BoundaryResultsProps) {
+export function BoundaryResults({ boundary, params, filePrefix, printable = false, robustness = null, explainedAbove = false }: BoundaryResultsProps) {
   const { result } = boundary;
   const rows = forestRows(result);
   const verdictOf = new Map((robustness?.contrasts ?? []).map((c) => [`${c.traitKey}:${c.contrast}`, c.verdict.adjusted]));
@@ -94,7 +96,7 @@ export function BoundaryResults({ boundary, params, filePrefix, printable = fals
         )}
       </Card>
 
-      <ConfoundingCard result={result} level={params.level} threshold={params.confoundingThreshold} />
+      <ConfoundingCard result={result} level={params.level} threshold={params.confoundingThreshold} explainedAbove={explainedAbove} />
 
       <section aria-label={`Each trait at ${boundary.label}`} className="space-y-6">
         {result.traits.map((trait) => (

@@ -67,7 +67,18 @@ export function groupNotes(contrasts: ReadonlyArray<{ name: string; notes: reado
  * clade (Mantel-Haenszel, with Breslow-Day's test of one common odds ratio across clades) and for
  * the other traits (the multiple regression), flagged when it moves by more than the threshold.
  */
-export function ConfoundingCard({ result, level, threshold }: { result: SelectivityResultData; level: number; threshold: number }) {
+export function ConfoundingCard({
+  result,
+  level,
+  threshold,
+  explainedAbove = false,
+}: {
+  result: SelectivityResultData;
+  level: number;
+  threshold: number;
+  /** The report has already said how the flag is decided (at its first boundary): say it once, point back here. */
+  explainedAbove?: boolean;
+}) {
   // Runs stored before the calibrated flag carry no method: they were flagged on the move alone.
   const calibrated = result.confoundingMethod !== undefined;
   const percent = levelWords(level);
@@ -92,8 +103,8 @@ export function ConfoundingCard({ result, level, threshold }: { result: Selectiv
               ? "No contrast is flagged: no odds ratio moves on adjustment by more than the threshold and its own uncertainty together."
               : "No odds ratio moves by more than the threshold on adjustment."
             : `${flagged.length === 1 ? "One contrast is" : `${flagged.length} contrasts are`} flagged as possible confounding: ${flagged.map((r) => `${r.trait.label} (${contrastWords(r.trait, r.contrast)})`).join("; ")}.`}{" "}
-          A trait can track extinction only because both share a cause, for instance when the trait is concentrated in clades that were hit hard for
-          other reasons; the adjusted odds ratios show how much of the association remains within clades and beside the other traits.
+          {!explainedAbove &&
+            "A trait can track extinction only because both share a cause, for instance when the trait is concentrated in clades that were hit hard for other reasons; the adjusted odds ratios show how much of the association remains within clades and beside the other traits."}
         </p>
         <ResultTable caption={`Crude and adjusted odds ratios with ${percent} intervals, and how far each moves on adjustment`} minWidth="44rem">
           <HeadRow>
@@ -126,7 +137,13 @@ export function ConfoundingCard({ result, level, threshold }: { result: Selectiv
             ))}
           </Body>
         </ResultTable>
-        {calibrated ? (
+        {calibrated && explainedAbove ? (
+          <p className="text-sm text-stone-600" data-testid="confounding-method">
+            <span className="font-medium text-stone-700">How the flag is decided: </span>
+            as under the first boundary of this report.
+            {result.design.withoutClade ? ` ${pluralize(result.design.withoutClade, "taxon", "taxa")} without a higher taxon ${result.design.withoutClade === 1 ? "is" : "are"} left out of the clade-adjusted odds ratios.` : ""}
+          </p>
+        ) : calibrated ? (
           <p className="text-sm text-stone-600" data-testid="confounding-method">
             <span className="font-medium text-stone-700">How the flag is decided. </span>
             {result.confoundingMethod} Moves by: |standardised ÷ crude − 1| with the p-value of the move against its bootstrap standard error. The clade column gives the

@@ -1,4 +1,5 @@
 import { useId, useState } from "react";
+import { EMPHASIS_COLOUR, REFERENCE_COLOUR } from "../../components/chartColours";
 import type { RobustnessPanel } from "@shared/selectivity/robustnessPanel";
 import type { RunResults } from "@shared/schemas/runs";
 import { Card } from "../../components/Card";
@@ -184,18 +185,19 @@ function VariantChart({ panel, contrast, measure }: { panel: RobustnessPanel; co
         aria-label={`${title}: odds ratio (${measure}) under each variant. ${verdict.sentence}`}
         style={{ fontFamily: '"Inter Tight", system-ui, sans-serif' }}
       >
-        <line x1={x(1)} x2={x(1)} y1={4} y2={height - 18} stroke="#a8a29e" strokeDasharray="3 3" />
+        <line x1={x(1)} x2={x(1)} y1={4} y2={height - 18} stroke={REFERENCE_COLOUR} strokeDasharray="3 3" />
         {rows.map((r, i) => {
           const y = 12 + i * ROW;
           return (
             <g key={r.label}>
-              <text x={0} y={y + 4} fontSize={11} fill={r.own ? "#1c1917" : "#57534e"} fontWeight={r.own ? 700 : 400}>
+              <text x={0} y={y + 4} fontSize={11} fill={r.own ? EMPHASIS_COLOUR : "#57534e"} fontWeight={r.own ? 700 : 400}>
+                <title>{r.label}</title>
                 {r.label.length > 40 ? `${r.label.slice(0, 39)}…` : r.label}
               </text>
               {r.range && <line x1={x(r.range[0])} x2={x(r.range[1])} y1={y} y2={y} stroke="#d6d3d1" strokeWidth={6} strokeLinecap="round" />}
-              {r.ci && <line x1={x(r.ci[0])} x2={x(r.ci[1])} y1={y} y2={y} stroke={r.own ? "#9a3412" : "#44403c"} strokeWidth={1.5} />}
+              {r.ci && <line x1={x(r.ci[0])} x2={x(r.ci[1])} y1={y} y2={y} stroke={r.own ? EMPHASIS_COLOUR : "#78716c"} strokeWidth={r.own ? 2 : 1.5} />}
               {r.estimate !== null ? (
-                <circle cx={x(r.estimate)} cy={y} r={r.own ? 4.5 : 3.5} fill={r.own ? "#9a3412" : "#ffffff"} stroke={r.own ? "#9a3412" : "#44403c"} strokeWidth={1.5} />
+                <circle cx={x(r.estimate)} cy={y} r={r.own ? 4.5 : 3.5} fill={r.own ? EMPHASIS_COLOUR : "#ffffff"} stroke={r.own ? EMPHASIS_COLOUR : "#78716c"} strokeWidth={1.5} />
               ) : (
                 <text x={LABEL_WIDTH} y={y + 4} fontSize={11} fill="#78716c">
                   not estimated

@@ -14,6 +14,7 @@ import { BoundaryResults } from "./BoundaryResults";
 import { HeatMapCard } from "./HeatMapCard";
 import { CrisisCard, differingTraits } from "./CrisisCard";
 import { panelOf, RobustnessCard } from "./RobustnessCard";
+import { SamplingCard } from "./SamplingCard";
 import { RunProgress } from "./RunProgress";
 import { RunCautions, runFilePrefix, RunParameters } from "./RunResultsView";
 
@@ -110,7 +111,8 @@ function ReportBody({ run }: { run: Run & { results: RunResults } }) {
       {run.results.boundaries.map((boundary, index) => (
         <section key={`${boundary.boundaryMa}-${boundary.windowMyr}`} aria-label={boundary.label} className="space-y-4 break-before-page first-of-type:break-before-auto">
           <h2 className="text-xl font-semibold tracking-tight text-stone-900">Results at {boundary.label}</h2>
-          <BoundaryResults boundary={boundary} params={run.params} filePrefix={prefix} printable robustness={panelOf(run.results, index)?.panel} />
+          <BoundaryResults boundary={boundary} params={run.params} filePrefix={prefix} printable robustness={panelOf(run.results, index)?.panel} explainedAbove={index > 0} />
+          <SamplingCard boundary={boundary} printable />
           <RobustnessCard results={run.results} index={index} label={boundary.label} printable />
         </section>
       ))}
