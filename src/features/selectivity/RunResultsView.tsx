@@ -9,6 +9,8 @@ import { BoundaryResults } from "./BoundaryResults";
 import { HeatMapCard } from "./HeatMapCard";
 import { CrisisCard, differingTraits } from "./CrisisCard";
 import { panelOf, RobustnessCard } from "./RobustnessCard";
+import { SamplingCard } from "./SamplingCard";
+import { SAMPLING_COVARIATE_LABELS } from "@shared/schemas/samplingCheck";
 import { boundaryColumns } from "./resultRows";
 import { CORRECTION_LABELS, fileSlug, formatWholePercent, levelWords } from "./words";
 
@@ -96,6 +98,9 @@ export function RunParameters({ run }: { run: Run }) {
         Windows ×{(p.robustness?.windowFactors ?? [0.5, 1.5, 2]).join(", ×")}; truncation{" "}
         {p.robustness?.truncationMyr !== undefined ? formatMyr(p.robustness.truncationMyr) : "a quarter of each window"}
       </Item>
+      <Item label="Sampling covariates">
+        {(p.samplingCovariates ?? []).length ? (p.samplingCovariates ?? []).map((c) => SAMPLING_COVARIATE_LABELS[c]).join("; ") : "None"}
+      </Item>
       <Item label="Intervals">{levelWords(p.level)}</Item>
       <Item label="Clade-adjusted odds ratios">
         Stratified by higher taxon (Mantel-Haenszel for states, conditional logistic regression for numbers); thin below {p.minInformativeClades ?? 3} informative clades
@@ -178,6 +183,11 @@ export function RunResultsView({ run }: { run: Run & { results: RunResults } }) 
           filePrefix={prefix}
           robustness={panelOf(results, Math.min(selected, results.boundaries.length - 1))?.panel}
         />
+        {boundary.sampling && (
+          <div className="mt-6">
+            <SamplingCard key={`sampling-${boundary.boundaryMa}-${boundary.windowMyr}`} boundary={boundary} />
+          </div>
+        )}
         <div className="mt-6">
           <RobustnessCard
             key={`robustness-${boundary.boundaryMa}-${boundary.windowMyr}`}
