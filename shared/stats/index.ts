@@ -27,3 +27,4 @@ export { rocAuc, type RocAucResult } from "./rocAuc";
 export { rocCurve, type RocPoint } from "./rocCurve";
 export { spearman, type SpearmanResult } from "./spearman";
 export { conditionalLogisticSlope, type ConditionalLogisticFit } from "./conditionalLogistic";
+export { separationCheck, type SeparationCheckResult, type SeparationKind } from "./separationCheck";

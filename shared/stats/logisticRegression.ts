@@ -2,6 +2,7 @@ import { chiSquareUpperTail, normalTwoSidedP, twoSidedCriticalValue } from "./di
 import { choleskyDecompose, choleskyInverse } from "./linalg";
 import { divergingDirection, fitMaximumLikelihood, fitNewton, isSeparatingDirection, largestRowChange, type Design } from "./logisticKernels";
 import { brentRoot } from "./roots";
+import { separationCheck, type SeparationKind } from "./separationCheck";
 import type { FlatMatrix } from "./types";
 import { assertBinaryLabels, assertLevel } from "./validate";
 
@@ -76,6 +77,10 @@ export interface LogisticRegressionResult {
   converged: boolean;
   /** The unpenalized fit diverges: some combination of predictors separates the outcomes. */
   separation: boolean;
+  /** From the linear programme: "none", "quasi-complete" or "complete" (absent when it was not run or the second line found separation). */
+  separationKind?: SeparationKind;
+  /** What decided `separation`: the linear programme run before fitting (Konis 2007), or, on designs over 300,000 values or behind it, the fit diverging. */
+  separationMethod: "linear-programme" | "diverging-fit";
   /** Predictors that carry the separating direction (empty without separation). */
   separatedPredictors: string[];
   firth: boolean;
@@ -98,6 +103,8 @@ export interface LogisticRegressionResult {
 
 const FN = "logisticRegression";
 const STILL_MOVING = 0.01;
+/** Design values (rows x coefficients) up to which separation is looked for by linear programming. */
+const SEPARATION_LP_LIMIT = 3e5;
 const PROFILE_WORK_LIMIT = 2e6;
 const FIRTH_MAX_ITERATIONS = 200;
 const FIRTH_TOLERANCE = 1e-10;
@@ -109,8 +116,9 @@ const FIRTH_TOLERANCE = 1e-10;
  * Standard errors come from the inverse information, z = estimate/se with a two-sided normal
  * p-value, intervals are Wald intervals, and oddsRatio = exp(estimate).
  *
- * Separation (Albert & Anderson 1984) is detected when the fit diverges along a direction that
- * orders every outcome, and the predictors involved are named. Then, or on request, Firth's
+ * Separation (Albert & Anderson 1984) is detected before fitting by linear programming (Konis
+ * 2007; see separationCheck), with the fit diverging along a direction that orders every outcome
+ * as a second line (and the only one on designs over 300,000 values), and the predictors involved are named. Then, or on request, Firth's
  * bias-reduced logistic regression is fitted instead (Firth 1993): it maximises the likelihood
  * penalized by Jeffreys' prior, l(beta) + (1/2) ln det I(beta), whose estimates stay finite under
  * separation; its intervals are profile penalized likelihood intervals and its p-values penalized
@@ -158,15 +166,26 @@ export function logisticRegression(
   if (n <= p) throw new Error(`${FN}: ${n} rows cannot estimate ${p} coefficients; more rows than coefficients are needed`);
   checkColumnRank(design, coefficientNames);
 
+  // Separation is looked for before fitting, by linear programming (Konis 2007); on designs too large
+  // for that, and as a second line behind it, the fit running off along a separating direction.
+  const lp = n * p <= SEPARATION_LP_LIMIT ? separationCheck(design, y) : null;
   const ml = fitMaximumLikelihood(design, y, maxIterations, tolerance);
   let separation = false;
+  let separationKind: SeparationKind | undefined = lp?.kind;
+  let separationMethod: LogisticRegressionResult["separationMethod"] = lp ? "linear-programme" : "diverging-fit";
   let separatedPredictors: string[] = [];
-  // At genuine convergence the last Newton step is tiny; a step that still moves some linear
-  // predictor by more than 0.01 means the fit may be running off along a separation.
-  if (!ml.converged || !ml.factorOk || largestRowChange(design, ml.lastStep) > STILL_MOVING) {
+  if (lp && lp.kind !== "none") {
+    separation = true;
+    separatedPredictors = separatingOnTheirOwn(design, y, coefficientNames);
+    if (separatedPredictors.length === 0) separatedPredictors = predictorsAlong(design, lp.direction, coefficientNames);
+  } else if (!ml.converged || !ml.factorOk || largestRowChange(design, ml.lastStep) > STILL_MOVING) {
+    // At genuine convergence the last Newton step is tiny; a step that still moves some linear
+    // predictor by more than 0.01 means the fit may be running off along a separation.
     const direction = divergingDirection(design, y, ml);
     if (isSeparatingDirection(design, y, direction)) {
       separation = true;
+      separationKind = undefined;
+      separationMethod = "diverging-fit";
       separatedPredictors = separatingOnTheirOwn(design, y, coefficientNames);
       if (separatedPredictors.length === 0) separatedPredictors = predictorsAlong(design, direction, coefficientNames);
     }
@@ -182,6 +201,8 @@ export function logisticRegression(
     dfResidual: n - p,
     dfNull: n - 1,
     separation,
+    separationKind,
+    separationMethod,
     separatedPredictors,
     n,
     events,

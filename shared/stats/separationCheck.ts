@@ -36,18 +36,17 @@ export function separationCheck(X: ArrayLike<number>[] | { data: Float64Array; n
   const p = Array.isArray(X) ? (rows > 0 ? X[0].length : 0) : X.p;
   const at = Array.isArray(X) ? (i: number, j: number) => X[i][j] : (i: number, j: number) => X.data[i * X.p + j];
   if (rows === 0 || p === 0) return { kind: "none", direction: [], pivots: 0 };
-  // z_i = (2y - 1) x_i; identical rows are one constraint, so they are merged first.
-  const seen = new Map<string, number>();
-  const z: number[][] = [];
+  // z_i = (2y - 1) x_i, one constraint per row.
+  const z: Float64Array[] = [];
   const scale = new Array<number>(p).fill(0);
   for (let i = 0; i < rows; i++) {
     const sign = y[i] === 1 ? 1 : -1;
-    const row = Array.from({ length: p }, (_, j) => sign * at(i, j));
-    const key = row.join(",");
-    if (seen.has(key)) continue;
-    seen.set(key, z.length);
+    const row = new Float64Array(p);
+    for (let j = 0; j < p; j++) {
+      row[j] = sign * at(i, j);
+      scale[j] = Math.max(scale[j], Math.abs(row[j]));
+    }
     z.push(row);
-    for (let j = 0; j < p; j++) scale[j] = Math.max(scale[j], Math.abs(row[j]));
   }
   // Columns scaled to a largest absolute value of 1, so one tolerance serves every predictor.
   for (const row of z) for (let j = 0; j < p; j++) if (scale[j] > 0) row[j] /= scale[j];

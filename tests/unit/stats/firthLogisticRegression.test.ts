@@ -33,6 +33,12 @@ describe("endometrial data: separation and Firth's penalized likelihood (Heinze 
     expect(fit.converged).toBe(true);
   });
 
+  it("finds that separation before fitting, by the linear programme (Konis 2007), as quasi-complete", () => {
+    // Quasi-complete: the NV = 1 rows sit strictly on the victims' side, the others overlap (docs/sources.md section 5).
+    expect(fit.separationMethod).toBe("linear-programme");
+    expect(fit.separationKind).toBe("quasi-complete");
+  });
+
   it("estimates and Wald standard errors", () => {
     // logistf output as recorded in firthlogist's tests and recomputed (docs/sources.md section 5).
     const expected: Array<[string, number, number]> = [
