@@ -85,7 +85,7 @@ export function importsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRo
     params: importParamsSchema,
     body: importPreviewRequestSchema,
     response: { status: 200, schema: importPreviewSchema },
-    handler: ({ params, body }) => imports.preview(params.studyId, params.importId, body.mapping, body.nameMerges),
+    handler: ({ params, body }) => imports.preview(params.studyId, params.importId, body.mapping, body.nameMerges, body.higherTaxonMerges),
   });
 
   api.add({

@@ -20,24 +20,36 @@ export interface PreparedImportFile {
   missingTokens: string[];
   missingRead: MissingRead[];
   merges: NameMerges;
+  /** The higher-taxon column as written (tokens blanked, before merges), and the chosen higher-taxon merges. */
+  fileHigherTaxa: Array<{ row: number; name: string }>;
+  higherTaxonMerges: NameMerges;
 }
 
 /** The mapped columns (tokens apply there only) and the name column of an upload. */
 export interface ImportColumns {
   name: string | null;
+  higherTaxon: string | null;
   mapped: Array<string | null>;
 }
 
-export async function prepareImportFile(db: DbOrTx, studyId: string, raw: ParsedCsv, columns: ImportColumns, merges: NameMerges): Promise<PreparedImportFile> {
+/** Spellings chosen in the preview: of taxon names and of higher taxa. */
+export interface ImportMerges {
+  names: NameMerges;
+  higherTaxa: NameMerges;
+}
+
+export async function prepareImportFile(db: DbOrTx, studyId: string, raw: ParsedCsv, columns: ImportColumns, merges: ImportMerges): Promise<PreparedImportFile> {
   const { missingTokens } = await loadImportSettings(db, studyId);
   const mapped = columns.mapped.filter((c): c is string => c !== null);
   const { parsed: blanked, read } = blankMissingTokens(raw, missingTokens, mapped);
   return {
-    parsed: renameInColumn(blanked, columns.name, merges),
+    parsed: renameInColumn(renameInColumn(blanked, columns.name, merges.names), columns.higherTaxon, merges.higherTaxa),
     fileNames: namesInColumn(blanked, columns.name),
     missingTokens,
     missingRead: read,
-    merges,
+    merges: merges.names,
+    fileHigherTaxa: namesInColumn(blanked, columns.higherTaxon),
+    higherTaxonMerges: merges.higherTaxa,
   };
 }
 
@@ -64,6 +76,18 @@ async function studyNamesLike(db: DbOrTx, studyId: string, fileNames: Array<{ na
   return (result.rows as Array<{ name: string }>).map((r) => r.name);
 }
 
+/** The study's distinct higher taxa whose comparison key is one of the file's. */
+async function studyHigherTaxaLike(db: DbOrTx, studyId: string, fileHigherTaxa: Array<{ name: string }>): Promise<string[]> {
+  const names = [...new Set(fileHigherTaxa.map((n) => n.name))];
+  if (names.length === 0) return [];
+  const key = (expr: ReturnType<typeof sql>) => sql`regexp_replace(lower(normalize(${expr}, NFKC)), '[[:space:][:punct:]]', '', 'g')`;
+  const result = await db.execute(sql`
+    SELECT DISTINCT t.higher_taxon AS name FROM taxa t
+    WHERE t.study_id = ${studyId} AND t.deleted_at IS NULL AND t.higher_taxon <> ''
+      AND ${key(sql`t.higher_taxon`)} IN (SELECT ${key(sql`n`)} FROM jsonb_array_elements_text(${JSON.stringify(names)}::jsonb) AS n)`);
+  return (result.rows as Array<{ name: string }>).map((r) => r.name);
+}
+
 /** The preview's checks of a prepared file, given the ages read from Ma cells and the higher taxa of its valid rows. */
 export async function collectImportChecks(
   db: DbOrTx,
@@ -71,7 +95,11 @@ export async function collectImportChecks(
   prepared: PreparedImportFile,
   read: { ages: AgeCell[]; higherTaxa: Iterable<{ row: number; higherTaxon?: string | null }> },
 ): Promise<ImportChecks> {
-  const [studySpan, studyNames] = await Promise.all([studyAgeSpan(db, studyId), studyNamesLike(db, studyId, prepared.fileNames)]);
+  const [studySpan, studyNames, studyHigherTaxa] = await Promise.all([
+    studyAgeSpan(db, studyId),
+    studyNamesLike(db, studyId, prepared.fileNames),
+    studyHigherTaxaLike(db, studyId, prepared.fileHigherTaxa),
+  ]);
   return importChecks({
     missingTokens: prepared.missingTokens,
     missingRead: prepared.missingRead,
@@ -81,5 +109,8 @@ export async function collectImportChecks(
     ages: read.ages,
     studySpan,
     higherTaxa: read.higherTaxa,
+    fileHigherTaxa: prepared.fileHigherTaxa,
+    studyHigherTaxa,
+    higherTaxonMerges: prepared.higherTaxonMerges,
   });
 }

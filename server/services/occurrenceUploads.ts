@@ -21,9 +21,10 @@ import {
 } from "../../shared/schemas/occurrences";
 import { detailedError, invalidInput } from "../domain/errors";
 import { recordActivity } from "./decisionLog";
+import { copyRows, copyText } from "./sqlHelpers";
 import type { AgeCell } from "../../shared/imports/agePlausibility";
 import type { NameMerges } from "../../shared/schemas/importChecks";
-import { collectImportChecks, prepareImportFile } from "./importChecks";
+import { collectImportChecks, prepareImportFile, type ImportMerges } from "./importChecks";
 import { createUploadLifecycle, fileAsRead, readStoredUpload, refuseMappingProblems, TABLE_UPLOAD_REFUSALS, type UploadedFile, type UploadKind, type UploadRow } from "./uploadLifecycle";
 
 export const OCCURRENCE_UPLOAD: UploadKind = {
@@ -38,8 +39,6 @@ export const OCCURRENCE_UPLOAD: UploadKind = {
   noun: "upload",
 };
 
-/** Occurrences per insert statement. */
-const INSERT_CHUNK = 20_000;
 const PREVIEW_SAMPLE = 20;
 /** Uploads listed. */
 const LIST_LIMIT = 200;
@@ -92,10 +91,10 @@ function mappingProblems(mapping: OccurrenceMapping, header: string[]): Record<s
  * missing-value tokens are blanked in the mapped columns and the chosen spellings merged first
  * (importChecks.ts), in preview and commit alike.
  */
-async function readThrough(db: DbOrTx, studyId: string, upload: UploadRow, mapping: OccurrenceMapping, dropDuplicates: boolean, nameMerges: NameMerges) {
+async function readThrough(db: DbOrTx, studyId: string, upload: UploadRow, mapping: OccurrenceMapping, dropDuplicates: boolean, merges: ImportMerges) {
   const raw = await readStoredUpload(upload);
   refuseMappingProblems(mappingProblems(mapping, raw.header));
-  const prepared = await prepareImportFile(db, studyId, raw, { name: mapping.taxon, mapped: Object.values(mapping) }, nameMerges);
+  const prepared = await prepareImportFile(db, studyId, raw, { name: mapping.taxon, higherTaxon: mapping.higherTaxon, mapped: Object.values(mapping) }, merges);
   return { ...readOccurrenceRows(prepared.parsed, mapping, { dropDuplicates, intervals: await studyIntervalLookup(db, studyId) }), prepared };
 }
 
@@ -136,9 +135,9 @@ export function createOccurrenceUploadService(db: Database) {
       return { rows: (await lifecycle.summaries(studyId, { limit: LIST_LIMIT, offset: 0 })).rows };
     },
 
-    async preview(studyId: string, uploadId: string, input: { mapping: OccurrenceMapping; duplicates: "keep" | "drop"; nameMerges: NameMerges }): Promise<OccurrencePreview> {
+    async preview(studyId: string, uploadId: string, input: { mapping: OccurrenceMapping; duplicates: "keep" | "drop"; nameMerges: NameMerges; higherTaxonMerges: NameMerges }): Promise<OccurrencePreview> {
       const upload = await lifecycle.openRow(studyId, uploadId);
-      const read = await readThrough(db, studyId, upload, input.mapping, input.duplicates === "drop", input.nameMerges);
+      const read = await readThrough(db, studyId, upload, input.mapping, input.duplicates === "drop", { names: input.nameMerges, higherTaxa: input.higherTaxonMerges });
       const checks = await collectImportChecks(db, studyId, read.prepared, { ages: agesOf(read.rows, input.mapping), higherTaxa: read.rows });
       await lifecycle.recordPreview(upload, input.mapping, { rowCount: read.rowCount, validCount: read.rows.length, errorCount: read.invalidRowCount });
       return {
@@ -160,9 +159,9 @@ export function createOccurrenceUploadService(db: Database) {
     },
 
     /** Writes every valid row in one transaction, or nothing; progress (0..1) is polled through `get`. */
-    async commit(studyId: string, uploadId: string, user: { id: string }, input: Required<Omit<OccurrenceCommitInput, "nameMerges">> & { mapping: OccurrenceMapping; nameMerges?: NameMerges }): Promise<ImportSummary> {
+    async commit(studyId: string, uploadId: string, user: { id: string }, input: Required<Omit<OccurrenceCommitInput, "nameMerges" | "higherTaxonMerges">> & { mapping: OccurrenceMapping; nameMerges?: NameMerges; higherTaxonMerges?: NameMerges }): Promise<ImportSummary> {
       await lifecycle.commit(studyId, uploadId, user, async (tx, upload, progress) => {
-        const read = await readThrough(tx, studyId, upload, input.mapping, input.duplicates === "drop", input.nameMerges ?? {});
+        const read = await readThrough(tx, studyId, upload, input.mapping, input.duplicates === "drop", { names: input.nameMerges ?? {}, higherTaxa: input.higherTaxonMerges ?? {} });
         if (read.problems.length && !input.skipInvalid) {
           throw detailedError(
             "invalid",
@@ -172,16 +171,23 @@ export function createOccurrenceUploadService(db: Database) {
           );
         }
         if (read.rows.length === 0) throw invalidInput("No valid rows to write.", { file: "No valid rows" });
-        for (let i = 0; i < read.rows.length; i += INSERT_CHUNK) {
-          const chunk = read.rows.slice(i, i + INSERT_CHUNK);
-          // One JSON document per statement with one-letter keys, unpacked by PostgreSQL (as taxaStore writes taxa).
-          const records = chunk.map((o) => ({ r: o.row, t: o.taxon, h: o.higherTaxon, x: o.maxMa, n: o.minMa, e: o.earlyInterval, l: o.lateInterval, c: o.collection, k: o.count }));
-          await tx.execute(sql`
-            INSERT INTO occurrences (study_id, upload_id, source_row, taxon, higher_taxon, max_ma, min_ma, early_interval, late_interval, collection, count)
-            SELECT ${studyId}::uuid, ${uploadId}::uuid, u.r, u.t, u.h, u.x, u.n, u.e, u.l, u.c, u.k
-            FROM jsonb_to_recordset(${JSON.stringify(records)}::jsonb) AS u(r int, t text, h text, x float8, n float8, e text, l text, c text, k int)`);
-          await progress((i + chunk.length) / read.rows.length);
-        }
+        const rows = read.rows;
+        const prefix = `${studyId}\t${uploadId}\t`;
+        let written = 0;
+        await copyRows(
+          tx,
+          "occurrences",
+          ["study_id", "upload_id", "source_row", "taxon", "higher_taxon", "max_ma", "min_ma", "early_interval", "late_interval", "collection", "count"],
+          rows.length,
+          (i) => {
+            const o = rows[i]!;
+            return `${prefix}${o.row}\t${copyText(o.taxon)}\t${copyText(o.higherTaxon)}\t${o.maxMa}\t${o.minMa}\t${copyText(o.earlyInterval)}\t${copyText(o.lateInterval)}\t${copyText(o.collection)}\t${copyText(o.count)}\n`;
+          },
+          async (n) => {
+            written += n;
+            await progress(written / rows.length);
+          },
+        );
         return {
           result: undefined,
           mapping: input.mapping,

@@ -37,7 +37,7 @@ export async function commitTraitTable(
       const codebook = await loadCodebook(db, studyId);
       refuseMappingProblems(mappingProblems(input.mapping, raw.header, codebook));
       // Read as the preview read it: declared missing-value tokens blanked, chosen spellings merged.
-      const { parsed } = await prepareImportFile(tx, studyId, raw, traitTableColumns(input.mapping), input.nameMerges ?? {});
+      const { parsed } = await prepareImportFile(tx, studyId, raw, traitTableColumns(input.mapping), { names: input.nameMerges ?? {}, higherTaxa: input.higherTaxonMerges ?? {} });
       const reason = input.reason || `Imported from ${upload.fileName}`;
       // The taxa this file names, locked: an edit in the grid meanwhile waits for the commit.
       const existing = new Map((await taxaByName(tx, studyId, namesIn(parsed, input.mapping), true)).map((s) => [s.name, s]));

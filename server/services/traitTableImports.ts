@@ -82,13 +82,13 @@ export function createImportService(db: Database) {
       return { rows, total, page: q.page, pageSize: q.pageSize };
     },
 
-    async preview(studyId: string, importId: string, mapping: ImportMapping, nameMerges: NameMerges = {}): Promise<ImportPreview> {
+    async preview(studyId: string, importId: string, mapping: ImportMapping, nameMerges: NameMerges = {}, higherTaxonMerges: NameMerges = {}): Promise<ImportPreview> {
       const upload = await lifecycle.openRow(studyId, importId);
       const raw = await readStoredUpload(upload);
       const codebook = await loadCodebook(db, studyId);
       refuseMappingProblems(mappingProblems(mapping, raw.header, codebook));
       // Declared missing-value tokens blanked and chosen spellings merged, as the commit reads the file.
-      const prepared = await prepareImportFile(db, studyId, raw, traitTableColumns(mapping), nameMerges);
+      const prepared = await prepareImportFile(db, studyId, raw, traitTableColumns(mapping), { names: nameMerges, higherTaxa: higherTaxonMerges });
       const parsed = prepared.parsed;
       const existing = new Map((await taxaByName(db, studyId, namesIn(parsed, mapping), false)).map((s) => [s.name, s]));
       const result = validateTraitTable(parsed, mapping, codebook, existing, await studyIntervalLookup(db, studyId));

@@ -73,8 +73,8 @@ export async function rememberMapping(db: DbOrTx, studyId: string, mapping: Impo
 }
 
 /** The name column and every mapped column of a trait-table mapping (missing-value tokens apply to these). */
-export function traitTableColumns(mapping: ImportMapping): { name: string; mapped: Array<string | null> } {
-  return { name: mapping.name, mapped: [mapping.name, mapping.higherTaxon, mapping.firstAppearance, mapping.lastAppearance, mapping.notes, ...Object.values(mapping.traits)] };
+export function traitTableColumns(mapping: ImportMapping): { name: string; higherTaxon: string | null; mapped: Array<string | null> } {
+  return { name: mapping.name, higherTaxon: mapping.higherTaxon, mapped: [mapping.name, mapping.higherTaxon, mapping.firstAppearance, mapping.lastAppearance, mapping.notes, ...Object.values(mapping.traits)] };
 }
 
 /** Range ends the valid rows give in Ma (interval names resolve to the chart or the study's bins and are not checked), for the plausibility warnings. */

@@ -3,7 +3,7 @@
 import { IMPORT_MAX_WARNINGS_LISTED, type ImportChecks, type MissingRead, type NameMerges } from "../schemas/importChecks";
 import { agePlausibilityWarnings, referenceSpan, type AgeCell } from "./agePlausibility";
 import { similarNames } from "./nameHygiene";
-import { qualifiedHigherTaxaIn } from "./qualifiedHigherTaxon";
+import { qualifiedHigherTaxaIn, qualifiedHigherTaxon } from "./qualifiedHigherTaxon";
 
 export interface ImportCheckInput {
   /** The study's declared tokens, and what blankMissingTokens read as missing with them. */
@@ -17,12 +17,17 @@ export interface ImportCheckInput {
   ages: AgeCell[];
   studySpan: { oldestMa: number; youngestMa: number } | null;
   higherTaxa: Iterable<{ row: number; higherTaxon?: string | null }>;
+  /** The file's higher taxa as written (before merges), the study's, and the chosen higher-taxon merges. */
+  fileHigherTaxa: Array<{ row: number; name: string }>;
+  studyHigherTaxa: Iterable<string>;
+  higherTaxonMerges: NameMerges;
 }
 
 /**
  * The preview's checks: age warnings by row (at most IMPORT_MAX_WARNINGS_LISTED listed, all
  * counted) against the study's span or else the file's own, what was read as missing, names that
- * differ only by case, spacing or punctuation, and qualified higher taxa.
+ * differ only by case, spacing or punctuation (taxa and, apart from qualified ones, higher taxa),
+ * and qualified higher taxa.
  */
 export function importChecks(input: ImportCheckInput): ImportChecks {
   const span = referenceSpan(input.studySpan, input.studySpan ? [] : input.ages.map((a) => a.ma));
@@ -34,6 +39,12 @@ export function importChecks(input: ImportCheckInput): ImportChecks {
     missingRead: input.missingRead,
     missingTokens: input.missingTokens,
     similarNames: similarNames(input.fileNames, input.studyNames, input.merges),
+    // A qualified higher taxon ("Anazygidae?") differs from its base on purpose: not offered for merging.
+    similarHigherTaxa: similarNames(
+      input.fileHigherTaxa.filter((h) => qualifiedHigherTaxon(h.name) === null),
+      [...input.studyHigherTaxa].filter((h) => qualifiedHigherTaxon(h) === null),
+      input.higherTaxonMerges,
+    ),
     qualifiedHigherTaxa: qualifiedHigherTaxaIn(input.higherTaxa),
   };
 }

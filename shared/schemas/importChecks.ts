@@ -112,6 +112,9 @@ export const importChecksSchema = z
     missingRead: z.array(missingReadSchema).meta({ description: "Cells read as missing because they hold one of the study's declared tokens" }),
     missingTokens: z.array(z.string()),
     similarNames: z.array(similarNamesSchema).meta({ description: "Names of the file that differ from each other or from the study's taxa only by case, spaces or punctuation" }),
+    similarHigherTaxa: z
+      .array(similarNamesSchema)
+      .meta({ description: "Higher taxa of the file that differ from each other or from the study's only by case, spaces or punctuation (qualified names such as Anazygidae? left out: they differ on purpose)" }),
     qualifiedHigherTaxa: z.array(qualifiedHigherTaxonSchema).meta({ description: "Higher taxa written with a qualifier (?, cf., aff.): kept as written" }),
   })
   .meta({ id: "ImportChecks" });

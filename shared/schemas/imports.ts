@@ -113,7 +113,7 @@ export const importProblemSchema = z
   .meta({ id: "ImportProblem" });
 export type ImportProblem = z.infer<typeof importProblemSchema>;
 
-export const importPreviewRequestSchema = z.strictObject({ mapping: importMappingSchema, nameMerges: nameMergesSchema }).meta({ id: "ImportPreviewRequest" });
+export const importPreviewRequestSchema = z.strictObject({ mapping: importMappingSchema, nameMerges: nameMergesSchema, higherTaxonMerges: nameMergesSchema }).meta({ id: "ImportPreviewRequest" });
 export type ImportPreviewRequest = z.input<typeof importPreviewRequestSchema>;
 
 export const importCountsSchema = z
@@ -153,6 +153,7 @@ export const importCommitSchema = z
   .strictObject({
     mapping: importMappingSchema,
     nameMerges: nameMergesSchema,
+    higherTaxonMerges: nameMergesSchema,
     skipInvalid: z.boolean({ message: "skipInvalid is required: say whether invalid rows are left out (true) or block the import (false)" }),
     reason: reasonSchema.default("").meta({ description: "Recorded on every coding decision; default: the file name" }),
   })

@@ -92,7 +92,7 @@ const duplicatesSchema = z
   .default("keep")
   .meta({ description: "Rows identical to an earlier row in every mapped column: keep them (default) or drop them" });
 
-export const occurrencePreviewRequestSchema = z.strictObject({ mapping: occurrenceMappingSchema, duplicates: duplicatesSchema, nameMerges: nameMergesSchema }).meta({ id: "OccurrencePreviewRequest" });
+export const occurrencePreviewRequestSchema = z.strictObject({ mapping: occurrenceMappingSchema, duplicates: duplicatesSchema, nameMerges: nameMergesSchema, higherTaxonMerges: nameMergesSchema }).meta({ id: "OccurrencePreviewRequest" });
 export type OccurrencePreviewRequest = z.input<typeof occurrencePreviewRequestSchema>;
 
 export const occurrenceProblemSchema = z
@@ -150,6 +150,7 @@ export const occurrenceCommitSchema = z
     mapping: occurrenceMappingSchema,
     duplicates: duplicatesSchema,
     nameMerges: nameMergesSchema,
+    higherTaxonMerges: nameMergesSchema,
     skipInvalid: z.boolean({ message: "skipInvalid is required: say whether invalid rows are left out (true) or block the upload (false)" }),
   })
   .meta({ id: "OccurrenceCommit" });

@@ -29,13 +29,13 @@ async function baseStudy(): Promise<CodebookStudy> {
   return study;
 }
 
-async function preview(study: CodebookStudy, content: string, nameMerges?: Record<string, string>) {
+async function preview(study: CodebookStudy, content: string, nameMerges?: Record<string, string>, higherTaxonMerges?: Record<string, string>) {
   const upload = await uploadCsv(cast.people.coder.agent, study.studyId, content);
   expect(upload.status).toBe(201);
   const importId = upload.body.import.id as string;
   const res = await cast.people.coder.agent
     .post(`/api/studies/${study.studyId}/imports/${importId}/preview`)
-    .send({ mapping: templateMapping(study, ["life_habit"]), ...(nameMerges ? { nameMerges } : {}) });
+    .send({ mapping: templateMapping(study, ["life_habit"]), ...(nameMerges ? { nameMerges } : {}), ...(higherTaxonMerges ? { higherTaxonMerges } : {}) });
   return { res, importId };
 }
 
@@ -173,6 +173,30 @@ describe("names that differ only by case, spacing or punctuation", () => {
     expect(commit.status).toBe(200);
     expect(await liveTaxon(study.studyId, "idiospira")).toBeUndefined();
     expect((await liveTaxon(study.studyId, "Idiospira")).traitValues).toEqual({ [study.trait.life_habit.id]: "infaunal" });
+  });
+
+  it("covers higher taxa too (qualified ones left out), read as the chosen clade when asked", async () => {
+    const study = await baseStudy();
+    const file = `${HEADER}\nPlatystrophia,strophomenida ,465,455,epifaunal\nPlaesiomys,Orthida?,466,455,epifaunal\n`;
+    const apart = await preview(study, file);
+    expect(apart.res.body.checks.similarHigherTaxa).toEqual([
+      {
+        key: "strophomenida",
+        spellings: [
+          { name: "Strophomenida", fileRows: 0, firstRows: [], inStudy: true },
+          { name: "strophomenida", fileRows: 1, firstRows: [2], inStudy: false },
+        ],
+        mergedInto: null,
+      },
+    ]);
+    const merged = await preview(study, file, undefined, { strophomenida: "Strophomenida" });
+    expect(merged.res.body.checks.similarHigherTaxa[0].mergedInto).toBe("Strophomenida");
+    const commit = await cast.people.coder.agent
+      .post(`/api/studies/${study.studyId}/imports/${merged.importId}/commit`)
+      .send({ mapping: templateMapping(study, ["life_habit"]), higherTaxonMerges: { strophomenida: "Strophomenida" }, skipInvalid: false });
+    expect(commit.status).toBe(200);
+    expect((await liveTaxon(study.studyId, "Platystrophia")).higherTaxon).toBe("Strophomenida");
+    expect((await liveTaxon(study.studyId, "Plaesiomys")).higherTaxon).toBe("Orthida?");
   });
 
   it("refuses a merge of names that differ by more", async () => {

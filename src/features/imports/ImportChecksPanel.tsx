@@ -3,12 +3,19 @@ import type { ImportChecks, NameMerges, SimilarNames } from "@shared/schemas/imp
 import { Notice } from "../../components/Notice";
 import { formatCount, pluralize } from "../../lib/format";
 
+/** Spellings chosen so far (spelling -> the one to read it as), of taxon names and of higher taxa. */
+export interface ChosenSpellings {
+  names: NameMerges;
+  higherTaxa: NameMerges;
+}
+
+export const NO_SPELLINGS_CHOSEN: ChosenSpellings = { names: {}, higherTaxa: {} };
+
 interface ImportChecksPanelProps {
   checks: ImportChecks;
-  /** The spellings chosen so far (spelling -> the one to read it as). */
-  merges: NameMerges;
+  merges: ChosenSpellings;
   /** A new choice: the preview is made again with it. */
-  onMergesChange: (merges: NameMerges) => void;
+  onMergesChange: (merges: ChosenSpellings) => void;
   /** A new preview is on its way: the choices wait. */
   busy: boolean;
 }
@@ -23,7 +30,19 @@ function withChoice(merges: NameMerges, group: SimilarNames, into: string | null
   return next;
 }
 
-function SimilarNameGroup({ group, merges, onMergesChange, busy }: { group: SimilarNames } & Omit<ImportChecksPanelProps, "checks">) {
+function SimilarNameGroup({
+  group,
+  merges,
+  onMergesChange,
+  busy,
+  what,
+}: {
+  group: SimilarNames;
+  merges: NameMerges;
+  onMergesChange: (merges: NameMerges) => void;
+  busy: boolean;
+  what: { one: string; apart: string; inStudy: string };
+}) {
   const name = useId();
   const choice = group.mergedInto;
   return (
@@ -35,19 +54,19 @@ function SimilarNameGroup({ group, merges, onMergesChange, busy }: { group: Simi
         {group.spellings.map((s) => (
           <li key={s.name}>
             <span className="italic text-stone-800">{s.name}</span>:{" "}
-            {[s.inStudy ? "a taxon of the study" : null, s.fileRows ? `in this file on ${rowsText(s.firstRows, s.fileRows)}` : null].filter(Boolean).join("; ")}
+            {[s.inStudy ? what.inStudy : null, s.fileRows ? `in this file on ${rowsText(s.firstRows, s.fileRows)}` : null].filter(Boolean).join("; ")}
           </li>
         ))}
       </ul>
       <div className="flex flex-wrap gap-x-5 gap-y-1 text-[15px] text-stone-800">
         <label className="flex items-center gap-2">
           <input type="radio" name={name} className="size-4 accent-accent-600" checked={choice === null} onChange={() => onMergesChange(withChoice(merges, group, null))} />
-          Keep apart (different taxa)
+          {what.apart}
         </label>
         {group.spellings.map((s) => (
           <label key={s.name} className="flex items-center gap-2">
             <input type="radio" name={name} className="size-4 accent-accent-600" checked={choice === s.name} onChange={() => onMergesChange(withChoice(merges, group, s.name))} />
-            One taxon, spelt <span className="italic">{s.name}</span>
+            {what.one}, spelt <span className={what.one === "One taxon" ? "italic" : undefined}>{s.name}</span>
           </label>
         ))}
       </div>
@@ -121,7 +140,34 @@ export function ImportChecksPanel({ checks, merges, onMergesChange, busy }: Impo
           </p>
           <div className="space-y-2">
             {checks.similarNames.map((g) => (
-              <SimilarNameGroup key={g.key} group={g} merges={merges} onMergesChange={onMergesChange} busy={busy} />
+              <SimilarNameGroup
+                key={g.key}
+                group={g}
+                merges={merges.names}
+                onMergesChange={(names) => onMergesChange({ ...merges, names })}
+                busy={busy}
+                what={{ one: "One taxon", apart: "Keep apart (different taxa)", inStudy: "a taxon of the study" }}
+              />
+            ))}
+          </div>
+        </Notice>
+      )}
+
+      {checks.similarHigherTaxa.length > 0 && (
+        <Notice tone="warning" title={`${pluralize(checks.similarHigherTaxa.length, "higher taxon is", "higher taxa are")} written more than one way`}>
+          <p className="mb-2">
+            Kept apart, each spelling is a clade of its own in clade-adjusted results. Choose for each; qualified names (such as &quot;Anazygidae?&quot;) are not offered, as they differ on purpose.
+          </p>
+          <div className="space-y-2">
+            {checks.similarHigherTaxa.map((g) => (
+              <SimilarNameGroup
+                key={g.key}
+                group={g}
+                merges={merges.higherTaxa}
+                onMergesChange={(higherTaxa) => onMergesChange({ ...merges, higherTaxa })}
+                busy={busy}
+                what={{ one: "One clade", apart: "Keep apart (different clades)", inStudy: "a higher taxon of the study" }}
+              />
             ))}
           </div>
         </Notice>

@@ -8,9 +8,8 @@ import { FormError, Notice } from "../../components/Notice";
 import { TextField } from "../../components/TextField";
 import { ApiError, errorMessage } from "../../lib/api";
 import { formatCount, pluralize } from "../../lib/format";
-import type { NameMerges } from "@shared/schemas/importChecks";
 import { useCommitImport, useImportSummary, usePreviewImport } from "./api";
-import { ImportChecksPanel } from "./ImportChecksPanel";
+import { ImportChecksPanel, NO_SPELLINGS_CHOSEN, type ChosenSpellings } from "./ImportChecksPanel";
 import { fieldLabel, formatImportValue } from "./formatValue";
 import { ProgressBar } from "../../components/ProgressBar";
 
@@ -32,7 +31,7 @@ const ACTION_WORDS = { create: "Adds", update: "Changes", unchanged: "No change"
 export function PreviewStep({ studyId, mapping, preview: firstPreview, traits, onBack, onCommitted }: PreviewStepProps) {
   // A choice about similar names makes the preview again; the commit uses the same choice.
   const [preview, setPreview] = useState(firstPreview);
-  const [nameMerges, setNameMerges] = useState<NameMerges>({});
+  const [spellings, setSpellings] = useState<ChosenSpellings>(NO_SPELLINGS_CHOSEN);
   const again = usePreviewImport(studyId);
   const { counts } = preview;
   const [skipInvalid, setSkipInvalid] = useState(false);
@@ -58,7 +57,7 @@ export function PreviewStep({ studyId, mapping, preview: firstPreview, traits, o
       setChoiceError(`Tick the box to leave out the ${pluralize(counts.invalid, "invalid row")}, or fix the file and upload it again.`);
       return;
     }
-    const parsed = importCommitSchema.safeParse({ mapping, nameMerges, skipInvalid: counts.invalid > 0 && skipInvalid, reason });
+    const parsed = importCommitSchema.safeParse({ mapping, nameMerges: spellings.names, higherTaxonMerges: spellings.higherTaxa, skipInvalid: counts.invalid > 0 && skipInvalid, reason });
     if (!parsed.success) {
       setChoiceError(parsed.error.issues[0]?.message ?? "The import cannot be committed.");
       return;
@@ -99,13 +98,13 @@ export function PreviewStep({ studyId, mapping, preview: firstPreview, traits, o
 
       <ImportChecksPanel
         checks={preview.checks}
-        merges={nameMerges}
+        merges={spellings}
         busy={again.isPending || commit.isPending}
         onMergesChange={(next) => {
           setChoiceError(null);
-          again.mutate({ importId: preview.import.id, mapping, nameMerges: next }, {
+          again.mutate({ importId: preview.import.id, mapping, nameMerges: next.names, higherTaxonMerges: next.higherTaxa }, {
             onSuccess: (result) => {
-              setNameMerges(next);
+              setSpellings(next);
               setPreview(result);
             },
           });

@@ -62,8 +62,8 @@ export function useResumeImport(studyId: string) {
 /** POST /api/studies/:studyId/imports/:importId/preview: every problem by row and column, and what would change. */
 export function usePreviewImport(studyId: string) {
   return useMutation({
-    mutationFn: ({ importId, mapping, nameMerges = {} }: { importId: string; mapping: ImportMapping; nameMerges?: NameMerges }) =>
-      api.post<ImportPreview>(`${importPath(studyId, importId)}/preview`, { mapping, nameMerges }),
+    mutationFn: ({ importId, mapping, nameMerges = {}, higherTaxonMerges = {} }: { importId: string; mapping: ImportMapping; nameMerges?: NameMerges; higherTaxonMerges?: NameMerges }) =>
+      api.post<ImportPreview>(`${importPath(studyId, importId)}/preview`, { mapping, nameMerges, higherTaxonMerges }),
   });
 }
 

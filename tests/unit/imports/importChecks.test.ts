@@ -47,6 +47,9 @@ describe("importChecks", () => {
       ages,
       studySpan: null,
       higherTaxa: parsed.rows.map((r) => ({ row: r.row, higherTaxon: r.cells[1] })),
+      fileHigherTaxa: namesInColumn(parsed, "order"),
+      studyHigherTaxa: ["STROPHOMENIDA", "Orthida"],
+      higherTaxonMerges: {},
     });
     // Ten ages sorted: 4, 449, 450, 451, 452, 455, 457, 458, 460, 462. Nearest rank: Q1 = ceil(2.5) = 3rd = 450,
     // Q3 = ceil(7.5) = 8th = 458. 4 <= 450 / 10: an interval number; nothing else is 10 Myr beyond 450-458.
@@ -55,6 +58,18 @@ describe("importChecks", () => {
     expect(checks.warningCount).toBe(1);
     expect(checks.missingRead).toEqual([{ column: "order", token: "Indet.", count: 1, firstRows: [5] }]);
     expect(checks.similarNames.map((g) => g.spellings.map((s) => s.name))).toEqual([["Idiospira", "idiospira"]]);
+    // Strophomenida (rows 2, 3, 6, 7) against the study's STROPHOMENIDA; "Orthida?" is qualified, so it is not
+    // offered as a spelling of Orthida, and Orthida alone is spelt one way.
+    expect(checks.similarHigherTaxa).toEqual([
+      {
+        key: "strophomenida",
+        spellings: [
+          { name: "STROPHOMENIDA", fileRows: 0, firstRows: [], inStudy: true },
+          { name: "Strophomenida", fileRows: 4, firstRows: [2, 3, 6, 7], inStudy: false },
+        ],
+        mergedInto: null,
+      },
+    ]);
     expect(checks.qualifiedHigherTaxa).toEqual([{ name: "Orthida?", base: "Orthida", qualifier: "?", rows: 1, firstRow: 4 }]);
   });
 });

@@ -19,8 +19,7 @@ import { WizardSteps } from "../../../components/WizardSteps";
 import { ApiError, errorMessage } from "../../../lib/api";
 import { formatCount, pluralize } from "../../../lib/format";
 import { useCommitOccurrences, useDiscardOccurrences, useOccurrenceUploadProgress, usePreviewOccurrences, useUploadOccurrences } from "./api";
-import type { NameMerges } from "@shared/schemas/importChecks";
-import { ImportChecksPanel } from "../ImportChecksPanel";
+import { ImportChecksPanel, NO_SPELLINGS_CHOSEN, type ChosenSpellings } from "../ImportChecksPanel";
 
 type Stage =
   | { step: "upload" }
@@ -216,7 +215,7 @@ function OccurrencePreviewStep({
   const { mapping, duplicates, upload } = stage;
   // A choice about similar names makes the preview again; the commit uses the same choice.
   const [preview, setPreview] = useState(stage.preview);
-  const [nameMerges, setNameMerges] = useState<NameMerges>({});
+  const [spellings, setSpellings] = useState<ChosenSpellings>(NO_SPELLINGS_CHOSEN);
   const again = usePreviewOccurrences(studyId);
   const [skipInvalid, setSkipInvalid] = useState(false);
   const commit = useCommitOccurrences(studyId);
@@ -249,14 +248,14 @@ function OccurrencePreviewStep({
       )}
       <ImportChecksPanel
         checks={preview.checks}
-        merges={nameMerges}
+        merges={spellings}
         busy={again.isPending || commit.isPending}
         onMergesChange={(next) =>
           again.mutate(
-            { uploadId: upload.upload.id, mapping, duplicates, nameMerges: next },
+            { uploadId: upload.upload.id, mapping, duplicates, nameMerges: next.names, higherTaxonMerges: next.higherTaxa },
             {
               onSuccess: (result) => {
-                setNameMerges(next);
+                setSpellings(next);
                 setPreview(result);
               },
             },
@@ -293,7 +292,7 @@ function OccurrencePreviewStep({
         <Button
           busy={commit.isPending}
           disabled={counts.valid === 0 || (counts.invalid > 0 && !skipInvalid)}
-          onClick={() => commit.mutate({ uploadId: upload.upload.id, input: { mapping, duplicates, nameMerges, skipInvalid } }, { onSuccess: onCommitted })}
+          onClick={() => commit.mutate({ uploadId: upload.upload.id, input: { mapping, duplicates, nameMerges: spellings.names, higherTaxonMerges: spellings.higherTaxa, skipInvalid } }, { onSuccess: onCommitted })}
         >
           Write {pluralize(counts.valid, "occurrence")}
         </Button>

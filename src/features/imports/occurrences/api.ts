@@ -67,8 +67,19 @@ export function useUploadOccurrences(studyId: string) {
 /** POST .../occurrence-uploads/:uploadId/preview */
 export function usePreviewOccurrences(studyId: string) {
   return useMutation({
-    mutationFn: ({ uploadId, mapping, duplicates, nameMerges = {} }: { uploadId: string; mapping: OccurrenceMapping; duplicates: "keep" | "drop"; nameMerges?: NameMerges }) =>
-      api.post<OccurrencePreview>(`${uploadPath(studyId, uploadId)}/preview`, { mapping, duplicates, nameMerges }),
+    mutationFn: ({
+      uploadId,
+      mapping,
+      duplicates,
+      nameMerges = {},
+      higherTaxonMerges = {},
+    }: {
+      uploadId: string;
+      mapping: OccurrenceMapping;
+      duplicates: "keep" | "drop";
+      nameMerges?: NameMerges;
+      higherTaxonMerges?: NameMerges;
+    }) => api.post<OccurrencePreview>(`${uploadPath(studyId, uploadId)}/preview`, { mapping, duplicates, nameMerges, higherTaxonMerges }),
   });
 }
 
