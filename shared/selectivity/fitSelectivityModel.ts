@@ -375,5 +375,9 @@ function firthNote(fit: LogisticRegressionResult, design: DesignMatrix, y: numbe
     return `${label} separates victims from survivors`;
   });
   const what = described.length > 0 ? `: ${described.join("; ")}` : "";
-  return `Firth's bias-reduced logistic regression (Firth 1993) was used because the data separate the outcomes${what}. An ordinary fit would give an infinite odds ratio there; Firth's stays finite but remains uncertain.`;
+  const found =
+    fit.separationMethod === "linear-programme"
+      ? ` (${fit.separationKind === "complete" ? "complete" : "quasi-complete"} separation, found before fitting by linear programming; Konis 2007)`
+      : " (found as the ordinary fit ran off along a separating direction)";
+  return `Firth's bias-reduced logistic regression (Firth 1993) was used because the data separate the outcomes${what}${found}. An ordinary fit would give an infinite odds ratio there; Firth's stays finite but remains uncertain.`;
 }

@@ -34,7 +34,7 @@ describe("a state with only victims", () => {
     expect(model.firthReason).toBe("separation");
     expect(model.separatedPredictors).toEqual(["setting=reef"]);
     expect(model.notes[0]).toBe(
-      "Firth's bias-reduced logistic regression (Firth 1993) was used because the data separate the outcomes: all 10 taxa with Setting: Reef died out. An ordinary fit would give an infinite odds ratio there; Firth's stays finite but remains uncertain.",
+      "Firth's bias-reduced logistic regression (Firth 1993) was used because the data separate the outcomes: all 10 taxa with Setting: Reef died out (quasi-complete separation, found before fitting by linear programming; Konis 2007). An ordinary fit would give an infinite odds ratio there; Firth's stays finite but remains uncertain.",
     );
     expect(model.method).toMatch(/^Firth's bias-reduced multiple logistic regression/);
     // docs/sources.md section 5 (COMPUTED there; that it is a known result is from memory): with one binary
@@ -72,7 +72,7 @@ describe("separation beside other traits", () => {
   it("uses Firth automatically and the note names the predictor", () => {
     expect(result.model!.firthReason).toBe("separation");
     expect(result.model!.separatedPredictors).toEqual(["habit=burrowing"]);
-    expect(result.model!.notes[0]).toMatch(/because the data separate the outcomes: all 20 taxa with Habit: Burrowing died out\./);
+    expect(result.model!.notes[0]).toMatch(/because the data separate the outcomes: all 20 taxa with Habit: Burrowing died out \(quasi-complete separation, found before fitting by linear programming; Konis 2007\)\./);
     const burrowing = result.model!.coefficients.find((c) => c.name === "habit=burrowing")!;
     expect(burrowing.estimate).toBeGreaterThan(1);
     expect(burrowing.ci[1]).toBeLessThan(20); // finite and of a sensible size
