@@ -51,7 +51,7 @@ const domainLayer = {
       "error",
       {
         patterns: [
-          { regex: "^(\\.\\./)+(http/(?!uploads$)|routes/)", message: `services raise domain errors and know no HTTP status or route: ${LAYER_MESSAGE}.` },
+          { regex: "^(\\.\\./)+(http|routes)(/|$)", message: `services raise domain errors and know no HTTP status or route: ${LAYER_MESSAGE}.` },
           { regex: "^(\\.\\./)+(src|scripts|tests|bench)(/|$)", message: `the server imports no client, script or test: ${LAYER_MESSAGE}.` },
         ],
       },

@@ -8,8 +8,6 @@ import multer from "multer";
 import type { UploadedFile } from "../services/uploadLifecycle";
 import { badRequest } from "./errors";
 
-export type { UploadedFile };
-
 /** Middleware that streams the form field "file" (at most `maxBytes`) into `uploadDir`; over the limit multer answers 413 and removes the part written. */
 export function csvUpload(uploadDir: string, maxBytes: number): RequestHandler {
   const storage = multer.diskStorage({

@@ -21,6 +21,7 @@ import {
 } from "../../shared/schemas/occurrences";
 import { detailedError, invalidInput } from "../domain/errors";
 import { recordActivity } from "./decisionLog";
+import { copyRows, copyText } from "./sqlHelpers";
 import type { AgeCell } from "../../shared/imports/agePlausibility";
 import type { NameMerges } from "../../shared/schemas/importChecks";
 import { collectImportChecks, prepareImportFile, type ImportMerges } from "./importChecks";
@@ -38,8 +39,6 @@ export const OCCURRENCE_UPLOAD: UploadKind = {
   noun: "upload",
 };
 
-/** Occurrences per insert statement. */
-const INSERT_CHUNK = 20_000;
 const PREVIEW_SAMPLE = 20;
 /** Uploads listed. */
 const LIST_LIMIT = 200;
@@ -172,16 +171,23 @@ export function createOccurrenceUploadService(db: Database) {
           );
         }
         if (read.rows.length === 0) throw invalidInput("No valid rows to write.", { file: "No valid rows" });
-        for (let i = 0; i < read.rows.length; i += INSERT_CHUNK) {
-          const chunk = read.rows.slice(i, i + INSERT_CHUNK);
-          // One JSON document per statement with one-letter keys, unpacked by PostgreSQL (as taxaStore writes taxa).
-          const records = chunk.map((o) => ({ r: o.row, t: o.taxon, h: o.higherTaxon, x: o.maxMa, n: o.minMa, e: o.earlyInterval, l: o.lateInterval, c: o.collection, k: o.count }));
-          await tx.execute(sql`
-            INSERT INTO occurrences (study_id, upload_id, source_row, taxon, higher_taxon, max_ma, min_ma, early_interval, late_interval, collection, count)
-            SELECT ${studyId}::uuid, ${uploadId}::uuid, u.r, u.t, u.h, u.x, u.n, u.e, u.l, u.c, u.k
-            FROM jsonb_to_recordset(${JSON.stringify(records)}::jsonb) AS u(r int, t text, h text, x float8, n float8, e text, l text, c text, k int)`);
-          await progress((i + chunk.length) / read.rows.length);
-        }
+        const rows = read.rows;
+        const prefix = `${studyId}\t${uploadId}\t`;
+        let written = 0;
+        await copyRows(
+          tx,
+          "occurrences",
+          ["study_id", "upload_id", "source_row", "taxon", "higher_taxon", "max_ma", "min_ma", "early_interval", "late_interval", "collection", "count"],
+          rows.length,
+          (i) => {
+            const o = rows[i]!;
+            return `${prefix}${o.row}\t${copyText(o.taxon)}\t${copyText(o.higherTaxon)}\t${o.maxMa}\t${o.minMa}\t${copyText(o.earlyInterval)}\t${copyText(o.lateInterval)}\t${copyText(o.collection)}\t${copyText(o.count)}\n`;
+          },
+          async (n) => {
+            written += n;
+            await progress(written / rows.length);
+          },
+        );
         return {
           result: undefined,
           mapping: input.mapping,

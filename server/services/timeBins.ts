@@ -11,7 +11,7 @@ import { findUnit } from "../../shared/timescale/lookup";
 import { binsShadowingChart, INTERVAL_RESOLUTION_ORDER, intervalLookup, readTimeBinCsv, type IntervalLookup } from "../../shared/timebins/index";
 import { TIME_BIN_CSV_MAX_BYTES, TIME_BIN_CSV_MAX_LABEL, timeBinSetSchema, type TimeBin, type TimeBinCsv, type TimeBinList, type TimeBinSetInput } from "../../shared/schemas/timeBins";
 import { DomainError, invalidInput } from "../domain/errors";
-import type { UploadedFile } from "../http/uploads";
+import type { UploadedFile } from "./uploadLifecycle";
 
 /** The study's bins, oldest first. */
 export async function loadTimeBins(db: DbOrTx, studyId: string): Promise<TimeBin[]> {

@@ -47,14 +47,16 @@ describe("services raise domain errors, not HTTP ones", () => {
   it.each([
     ["server/services/layeringFixture.ts", 'import { badRequest } from "../http/errors";'],
     ["server/services/layeringFixture.ts", 'import { x } from "../routes/runs";'],
+    // The upload helpers services use (UploadedFile, removingOnFailure) live in services/uploadLifecycle.ts.
+    ["server/services/layeringFixture.ts", 'import { csvUpload } from "../http/uploads";'],
     ["server/domain/layeringFixture.ts", 'import { HttpError } from "../http/errors";'],
   ])("refuses %s importing %s", async (filePath, code) => {
     const errors = await layeringErrors(filePath, `${code}\nexport const y = 1;\n`);
     expect(errors).toHaveLength(1);
     expect(errors[0]).toMatch(/domain errors/);
   });
-  it("allows the domain errors and the upload helpers", async () => {
-    const code = 'import { notFound } from "../domain/errors";\nimport { removingOnFailure } from "../http/uploads";\nexport const y = [notFound, removingOnFailure];\n';
+  it("allows the domain errors and the upload lifecycle", async () => {
+    const code = 'import { notFound } from "../domain/errors";\nimport { removingOnFailure } from "./uploadLifecycle";\nexport const y = [notFound, removingOnFailure];\n';
     expect(await layeringErrors("server/services/layeringFixture.ts", code)).toEqual([]);
   });
 });
