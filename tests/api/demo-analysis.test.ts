@@ -142,6 +142,34 @@ describe("the default analysis of the demo study", () => {
     // The caution against reading an association as a mechanism comes with the results.
     expect(run.results!.cautions[0]).toMatch(/not proof of a kill mechanism/);
   });
+
+  it("carries the same flags, the method that decided them and the cautions into the CSV and JSON exports", async () => {
+    const base = `/api/studies/${seeded.studyId}/runs/${run.id}/export`;
+    // JSON: the stored run as is, so the flags, the method and the cautions are those on screen.
+    const json = await analyst.get(`${base}?format=json`);
+    expect(json.status).toBe(200);
+    const exported = json.body as Run;
+    const flagsOf = (r: Run) => r.results!.boundaries[0].result.traits.flatMap((t) => t.contrasts.map((c) => `${t.key}/${c.contrast}:${c.flagged}`));
+    expect(flagsOf(exported)).toEqual(flagsOf(run));
+    expect(exported.results!.boundaries[0].result.confoundingMethod).toBe(run.results!.boundaries[0].result.confoundingMethod);
+    expect(exported.results!.cautions).toEqual(run.results!.cautions);
+    // CSV: one row per contrast with the flag, the thin marker and the method that decided the flag.
+    const csv = await analyst.get(`${base}?format=csv&table=contrasts`);
+    expect(csv.status).toBe(200);
+    const lines = csv.text.trim().split(/\r?\n/);
+    const header = lines[0].split(",");
+    const flaggedAt = header.indexOf("flagged");
+    const decidedAt = header.indexOf("flag_decided_by");
+    expect(flaggedAt).toBeGreaterThan(-1);
+    expect(decidedAt).toBeGreaterThan(-1);
+    expect(header).toContain("clade_adjusted_thin");
+    const infaunalRow = lines.find((line) => line.includes("life_habit") && line.includes(`,${planted.confoundedLifeHabit},`));
+    expect(infaunalRow).toBeDefined();
+    const flaggedInCsv = lines.slice(1).filter((line) => /,true,/.test(line)).length;
+    const flaggedInRun = flagsOf(run).filter((f) => f.endsWith(":true")).length;
+    expect(flaggedInCsv).toBeGreaterThanOrEqual(flaggedInRun);
+    expect(csv.text).toContain("Greenland, Robins & Pearl 1999");
+  });
 });
 
 describe("the analyses the seed saved", () => {
