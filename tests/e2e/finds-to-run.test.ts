@@ -2,7 +2,8 @@
 // lead uploads an invented occurrence table, previews the ranges it gives and applies them, opens one
 // genus's finds from its trait-table row, codes a trait for every genus in the grid, reads survivors,
 // victims and the sampling completeness of the stages around the base of the Danian on the Boundary
-// screen (with the three-timer chart), and runs a selectivity test across that boundary.
+// screen (with the three-timer chart), and runs a selectivity test across that boundary with the sampling
+// covariate (the number of occurrences, log scale), whose result says whether the trait's odds ratio holds.
 // Every taxon and collection here is invented.
 // Interval ages: ICS chart v2024/12 (Campanian 83.6-72.2, Maastrichtian 72.2-66.0, Danian 66.0-61.66 Ma).
 import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
@@ -181,12 +182,18 @@ describe("from finds to a selectivity run", () => {
       await page.getByRole("checkbox", { name: /^Feeding mode/ }).check();
       await page.getByLabel("Reference state of Feeding mode").selectOption("suspension");
       await page.getByTestId("design-summary").getByText("5 victims and 5 survivors").first().waitFor();
+      // With the sampling covariate: how often each genus was found, on a log scale.
+      await page.getByRole("checkbox", { name: "Number of occurrences (log scale)" }).check();
       await page.getByLabel("Name of the run").fill("Feeding at the Danian from the finds (invented)");
       await page.getByRole("button", { name: "Run the tests" }).click();
       await page.waitForURL(/[?&]run=[0-9a-f-]{36}/);
       const forest = page.getByTestId("forest-plot");
       await forest.waitFor({ timeout: 60_000 });
       expect(await forest.locator('[data-contrast^="feeding:"]').count()).toBeGreaterThan(0);
+      // The result says whether the feeding mode's odds ratio holds once sampling is allowed for (every genus here has finds).
+      await page.getByTestId("sampling-check").waitFor();
+      await page.getByText("Does it hold once sampling is allowed for?", { exact: false }).first().waitFor();
+      await page.getByText("Every victim and survivor has at least one find.", { exact: false }).first().waitFor();
       await screenshot(page, "finds-to-run-run");
     });
   });
