@@ -4,7 +4,7 @@ import { invitations, memberships, studies, traits, users } from "../../db/schem
 import { SUGGESTED_CODEBOOK } from "../../shared/codebook";
 import { ROLE_LABELS, type StudyRole } from "../../shared/roles";
 import type { MainBoundary, Member, Study, StudyUpdateInput } from "../../shared/schemas/studies";
-import { findUnit } from "../../shared/timescale/index";
+import { findUnit, RANK_ORDER, timescaleUnits } from "../../shared/timescale/index";
 import { DomainError, invalidInput, notFound } from "../domain/errors";
 import { addActivity } from "./activity";
 import { loadImportSettings, saveImportSettings } from "./importSettings";
@@ -28,6 +28,13 @@ interface StoredMainBoundary {
   setAt: string;
 }
 
+/** The narrowest unit of the chart whose base is this age (a stage before an epoch), so the Boundary screen can open it by name. */
+function unitWithBase(age: number): string | null {
+  const units = timescaleUnits.filter((u) => Math.abs(u.base - age) < 1e-9);
+  units.sort((a, b) => RANK_ORDER.indexOf(b.rank) - RANK_ORDER.indexOf(a.rank));
+  return units[0]?.name ?? null;
+}
+
 /** The main boundary: the later of the choice on the overview and the newest run's crisis boundary. */
 function mainBoundaryOf(row: StudyRow, lastRun: LastRunBoundary | null): MainBoundary | null {
   const stored = (row.settings as { mainBoundary?: StoredMainBoundary }).mainBoundary;
@@ -35,7 +42,7 @@ function mainBoundaryOf(row: StudyRow, lastRun: LastRunBoundary | null): MainBou
     lastRun && typeof lastRun.boundaryMa === "number"
       ? {
           boundaryMa: lastRun.boundaryMa,
-          unit: null,
+          unit: unitWithBase(lastRun.boundaryMa),
           windowMyr: typeof lastRun.windowMyr === "number" ? lastRun.windowMyr : null,
           source: "run",
           runId: lastRun.runId,

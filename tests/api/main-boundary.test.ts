@@ -57,7 +57,8 @@ describe("the study's main boundary", () => {
     await storeRun(studyId, { boundaries: [{ boundaryMa: 93.9 }], traits: [] }, "failed");
     expect((await owner.get(`/api/studies/${studyId}`)).body.mainBoundary).toBeNull();
     const run = await storeRun(studyId, { boundaries: [{ boundaryMa: 93.9 }, { boundaryMa: 66, windowMyr: 1.5 }], crisisBoundary: 1, traits: [] });
-    expect((await owner.get(`/api/studies/${studyId}`)).body.mainBoundary).toMatchObject({ boundaryMa: 66, windowMyr: 1.5, source: "run", runId: run.id, runName: run.name });
+    // 66.0 Ma is the base of the Cenozoic, Paleogene, Paleocene and Danian: named by the narrowest, the stage.
+    expect((await owner.get(`/api/studies/${studyId}`)).body.mainBoundary).toMatchObject({ boundaryMa: 66, unit: "Danian", windowMyr: 1.5, source: "run", runId: run.id, runName: run.name });
 
     // Chosen on the overview after the run: the choice counts.
     await owner.patch(`/api/studies/${studyId}`).send({ mainBoundary: { unit: "Turonian" } });
@@ -65,10 +66,13 @@ describe("the study's main boundary", () => {
 
     // A newer run without a named crisis: its first boundary.
     await storeRun(studyId, { boundaries: [{ boundaryMa: 72.2 }], traits: [] }, "queued", new Date(Date.now() + 1000));
-    expect((await owner.get(`/api/studies/${studyId}`)).body.mainBoundary).toMatchObject({ boundaryMa: 72.2, windowMyr: null, source: "run" });
+    expect((await owner.get(`/api/studies/${studyId}`)).body.mainBoundary).toMatchObject({ boundaryMa: 72.2, unit: "Maastrichtian", windowMyr: null, source: "run" });
+    // An age that is no unit's base keeps no unit.
+    await storeRun(studyId, { boundaries: [{ boundaryMa: 94.2 }], traits: [] }, "queued", new Date(Date.now() + 2000));
+    expect((await owner.get(`/api/studies/${studyId}`)).body.mainBoundary).toMatchObject({ boundaryMa: 94.2, unit: null, source: "run" });
 
     // Clearing the choice leaves the runs' word.
     const cleared = await owner.patch(`/api/studies/${studyId}`).send({ mainBoundary: null });
-    expect(cleared.body.mainBoundary).toMatchObject({ boundaryMa: 72.2, source: "run" });
+    expect(cleared.body.mainBoundary).toMatchObject({ boundaryMa: 94.2, source: "run" });
   });
 });

@@ -44,7 +44,9 @@ describe("the study's main boundary", () => {
 
       const page = await context.newPage();
       await page.goto(`${demo.studyUrl}/boundary`);
-      await page.waitForURL(/[?&]age=93\.9(&|$)/);
+      // Opened by name, with the chart's selects, as if the Turonian had been chosen there.
+      await page.waitForURL(/[?&]unit=Turonian(&|$)/);
+      expect(await page.getByLabel("Stage", { exact: true }).inputValue()).toBe("Turonian");
       await page.getByTestId("boundary-headline").filter({ hasText: "base of the Turonian stage, 93.9 Ma" }).waitFor();
       await page.getByTestId("main-boundary-note").filter({ hasText: `the crisis boundary of its newest run, “${study.mainBoundary!.runName}”` }).waitFor();
       await page.getByRole("region", { name: "Outcomes across the boundary" }).waitFor();
