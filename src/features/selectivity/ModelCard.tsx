@@ -64,7 +64,7 @@ export function ModelCard({ result, level }: { result: SelectivityResultData; le
                   Uncertainty<span className="block font-normal normal-case">standard error</span>
                 </th>
                 <th scope="col" className={thNum}>
-                  Coefficient ÷ uncertainty<span className="block font-normal normal-case">Wald z</span>
+                  Ratio<span className="block font-normal normal-case">Wald z, coefficient ÷ SE</span>
                 </th>
               </tr>
             </thead>
