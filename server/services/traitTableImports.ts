@@ -31,7 +31,7 @@ const PREVIEW_SAMPLE = 50;
 
 const NOTES = [
   "Rows are matched to taxa by exact name; a new name adds a taxon.",
-  "An empty cell (or NA) keeps what the taxon already holds; it never clears a value.",
+  "An empty cell (or NA, or one of the study's missing-value tokens) keeps what the taxon already holds; it never clears a value.",
   "Range columns take ages in Ma or interval names: a first appearance reads an interval's base, a last appearance its top.",
   "States are read by code or label, ignoring case; numbers may use a decimal comma unless the file is comma separated.",
 ];
