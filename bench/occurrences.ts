@@ -1,11 +1,11 @@
 // Timings of deriving ranges and three-timer rates from invented occurrences (seeded, so every run reads the
 // same finds). `npx tsx bench/occurrences.ts` prints them; bench/run.ts runs benchOccurrences().
 import { randomUUID } from "node:crypto";
-import { mkdtemp, rm, writeFile } from "node:fs/promises";
+import { mkdtemp, readdir, readFile, rm, writeFile } from "node:fs/promises";
 import { loadavg, tmpdir } from "node:os";
 import { join } from "node:path";
 import { pathToFileURL } from "node:url";
-import { eq } from "drizzle-orm";
+import { eq, sql } from "drizzle-orm";
 import { memberships, studies, users } from "../db/schema/index";
 import { connectDatabase } from "../server/db";
 import { createOccurrenceService } from "../server/services/occurrences";
@@ -63,6 +63,31 @@ function time(runs: number, work: () => void): { ms: number; cpuMs: number } {
   return { ms: median(wall), cpuMs: median(cpu) };
 }
 
+/**
+ * CPU seconds the PostgreSQL cluster has used so far (Linux /proc): the postmaster with its exited
+ * children, and its live children (the bench's own throwaway cluster serves nobody else). Null where
+ * it cannot be read. With the Node process's own CPU time it says how much work the upload costs,
+ * which a machine busy with other work does not change as it changes the wall time.
+ */
+async function postgresCpuSeconds(db: ReturnType<typeof connectDatabase>["db"]): Promise<number | null> {
+  try {
+    const dir = ((await db.execute(sql`SHOW data_directory`)).rows[0] as { data_directory: string }).data_directory;
+    const postmaster = Number((await readFile(join(dir, "postmaster.pid"), "utf8")).split("\n")[0]);
+    const ticks = (stat: string) => stat.slice(stat.lastIndexOf(")") + 2).split(" ");
+    const own = ticks(await readFile(`/proc/${postmaster}/stat`, "utf8"));
+    // Fields after the name: state is 0, ppid 1, utime 11, stime 12, cutime 13, cstime 14.
+    let total = Number(own[11]) + Number(own[12]) + Number(own[13]) + Number(own[14]);
+    for (const pid of await readdir("/proc")) {
+      if (!/^\d+$/.test(pid)) continue;
+      const fields = ticks(await readFile(`/proc/${pid}/stat`, "utf8").catch(() => ""));
+      if (Number(fields[1]) === postmaster) total += Number(fields[11]) + Number(fields[12]);
+    }
+    return total / 100; // USER_HZ is 100 on Linux
+  } catch {
+    return null;
+  }
+}
+
 /** The invented finds as an occurrence CSV: every fifth dated by interval names instead of ages. */
 function occurrenceCsv(occurrences: Occurrence[], stageNameAt: Map<number, string>): string {
   const lines = ["taxon,higher_taxon,max_ma,min_ma,early_interval,late_interval,collection"];
@@ -98,6 +123,8 @@ async function benchUploadAndCommit(occurrences: Occurrence[]): Promise<BenchFig
     }
     const csv = Buffer.from(occurrenceCsv(occurrences, stageNameAt), "utf8");
     const service = createOccurrenceService(db);
+    const postgresBefore = await postgresCpuSeconds(db);
+    const nodeBefore = process.cpuUsage();
     const started = performance.now();
     const storedPath = join(uploadDir, `${randomUUID()}.csv`);
     await writeFile(storedPath, csv);
@@ -115,6 +142,10 @@ async function benchUploadAndCommit(occurrences: Occurrence[]): Promise<BenchFig
     };
     const committed = await service.commit(studyId, uploaded.upload.id, { id: userId }, { mapping, duplicates: "keep", skipInvalid: false });
     const done = performance.now();
+    const nodeUsed = process.cpuUsage(nodeBefore);
+    const postgresAfter = await postgresCpuSeconds(db);
+    const nodeCpu = (nodeUsed.user + nodeUsed.system) / 1e6;
+    const postgresCpu = postgresBefore !== null && postgresAfter !== null ? postgresAfter - postgresBefore : null;
     if (committed.createdCount !== occurrences.length) throw new Error(`bench: expected ${occurrences.length} occurrences, the commit wrote ${committed.createdCount}`);
     const derivingStart = performance.now();
     const preview = await service.previewRanges(studyId, { ageMode: "bounds", maxSpanMyr: null });
@@ -126,6 +157,12 @@ async function benchUploadAndCommit(occurrences: Occurrence[]): Promise<BenchFig
         value: round((done - started) / 1000),
         unit: "s",
         note: `a ${mb} MB CSV, one fifth dated by interval names; target < 30 s; load average ${loadavg()[0]!.toFixed(1)}`,
+      },
+      {
+        name: "occurrences 500k: upload + commit, CPU time",
+        value: round(nodeCpu + (postgresCpu ?? 0)),
+        unit: "s",
+        note: `server process ${round(nodeCpu)} s + PostgreSQL ${postgresCpu === null ? "not readable" : `${round(postgresCpu)} s`}; the work itself, whatever else the machine runs`,
       },
       { name: "occurrences 500k: upload (parse, store)", value: round((afterUpload - started) / 1000), unit: "s" },
       { name: "occurrences 500k: commit (read, check, write)", value: round((done - afterUpload) / 1000), unit: "s", note: "one transaction" },

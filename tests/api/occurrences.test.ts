@@ -80,6 +80,16 @@ describe("upload, preview, commit, revert", () => {
     expect(dropping.body.counts).toMatchObject({ valid: 3, duplicates: 1 });
   });
 
+  it("stores names with backslashes, quotes and commas exactly as written (the commit streams its rows through COPY's text format)", async () => {
+    const studyId = await cast.makeStudy();
+    // A literal backslash-N would read as NULL, and a backslash-t as a tab, if they were not escaped.
+    const file = 'taxon,family,max_ma,min_ma,collection_no\n"Back\\slash\\N ella","Quote""idae, s.l.",80,75,"K\\t1"\n';
+    const { commit, uploadId } = await commitOccurrences(cast.people.coder.agent, studyId, file);
+    expect(commit.status, JSON.stringify(commit.body)).toBe(200);
+    const stored = await app.ctx.db.select().from(occurrences).where(eq(occurrences.uploadId, uploadId));
+    expect(stored.map((o) => [o.taxon, o.higherTaxon, o.collection, o.maxMa, o.minMa])).toEqual([["Back\\slash\\N ella", 'Quote"idae, s.l.', "K\\t1", 80, 75]]);
+  });
+
   it("refuses a mapping without age columns at the mapping step, with a clear message, and writes nothing", async () => {
     const studyId = await cast.makeStudy();
     const upload = await uploadOccurrences(cast.people.coder.agent, studyId, "name,notes\nAlphella,seen once\n");
