@@ -98,7 +98,9 @@ export function samplingCovariateCheck(input: SamplingCheckInput): SamplingCheck
     const key = COVARIATE_KEYS[covariate];
     const found = withSampling.adjusted.get(key)?.get("") ?? null;
     const term = withSampling.model!.terms.find((t) => t.name === key);
-    return { covariate, label: SAMPLING_COVARIATE_LABELS[covariate], oddsRatio: found ? { estimate: found.estimate, ci: [found.ci[0], found.ci[1]] as [number, number] } : null, pValue: term?.pValue ?? null };
+    // A covariate with one value among these taxa (no collection ids in the uploads, say) stays out of the fit: said beside its name.
+    const left = found ? null : withSampling.missingReasons.get(key);
+    return { covariate, label: left ? `${SAMPLING_COVARIATE_LABELS[covariate]} (${left.replace(/\.$/, "")})` : SAMPLING_COVARIATE_LABELS[covariate], oddsRatio: found ? { estimate: found.estimate, ci: [found.ci[0], found.ci[1]] as [number, number] } : null, pValue: term?.pValue ?? null };
   });
 
   const contrasts: SamplingCheck["contrasts"] = [];

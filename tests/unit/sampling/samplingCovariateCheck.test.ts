@@ -95,6 +95,19 @@ describe("samplingCovariateCheck", () => {
     expect(check.covariateTerms.map((t) => t.covariate)).toEqual(["occurrences", "collections"]);
   });
 
+  it("leaves out a covariate with a single value among the taxa and says so beside its name", () => {
+    const { taxa, counts } = simulate([
+      { finds: 1, reef: [30, 24], level: [30, 12] },
+      { finds: 10, reef: [30, 18], level: [30, 6] },
+    ]);
+    for (const id of Object.keys(counts)) counts[id]!.collections = 0; // uploads without collection ids
+    const check = samplingCovariateCheck({ taxa, traits: [HABITAT], counts, covariates: ["occurrences", "collections"], options: { forceFirth: false, level: 0.95 } });
+    const collections = check.covariateTerms.find((t) => t.covariate === "collections")!;
+    expect(collections.oddsRatio).toBeNull();
+    expect(collections.label).toMatch(/^Number of collections \(Number of collections is left out of the model: .*single value\)$/);
+    expect(check.contrasts[0]!.verdict).toBe("holds");
+  });
+
   it("says there is nothing to compare without occurrences", () => {
     const { taxa } = simulate([{ finds: 1, reef: [10, 5], level: [10, 2] }]);
     const check = samplingCovariateCheck({ taxa, traits: [HABITAT], counts: {}, covariates: ["occurrences"], options: { forceFirth: false, level: 0.95 } });
