@@ -27,6 +27,9 @@ export function blankMissingTokens(parsed: ParsedCsv, tokens: readonly string[],
   if (tokens.length === 0) return { parsed, read: [] };
   const byLower = new Map(tokens.map((t) => [t.trim().toLowerCase(), t]));
   const longest = Math.max(...tokens.map((t) => t.length));
+  // First characters a token can start with (either case): most cells are ruled out by their first character.
+  const firsts = new Set(tokens.flatMap((t) => [t.trim()[0]!.toLowerCase(), t.trim()[0]!.toUpperCase()]));
+  const isSpace = (c: string) => c === " " || c === "\t" || c === "\u00a0";
   const indices = columns ? columns.map((c) => parsed.header.indexOf(c)).filter((i) => i >= 0) : parsed.header.map((_, i) => i);
   const counts = new Map<string, MissingRead>();
   const rows = parsed.rows.map((r) => {
@@ -34,7 +37,7 @@ export function blankMissingTokens(parsed: ParsedCsv, tokens: readonly string[],
     for (const i of indices) {
       const cell = r.cells[i];
       // Most cells are longer than any token, or plainly a value: skip the lower-casing for them.
-      if (!cell || cell.length > longest + 20) continue;
+      if (!cell || cell.length > longest + 20 || (!firsts.has(cell[0]!) && !isSpace(cell[0]!))) continue;
       const token = byLower.get(cell.trim().toLowerCase());
       if (token === undefined) continue;
       if (!cells) cells = [...r.cells];

@@ -27,39 +27,37 @@ const FIRST_ROWS = 5;
  */
 export function similarNames(fileNames: Iterable<{ row: number; name: string }>, studyNames: Iterable<string>, merges: NameMerges = {}): SimilarNames[] {
   type Spelling = { name: string; fileRows: number; firstRows: number[]; inStudy: boolean };
-  const byKey = new Map<string, Map<string, Spelling>>();
-  const keyOf = new Map<string, string>();
-  const spelling = (name: string) => {
-    let key = keyOf.get(name);
-    if (key === undefined) keyOf.set(name, (key = nameKey(name)));
-    if (!key) return null;
-    let group = byKey.get(key);
-    if (!group) byKey.set(key, (group = new Map()));
-    let s = group.get(name);
-    if (!s) group.set(name, (s = { name, fileRows: 0, firstRows: [], inStudy: false }));
-    return s;
-  };
-  const inFile = new Set<string>();
+  // One pass over the rows by exact spelling (half a million rows name a few thousand taxa), then keys per spelling.
+  const spellings = new Map<string, Spelling>();
   for (const { row, name } of fileNames) {
     if (!name) continue;
-    const s = spelling(name);
-    if (!s) continue;
+    let s = spellings.get(name);
+    if (!s) spellings.set(name, (s = { name, fileRows: 0, firstRows: [], inStudy: false }));
     s.fileRows++;
     if (s.firstRows.length < FIRST_ROWS) s.firstRows.push(row);
-    inFile.add(keyOf.get(name)!);
+  }
+  const byKey = new Map<string, Spelling[]>();
+  for (const s of spellings.values()) {
+    const key = nameKey(s.name);
+    if (!key) continue;
+    const group = byKey.get(key);
+    if (group) group.push(s);
+    else byKey.set(key, [s]);
   }
   for (const name of studyNames) {
-    const key = keyOf.get(name) ?? nameKey(name);
-    if (!inFile.has(key)) continue;
-    spelling(name)!.inStudy = true;
+    const group = byKey.get(nameKey(name));
+    if (!group) continue;
+    const known = group.find((s) => s.name === name);
+    if (known) known.inStudy = true;
+    else group.push({ name, fileRows: 0, firstRows: [], inStudy: true });
   }
   const groups: SimilarNames[] = [];
   for (const [key, group] of byKey) {
-    if (group.size < 2 || !inFile.has(key)) continue;
-    const spellings = [...group.values()].sort((a, b) => Number(b.inStudy) - Number(a.inStudy) || b.fileRows - a.fileRows || (a.name < b.name ? -1 : 1));
-    const targets = new Set(spellings.map((s) => merges[s.name] ?? s.name));
-    const mergedInto = targets.size === 1 ? [...targets][0] : null;
-    groups.push({ key, spellings, mergedInto });
+    if (group.length < 2) continue;
+    const sorted = group.sort((a, b) => Number(b.inStudy) - Number(a.inStudy) || b.fileRows - a.fileRows || (a.name < b.name ? -1 : 1));
+    const targets = new Set(sorted.map((s) => mergedName(s.name, merges)));
+    const mergedInto = targets.size === 1 ? [...targets][0]! : null;
+    groups.push({ key, spellings: sorted, mergedInto });
   }
   return groups.sort((a, b) => (a.key < b.key ? -1 : 1));
 }
