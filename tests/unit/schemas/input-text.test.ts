@@ -52,7 +52,7 @@ describe("one-line fields", () => {
     expect(studyCreateSchema.safeParse({ name: bad }).error?.issues[0]).toMatchObject({ path: ["name"], message: "Name must be one line of text: it holds a line break" });
     expect(studyUpdateSchema.safeParse({ name: bad }).success).toBe(false);
     expect(taxonChangesSchema.safeParse({ higherTaxon: "Inventidae\u0000" }).error?.issues[0]).toMatchObject({ path: ["higherTaxon"], message: "Higher taxon must be one line of text: it holds a control character (U+0000)" });
-    expect(studyCreateSchema.parse({ name: "\nInvented study\n", description: "Line one\nline two" })).toEqual({ name: "Invented study", description: "Line one\nline two" });
+    expect(studyCreateSchema.parse({ name: "\nInvented study\n", description: "Line one\nline two" })).toEqual({ name: "Invented study", description: "Line one\nline two", suggestedCodebook: false });
     expect(z.string().check(oneLine("Title")).safeParse("a\u2029b").success).toBe(false);
   });
 });

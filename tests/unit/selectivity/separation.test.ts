@@ -115,7 +115,7 @@ describe("degenerate inputs give null results with reasons, never NaN or an exce
     const result = analyzeSelectivity({ taxa: [], traits: [SETTING, numericTrait("size", "Size")], options: DEFAULT_OPTIONS });
     expect(result.traits[0].test.method).toBe("No test: no taxon has a usable value of Setting.");
     expect(result.traits[1].table).toEqual([]);
-    expect(result.design).toEqual({ victims: 0, survivors: 0, droppedByTrait: { setting: 0, size: 0 }, completeCases: 0, withoutClade: 0 });
+    expect(result.design).toEqual({ victims: 0, survivors: 0, droppedByTrait: { setting: 0, size: 0 }, completeCases: 0, withoutClade: 0, withQualifiedClade: 0 });
     expectPlainJson(result);
   });
 

@@ -225,6 +225,7 @@ describe("multiple-testing correction and the design summary", () => {
       droppedByTrait: { setting: 1, feeding: 1, shell: 1, water: 0 },
       completeCases: 8,
       withoutClade: 0,
+      withQualifiedClade: 0,
     });
     expect(result.model!.n).toBe(8);
     expect(result.model!.droppedIncomplete).toBe(1);
