@@ -11,7 +11,7 @@ import { Select } from "../../components/Select";
 import { TextField } from "../../components/TextField";
 import { ApiError, errorMessage } from "../../lib/api";
 import { issuesToFieldErrors, type FieldErrors } from "../../lib/forms";
-import { formatDate } from "../../lib/format";
+import { formatDate, pluralize } from "../../lib/format";
 import { paths } from "../../lib/paths";
 import { useRun } from "../../lib/queries/runs";
 import { useCreateComparison } from "./api";
@@ -68,7 +68,7 @@ export function NewComparisonForm({ studyId, lists, runs, mainBoundary }: { stud
       <div className="grid gap-4 sm:grid-cols-2">
         <Select
           label="Modern list"
-          options={ready.map((l) => ({ value: l.id, label: `${l.name} (${l.speciesCount} species)` }))}
+          options={ready.map((l) => ({ value: l.id, label: `${l.name} (${pluralize(l.speciesCount, "species", "species")})` }))}
           value={listId}
           onChange={(e) => setListId(e.target.value)}
           error={errors.listId ?? errors.crosswalk}

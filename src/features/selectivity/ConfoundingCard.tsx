@@ -150,7 +150,7 @@ export function ConfoundingCard({
             within-clade odds ratio and how many clades carry information. A small Breslow-Day p says the odds ratio differs between clades, so one common figure
             summarises them poorly.
             {result.design.withoutClade ? ` ${pluralize(result.design.withoutClade, "taxon", "taxa")} without a higher taxon ${result.design.withoutClade === 1 ? "is" : "are"} left out of the clade-adjusted odds ratios.` : ""}
-            {result.design.withQualifiedClade ? ` ${result.design.withQualifiedClade} taxa have a qualified higher taxon (?, cf., aff.): ${QUALIFIED_HIGHER_TAXON_RULE.charAt(0).toLowerCase()}${QUALIFIED_HIGHER_TAXON_RULE.slice(1)}` : ""}
+            {result.design.withQualifiedClade ? ` ${pluralize(result.design.withQualifiedClade, "taxon", "taxa")} ${result.design.withQualifiedClade === 1 ? "has" : "have"} a qualified higher taxon (?, cf., aff.): ${QUALIFIED_HIGHER_TAXON_RULE.charAt(0).toLowerCase()}${QUALIFIED_HIGHER_TAXON_RULE.slice(1)}` : ""}
           </p>
         ) : (
           <p className="text-sm text-stone-600">

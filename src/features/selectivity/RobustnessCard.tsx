@@ -1,4 +1,5 @@
 import { useId, useState } from "react";
+import { pluralize } from "../../lib/format";
 import { EMPHASIS_COLOUR, REFERENCE_COLOUR } from "../../components/chartColours";
 import type { RobustnessPanel } from "@shared/selectivity/robustnessPanel";
 import type { RunResults } from "@shared/schemas/runs";
@@ -67,7 +68,7 @@ export function RobustnessCard({ results, index, label, printable = false }: { r
       description={`Each odds ratio re-estimated under other windows (${panel.variants
         .filter((v) => v.kind === "window")
         .map((v) => v.label.replace(/^Window /, ""))
-        .join(", ")}), without each of ${clades} clades in turn, without single-stage taxa, and with last appearances within ${formatEstimate(panel.truncationMyr)} Myr of the boundary recoded.`}
+        .join(", ")}), without each of ${pluralize(clades, "clade")} in turn, without single-stage taxa, and with last appearances within ${formatEstimate(panel.truncationMyr)} Myr of the boundary recoded.`}
       className="break-inside-avoid"
     >
       <div className="space-y-5" data-testid="robustness-panel">
