@@ -47,7 +47,7 @@ async function studyWithLead(name: string) {
   const signup = await context.request.post(`${server.url}/api/auth/signup`, { data: { email, password: PASSWORD, name } });
   expect(signup.status()).toBe(201);
   const created = await context.request.post(`${server.url}/api/studies`, {
-    data: { name: `Invented Vessiran Basin crisis ${randomUUID().slice(0, 6)}`, description: "Invented example study." },
+    data: { name: `Invented Vessiran Basin crisis ${randomUUID().slice(0, 6)}`, description: "Invented example study.", suggestedCodebook: true },
   });
   expect(created.status()).toBe(201);
   const studyId = ((await created.json()) as { id: string }).id;
@@ -64,7 +64,7 @@ describe("trait tables", () => {
 
     const page = await context.newPage();
     await withScreenshotOnFailure(context, "trait-tables-import", async () => {
-      // A new study starts with the suggested codebook.
+      // The study was created with the suggested codebook.
       await page.goto(`${studyUrl}/codebook`);
       await page.getByRole("heading", { level: 1, name: "Codebook" }).waitFor();
       const inUse = page.getByRole("region", { name: "Traits in use" });
