@@ -4,6 +4,7 @@
 // (traitTableCommit.ts), revert (traitTableRevert.ts) and discard.
 import { eq } from "drizzle-orm";
 import type { Database } from "../db";
+import type { ParsedCsv } from "../../shared/csv/parse";
 import { studyIntervalLookup } from "./timeBins";
 import { studies } from "../../db/schema/index";
 import { mappingProblems, suggestMapping, type RememberedMapping } from "../../shared/csv/mapping";
@@ -40,21 +41,26 @@ export function createImportService(db: Database) {
   const lifecycle = createUploadLifecycle(db, TRAIT_TABLE_UPLOAD);
   const sweeps = createUploadSweeps(db);
 
+  /** What an upload answers: the file as read and a mapping (the one last previewed, else one suggested from the header and what the study remembered). */
+  async function uploadAnswer(studyId: string, importId: string, parsed: ParsedCsv, lastMapping: ImportMapping | undefined): Promise<ImportUpload> {
+    const codebook = await loadCodebook(db, studyId);
+    const [study] = await db.select({ settings: studies.settings }).from(studies).where(eq(studies.id, studyId));
+    const remembered = ((study?.settings as { importMapping?: RememberedMapping } | undefined)?.importMapping ?? {}) as RememberedMapping;
+    const suggestion = suggestMapping(parsed.header, codebook, remembered);
+    return {
+      import: await lifecycle.summary(studyId, importId),
+      ...fileAsRead(parsed),
+      suggestedMapping: lastMapping ?? suggestion.mapping,
+      rememberedColumns: lastMapping ? [] : suggestion.rememberedColumns,
+      maxBytes: IMPORT_MAX_BYTES,
+    };
+  }
+
   return {
     /** Keeps the file multer stored as the upload's file (removed when anything fails) and suggests a mapping. */
     async upload(studyId: string, user: { id: string }, file: UploadedFile): Promise<ImportUpload> {
       const { id, parsed } = await lifecycle.receive(studyId, user, file);
-      const codebook = await loadCodebook(db, studyId);
-      const [study] = await db.select({ settings: studies.settings }).from(studies).where(eq(studies.id, studyId));
-      const remembered = ((study?.settings as { importMapping?: RememberedMapping } | undefined)?.importMapping ?? {}) as RememberedMapping;
-      const suggestion = suggestMapping(parsed.header, codebook, remembered);
-      return {
-        import: await lifecycle.summary(studyId, id),
-        ...fileAsRead(parsed),
-        suggestedMapping: suggestion.mapping,
-        rememberedColumns: suggestion.rememberedColumns,
-        maxBytes: IMPORT_MAX_BYTES,
-      };
+      return uploadAnswer(studyId, id, parsed, undefined);
     },
 
     get: lifecycle.summary,
@@ -62,19 +68,7 @@ export function createImportService(db: Database) {
     /** An upload left before its commit, read again so the mapping step can resume: the upload's answer, with the mapping last previewed when there is one. */
     async resume(studyId: string, importId: string): Promise<ImportUpload> {
       const upload = await lifecycle.openRow(studyId, importId);
-      const parsed = await readStoredUpload(upload);
-      const lastMapping = (upload.mapping as { mapping?: ImportMapping }).mapping;
-      const codebook = await loadCodebook(db, studyId);
-      const [study] = await db.select({ settings: studies.settings }).from(studies).where(eq(studies.id, studyId));
-      const remembered = ((study?.settings as { importMapping?: RememberedMapping } | undefined)?.importMapping ?? {}) as RememberedMapping;
-      const suggestion = suggestMapping(parsed.header, codebook, remembered);
-      return {
-        import: await lifecycle.summary(studyId, importId),
-        ...fileAsRead(parsed),
-        suggestedMapping: lastMapping ?? suggestion.mapping,
-        rememberedColumns: lastMapping ? [] : suggestion.rememberedColumns,
-        maxBytes: IMPORT_MAX_BYTES,
-      };
+      return uploadAnswer(studyId, importId, await readStoredUpload(upload), (upload.mapping as { mapping?: ImportMapping }).mapping);
     },
 
     async list(studyId: string, q: { page: number; pageSize: number }): Promise<ImportList> {
