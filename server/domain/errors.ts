@@ -29,6 +29,8 @@ export class DomainError extends Error {
 }
 
 export const invalidInput = (message: string, fields?: Record<string, string>) => new DomainError("invalid", "bad_request", message, fields);
+/** Fields of the input fail their checks: the same answer as a request that fails its schema. */
+export const validationFailed = (message: string, fields: Record<string, string>) => new DomainError("invalid", "validation_failed", message, fields);
 export const forbidden = (message = "Your role in this study does not allow this.") => new DomainError("forbidden", "forbidden", message);
 export const notFound = (message = "Not found.") => new DomainError("not_found", "not_found", message);
 export const conflict = (message: string, fields?: Record<string, string>) => new DomainError("conflict", "conflict", message, fields);

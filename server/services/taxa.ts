@@ -20,7 +20,7 @@ import type {
 } from "../../shared/schemas/taxa";
 import { BULK_FIELDS, TAXA_MAX_BULK, taxonChangesSchema, type TaxaIds, type TaxaIdsQuery } from "../../shared/schemas/taxa";
 import type { Trait } from "../../shared/schemas/traits";
-import { detailedError, DomainError, invalidInput, notFound } from "../domain/errors";
+import { detailedError, DomainError, invalidInput, notFound, validationFailed } from "../domain/errors";
 import { fieldValue, isEmptyValue, setField, snapshotOf, type TaxonState } from "./taxonModel";
 import { loadCodebookById } from "./codebookStore";
 import { getTaxonState, insertTaxa, isUniqueViolation, loadTaxaById, lockTaxaById, openThreadsFor, taxonRowOf, toTaxonRow, writeTaxa } from "./taxaStore";
@@ -75,7 +75,7 @@ export function createTaxonService(db: Database, grid: TaxaGrid = createTaxaGrid
       if (!r.ok) fields[`changes.values.${traitId}`] = r.message;
       else add(traitId, traitId, r.value);
     }
-    if (Object.keys(fields).length) throw invalidInput(`Invalid changes: ${Object.values(fields).join("; ")}`, fields);
+    if (Object.keys(fields).length) throw validationFailed(`Invalid changes: ${Object.values(fields).join("; ")}`, fields);
     return out;
   }
 
