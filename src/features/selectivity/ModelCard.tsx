@@ -14,10 +14,22 @@ function firthWords(model: NonNullable<SelectivityResultData["model"]>): string 
   return `Firth’s bias-reduced logistic regression (Firth 1993) was used because the data separate${which}: some trait state has only victims or only survivors, so the ordinary fit drifts to infinite odds ratios. The penalised fit keeps them finite; read them as cautious estimates.`;
 }
 
+/**
+ * The run's own note on the separation (it names the separating state in words and how the separation
+ * was found: the linear programme before fitting, Konis 2007, or the fit running off), shown in the
+ * Firth box instead of repeated in the list of notes. Runs saved without it keep the generic words.
+ */
+function separationNoteOf(model: SelectivityResultData["model"]): string | undefined {
+  if (!model?.firth || model.firthReason !== "separation") return undefined;
+  return model.notes.find((note) => note.startsWith("Firth's bias-reduced logistic regression (Firth 1993) was used because the data separate"));
+}
+
 /** The multiple logistic regression of extinction on the chosen traits. */
 export function ModelCard({ result, level }: { result: SelectivityResultData; level: number }) {
   const model = result.model;
   const percent = levelWords(level);
+  const separationNote = separationNoteOf(model);
+  const otherNotes = model ? model.notes.filter((note) => note !== separationNote) : [];
   return (
     <Card
       title="Multiple logistic regression"
@@ -31,7 +43,7 @@ export function ModelCard({ result, level }: { result: SelectivityResultData; le
           {model.firth && (
             <div className="rounded-lg border border-caution-200 bg-caution-50 px-4 py-3 text-[15px] text-stone-800" data-testid="firth-note">
               <p className="font-semibold text-caution-700">Bias-reduced fit</p>
-              <p className="mt-1">{firthWords(model)}</p>
+              <p className="mt-1">{separationNote ?? firthWords(model)}</p>
             </div>
           )}
           <ModelFit model={model} />
@@ -117,9 +129,9 @@ export function ModelCard({ result, level }: { result: SelectivityResultData; le
             </ResultTable>
           )}
 
-          {model.notes.length > 0 && (
+          {otherNotes.length > 0 && (
             <ul className="list-disc space-y-1 pl-5 text-sm text-stone-600">
-              {model.notes.map((note) => (
+              {otherNotes.map((note) => (
                 <li key={note}>{note}</li>
               ))}
             </ul>
