@@ -1,6 +1,6 @@
 import { useId, useState } from "react";
 import { BOUNDARY_MARK_COLOUR, REFERENCE_COLOUR, RISK_COLOUR, SUMMARY_COLOUR } from "../../components/chartColours";
-import { ResponsiveBar, type BarCustomLayerProps, type BarSvgProps, type BarTooltipProps } from "@nivo/bar";
+import { ResponsiveBar, type BarCustomLayerProps, type BarTooltipProps } from "@nivo/bar";
 import type { RatesResult, StageRates } from "@shared/schemas/outcomes";
 import { Card } from "../../components/Card";
 import { ErrorState } from "../../components/ErrorState";
@@ -10,6 +10,7 @@ import { formatCount, pluralize } from "../../lib/format";
 import { useRates } from "./api";
 import { formatAgeNumber, formatMa } from "../../components/timescale/ages";
 import { formatPercent, formatRate, formatWholePercent } from "./words";
+import { CHART_FONT, CHART_THEME } from "../../components/chartTheme";
 
 type Measure = "proportionalExtinction" | "q" | "qPerMyr";
 
@@ -19,20 +20,9 @@ const MEASURES: ReadonlyArray<{ value: Measure; label: string; axis: string }> =
   { value: "qPerMyr", label: "Per-capita rate, per Myr", axis: "q per Myr" },
 ];
 
-const FONT = '"Inter Tight", system-ui, sans-serif';
 // From the app's one palette: other stages in the reference grey, the crisis in the red of "more extinction".
 const COLOR = { bar: REFERENCE_COLOUR, crisis: RISK_COLOUR.higher, boundary: BOUNDARY_MARK_COLOUR, threshold: SUMMARY_COLOUR, text: "#57534e" };
 
-// nivo takes its font only through the theme.
-const CHART_THEME: NonNullable<BarSvgProps<StageDatum>["theme"]> = {
-  text: { fontFamily: FONT, fontSize: 12, fill: COLOR.text },
-  axis: {
-    legend: { text: { fontFamily: FONT, fontSize: 13, fontWeight: 500, fill: "#44403c" } },
-    ticks: { line: { stroke: "#d6d3d1" }, text: { fontFamily: FONT, fontSize: 12, fill: COLOR.text } },
-  },
-  grid: { line: { stroke: "#e7e5e4" } },
-  tooltip: { container: { fontFamily: FONT, fontSize: 13, borderRadius: 8 } },
-};
 
 type StageDatum = { stage: string; value?: number };
 
@@ -199,7 +189,7 @@ function BoundaryMark({ layer, stages, crisis, boundary }: { layer: BarCustomLay
         y={-12}
         textAnchor={labelLeft ? "end" : "start"}
         fill={COLOR.boundary}
-        style={{ fontFamily: FONT, fontSize: 12, fontWeight: 600 }}
+        style={{ fontFamily: CHART_FONT, fontSize: 12, fontWeight: 600 }}
       >
         Boundary {formatMa(boundary)}
       </text>
@@ -220,7 +210,7 @@ function ThresholdMark({ layer, proportion }: { layer: BarCustomLayerProps<Stage
         stroke="white"
         strokeWidth={3}
         paintOrder="stroke"
-        style={{ fontFamily: FONT, fontSize: 12, fontWeight: 500 }}
+        style={{ fontFamily: CHART_FONT, fontSize: 12, fontWeight: 500 }}
       >
         {formatWholePercent(proportion)}: a convention, see below
       </text>

@@ -1,5 +1,5 @@
 import { useId } from "react";
-import { ResponsiveBar, type BarCustomLayerProps, type BarSvgProps, type BarTooltipProps } from "@nivo/bar";
+import { ResponsiveBar, type BarCustomLayerProps, type BarTooltipProps } from "@nivo/bar";
 import type { ThreeTimer, ThreeTimerRowDto } from "@shared/schemas/occurrences";
 import type { RatesResult } from "@shared/schemas/outcomes";
 import { ButtonLink } from "../../components/Button";
@@ -14,11 +14,11 @@ import { formatCount, pluralize } from "../../lib/format";
 import { paths } from "../../lib/paths";
 import { useRates, useThreeTimer } from "./api";
 import { formatRate } from "./words";
+import { CHART_FONT, CHART_THEME } from "../../components/chartTheme";
 
 /** Below this sampling completeness a stage is called poorly sampled (common practice, no source; the same line as the boundary warning). */
 const LOW_COMPLETENESS = 0.5;
 
-const FONT = '"Inter Tight", system-ui, sans-serif';
 // The app's chart palette (src/components/chartColours.ts): extinction in the clay red of "more extinction",
 // origination in its own blue, the range-based rate in the reference grey, completeness in the neutral grey.
 const COLOR = {
@@ -31,15 +31,6 @@ const COLOR = {
   text: "#57534e",
 };
 
-const CHART_THEME: NonNullable<BarSvgProps<RateDatum>["theme"]> = {
-  text: { fontFamily: FONT, fontSize: 12, fill: COLOR.text },
-  axis: {
-    legend: { text: { fontFamily: FONT, fontSize: 13, fontWeight: 500, fill: "#44403c" } },
-    ticks: { line: { stroke: "#d6d3d1" }, text: { fontFamily: FONT, fontSize: 12, fill: COLOR.text } },
-  },
-  grid: { line: { stroke: "#e7e5e4" } },
-  tooltip: { container: { fontFamily: FONT, fontSize: 13, borderRadius: 8 } },
-};
 
 type RateKey = "threeTimerExtinction" | "threeTimerOrigination" | "crosserExtinction";
 type RateDatum = { stage: string } & Partial<Record<RateKey, number>>;
@@ -219,7 +210,7 @@ function BoundaryLine({ layer, before, after, boundary }: { layer: { xScale: unk
   return (
     <g aria-hidden="true">
       <line x1={position} x2={position} y1={-8} y2={layer.innerHeight} stroke={COLOR.boundary} strokeWidth={2} />
-      <text x={position + 4} y={-10} fill={COLOR.boundary} style={{ fontFamily: FONT, fontSize: 12, fontWeight: 600 }}>
+      <text x={position + 4} y={-10} fill={COLOR.boundary} style={{ fontFamily: CHART_FONT, fontSize: 12, fontWeight: 600 }}>
         Boundary {formatMa(boundary)}
       </text>
     </g>
@@ -231,7 +222,7 @@ function LowLine({ layer }: { layer: BarCustomLayerProps<CompletenessDatum> }) {
   return (
     <g aria-hidden="true">
       <line x1={0} x2={layer.innerWidth} y1={y} y2={y} stroke={COLOR.low} strokeWidth={1.5} strokeDasharray="6 4" />
-      <text x={4} y={y - 5} fill={COLOR.low} stroke="white" strokeWidth={3} paintOrder="stroke" style={{ fontFamily: FONT, fontSize: 12, fontWeight: 500 }}>
+      <text x={4} y={y - 5} fill={COLOR.low} stroke="white" strokeWidth={3} paintOrder="stroke" style={{ fontFamily: CHART_FONT, fontSize: 12, fontWeight: 500 }}>
         {LOW_COMPLETENESS}: poorly sampled below
       </text>
     </g>

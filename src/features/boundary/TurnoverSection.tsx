@@ -1,6 +1,6 @@
 import { useId } from "react";
 import { BOUNDARY_MARK_COLOUR, REFERENCE_COLOUR, TURNOVER_SERIES_COLOUR } from "../../components/chartColours";
-import { ResponsiveLine, type LineCustomSvgLayerProps, type LineSvgProps } from "@nivo/line";
+import { ResponsiveLine, type LineCustomSvgLayerProps } from "@nivo/line";
 import type { TurnoverResult, TurnoverStage } from "@shared/schemas/turnover";
 import { Card } from "../../components/Card";
 import { textLinkClasses } from "../../components/TextLink";
@@ -13,8 +13,8 @@ import { formatCount, pluralize } from "../../lib/format";
 import { formatAgeNumber, formatMa } from "../../components/timescale/ages";
 import type { useTurnover } from "./api";
 import { formatRate } from "./words";
+import { CHART_FONT, CHART_THEME } from "../../components/chartTheme";
 
-const FONT = '"Inter Tight", system-ui, sans-serif';
 // The Boundary screen's colours, from the app's one palette (components/chartColours): extinction in the red of
 // "more extinction", origination in a blue of its own, the boundary in ink, background stages in the reference grey.
 export const TURNOVER_COLOR = {
@@ -29,15 +29,6 @@ export const TURNOVER_COLOR = {
 
 type Series = { id: string; data: Array<{ x: string; y: number | null }> };
 
-const LINE_THEME: NonNullable<LineSvgProps<Series>["theme"]> = {
-  text: { fontFamily: FONT, fontSize: 12, fill: TURNOVER_COLOR.text },
-  axis: {
-    legend: { text: { fontFamily: FONT, fontSize: 13, fontWeight: 500, fill: "#44403c" } },
-    ticks: { line: { stroke: "#d6d3d1" }, text: { fontFamily: FONT, fontSize: 12, fill: TURNOVER_COLOR.text } },
-  },
-  grid: { line: { stroke: "#e7e5e4" } },
-  tooltip: { container: { fontFamily: FONT, fontSize: 13, borderRadius: 8 } },
-};
 
 type TurnoverQuery = ReturnType<typeof useTurnover>;
 
@@ -118,7 +109,7 @@ function boundaryLayer(stages: TurnoverStage[], boundary: number, withLabel = tr
           y={-12}
           textAnchor={labelLeft ? "end" : "start"}
           fill={TURNOVER_COLOR.boundary}
-          style={{ fontFamily: FONT, fontSize: 12, fontWeight: 600 }}
+          style={{ fontFamily: CHART_FONT, fontSize: 12, fontWeight: 600 }}
         >
           Boundary {formatMa(boundary)}
         </text>
@@ -157,7 +148,7 @@ function RateLines({ data }: { data: TurnoverResult }) {
           xScale={{ type: "point" }}
           yScale={{ type: "linear", min: 0, max: max * 1.15 }}
           colors={[TURNOVER_COLOR.extinction, TURNOVER_COLOR.origination]}
-          theme={LINE_THEME}
+          theme={CHART_THEME}
           lineWidth={2.5}
           pointSize={7}
           pointBorderWidth={0}
@@ -272,15 +263,15 @@ function Strip(props: {
           {contrast.value !== null && (
             <g>
               <path d={`M ${x(contrast.value)} ${mid - 9} l 7 9 l -7 9 l -7 -9 z`} fill={color} />
-              <text x={x(contrast.value)} y={mid + 26} textAnchor="middle" fontSize={11} fontWeight={600} fill={color} style={{ fontFamily: FONT }}>
+              <text x={x(contrast.value)} y={mid + 26} textAnchor="middle" fontSize={11} fontWeight={600} fill={color} style={{ fontFamily: CHART_FONT }}>
                 {crisisLabel}
               </text>
             </g>
           )}
-          <text x={STRIP.left} y={STRIP.height - 2} fontSize={10} fill={TURNOVER_COLOR.text} style={{ fontFamily: FONT }}>
+          <text x={STRIP.left} y={STRIP.height - 2} fontSize={10} fill={TURNOVER_COLOR.text} style={{ fontFamily: CHART_FONT }}>
             {formatRate(lo)}
           </text>
-          <text x={STRIP.width - STRIP.right} y={STRIP.height - 2} textAnchor="end" fontSize={10} fill={TURNOVER_COLOR.text} style={{ fontFamily: FONT }}>
+          <text x={STRIP.width - STRIP.right} y={STRIP.height - 2} textAnchor="end" fontSize={10} fill={TURNOVER_COLOR.text} style={{ fontFamily: CHART_FONT }}>
             {formatRate(hi)}
           </text>
         </svg>
@@ -327,7 +318,7 @@ function Diversity({ data, splitBy, onSplitBy, report }: { data: TurnoverResult;
                 // Each panel on its own scale, so a small group's recovery can be read; the counts give the sizes.
                 yScale={{ type: "linear", min: 0, max: Math.max(1, ...g.stages.map((s) => s.rangeThrough)) * 1.25 }}
                 colors={[TURNOVER_COLOR.diversity]}
-                theme={LINE_THEME}
+                theme={CHART_THEME}
                 lineWidth={2}
                 pointSize={6}
                 enablePointLabel

@@ -3,23 +3,13 @@ import { COMPARISON_COLOUR, REFERENCE_COLOUR } from "../../components/chartColou
 import { Line, ResponsiveLine, type LineCustomSvgLayerProps, type LineSvgProps, type PointTooltipProps } from "@nivo/line";
 import type { ComparisonResults } from "@shared/schemas/comparisons";
 import { formatProbability, formatTwo } from "./words";
+import { CHART_THEME } from "../../components/chartTheme";
 
-const FONT = '"Inter Tight", system-ui, sans-serif';
 // Today's listing ranked by the past crisis's scores: the "today" colour of the comparison; chance in the reference grey.
 const COLOR = { curve: COMPARISON_COLOUR.today, chance: REFERENCE_COLOUR, text: "#57534e" };
 
 type RocSeries = { id: string; data: Array<{ x: number; y: number; threshold: number | null }> };
 
-// nivo takes its font only through the theme.
-const THEME: NonNullable<LineSvgProps<RocSeries>["theme"]> = {
-  text: { fontFamily: FONT, fontSize: 12, fill: COLOR.text },
-  axis: {
-    legend: { text: { fontFamily: FONT, fontSize: 13, fontWeight: 500, fill: "#44403c" } },
-    ticks: { line: { stroke: "#d6d3d1" }, text: { fontFamily: FONT, fontSize: 12, fill: COLOR.text } },
-  },
-  grid: { line: { stroke: "#e7e5e4" } },
-  tooltip: { container: { fontFamily: FONT, fontSize: 13, borderRadius: 8 } },
-};
 
 /** The line of no discrimination, from (0, 0) to (1, 1), dashed. */
 function ChanceLine({ xScale, yScale }: LineCustomSvgLayerProps<RocSeries>) {
@@ -60,7 +50,7 @@ export function RocChart({ roc, fixedWidth }: { roc: NonNullable<ComparisonResul
     pointColor: COLOR.curve,
     enableArea: true,
     areaOpacity: 0.08,
-    theme: THEME,
+    theme: CHART_THEME,
     axisBottom: { tickValues: [0, 0.25, 0.5, 0.75, 1], legend: "Not-threatened species above the cut", legendPosition: "middle", legendOffset: 40 },
     axisLeft: { tickValues: [0, 0.25, 0.5, 0.75, 1], legend: "Threatened species caught", legendPosition: "middle", legendOffset: -46 },
     gridXValues: [0, 0.25, 0.5, 0.75, 1],

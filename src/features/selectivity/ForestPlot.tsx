@@ -2,6 +2,7 @@ import { useId } from "react";
 import { ESTIMATE_COLOUR } from "../../components/chartColours";
 import { formatCompact } from "../../lib/format";
 import { formatEstimate } from "./words";
+import { CHART_FONT } from "../../components/chartTheme";
 
 export type EstimateKind = "crude" | "clade" | "model";
 
@@ -30,7 +31,6 @@ export const ESTIMATE_STYLE: Record<EstimateKind, { label: string; color: string
 };
 export const ESTIMATE_KINDS: readonly EstimateKind[] = ["crude", "clade", "model"];
 
-const FONT = '"Inter Tight", system-ui, sans-serif';
 const WIDTH = 800;
 const PLOT_LEFT = 262;
 const PLOT_RIGHT = WIDTH - 176;
@@ -128,7 +128,7 @@ export function ForestPlot({ rows, kinds = ESTIMATE_KINDS, level, title }: Fores
       height={height}
       viewBox={`0 0 ${WIDTH} ${height}`}
       className="h-auto w-full max-w-full"
-      style={{ fontFamily: FONT }}
+      style={{ fontFamily: CHART_FONT }}
       data-testid="forest-plot"
     >
       <title id={titleId}>{title}</title>

@@ -4,8 +4,8 @@ import { MISSING_COLOUR, RISK_COLOUR } from "../../components/chartColours";
 import { wrapLabel } from "../../components/wrapLabel";
 import { formatCompact } from "../../lib/format";
 import type { HeatRow } from "./resultRows";
+import { CHART_FONT, CHART_THEME, CHART_TITLE_COLOUR } from "../../components/chartTheme";
 
-const FONT = '"Inter Tight", system-ui, sans-serif';
 /** Lower odds of extinction (teal), none (paper), higher odds (clay red): centred on a log odds ratio of 0; the app's one meaning of these colours. */
 const DIVERGING: [string, string, string] = [RISK_COLOUR.lower, RISK_COLOUR.even, RISK_COLOUR.higher];
 const MIN_ROW_HEIGHT = 38;
@@ -17,11 +17,11 @@ const LINE_HEIGHT = 14;
 type Cell = { x: string; y: number | null };
 
 const THEME: NonNullable<HeatMapSvgProps<Cell, object>["theme"]> = {
-  text: { fontFamily: FONT, fontSize: 12, fill: "#44403c" },
-  axis: { ticks: { text: { fontFamily: FONT, fontSize: 12, fill: "#44403c" } }, legend: { text: { fontFamily: FONT, fontSize: 12, fill: "#44403c" } } },
-  legends: { text: { fontFamily: FONT, fontSize: 11, fill: "#57534e" }, title: { text: { fontFamily: FONT, fontSize: 11, fill: "#57534e" } } },
-  labels: { text: { fontFamily: FONT, fontSize: 12, fontWeight: 600 } },
-  tooltip: { container: { fontFamily: FONT, fontSize: 13, borderRadius: 8 } },
+  ...CHART_THEME,
+  text: { fontFamily: CHART_FONT, fontSize: 12, fill: CHART_TITLE_COLOUR },
+  axis: { ticks: { text: { fontFamily: CHART_FONT, fontSize: 12, fill: CHART_TITLE_COLOUR } }, legend: { text: { fontFamily: CHART_FONT, fontSize: 12, fill: CHART_TITLE_COLOUR } } },
+  legends: { text: { fontFamily: CHART_FONT, fontSize: 11, fill: "#57534e" }, title: { text: { fontFamily: CHART_FONT, fontSize: 11, fill: "#57534e" } } },
+  labels: { text: { fontFamily: CHART_FONT, fontSize: 12, fontWeight: 600 } },
 };
 
 /** A row label on as many lines as it needs, right-aligned against the map, with the whole label as its tooltip. */
@@ -32,7 +32,7 @@ function RowLabel({ value, x, y, textX }: AxisTickProps<string>) {
     <g transform={`translate(${x},${y})`} data-row-label={String(value)}>
       <title>{String(value)}</title>
       <line x1={0} x2={-4} y1={0} y2={0} stroke="#a8a29e" />
-      <text textAnchor="end" dominantBaseline="central" style={{ fontFamily: FONT, fontSize: 12, fill: "#44403c" }}>
+      <text textAnchor="end" dominantBaseline="central" style={{ fontFamily: CHART_FONT, fontSize: 12, fill: "#44403c" }}>
         {lines.map((line, i) => (
           <tspan key={i} x={textX} y={first + i * LINE_HEIGHT}>
             {line}
@@ -57,7 +57,7 @@ function ColumnLabel({ value, x, y, textX, textY, textAnchor, rotate }: AxisTick
         transform={`translate(${textX},${textY}) rotate(${rotate ?? 0})`}
         textAnchor={textAnchor as "start" | "middle" | "end"}
         dominantBaseline="central"
-        style={{ fontFamily: FONT, fontSize: 12, fill: "#44403c" }}
+        style={{ fontFamily: CHART_FONT, fontSize: 12, fill: "#44403c" }}
       >
         {shown}
       </text>

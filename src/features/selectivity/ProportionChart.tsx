@@ -1,25 +1,15 @@
-import { ResponsiveBar, type BarCustomLayerProps, type BarSvgProps } from "@nivo/bar";
+import { ResponsiveBar, type BarCustomLayerProps } from "@nivo/bar";
 import { directionOfShare, NEUTRAL_COLOUR, REFERENCE_COLOUR, RISK_COLOUR, SUMMARY_COLOUR } from "../../components/chartColours";
 import { ColourLegend, type LegendEntry } from "../../components/ColourLegend";
 import { formatCount } from "../../lib/format";
 import type { TraitResultData } from "./resultRows";
 import { formatPercent, levelWords } from "./words";
+import { CHART_FONT, CHART_THEME } from "../../components/chartTheme";
 
-const FONT = '"Inter Tight", system-ui, sans-serif';
 const COLOR = { whisker: "#1c1917", overall: SUMMARY_COLOUR, text: "#57534e" };
 
 type StateDatum = { state: string; proportion?: number };
 
-// nivo takes its font only through the theme.
-const THEME: NonNullable<BarSvgProps<StateDatum>["theme"]> = {
-  text: { fontFamily: FONT, fontSize: 12, fill: COLOR.text },
-  axis: {
-    legend: { text: { fontFamily: FONT, fontSize: 12.5, fontWeight: 500, fill: "#44403c" } },
-    ticks: { line: { stroke: "#d6d3d1" }, text: { fontFamily: FONT, fontSize: 12, fill: COLOR.text } },
-  },
-  grid: { line: { stroke: "#e7e5e4" } },
-  tooltip: { container: { fontFamily: FONT, fontSize: 13, borderRadius: 8 } },
-};
 
 /** "Deposit feeder (n = 120)": the axis names each state with its number of taxa. */
 function axisName(row: TraitResultData["table"][number]): string {
@@ -100,7 +90,7 @@ export function ProportionChart({ trait, level }: { trait: TraitResultData; leve
     return (
       <g aria-hidden="true">
         <line x1={0} x2={layer.innerWidth} y1={y} y2={y} stroke={COLOR.overall} strokeWidth={1.5} strokeDasharray="6 4" />
-        <text x={layer.innerWidth} y={y - 5} textAnchor="end" fill={COLOR.overall} stroke="white" strokeWidth={3} paintOrder="stroke" style={{ fontFamily: FONT, fontSize: 11.5, fontWeight: 500 }}>
+        <text x={layer.innerWidth} y={y - 5} textAnchor="end" fill={COLOR.overall} stroke="white" strokeWidth={3} paintOrder="stroke" style={{ fontFamily: CHART_FONT, fontSize: 11.5, fontWeight: 500 }}>
           All {formatPercent(overall)}
         </text>
       </g>
@@ -122,7 +112,7 @@ export function ProportionChart({ trait, level }: { trait: TraitResultData; leve
             const row = byName.get(String(bar.indexValue));
             return row ? proportionBarColour(trait, row) : NEUTRAL_COLOUR;
           }}
-          theme={THEME}
+          theme={CHART_THEME}
           enableLabel={false}
           animate={false}
           isInteractive={false}
