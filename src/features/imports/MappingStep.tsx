@@ -1,7 +1,6 @@
 import { useState, type FormEvent } from "react";
 import { importMappingSchema, type ImportMapping, type ImportUpload } from "@shared/schemas/imports";
 import type { Trait } from "@shared/schemas/traits";
-import { Button } from "../../components/Button";
 import { FormError } from "../../components/Notice";
 import { Select } from "../../components/Select";
 import { ApiError, errorMessage } from "../../lib/api";
@@ -10,6 +9,7 @@ import { formatCount } from "../../lib/format";
 import { usePreviewImport } from "./api";
 import type { ImportPreview } from "@shared/schemas/imports";
 import { SampleRowsTable } from "../../components/SampleRowsTable";
+import { MappingStepActions } from "../../components/MappingStepActions";
 
 type TaxonTarget = "name" | "higherTaxon" | "firstAppearance" | "lastAppearance" | "notes";
 
@@ -180,14 +180,7 @@ export function MappingStep({ studyId, upload, traits, initialMapping, onPreview
         </details>
       )}
 
-      <div className="flex flex-col-reverse gap-3 border-t border-stone-100 pt-4 sm:flex-row sm:justify-between">
-        <Button variant="ghost" onClick={onStartOver} disabled={preview.isPending}>
-          Start over with another file
-        </Button>
-        <Button type="submit" busy={preview.isPending}>
-          Check every row
-        </Button>
-      </div>
+      <MappingStepActions onStartOver={onStartOver} checking={preview.isPending} />
     </form>
   );
 }

@@ -24,6 +24,7 @@ import { formatCount, pluralize } from "../../lib/format";
 import { useCommitModernList, useDiscardModernUpload, usePreviewModernList, useUploadModernList } from "./api";
 import { CategoryBadge } from "./CategoryBadge";
 import { SampleRowsTable } from "../../components/SampleRowsTable";
+import { MappingStepActions } from "../../components/MappingStepActions";
 
 type Stage =
   | { step: "upload" }
@@ -182,14 +183,7 @@ function MapStep({ studyId, upload, initialMapping, initialName, onPreviewed, on
           <SampleRowsTable columns={upload.columns} rows={upload.sampleRows} caption="The first rows of the file" />
         </div>
       )}
-      <div className="flex flex-wrap justify-between gap-3">
-        <Button variant="ghost" onClick={onStartOver}>
-          Choose another file
-        </Button>
-        <Button type="submit" busy={preview.isPending}>
-          Check every row
-        </Button>
-      </div>
+      <MappingStepActions onStartOver={onStartOver} checking={preview.isPending} />
     </form>
   );
 }

@@ -17,6 +17,7 @@ import { paths } from "../../lib/paths";
 import { useDocumentTitle } from "../../lib/useDocumentTitle";
 import { useRunDiff } from "../../lib/queries/runs";
 import { selectivityLink } from "./RunsPage";
+import { ChangedParameters } from "../../components/ChangedParameters";
 
 type Pair = { base: number | null; run: number | null };
 
@@ -106,14 +107,7 @@ function Comparison({ studyId, diff }: { studyId: string; diff: RunDiff }) {
           {diff.paramsChanged.length === 0 ? (
             <p className="text-stone-700">Same parameters.</p>
           ) : (
-            <div>
-              <p className="font-medium text-stone-900">Parameters that differ</p>
-              <ul className="mt-1 list-disc pl-5 text-stone-700">
-                {diff.paramsChanged.map((change) => (
-                  <li key={change}>{change}</li>
-                ))}
-              </ul>
-            </div>
+            <ChangedParameters changes={diff.paramsChanged} />
           )}
           {!anyChange && <p className="text-stone-700">No test result or odds ratio differs between the two runs.</p>}
         </div>

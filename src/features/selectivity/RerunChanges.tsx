@@ -8,6 +8,7 @@ import { formatCount, formatDateTime } from "../../lib/format";
 import { paths } from "../../lib/paths";
 import { useRunDiff } from "../../lib/queries/runs";
 import { formatEstimate, formatP } from "./words";
+import { ChangedParameters } from "../../components/ChangedParameters";
 
 type ChangedTrait = RunDiff["boundaries"][number]["traits"][number] & { boundary: string };
 
@@ -51,14 +52,7 @@ function DiffSummary({ diff }: { diff: RunDiff }) {
         )}
       </p>
       {diff.paramsChanged.length > 0 && (
-        <div>
-          <p className="font-medium text-stone-900">Parameters that differ</p>
-          <ul className="mt-1 list-disc pl-5 text-stone-700">
-            {diff.paramsChanged.map((change) => (
-              <li key={change}>{change}</li>
-            ))}
-          </ul>
-        </div>
+        <ChangedParameters changes={diff.paramsChanged} />
       )}
       {changed.length === 0 ? (
         <p className="text-stone-700">No test result or odds ratio moved.</p>

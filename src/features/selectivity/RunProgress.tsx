@@ -1,6 +1,6 @@
 import type { Run } from "@shared/schemas/runs";
 import { Card } from "../../components/Card";
-import { Spinner } from "../../components/Spinner";
+import { ProgressBar } from "../../components/ProgressBar";
 
 /** A queued or running run: a progress bar with what the computation is doing, and word that the screen stays free. */
 export function RunProgress({ run }: { run: Run }) {
@@ -10,24 +10,7 @@ export function RunProgress({ run }: { run: Run }) {
   return (
     <Card>
       <div data-testid="run-progress">
-        <div className="flex items-baseline justify-between gap-3 text-sm">
-          <span className="inline-flex items-center gap-2 font-medium text-stone-800">
-            <Spinner className="text-accent-600" />
-            {label}
-          </span>
-          <span className="text-stone-500 tabular-nums">{percent}%</span>
-        </div>
-        <div
-          role="progressbar"
-          aria-label={label}
-          aria-valuemin={0}
-          aria-valuemax={100}
-          aria-valuenow={percent}
-          aria-valuetext={`${percent}%${run.progressNote ? `: ${run.progressNote}` : ""}`}
-          className="mt-2 h-2.5 overflow-hidden rounded-full bg-stone-200"
-        >
-          <div className="h-full rounded-full bg-accent-600 transition-[width] duration-500" style={{ width: `${Math.max(percent, 2)}%` }} />
-        </div>
+        <ProgressBar label={label} value={run.progress} busy valueText={`${percent}%${run.progressNote ? `: ${run.progressNote}` : ""}`} />
         <p className="mt-2 text-sm text-stone-600" aria-live="polite">
           {run.progressNote ?? (waiting ? "In the queue." : "Working.")}
         </p>

@@ -20,6 +20,7 @@ import { ApiError, errorMessage } from "../../../lib/api";
 import { formatCount, pluralize } from "../../../lib/format";
 import { useCommitOccurrences, useDiscardOccurrences, useOccurrenceUploadProgress, usePreviewOccurrences, useUploadOccurrences } from "./api";
 import { ImportChecksPanel, NO_SPELLINGS_CHOSEN, type ChosenSpellings } from "../ImportChecksPanel";
+import { MappingStepActions } from "../../../components/MappingStepActions";
 
 type Stage =
   | { step: "upload" }
@@ -189,14 +190,7 @@ function OccurrenceMappingStep({
           onChange={(e) => setDuplicates(e.target.value === "drop" ? "drop" : "keep")}
         />
       </div>
-      <div className="flex flex-wrap justify-between gap-3">
-        <Button variant="secondary" onClick={onStartOver}>
-          Choose another file
-        </Button>
-        <Button type="submit" busy={preview.isPending}>
-          Check every row
-        </Button>
-      </div>
+      <MappingStepActions onStartOver={onStartOver} checking={preview.isPending} />
     </form>
   );
 }
