@@ -34,9 +34,6 @@ export const personOrNoneSchema = z.object({ id: z.uuid(), name: z.string() }).n
 /** The cautions that travel with analysis results. */
 export const cautionsSchema = z.array(z.string()).meta({ description: "Shown with the results wherever they are read or exported" });
 
-/** True only when A and B are the same type: pins a zod schema to the contract type it mirrors. */
-export type Same<A, B> = [A] extends [B] ? ([B] extends [A] ? true : false) : false;
-
 /**
  * The query of a CSV/JSON export made of several tables: `format`, and `table` to pick one
  * table of the CSV (by default all of them, each row naming its table in the first column).

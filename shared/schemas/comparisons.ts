@@ -2,8 +2,7 @@
 // through the list's crosswalk, and held against the listed threat categories. Saved like a run:
 // parameters, a hash of the exact data read, results, who and when; exported as CSV.
 import { z } from "zod";
-import type { ComparisonResult } from "../comparison/types";
-import { exportQuerySchema, uuidSchema, type Same, cautionsSchema } from "./common";
+import { exportQuerySchema, uuidSchema, cautionsSchema } from "./common";
 import { confidenceLevelSchema, savedAnalysisSummarySchema } from "./savedAnalysis";
 import { crosswalkSchema, iucnCategorySchema, listNameSchema } from "./modernLists";
 
@@ -120,8 +119,8 @@ export const comparisonResultSchema = z
   })
   .meta({ id: "ComparisonResult" });
 
-const resultMatchesContract: Same<z.infer<typeof comparisonResultSchema>, ComparisonResult> = true;
-void resultMatchesContract;
+/** What holding the past selectivity against a threat list gives (the type of shared/comparison's result). */
+export type ComparisonResult = z.infer<typeof comparisonResultSchema>;
 
 export const comparisonResultsSchema = comparisonResultSchema
   .extend({

@@ -2,9 +2,8 @@
 // and preview every problem by row and column, commit all or nothing), and its crosswalk onto the
 // study's codebook (list columns -> traits, list values -> states).
 import { z } from "zod";
-import type { Crosswalk, CrosswalkCoverage, ListColumn } from "../comparison/types";
 import { IUCN_CATEGORIES } from "../iucn";
-import { isoDateSchema, oneLine, uuidSchema, personOrNoneSchema, type Same } from "./common";
+import { isoDateSchema, oneLine, uuidSchema, personOrNoneSchema } from "./common";
 import { csvDelimiterSchema, importProblemSchema, IMPORT_MAX_PROBLEMS_LISTED } from "./imports";
 import { traitKindSchema } from "./traits";
 
@@ -197,13 +196,10 @@ export const listColumnSchema = z
   })
   .meta({ id: "ListColumn" });
 
-// The zod schemas and the pure module's types must describe the same objects.
-const crosswalkMatches: Same<z.output<typeof crosswalkSchema>, Crosswalk> = true;
-const coverageMatches: Same<z.infer<typeof crosswalkCoverageSchema>, CrosswalkCoverage> = true;
-const columnMatches: Same<z.infer<typeof listColumnSchema>, ListColumn> = true;
-void crosswalkMatches;
-void coverageMatches;
-void columnMatches;
+// The types of the pure module (shared/comparison/types.ts) come from these schemas.
+export type Crosswalk = z.output<typeof crosswalkSchema>;
+export type CrosswalkCoverage = z.infer<typeof crosswalkCoverageSchema>;
+export type ListColumn = z.infer<typeof listColumnSchema>;
 
 export const modernListSummarySchema = z
   .object({

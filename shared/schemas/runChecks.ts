@@ -2,10 +2,7 @@
 // selectivity different from the background boundaries'?) and the robustness panel (does each
 // contrast survive other reasonable choices?). Parameters and stored results.
 import { z } from "zod";
-import type { CrisisComparisonResult } from "../selectivity/crisisComparison";
-import type { RobustnessPanel } from "../selectivity/robustnessPanel";
 import { traitKindSchema } from "./traits";
-import type { Same } from "./common";
 
 const ciSchema = z.tuple([z.number(), z.number()]);
 
@@ -63,8 +60,9 @@ export const crisisComparisonResultSchema = z
   })
   .meta({ id: "CrisisComparison" });
 
-const crisisSchemaMatchesContract: Same<z.infer<typeof crisisComparisonResultSchema>, CrisisComparisonResult> = true;
-void crisisSchemaMatchesContract;
+export type CrisisComparisonContrast = z.infer<typeof crisisComparisonContrastSchema>;
+export type CrisisComparisonTrait = z.infer<typeof crisisComparisonTraitSchema>;
+export type CrisisComparisonResult = z.infer<typeof crisisComparisonResultSchema>;
 
 /** What a run stores about crisis against background: the result, or why there is none. */
 export const runCrisisSchema = z
@@ -148,8 +146,7 @@ export const robustnessPanelSchema = z
   })
   .meta({ id: "RobustnessPanel" });
 
-const robustnessSchemaMatchesContract: Same<z.infer<typeof robustnessPanelSchema>, RobustnessPanel> = true;
-void robustnessSchemaMatchesContract;
+export type RobustnessPanel = z.infer<typeof robustnessPanelSchema>;
 
 /** What a run stores about its robustness: one panel per boundary, or why there is none. */
 export const runRobustnessSchema = z

@@ -5,6 +5,7 @@ import { encodeTrait } from "./encodeTrait";
 import { formatNumber } from "./formatNumber";
 import { numericStep, scaleNumericTrait } from "./scaleNumericTrait";
 import { countStates } from "./stateTable";
+import type { CrisisComparisonContrast, CrisisComparisonResult, CrisisComparisonTrait } from "../schemas/runChecks";
 import type { MultipleTestingMethod, SelectivityTaxon, SelectivityTraitSpec } from "./types";
 
 export interface CrisisComparisonInput {
@@ -16,47 +17,9 @@ export interface CrisisComparisonInput {
   options: { correction: MultipleTestingMethod; level: number };
 }
 
-export interface CrisisComparisonContrast {
-  /** "Deposit feeder vs Suspension feeder", or the step of a numeric trait ("per SD"). */
-  contrast: string;
-  state: string | null;
-  backgroundOddsRatio: number;
-  backgroundCi: [number, number];
-  crisisOddsRatio: number;
-  crisisCi: [number, number];
-  ratio: { estimate: number; ci: [number, number] };
-  /** The plain sentence, set only when the trait's adjusted test and this contrast's interval both say the crisis differed. */
-  sentence: string | null;
-}
-
-export interface CrisisComparisonTrait {
-  key: string;
-  label: string;
-  kind: SelectivityTraitSpec["kind"];
-  /** Reference state of the odds ratios (null for numeric traits or when untested). */
-  reference: string | null;
-  /** Taxon rows (a taxon once per boundary it was at risk across) with a usable value. */
-  used: number;
-  /** null when the model could not be fitted; `notes` says why. */
-  test: { statistic: number; df: number; pValue: number; adjustedPValue: number | null } | null;
-  contrasts: CrisisComparisonContrast[];
-  /** The adjusted test rejects at 1 - level: the crisis's selectivity on this trait differs from background. */
-  differs: boolean;
-  /** What the screen says about the trait in one sentence. */
-  summary: string;
-  method: string | null;
-  notes: string[];
-}
-
-export interface CrisisComparisonResult {
-  crisis: { index: number; label: string };
-  background: string[];
-  correction: MultipleTestingMethod;
-  level: number;
-  traits: CrisisComparisonTrait[];
-  /** How it was done, with the citation. */
-  method: string;
-}
+// The result's types come from its zod schema (shared/schemas/runChecks.ts), the one description of
+// what a run stores.
+export type { CrisisComparisonContrast, CrisisComparisonResult, CrisisComparisonTrait };
 
 /**
  * Crisis against background for every trait of a run: the interaction model of

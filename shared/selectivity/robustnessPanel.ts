@@ -3,6 +3,7 @@ import { oddsRatio } from "../stats/oddsRatio";
 import { encodeTrait, type EncodedTrait } from "./encodeTrait";
 import { formatNumber } from "./formatNumber";
 import { numericStep, scaleNumericTrait, type NumericScaling } from "./scaleNumericTrait";
+import type { RobustnessPanel } from "../schemas/runChecks";
 import type { Interval, SelectivityTaxon, SelectivityTraitSpec } from "./types";
 
 export interface RobustnessInput {
@@ -26,53 +27,15 @@ export interface RobustnessInput {
   maxCladesLeftOut?: number;
 }
 
-export type VariantKind = "run" | "window" | "clade" | "single-stage" | "truncation-victims" | "truncation-survivors";
-
-export interface RobustnessVariant {
-  id: string;
-  kind: VariantKind;
-  label: string;
-  victims: number;
-  survivors: number;
-}
-
-export type VerdictStatus = "holds" | "fragile" | "never-there" | "not-estimated";
-
-export interface RobustnessVerdict {
-  status: VerdictStatus;
-  /** Labels of the variants under which direction or significance differs from the run's own choice. */
-  changedUnder: string[];
-  sentence: string;
-}
-
-export interface JackknifeSummary {
-  min: number;
-  max: number;
-  /** The clade whose removal moves the log odds ratio most, with the estimate without it. */
-  mostInfluential: { clade: string; estimate: number } | null;
-  cladesLeftOut: number;
-}
-
-export interface RobustnessContrast {
-  traitKey: string;
-  traitLabel: string;
-  contrast: string;
-  state: string | null;
-  /** One per variant, in the order of `variants`. */
-  estimates: Array<{ variant: string; crude: Interval | null; adjusted: Interval | null }>;
-  jackknife: { crude: JackknifeSummary | null; adjusted: JackknifeSummary | null };
-  verdict: { crude: RobustnessVerdict; adjusted: RobustnessVerdict };
-}
-
-export interface RobustnessPanel {
-  boundaryMa: number;
-  windowMyr: number;
-  truncationMyr: number;
-  variants: RobustnessVariant[];
-  contrasts: RobustnessContrast[];
-  notes: string[];
-  method: string;
-}
+// The panel's types come from its zod schema (shared/schemas/runChecks.ts), the one description of
+// what a run stores; the names below pick out its parts for the code that builds them.
+export type { RobustnessPanel };
+export type RobustnessVariant = RobustnessPanel["variants"][number];
+export type VariantKind = RobustnessVariant["kind"];
+export type RobustnessContrast = RobustnessPanel["contrasts"][number];
+export type RobustnessVerdict = RobustnessContrast["verdict"]["crude"];
+export type VerdictStatus = RobustnessVerdict["status"];
+export type JackknifeSummary = NonNullable<RobustnessContrast["jackknife"]["crude"]>;
 
 const RANGE_TOLERANCE = 1e-9;
 
