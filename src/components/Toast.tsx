@@ -15,6 +15,7 @@ export interface ToastOptions {
   /**
    * Names a toast that follows something going on (a run in the queue): showing again with the same
    * key replaces its words in place, and `dismiss(key)` takes it away once the thing it reports is over.
+   * It stays until then (at most a minute, in case nothing on screen follows it any more).
    */
   key?: string;
 }
@@ -31,6 +32,8 @@ interface ToastApi {
 const ToastContext = createContext<ToastApi | null>(null);
 
 const TOAST_VISIBLE_MS = 6000;
+/** A keyed toast leaves when its owner dismisses it; this only bounds one whose owner went away. */
+const FOLLOWING_TOAST_MAX_MS = 60_000;
 
 const tones: Record<ToastTone, { box: string; mark: string }> = {
   success: { box: "border-accent-200 text-stone-900", mark: "bg-accent-600" },
@@ -49,7 +52,7 @@ export function ToastProvider({ children }: { children: ReactNode }) {
       const id = nextId.current++;
       const { key } = options;
       setToasts((current) => [...current.filter((t) => key === undefined || t.key !== key).slice(-2), { id, message, tone, key }]);
-      window.setTimeout(() => dismiss(id), TOAST_VISIBLE_MS);
+      window.setTimeout(() => dismiss(id), key === undefined ? TOAST_VISIBLE_MS : FOLLOWING_TOAST_MAX_MS);
     },
     [dismiss],
   );

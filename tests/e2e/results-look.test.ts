@@ -164,7 +164,8 @@ describe("results and charts", () => {
   it("takes the run's toast away as soon as its results show", async () => {
     const page = await browser.context.newPage();
     await withScreenshotOnFailure(browser.context, "results-look-toast", async () => {
-      // A small run (one boundary, one trait) finishes within the toast's own few seconds.
+      // A run's toast stays until the run is over (bounded at a minute), so it is still there while
+      // the re-run computes and must be gone the moment its results show.
       const traits = (await (await page.request.get(`${server.url}/api/studies/${demo.studyId}/traits`)).json()) as { traits: Array<{ id: string; key: string }> };
       const habit = traits.traits.find((t) => t.key === "life_habit")!;
       const created = await page.request.post(`${server.url}/api/studies/${demo.studyId}/runs`, {
