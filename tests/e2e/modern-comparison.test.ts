@@ -6,11 +6,10 @@
 import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
-import { randomUUID } from "node:crypto";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { taxa } from "../../db/schema/index";
 import { launchBrowser, screenshot, withScreenshotOnFailure } from "../support/browser";
-import { PASSWORD, startTestServer, uniqueEmail } from "../support/server";
+import { studyWithFinishedHabitRun } from "../support/modernComparison";
+import { startTestServer } from "../support/server";
 
 type Server = Awaited<ReturnType<typeof startTestServer>>;
 type Browser = Awaited<ReturnType<typeof launchBrowser>>;
@@ -19,14 +18,8 @@ let server: Server;
 let browser: Browser;
 let fileDir: string;
 
-// The crisis: 40 invented genera per life habit; 10 epifaunal, 20 nektonic and 30 infaunal died
-// out, so the run's model (habit alone, saturated) predicts 0.25, 0.5 and 0.75.
-const HABITS = [
-  { code: "epifaunal", victims: 10 },
-  { code: "nektonic", victims: 20 },
-  { code: "infaunal", victims: 30 },
-];
-
+// The crisis and its run: studyWithFinishedHabitRun (tests/support/modernComparison.ts); the
+// run's model predicts 0.25 (epifaunal), 0.5 (nektonic) and 0.75 (infaunal).
 // The list's own words; row 6 (the header is row 1) has a category the standard does not have.
 const LIST_CSV = [
   "species,family,red list category,position",
@@ -56,42 +49,10 @@ afterAll(async () => {
   if (fileDir) rmSync(fileDir, { recursive: true, force: true });
 });
 
-/** A study lead, a study with the suggested codebook, the invented crisis, and a finished run (set up through the API). */
-async function studyWithFinishedRun() {
-  const { context } = browser;
-  const signup = await context.request.post(`${server.url}/api/auth/signup`, { data: { email: uniqueEmail("lead"), password: PASSWORD, name: "Invented Study Lead" } });
-  expect(signup.status()).toBe(201);
-  const created = await context.request.post(`${server.url}/api/studies`, { data: { name: `Invented basin crisis ${randomUUID().slice(0, 6)}`, description: "Invented example study.", suggestedCodebook: true } });
-  expect(created.status()).toBe(201);
-  const studyId = ((await created.json()) as { id: string }).id;
-  const api = `${server.url}/api/studies/${studyId}`;
-  const traits = ((await (await context.request.get(`${api}/traits`)).json()) as { traits: Array<{ id: string; key: string }> }).traits;
-  const habitId = traits.find((t) => t.key === "life_habit")!.id;
-  await server.ctx.db.insert(taxa).values(
-    HABITS.flatMap((h) =>
-      Array.from({ length: 40 }, (_, k) => ({
-        studyId,
-        name: `Priscella ${h.code} ${k + 1} (invented)`,
-        higherTaxon: "Priscellidae",
-        fadMa: 70,
-        ladMa: k < h.victims ? 67 : 60,
-        traitValues: { [habitId]: h.code },
-      })),
-    ),
-  );
-  const run = await context.request.post(`${api}/runs`, { data: { name: "Life habit across 66 Ma", boundaries: [{ boundaryMa: 66 }], traits: [{ traitId: habitId, reference: "epifaunal" }] } });
-  expect(run.status()).toBe(202);
-  const runId = ((await run.json()) as { id: string }).id;
-  await expect
-    .poll(async () => ((await (await context.request.get(`${api}/runs/${runId}`)).json()) as { status: string }).status, { timeout: 60_000, interval: 200 })
-    .toBe("succeeded");
-  return { studyUrl: `${server.url}/studies/${studyId}` };
-}
-
 describe("modern comparison", () => {
   it("uploads a list, maps its words onto the codebook, compares it with a run and shows the ROC curve and the species worth a look", async () => {
     const { context } = browser;
-    const { studyUrl } = await studyWithFinishedRun();
+    const { studyUrl } = await studyWithFinishedHabitRun(server, context);
     const csvPath = join(fileDir, "invented-coasts-species.csv");
     writeFileSync(csvPath, LIST_CSV);
     const page = await context.newPage();

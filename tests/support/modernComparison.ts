@@ -2,9 +2,11 @@
 // crosswalk), a finished run whose model scores it, a saved comparison and an upload, written
 // directly or by the owner so only the call under test is judged. Every name is invented.
 import { randomUUID } from "node:crypto";
-import { comparisons, modernLists, modernSpecies, runs, traits } from "../../db/schema/index";
+import type { BrowserContext } from "playwright-core";
+import { expect } from "vitest";
+import { comparisons, modernLists, modernSpecies, runs, taxa, traits } from "../../db/schema/index";
 import type { Cast } from "../api/fixtures";
-import type { TestApp } from "./server";
+import { PASSWORD, uniqueEmail, type TestApp } from "./server";
 
 type Agent = Cast["anonymous"];
 
@@ -142,3 +144,45 @@ export async function matrixModernUpload(agent: Agent, studyId: string): Promise
 }
 
 export const MATRIX_LIST_MAPPING = { name: "species", category: "status", traitColumns: ["water"] };
+
+/**
+ * The invented crisis of the modern-comparison browser tests: 40 invented genera per life habit;
+ * 10 epifaunal, 20 nektonic and 30 infaunal died out, so the run's model (habit alone, saturated)
+ * predicts 0.25, 0.5 and 0.75.
+ */
+const CRISIS_HABITS = [
+  { code: "epifaunal", victims: 10 },
+  { code: "nektonic", victims: 20 },
+  { code: "infaunal", victims: 30 },
+];
+
+/** A study lead signed up in `context`, a study with the suggested codebook, the invented crisis, and a finished run (set up through the API). */
+export async function studyWithFinishedHabitRun(server: TestApp & { url: string }, context: BrowserContext): Promise<{ studyUrl: string }> {
+  const signup = await context.request.post(`${server.url}/api/auth/signup`, { data: { email: uniqueEmail("lead"), password: PASSWORD, name: "Invented Study Lead" } });
+  expect(signup.status()).toBe(201);
+  const created = await context.request.post(`${server.url}/api/studies`, { data: { name: `Invented basin crisis ${randomUUID().slice(0, 6)}`, description: "Invented example study.", suggestedCodebook: true } });
+  expect(created.status()).toBe(201);
+  const studyId = ((await created.json()) as { id: string }).id;
+  const api = `${server.url}/api/studies/${studyId}`;
+  const studyTraits = ((await (await context.request.get(`${api}/traits`)).json()) as { traits: Array<{ id: string; key: string }> }).traits;
+  const habitId = studyTraits.find((t) => t.key === "life_habit")!.id;
+  await server.ctx.db.insert(taxa).values(
+    CRISIS_HABITS.flatMap((h) =>
+      Array.from({ length: 40 }, (_, k) => ({
+        studyId,
+        name: `Priscella ${h.code} ${k + 1} (invented)`,
+        higherTaxon: "Priscellidae",
+        fadMa: 70,
+        ladMa: k < h.victims ? 67 : 60,
+        traitValues: { [habitId]: h.code },
+      })),
+    ),
+  );
+  const run = await context.request.post(`${api}/runs`, { data: { name: "Life habit across 66 Ma", boundaries: [{ boundaryMa: 66 }], traits: [{ traitId: habitId, reference: "epifaunal" }] } });
+  expect(run.status()).toBe(202);
+  const runId = ((await run.json()) as { id: string }).id;
+  await expect
+    .poll(async () => ((await (await context.request.get(`${api}/runs/${runId}`)).json()) as { status: string }).status, { timeout: 60_000, interval: 200 })
+    .toBe("succeeded");
+  return { studyUrl: `${server.url}/studies/${studyId}` };
+}
