@@ -2544,7 +2544,7 @@ export type ImportPreview = {
          */
         similarNames: Array<SimilarNames>;
         /**
-         * Higher taxa of the file that differ from each other or from the study's only by case, spaces or punctuation (qualified names such as Anazygidae? left out: they differ on purpose)
+         * Higher taxa of the file that differ from each other or from the study's only by case, spaces or punctuation (qualified names such as Anavelidae? left out: they differ on purpose)
          */
         similarHigherTaxa: Array<SimilarNames>;
         /**
@@ -2641,7 +2641,7 @@ export type NameSpelling = {
 
 export type QualifiedHigherTaxon = {
     /**
-     * As written, e.g. Anazygidae?
+     * As written, e.g. Anavelidae?
      */
     name: string;
     /**
@@ -2822,7 +2822,7 @@ export type OccurrencePreview = {
          */
         similarNames: Array<SimilarNames>;
         /**
-         * Higher taxa of the file that differ from each other or from the study's only by case, spaces or punctuation (qualified names such as Anazygidae? left out: they differ on purpose)
+         * Higher taxa of the file that differ from each other or from the study's only by case, spaces or punctuation (qualified names such as Anavelidae? left out: they differ on purpose)
          */
         similarHigherTaxa: Array<SimilarNames>;
         /**

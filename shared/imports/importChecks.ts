@@ -39,7 +39,7 @@ export function importChecks(input: ImportCheckInput): ImportChecks {
     missingRead: input.missingRead,
     missingTokens: input.missingTokens,
     similarNames: similarNames(input.fileNames, input.studyNames, input.merges),
-    // A qualified higher taxon ("Anazygidae?") differs from its base on purpose: not offered for merging.
+    // A qualified higher taxon ("Anavelidae?") differs from its base on purpose: not offered for merging.
     similarHigherTaxa: similarNames(
       input.fileHigherTaxa.filter((h) => qualifiedHigherTaxon(h.name) === null),
       [...input.studyHigherTaxa].filter((h) => qualifiedHigherTaxon(h) === null),

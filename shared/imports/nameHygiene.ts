@@ -1,4 +1,4 @@
-// Names that differ only by case, spacing or punctuation ("Idiospira" and "idiospira ") are almost
+// Names that differ only by case, spacing or punctuation ("Idiocrista" and "idiocrista ") are almost
 // always one taxon written two ways; imported as they are, they become two taxa (one may end up a
 // survivor, the other a victim). These helpers find such spellings and read one as another.
 import type { ParsedCsv } from "../csv/parse";
@@ -8,7 +8,7 @@ import type { NameMerges, SimilarNames } from "../schemas/importChecks";
  * The comparison key of a name: Unicode NFKC form, lower case, with every white-space,
  * punctuation and symbol character removed. Two names with the same key differ only by case,
  * spacing or punctuation.
- * @example nameKey(" Idio-spira. ") // "idiospira"
+ * @example nameKey(" Idio-crista. ") // "idiocrista"
  */
 export function nameKey(name: string): string {
   return name.normalize("NFKC").toLowerCase().replace(/[\s\p{P}\p{S}]/gu, "");
@@ -22,8 +22,8 @@ const FIRST_ROWS = 5;
  * one of its spellings. Spellings are listed study names first, then by file rows (most first).
  * `merges` (spelling -> chosen spelling) fills each group's `mergedInto` when every spelling of
  * the group is read as the same one.
- * @example similarNames([{ row: 2, name: "idiospira" }], ["Idiospira"])
- *   // [{ key: "idiospira", spellings: [Idiospira (in the study), idiospira (row 2)], mergedInto: null }]
+ * @example similarNames([{ row: 2, name: "idiocrista" }], ["Idiocrista"])
+ *   // [{ key: "idiocrista", spellings: [Idiocrista (in the study), idiocrista (row 2)], mergedInto: null }]
  */
 export function similarNames(fileNames: Iterable<{ row: number; name: string }>, studyNames: Iterable<string>, merges: NameMerges = {}): SimilarNames[] {
   type Spelling = { name: string; fileRows: number; firstRows: number[]; inStudy: boolean };
@@ -82,7 +82,7 @@ export function namesInColumn(parsed: ParsedCsv, column: string | null): Array<{
 /**
  * The file with the names of one column read through the merges (a cell whose trimmed text is a
  * merged spelling becomes the chosen spelling). The input is not changed; untouched rows are shared.
- * @example renameInColumn(parseCsv("name\nidiospira\n"), "name", { idiospira: "Idiospira" }).rows[0].cells // ["Idiospira"]
+ * @example renameInColumn(parseCsv("name\nidiocrista\n"), "name", { idiocrista: "Idiocrista" }).rows[0].cells // ["Idiocrista"]
  */
 export function renameInColumn(parsed: ParsedCsv, column: string | null, merges: NameMerges): ParsedCsv {
   const index = column === null ? -1 : parsed.header.indexOf(column);

@@ -1,5 +1,5 @@
-// Higher taxa written with a qualifier of open nomenclature ("Anazygidae?", "?Anazygidae",
-// "cf. Anazygidae", "aff. Anazygidae", "Anazygidae (?)"): the placement is uncertain. The name is
+// Higher taxa written with a qualifier of open nomenclature ("Anavelidae?", "?Anavelidae",
+// "cf. Anavelidae", "aff. Anavelidae", "Anavelidae (?)"): the placement is uncertain. The name is
 // kept as written; these helpers recognise the qualifier so screens can mark it and results can
 // say how such taxa were counted.
 import type { QualifiedHigherTaxonDto } from "../schemas/importChecks";
@@ -17,7 +17,7 @@ export interface QualifiedName {
  * clade's estimate. Stated on screen beside clade-adjusted results.
  */
 export const QUALIFIED_HIGHER_TAXON_RULE =
-  "A taxon whose higher taxon carries a qualifier (?, cf., aff.) is not pooled into the clade it names: its higher taxon as written (e.g. \"Anazygidae?\") is a clade of its own in clade-adjusted estimates.";
+  "A taxon whose higher taxon carries a qualifier (?, cf., aff.) is not pooled into the clade it names: its higher taxon as written (e.g. \"Anavelidae?\") is a clade of its own in clade-adjusted estimates.";
 
 const OPEN_NOMENCLATURE = /(^|\s)(cf|aff)\.?(?=\s|$)/i;
 
@@ -25,9 +25,9 @@ const OPEN_NOMENCLATURE = /(^|\s)(cf|aff)\.?(?=\s|$)/i;
  * The qualifier of a higher taxon, or null when it has none. Recognised: a question mark before or
  * after the name (also "(?)"), and the words cf. and aff. (with or without the full stop) before
  * or after it. Case and spacing are ignored; the base name keeps its own spelling.
- * @example qualifiedHigherTaxon("Anazygidae?") // { base: "Anazygidae", qualifier: "?" }
- * @example qualifiedHigherTaxon("cf. Anazygidae") // { base: "Anazygidae", qualifier: "cf." }
- * @example qualifiedHigherTaxon("Anazygidae") // null
+ * @example qualifiedHigherTaxon("Anavelidae?") // { base: "Anavelidae", qualifier: "?" }
+ * @example qualifiedHigherTaxon("cf. Anavelidae") // { base: "Anavelidae", qualifier: "cf." }
+ * @example qualifiedHigherTaxon("Anavelidae") // null
  */
 export function qualifiedHigherTaxon(text: string | null | undefined): QualifiedName | null {
   if (!text) return null;

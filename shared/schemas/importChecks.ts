@@ -94,7 +94,7 @@ export type SimilarNames = z.infer<typeof similarNamesSchema>;
 
 export const qualifiedHigherTaxonSchema = z
   .object({
-    name: z.string().meta({ description: "As written, e.g. Anazygidae?" }),
+    name: z.string().meta({ description: "As written, e.g. Anavelidae?" }),
     base: z.string().meta({ description: "The name without its qualifier" }),
     qualifier: z.string(),
     rows: z.number().int(),
@@ -114,7 +114,7 @@ export const importChecksSchema = z
     similarNames: z.array(similarNamesSchema).meta({ description: "Names of the file that differ from each other or from the study's taxa only by case, spaces or punctuation" }),
     similarHigherTaxa: z
       .array(similarNamesSchema)
-      .meta({ description: "Higher taxa of the file that differ from each other or from the study's only by case, spaces or punctuation (qualified names such as Anazygidae? left out: they differ on purpose)" }),
+      .meta({ description: "Higher taxa of the file that differ from each other or from the study's only by case, spaces or punctuation (qualified names such as Anavelidae? left out: they differ on purpose)" }),
     qualifiedHigherTaxa: z.array(qualifiedHigherTaxonSchema).meta({ description: "Higher taxa written with a qualifier (?, cf., aff.): kept as written" }),
   })
   .meta({ id: "ImportChecks" });

@@ -49,7 +49,7 @@ export function analyzeSelectivity(input: SelectivityInput): SelectivityResult {
   const cladeNames: string[] = [];
   let victims = 0;
   let withoutClade = 0;
-  // Qualified higher taxa ("Anazygidae?", "cf. Orthida") stay clades of their own, as written (QUALIFIED_HIGHER_TAXON_RULE); counted to say so.
+  // Qualified higher taxa ("Anavelidae?", "cf. Ortevida") stay clades of their own, as written (QUALIFIED_HIGHER_TAXON_RULE); counted to say so.
   const cladeQualified: boolean[] = [];
   let withQualifiedClade = 0;
   for (let i = 0; i < n; i++) {

@@ -20,7 +20,7 @@ afterAll(() => app.close());
 
 const HEADER = "name,higher_taxon,first_appearance,last_appearance,life_habit";
 /** An invented Ordovician-like study: ranges between 485 and 444 Ma. */
-const BASE_FILE = `${HEADER}\nIdiospira,Strophomenida,470,450,epifaunal\nOrthambonites,Orthida,485,460,epifaunal\nRafinesquina,Strophomenida,458,444,infaunal\n`;
+const BASE_FILE = `${HEADER}\nIdiocrista,Strovelida,470,450,epifaunal\nOrtambelites,Ortevida,485,460,epifaunal\nRafivelina,Strovelida,458,444,infaunal\n`;
 
 async function baseStudy(): Promise<CodebookStudy> {
   const study = await studyWithCodebook(app, cast);
@@ -61,7 +61,7 @@ describe("missing-value tokens", () => {
 
   it("are read as missing in a trait-table import (not as a state), and the preview says where", async () => {
     const study = await baseStudy();
-    const file = `${HEADER}\nPlatystrophia,Indet.,465,455,Indet.\nSowerbyella,Strophomenida,462,450,?\n`;
+    const file = `${HEADER}\nPlatyvelia,Indet.,465,455,Indet.\nSowavella,Strovelida,462,450,?\n`;
     // Without tokens, "Indet." and "?" are unknown states: row errors.
     const before = await preview(study, file);
     expect(before.res.body.problems.map((p: { row: number; column: string }) => [p.row, p.column])).toEqual([
@@ -82,24 +82,24 @@ describe("missing-value tokens", () => {
       .post(`/api/studies/${study.studyId}/imports/${after.importId}/commit`)
       .send({ mapping: templateMapping(study, ["life_habit"]), skipInvalid: false });
     expect(commit.status).toBe(200);
-    const platystrophia = await liveTaxon(study.studyId, "Platystrophia");
-    expect(platystrophia.higherTaxon).toBe("");
-    expect(platystrophia.traitValues).toEqual({});
+    const platyvelia = await liveTaxon(study.studyId, "Platyvelia");
+    expect(platyvelia.higherTaxon).toBe("");
+    expect(platyvelia.traitValues).toEqual({});
   });
 
   it("are read as missing in an occurrence upload, the higher taxon included", async () => {
     const studyId = await cast.makeStudy();
     await cast.people.owner.agent.put(`/api/studies/${studyId}/import-settings`).send({ missingTokens: ["Indet."] });
-    const upload = await uploadOccurrences(cast.people.coder.agent, studyId, "taxon,higher_taxon,max_ma,min_ma\nIdiospira,Indet.,470,468\nIdiospira,Strophomenida,455,452\n");
+    const upload = await uploadOccurrences(cast.people.coder.agent, studyId, "taxon,higher_taxon,max_ma,min_ma\nIdiocrista,Indet.,470,468\nIdiocrista,Strovelida,455,452\n");
     const mapping = { taxon: "taxon", higherTaxon: "higher_taxon", maxMa: "max_ma", minMa: "min_ma" };
     const path = `/api/studies/${studyId}/occurrence-uploads/${upload.body.upload.id}`;
     const res = await cast.people.coder.agent.post(`${path}/preview`).send({ mapping });
     expect(res.status).toBe(200);
     expect(res.body.checks.missingRead).toEqual([{ column: "higher_taxon", token: "Indet.", count: 1, firstRows: [2] }]);
-    expect(res.body.sample.map((o: { higherTaxon: string | null }) => o.higherTaxon)).toEqual([null, "Strophomenida"]);
+    expect(res.body.sample.map((o: { higherTaxon: string | null }) => o.higherTaxon)).toEqual([null, "Strovelida"]);
     expect((await cast.people.coder.agent.post(`${path}/commit`).send({ mapping, skipInvalid: false })).status).toBe(200);
     const stored = await app.ctx.db.select().from(occurrences).where(eq(occurrences.studyId, studyId));
-    expect(stored.map((o) => o.higherTaxon).sort()).toEqual(["Strophomenida", null].sort());
+    expect(stored.map((o) => o.higherTaxon).sort()).toEqual(["Strovelida", null].sort());
   });
 });
 
@@ -108,23 +108,23 @@ describe("implausible ages", () => {
     const study = await baseStudy();
     // The study spans 485 to 444 Ma (width 41 Myr). Row 2: 4 and 3 Ma look like interval numbers
     // (4 <= 444 / 10). Row 3: 380 Ma is 64 Myr younger than 444, beyond 41. Row 4 lies within.
-    const file = `${HEADER}\nGlyptorthis,Orthida,4,3,epifaunal\nHebertella,Orthida,380,379,epifaunal\nDalmanella,Orthida,466,455,epifaunal\n`;
+    const file = `${HEADER}\nGlyptevis,Ortevida,4,3,epifaunal\nHebrinella,Ortevida,380,379,epifaunal\nDalvorella,Ortevida,466,455,epifaunal\n`;
     const { res, importId } = await preview(study, file);
     expect(res.status).toBe(200);
     expect(res.body.problemCount).toBe(0);
     expect(res.body.checks.ageSpan).toEqual({ oldestMa: 485, youngestMa: 444, source: "study" });
     expect(res.body.checks.warnings.map((w: { row: number; column: string; taxon: string; kind: string }) => [w.row, w.column, w.taxon, w.kind])).toEqual([
-      [2, "first_appearance", "Glyptorthis", "age_interval_number"],
-      [2, "last_appearance", "Glyptorthis", "age_interval_number"],
-      [3, "first_appearance", "Hebertella", "age_far_outside"],
-      [3, "last_appearance", "Hebertella", "age_far_outside"],
+      [2, "first_appearance", "Glyptevis", "age_interval_number"],
+      [2, "last_appearance", "Glyptevis", "age_interval_number"],
+      [3, "first_appearance", "Hebrinella", "age_far_outside"],
+      [3, "last_appearance", "Hebrinella", "age_far_outside"],
     ]);
     expect(res.body.checks.warningCount).toBe(4);
     const commit = await cast.people.coder.agent
       .post(`/api/studies/${study.studyId}/imports/${importId}/commit`)
       .send({ mapping: templateMapping(study, ["life_habit"]), skipInvalid: false });
     expect(commit.status).toBe(200);
-    expect((await liveTaxon(study.studyId, "Glyptorthis")).fadMa).toBe(4);
+    expect((await liveTaxon(study.studyId, "Glyptevis")).fadMa).toBe(4);
   });
 
   it("warn in an occurrence upload against the file's own middle half when the study has no ages", async () => {
@@ -149,97 +149,97 @@ describe("implausible ages", () => {
 describe("names that differ only by case, spacing or punctuation", () => {
   it("are listed against the study's taxa, kept apart by default, and read as one when chosen", async () => {
     const study = await baseStudy();
-    const file = `${HEADER}\nidiospira,Strophomenida,470,450,infaunal\n`;
+    const file = `${HEADER}\nidiocrista,Strovelida,470,450,infaunal\n`;
     const apart = await preview(study, file);
     expect(apart.res.body.checks.similarNames).toEqual([
       {
-        key: "idiospira",
+        key: "idiocrista",
         spellings: [
-          { name: "Idiospira", fileRows: 0, firstRows: [], inStudy: true },
-          { name: "idiospira", fileRows: 1, firstRows: [2], inStudy: false },
+          { name: "Idiocrista", fileRows: 0, firstRows: [], inStudy: true },
+          { name: "idiocrista", fileRows: 1, firstRows: [2], inStudy: false },
         ],
         mergedInto: null,
       },
     ]);
     expect(apart.res.body.counts.create).toBe(1);
 
-    const merged = await preview(study, file, { idiospira: "Idiospira" });
-    expect(merged.res.body.checks.similarNames[0].mergedInto).toBe("Idiospira");
+    const merged = await preview(study, file, { idiocrista: "Idiocrista" });
+    expect(merged.res.body.checks.similarNames[0].mergedInto).toBe("Idiocrista");
     expect(merged.res.body.counts).toMatchObject({ create: 0, update: 1 });
-    expect(merged.res.body.sample[0]).toMatchObject({ row: 2, name: "Idiospira", action: "update" });
+    expect(merged.res.body.sample[0]).toMatchObject({ row: 2, name: "Idiocrista", action: "update" });
     const commit = await cast.people.coder.agent
       .post(`/api/studies/${study.studyId}/imports/${merged.importId}/commit`)
-      .send({ mapping: templateMapping(study, ["life_habit"]), nameMerges: { idiospira: "Idiospira" }, skipInvalid: false });
+      .send({ mapping: templateMapping(study, ["life_habit"]), nameMerges: { idiocrista: "Idiocrista" }, skipInvalid: false });
     expect(commit.status).toBe(200);
-    expect(await liveTaxon(study.studyId, "idiospira")).toBeUndefined();
-    expect((await liveTaxon(study.studyId, "Idiospira")).traitValues).toEqual({ [study.trait.life_habit.id]: "infaunal" });
+    expect(await liveTaxon(study.studyId, "idiocrista")).toBeUndefined();
+    expect((await liveTaxon(study.studyId, "Idiocrista")).traitValues).toEqual({ [study.trait.life_habit.id]: "infaunal" });
   });
 
   it("covers higher taxa too (qualified ones left out), read as the chosen clade when asked", async () => {
     const study = await baseStudy();
-    const file = `${HEADER}\nPlatystrophia,strophomenida ,465,455,epifaunal\nPlaesiomys,Orthida?,466,455,epifaunal\n`;
+    const file = `${HEADER}\nPlatyvelia,strovelida ,465,455,epifaunal\nPlaevomys,Ortevida?,466,455,epifaunal\n`;
     const apart = await preview(study, file);
     expect(apart.res.body.checks.similarHigherTaxa).toEqual([
       {
-        key: "strophomenida",
+        key: "strovelida",
         spellings: [
-          { name: "Strophomenida", fileRows: 0, firstRows: [], inStudy: true },
-          { name: "strophomenida", fileRows: 1, firstRows: [2], inStudy: false },
+          { name: "Strovelida", fileRows: 0, firstRows: [], inStudy: true },
+          { name: "strovelida", fileRows: 1, firstRows: [2], inStudy: false },
         ],
         mergedInto: null,
       },
     ]);
-    const merged = await preview(study, file, undefined, { strophomenida: "Strophomenida" });
-    expect(merged.res.body.checks.similarHigherTaxa[0].mergedInto).toBe("Strophomenida");
+    const merged = await preview(study, file, undefined, { strovelida: "Strovelida" });
+    expect(merged.res.body.checks.similarHigherTaxa[0].mergedInto).toBe("Strovelida");
     const commit = await cast.people.coder.agent
       .post(`/api/studies/${study.studyId}/imports/${merged.importId}/commit`)
-      .send({ mapping: templateMapping(study, ["life_habit"]), higherTaxonMerges: { strophomenida: "Strophomenida" }, skipInvalid: false });
+      .send({ mapping: templateMapping(study, ["life_habit"]), higherTaxonMerges: { strovelida: "Strovelida" }, skipInvalid: false });
     expect(commit.status).toBe(200);
-    expect((await liveTaxon(study.studyId, "Platystrophia")).higherTaxon).toBe("Strophomenida");
-    expect((await liveTaxon(study.studyId, "Plaesiomys")).higherTaxon).toBe("Orthida?");
+    expect((await liveTaxon(study.studyId, "Platyvelia")).higherTaxon).toBe("Strovelida");
+    expect((await liveTaxon(study.studyId, "Plaevomys")).higherTaxon).toBe("Ortevida?");
   });
 
   it("refuses a merge of names that differ by more", async () => {
     const study = await baseStudy();
-    const { res } = await preview(study, `${HEADER}\nidiospira,Strophomenida,470,450,infaunal\n`, { idiospira: "Orthambonites" });
+    const { res } = await preview(study, `${HEADER}\nidiocrista,Strovelida,470,450,infaunal\n`, { idiocrista: "Ortambelites" });
     expect(res.status).toBe(400);
-    expect(res.body.error.fields["nameMerges.idiospira"]).toBe('"idiospira" and "Orthambonites" differ by more than case, spaces or punctuation');
+    expect(res.body.error.fields["nameMerges.idiocrista"]).toBe('"idiocrista" and "Ortambelites" differ by more than case, spaces or punctuation');
   });
 
   it("are found within an occurrence file and merged there when chosen", async () => {
     const studyId = await cast.makeStudy();
-    const csv = "taxon,max_ma,min_ma\nIdiospira,470,468\nidiospira ,466,464\nIdio-spira,460,458\n";
+    const csv = "taxon,max_ma,min_ma\nIdiocrista,470,468\nidiocrista ,466,464\nIdio-crista,460,458\n";
     const upload = await uploadOccurrences(cast.people.coder.agent, studyId, csv);
     const path = `/api/studies/${studyId}/occurrence-uploads/${upload.body.upload.id}`;
     const mapping = { taxon: "taxon", maxMa: "max_ma", minMa: "min_ma" };
     const apart = await cast.people.coder.agent.post(`${path}/preview`).send({ mapping });
-    expect(apart.body.checks.similarNames.map((g: { spellings: Array<{ name: string }> }) => g.spellings.map((s) => s.name))).toEqual([["Idio-spira", "Idiospira", "idiospira"]]);
+    expect(apart.body.checks.similarNames.map((g: { spellings: Array<{ name: string }> }) => g.spellings.map((s) => s.name))).toEqual([["Idio-crista", "Idiocrista", "idiocrista"]]);
     expect(apart.body.counts.taxa).toBe(3);
-    const nameMerges = { idiospira: "Idiospira", "Idio-spira": "Idiospira" };
+    const nameMerges = { idiocrista: "Idiocrista", "Idio-crista": "Idiocrista" };
     const merged = await cast.people.coder.agent.post(`${path}/preview`).send({ mapping, nameMerges });
     expect(merged.body.counts.taxa).toBe(1);
     expect((await cast.people.coder.agent.post(`${path}/commit`).send({ mapping, nameMerges, skipInvalid: false })).status).toBe(200);
     const stored = await app.ctx.db.select().from(occurrences).where(eq(occurrences.studyId, studyId));
-    expect(new Set(stored.map((o) => o.taxon))).toEqual(new Set(["Idiospira"]));
+    expect(new Set(stored.map((o) => o.taxon))).toEqual(new Set(["Idiocrista"]));
   });
 });
 
 describe("qualified higher taxa", () => {
   it("are kept as written and listed as qualified in both previews", async () => {
     const study = await baseStudy();
-    const { res, importId } = await preview(study, `${HEADER}\nPlaesiomys,Anazygidae?,466,455,epifaunal\nHesperorthis,cf. Orthida,470,460,epifaunal\n`);
+    const { res, importId } = await preview(study, `${HEADER}\nPlaevomys,Anavelidae?,466,455,epifaunal\nHesperorthis,cf. Ortevida,470,460,epifaunal\n`);
     expect(res.body.checks.qualifiedHigherTaxa).toEqual([
-      { name: "Anazygidae?", base: "Anazygidae", qualifier: "?", rows: 1, firstRow: 2 },
-      { name: "cf. Orthida", base: "Orthida", qualifier: "cf.", rows: 1, firstRow: 3 },
+      { name: "Anavelidae?", base: "Anavelidae", qualifier: "?", rows: 1, firstRow: 2 },
+      { name: "cf. Ortevida", base: "Ortevida", qualifier: "cf.", rows: 1, firstRow: 3 },
     ]);
     await cast.people.coder.agent.post(`/api/studies/${study.studyId}/imports/${importId}/commit`).send({ mapping: templateMapping(study, ["life_habit"]), skipInvalid: false });
-    expect((await liveTaxon(study.studyId, "Plaesiomys")).higherTaxon).toBe("Anazygidae?");
+    expect((await liveTaxon(study.studyId, "Plaevomys")).higherTaxon).toBe("Anavelidae?");
 
     const studyId = await cast.makeStudy();
-    const upload = await uploadOccurrences(cast.people.coder.agent, studyId, "taxon,higher_taxon,max_ma,min_ma\nPlaesiomys,Anazygidae?,466,455\nPlaesiomys,Anazygidae?,460,455\n");
+    const upload = await uploadOccurrences(cast.people.coder.agent, studyId, "taxon,higher_taxon,max_ma,min_ma\nPlaevomys,Anavelidae?,466,455\nPlaevomys,Anavelidae?,460,455\n");
     const occ = await cast.people.coder.agent
       .post(`/api/studies/${studyId}/occurrence-uploads/${upload.body.upload.id}/preview`)
       .send({ mapping: { taxon: "taxon", higherTaxon: "higher_taxon", maxMa: "max_ma", minMa: "min_ma" } });
-    expect(occ.body.checks.qualifiedHigherTaxa).toEqual([{ name: "Anazygidae?", base: "Anazygidae", qualifier: "?", rows: 2, firstRow: 2 }]);
+    expect(occ.body.checks.qualifiedHigherTaxa).toEqual([{ name: "Anavelidae?", base: "Anavelidae", qualifier: "?", rows: 2, firstRow: 2 }]);
   });
 });

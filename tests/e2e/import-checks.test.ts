@@ -17,20 +17,20 @@ let server: Server;
 let browser: Browser;
 let fileDir: string;
 
-// Rows 2-11 (header row 1). Row 3 spells Idiospira in lower case; row 5's order is "Indet."; row 7's
+// Rows 2-11 (header row 1). Row 3 spells Idiocrista in lower case; row 5's order is "Indet."; row 7's
 // family is qualified; row 11 is dated "4" among ages of 450 to 470 Ma.
 const CSV = [
   "taxon,higher_taxon,max_ma,min_ma",
-  "Idiospira,Strophomenida,470,468",
-  "idiospira,Strophomenida,466,464",
-  "Orthambonites,Orthida,468,466",
-  "Platystrophia,Indet.,462,460",
-  "Rafinesquina,Strophomenida,460,458",
-  "Plaesiomys,Anazygidae?,458,456",
-  "Sowerbyella,Strophomenida,456,454",
-  "Dalmanella,Orthida,454,452",
-  "Hebertella,Orthida,452,450",
-  "Glyptorthis,Orthida,4,3",
+  "Idiocrista,Strovelida,470,468",
+  "idiocrista,Strovelida,466,464",
+  "Ortambelites,Ortevida,468,466",
+  "Platyvelia,Indet.,462,460",
+  "Rafivelina,Strovelida,460,458",
+  "Plaevomys,Anavelidae?,458,456",
+  "Sowavella,Strovelida,456,454",
+  "Dalvorella,Ortevida,454,452",
+  "Hebrinella,Ortevida,452,450",
+  "Glyptevis,Ortevida,4,3",
 ].join("\n");
 
 beforeAll(async () => {
@@ -72,25 +72,25 @@ describe("import checks in the preview", () => {
       await checks.getByText("2 ages look implausible").waitFor();
       const warnings = checks.getByRole("table", { name: "Age warnings" });
       // Span from the file's own middle half: 20 ages, Q1 = 5th = 452, Q3 = 15th = 464 (nearest rank).
-      expect(await warnings.textContent()).toMatch(/11max_maGlyptorthis4 Ma looks like an interval number/);
-      expect(await warnings.textContent()).toMatch(/11min_maGlyptorthis3 Ma looks like an interval number/);
+      expect(await warnings.textContent()).toMatch(/11max_maGlyptevis4 Ma looks like an interval number/);
+      expect(await warnings.textContent()).toMatch(/11min_maGlyptevis3 Ma looks like an interval number/);
       expect(await checks.textContent()).toMatch(/1 cell read as missing.*Column higher_taxon: Indet\. 1 time \(row 5\)/);
-      expect(await checks.textContent()).toMatch(/Anazygidae\? \(\? Anazygidae\): 1 row, first on row 7/);
+      expect(await checks.textContent()).toMatch(/Anavelidae\? \(\? Anavelidae\): 1 row, first on row 7/);
 
-      // Ten rows, ten names as written; reading "idiospira" as "Idiospira" leaves nine taxa.
+      // Ten rows, ten names as written; reading "idiocrista" as "Idiocrista" leaves nine taxa.
       const taxa = page.locator("dt", { hasText: /^Taxa$/ }).locator("xpath=following-sibling::dd");
       expect(await taxa.textContent()).toBe("10");
       // The choice holds once the preview has been made again with it.
-      await checks.getByLabel(/One taxon, spelt\s*Idiospira$/).click();
+      await checks.getByLabel(/One taxon, spelt\s*Idiocrista$/).click();
       await page.waitForFunction(() => [...document.querySelectorAll("dt")].some((dt) => dt.textContent === "Taxa" && dt.nextElementSibling?.textContent === "9"));
-      expect(await checks.getByLabel(/One taxon, spelt\s*Idiospira$/).isChecked()).toBe(true);
+      expect(await checks.getByLabel(/One taxon, spelt\s*Idiocrista$/).isChecked()).toBe(true);
 
       await page.getByRole("button", { name: /Write 10 occurrences/ }).click();
       await page.getByText("10 occurrences written").waitFor();
     });
-    const list = await context.request.get(`${server.url}/api/studies/${studyId}/occurrences?taxon=idiospira`);
+    const list = await context.request.get(`${server.url}/api/studies/${studyId}/occurrences?taxon=idiocrista`);
     expect(((await list.json()) as { total: number }).total).toBe(0);
-    const merged = await context.request.get(`${server.url}/api/studies/${studyId}/occurrences?taxon=Idiospira`);
+    const merged = await context.request.get(`${server.url}/api/studies/${studyId}/occurrences?taxon=Idiocrista`);
     expect(((await merged.json()) as { total: number }).total).toBe(2);
   });
 });

@@ -156,7 +156,7 @@ export function ImportChecksPanel({ checks, merges, onMergesChange, busy }: Impo
       {checks.similarHigherTaxa.length > 0 && (
         <Notice tone="warning" title={`${pluralize(checks.similarHigherTaxa.length, "higher taxon is", "higher taxa are")} written more than one way`}>
           <p className="mb-2">
-            Kept apart, each spelling is a clade of its own in clade-adjusted results. Choose for each; qualified names (such as &quot;Anazygidae?&quot;) are not offered, as they differ on purpose.
+            Kept apart, each spelling is a clade of its own in clade-adjusted results. Choose for each; qualified names (such as &quot;Anavelidae?&quot;) are not offered, as they differ on purpose.
           </p>
           <div className="space-y-2">
             {checks.similarHigherTaxa.map((g) => (

@@ -127,7 +127,7 @@ function MissingMark() {
   );
 }
 
-/** A higher taxon written with a qualifier ("Anazygidae?", "cf. Orthida"): kept as written, marked as uncertain. */
+/** A higher taxon written with a qualifier ("Anavelidae?", "cf. Ortevida"): kept as written, marked as uncertain. */
 function QualifiedMark({ qualifier, base }: { qualifier: string; base: string }) {
   const label = `Qualified higher taxon (${qualifier} ${base}): a clade of its own in clade-adjusted results`;
   return (

@@ -23,8 +23,8 @@ describe("referenceSpan", () => {
 describe("agePlausibilityWarnings", () => {
   const ordovician = { oldestMa: 485.4, youngestMa: 443.8, source: "study" as const };
   it("flags a small whole number as a possible interval number (4 <= 443.8 / 10)", () => {
-    const [w] = agePlausibilityWarnings([{ row: 5, column: "FAD", taxon: "Rhynchotrema", ma: 4 }], ordovician);
-    expect(w).toMatchObject({ row: 5, column: "FAD", taxon: "Rhynchotrema", kind: "age_interval_number" });
+    const [w] = agePlausibilityWarnings([{ row: 5, column: "FAD", taxon: "Rhoviotrema", ma: 4 }], ordovician);
+    expect(w).toMatchObject({ row: 5, column: "FAD", taxon: "Rhoviotrema", kind: "age_interval_number" });
     expect(w!.message).toContain("4 Ma looks like an interval number");
     expect(w!.message).toContain("485.4 to 443.8 Ma (the study's ranges)");
   });

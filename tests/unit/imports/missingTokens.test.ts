@@ -16,14 +16,14 @@ describe("isMissingToken", () => {
 });
 
 describe("blankMissingTokens", () => {
-  const csv = "name,order,fad\nA,Indet.,450\nB,Strophomenida,?\nC, indet. ,NA\nD,?,460\n";
+  const csv = "name,order,fad\nA,Indet.,450\nB,Strovelida,?\nC, indet. ,NA\nD,?,460\n";
 
   it("empties the token cells and says what was read as missing, by column then row", () => {
     const parsed = parseCsv(csv);
     const { parsed: out, read } = blankMissingTokens(parsed, ["Indet.", "?"]);
     expect(out.rows.map((r) => r.cells)).toEqual([
       ["A", "", "450"],
-      ["B", "Strophomenida", ""],
+      ["B", "Strovelida", ""],
       ["C", "", "NA"],
       ["D", "", "460"],
     ]);
