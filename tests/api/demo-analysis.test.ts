@@ -132,6 +132,11 @@ describe("the default analysis of the demo study", () => {
     expect(infaunal.flagged).toBe(true);
     expect(habit.confoundingNote).toContain("Infaunal");
     expect(habit.confoundingNote).toContain("once clade is taken into account");
+    // Flagged life habits that read alike share one reading: said once per trait, not once per contrast.
+    const habitFlagged = habit.contrasts.filter((c) => c.cladeCheck?.flagged);
+    const readings = habit.confoundingNote!.split("a shared cause, not necessarily an effect of the trait").length - 1;
+    expect(readings).toBeLessThanOrEqual(1);
+    if (habitFlagged.length > 1) expect(habit.confoundingNote).toContain("and that of ");
     // The calibrated flag (crude against the family-standardised odds ratio, beyond its own
     // uncertainty) leaves most other contrasts alone: only the planted confounder is expected.
     const contrasts = run.results!.boundaries[0].result.traits.flatMap((t) => t.contrasts.map((c) => ({ trait: t.key, contrast: c.contrast, flagged: c.flagged })));
