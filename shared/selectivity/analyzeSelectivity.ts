@@ -1,7 +1,7 @@
 import { adjustPValues } from "../stats";
 import { cladeAdjustedSlope } from "./cladeAdjustedSlope";
 import { chooseReference } from "./chooseReference";
-import { judgeCladeConfounding, DEFAULT_MIN_INFORMATIVE_CLADES, type CladeGroup } from "./cladeConfounding";
+import { judgeCladeConfounding, judgeStateConfounding, DEFAULT_MIN_INFORMATIVE_CLADES, type CladeCells } from "./cladeConfounding";
 import { confoundingCheck, confoundingMethod } from "./confoundingCheck";
 import { encodeTrait, type DropReason } from "./encodeTrait";
 import { fitSelectivityModel, type ModelTraitInput, type SelectivityModelFit } from "./fitSelectivityModel";
@@ -226,7 +226,9 @@ function judgeAgainstModel(fit: SelectivityModelFit, options: SelectivityInput["
       contrasts.push({ key: column.trait, state: column.state, kind: "state", column: j, traitColumns });
     }
   });
-  return judgeModelConfounding(fit.design, fit.y, contrasts, { threshold: options.confoundingThreshold, level: options.level });
+  // The model's own estimates (the same maximum likelihood fit of the same design) spare a refit.
+  const fitted = fit.model.coefficients.map((c) => c.estimate);
+  return judgeModelConfounding(fit.design, fit.y, contrasts, { threshold: options.confoundingThreshold, level: options.level, fitted });
 }
 
 /** The clade confounding judgement of one state against the reference, from the clade-by-state counts. */
@@ -241,23 +243,13 @@ function judgeStateContrast(
   if (!contrast.cladeAdjusted || contrast.state === null) return null;
   const s = spec.states.findIndex((state) => state.code === contrast.state);
   const { cells, cladeCount, stateCount } = byClade;
-  const groups: CladeGroup[] = [];
+  // Each clade's four counts are all the states' judgement needs: no row per taxon is built.
+  const cladeCells: CladeCells[] = [];
   for (let c = 0; c < cladeCount; c++) {
-    const counts = [cells[2 * (c * stateCount + s)], cells[2 * (c * stateCount + s) + 1], cells[2 * (c * stateCount + reference)], cells[2 * (c * stateCount + reference) + 1]];
-    const total = counts[0] + counts[1] + counts[2] + counts[3];
-    if (total === 0) continue;
-    const x = new Float64Array(total);
-    const y = new Uint8Array(total);
-    let k = 0;
-    counts.forEach((count, cell) => {
-      for (let j = 0; j < count; j++, k++) {
-        x[k] = cell < 2 ? 1 : 0;
-        y[k] = cell % 2 === 0 ? 1 : 0;
-      }
-    });
-    groups.push({ x, y });
+    const counts: CladeCells = [cells[2 * (c * stateCount + s)], cells[2 * (c * stateCount + s) + 1], cells[2 * (c * stateCount + reference)], cells[2 * (c * stateCount + reference) + 1]];
+    if (counts[0] + counts[1] + counts[2] + counts[3] > 0) cladeCells.push(counts);
   }
-  return judgeCladeConfounding(groups, {
+  return judgeStateConfounding(cladeCells, {
     kind: "states",
     conditionalLogOdds: Math.log(contrast.cladeAdjusted.estimate),
     threshold: options.confoundingThreshold,

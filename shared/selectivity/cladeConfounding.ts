@@ -58,22 +58,43 @@ export const CONFOUNDING_CITATION =
  * // => { crude: 3.1, standardised: 1.02, change: 0.67, seLogDifference: 0.21, z: 5.3, flagged: true, ... }
  */
 export function judgeCladeConfounding(allGroups: CladeGroup[], options: CladeConfoundingOptions): CladeConfoundingJudgement | null {
-  // States: direct standardisation needs both states in a clade, so the comparison (crude and
+  return options.kind === "states" ? judgeStateConfounding(allGroups.map(cellCounts), options) : judge(allGroups, [], options);
+}
+
+/** A clade's counts in a state contrast: [state victims, state survivors, reference victims, reference survivors]. */
+export type CladeCells = [number, number, number, number];
+
+/**
+ * judgeCladeConfounding for a state against the reference, from each clade's four counts (all the
+ * states' judgement uses): the same judgement without a row per taxon.
+ *
+ * @example
+ * judgeStateConfounding([[3, 5, 1, 9], [4, 4, 2, 8], ...], { kind: "states", conditionalLogOdds: 0.9, threshold: 0.1, level: 0.95, minInformativeClades: 3 })
+ * // => { crude: 3.1, standardised: 2.4, change: 0.23, ... }
+ */
+export function judgeStateConfounding(allCells: CladeCells[], options: CladeConfoundingOptions): CladeConfoundingJudgement | null {
+  // Direct standardisation needs both states in a clade, so the comparison (crude and
   // standardised alike) runs over the clades holding both.
-  const groups = options.kind === "states" ? allGroups.filter(holdsBothStates) : allGroups;
-  if (groups.length === 0) return null;
-  const taxaCount = groups.reduce((a, g) => a + g.x.length, 0);
+  return judge([], allCells.filter((c) => c[0] + c[1] > 0 && c[2] + c[3] > 0), { ...options, kind: "states" });
+}
+
+function judge(groups: CladeGroup[], cells: CladeCells[], options: CladeConfoundingOptions): CladeConfoundingJudgement | null {
+  const states = options.kind === "states";
+  if ((states ? cells.length : groups.length) === 0) return null;
+  const taxaCount = states ? cells.reduce((a, c) => a + c[0] + c[1] + c[2] + c[3], 0) : groups.reduce((a, g) => a + g.x.length, 0);
   // Large studies: fewer replicates (each one touches every taxon); their differences are either
   // far beyond or well within the noise, so 50 replicates judge them as well.
   const largeStudy = taxaCount > EARLY_STOP_TAXA;
   const planned = options.replicates ?? (largeStudy ? 50 : CLADE_CONFOUNDING_REPLICATES);
   let replicates = planned;
   const seed = options.seed ?? CLADE_CONFOUNDING_SEED;
-  const prepared = groups.map((g) => (options.kind === "numeric" ? (prepareConditionalStrata(g.x, g.y, new Int32Array(g.x.length), 1)[0] ?? null) : null));
-  const informative = options.kind === "numeric" ? prepared.filter((p) => p !== null).length : groups.filter(informativeForStates).length;
+  const prepared = groups.map((g) => prepareConditionalStrata(g.x, g.y, new Int32Array(g.x.length), 1)[0] ?? null);
+  const informative = states ? cells.filter((c) => c[0] + c[2] > 0 && c[1] + c[3] > 0).length : prepared.filter((p) => p !== null).length;
   const ones = new Float64Array(groups.length).fill(1);
-  const crude = crudeLogOdds(groups, ones, options.kind);
-  const standardised = standardisedLogOdds(groups, ones, options.conditionalLogOdds, options.kind);
+  // Numbers: the taxa pooled by distinct value once; every replicate refills the counts (see below).
+  const pooled = states ? null : poolByValue(groups, ones);
+  const crude = pooled ? crudeSlope(pooled.counts) : statesCrude(cells);
+  const standardised = pooled ? standardisedSlope(groups, ones, options.conditionalLogOdds, pooled.counts) : statesStandardised(cells);
   if (!Number.isFinite(crude) || !Number.isFinite(standardised)) return null;
   const difference = crude - standardised;
   const change = Math.abs(Math.exp(standardised - crude) - 1);
@@ -85,7 +106,9 @@ export function judgeCladeConfounding(allGroups: CladeGroup[], options: CladeCon
   // Newton step from the full-sample slope for the replicate's within-clade slope.
   const random = createUniformSource(seed);
   const draws: number[] = [];
-  const cells = options.kind === "states" ? groups.map(cellCounts) : [];
+  // Numbers: every replicate's taxa reuse the same arrays, and are pooled by distinct value for the
+  // two marginal slopes (taxa sharing a value share their terms: the same likelihood, far fewer terms).
+  const sample = options.kind === "numeric" ? groups.map((g) => ({ x: new Float64Array(g.x.length), y: new Uint8Array(g.x.length) })) : [];
   for (let b = 0; b < planned; b++) {
     // Large studies stop at a look once the flag's answer is clear (see answerIsClear).
     if (largeStudy && options.replicates === undefined && b > 0 && b % EARLY_STOP_BATCH === 0 && answerIsClear(draws, difference, change, options)) {
@@ -98,31 +121,34 @@ export function judgeCladeConfounding(allGroups: CladeGroup[], options: CladeCon
       if (Number.isFinite(d)) draws.push(d);
       continue;
     }
-    const sample = groups.map((g) => {
+    const counts = pooled!.counts;
+    counts.taxa.fill(0);
+    counts.victims.fill(0);
+    for (let k = 0; k < groups.length; k++) {
+      const g = groups[k];
+      const valueOf = pooled!.valueOf[k];
+      const { x, y } = sample[k];
       const n = g.x.length;
-      const x = new Float64Array(n);
-      const y = new Uint8Array(n);
       for (let i = 0; i < n; i++) {
         const j = Math.floor(random() * n);
         x[i] = g.x[j];
         y[i] = g.y[j];
-      }
-      return { x, y };
-    });
-    const c = crudeLogOdds(sample, ones, options.kind);
-    let conditional = 0;
-    if (options.kind === "numeric") {
-      const strata = sample.map((g) => prepareConditionalStrata(g.x, g.y, new Int32Array(g.x.length), 1)[0]).filter((p) => p !== undefined);
-      if (large) {
-        // Large clades: the within-clade slope of the replicate by the stratified fit (see cladeAdjustedSlope).
-        conditional = stratifiedSlopeOf(sample);
-      } else {
-        const at = conditionalLogLik(strata, options.conditionalLogOdds);
-        conditional = strata.length > 0 && at.information > 0 ? options.conditionalLogOdds + at.score / at.information : NaN;
+        counts.taxa[valueOf[j]]++;
+        counts.victims[valueOf[j]] += g.y[j];
       }
     }
+    const c = crudeSlope(counts);
+    let conditional: number;
+    if (large) {
+      // Large clades: the within-clade slope of the replicate by the stratified fit (see cladeAdjustedSlope).
+      conditional = stratifiedSlopeOf(sample);
+    } else {
+      const strata = sample.map((g) => prepareConditionalStrata(g.x, g.y, new Int32Array(g.x.length), 1)[0]).filter((p) => p !== undefined);
+      const at = conditionalLogLik(strata, options.conditionalLogOdds);
+      conditional = strata.length > 0 && at.information > 0 ? options.conditionalLogOdds + at.score / at.information : NaN;
+    }
     if (!Number.isFinite(c) || !Number.isFinite(conditional)) continue;
-    const s = standardisedLogOdds(sample, ones, conditional, options.kind);
+    const s = standardisedSlope(sample, ones, conditional, counts);
     if (Number.isFinite(s)) draws.push(c - s);
   }
   let se: number | null = null;
@@ -156,8 +182,8 @@ export function judgeCladeConfounding(allGroups: CladeGroup[], options: CladeCon
 }
 
 /** A clade's counts: [state victims, state survivors, reference victims, reference survivors]. */
-function cellCounts(g: CladeGroup): [number, number, number, number] {
-  const c: [number, number, number, number] = [0, 0, 0, 0];
+function cellCounts(g: CladeGroup): CladeCells {
+  const c: CladeCells = [0, 0, 0, 0];
   for (let i = 0; i < g.x.length; i++) c[(g.x[i] === 1 ? 0 : 2) + (g.y[i] === 1 ? 0 : 1)]++;
   return c;
 }
@@ -176,20 +202,38 @@ function resampleCells(c: [number, number, number, number], random: () => number
   return out;
 }
 
-/** ln(crude) - ln(directly standardised) from clade cell counts (as crudeLogOdds and standardisedLogOdds for states). */
-function statesDifference(cells: Array<[number, number, number, number]>): number {
+/** ln(crude) - ln(directly standardised) from clade cell counts. */
+function statesDifference(cells: CladeCells[]): number {
+  return statesCrude(cells) - statesStandardised(cells);
+}
+
+/** The crude log odds ratio over the clades' cells (Haldane's 0.5 in every cell when one is empty), as crudeLogOdds for states. */
+function statesCrude(cells: CladeCells[]): number {
   let a = 0;
   let b = 0;
   let c = 0;
   let d = 0;
-  let exposed = 0;
-  let unexposed = 0;
-  let total = 0;
   for (const [v1, s1, v0, s0] of cells) {
     a += v1;
     b += s1;
     c += v0;
     d += s0;
+  }
+  if (a === 0 || b === 0 || c === 0 || d === 0) {
+    a += 0.5;
+    b += 0.5;
+    c += 0.5;
+    d += 0.5;
+  }
+  return Math.log((a * d) / (b * c));
+}
+
+/** The directly standardised log odds ratio over the clades' cells (each clade weighted by its taxa), as standardisedLogOdds for states. */
+function statesStandardised(cells: CladeCells[]): number {
+  let exposed = 0;
+  let unexposed = 0;
+  let total = 0;
+  for (const [v1, s1, v0, s0] of cells) {
     const n1 = v1 + s1;
     const n0 = v0 + s0;
     if (n1 === 0 || n0 === 0) continue;
@@ -198,36 +242,13 @@ function statesDifference(cells: Array<[number, number, number, number]>): numbe
     unexposed += (w * v0) / n0;
     total += w;
   }
-  if (a === 0 || b === 0 || c === 0 || d === 0) {
-    a += 0.5;
-    b += 0.5;
-    c += 0.5;
-    d += 0.5;
-  }
   const r1 = exposed / total;
   const r0 = unexposed / total;
-  if (!(r1 > 0 && r1 < 1 && r0 > 0 && r0 < 1)) return NaN;
-  return Math.log((a * d) / (b * c)) - (Math.log(r1 / (1 - r1)) - Math.log(r0 / (1 - r0)));
+  return r1 > 0 && r1 < 1 && r0 > 0 && r0 < 1 ? Math.log(r1 / (1 - r1)) - Math.log(r0 / (1 - r0)) : NaN;
 }
 
 function formatLevel(alpha: number): string {
   return String(Number(alpha.toFixed(4)));
-}
-
-function holdsBothStates(g: CladeGroup): boolean {
-  let exposed = 0;
-  for (let i = 0; i < g.x.length; i++) exposed += g.x[i];
-  return exposed > 0 && exposed < g.x.length;
-}
-
-function informativeForStates(g: CladeGroup): boolean {
-  let exposed = 0;
-  let events = 0;
-  for (let i = 0; i < g.x.length; i++) {
-    exposed += g.x[i];
-    events += g.y[i];
-  }
-  return exposed > 0 && exposed < g.x.length && events > 0 && events < g.x.length;
 }
 
 /** The slope of a logistic regression with one intercept per clade holding both outcomes (NaN when it runs off). */
@@ -249,7 +270,7 @@ function stratifiedSlopeOf(groups: CladeGroup[]): number {
       stratum[i] = s;
     }
   });
-  const fit = mixed.length > 0 ? fitStratifiedSlope(x, y, stratum, mixed.length) : null;
+  const fit = mixed.length > 0 ? fitStratifiedSlope(x, y, stratum, mixed.length, { standardError: false }) : null;
   return fit ? fit.estimate : NaN;
 }
 
@@ -279,8 +300,25 @@ export function crudeLogOdds(groups: CladeGroup[], weights: ArrayLike<number>, k
     }
     return Math.log((a * d) / (b * c));
   }
-  const flat = flatten(groups, weights);
-  return fractionalSlope(flat.x, flat.w, flat.y);
+  return crudeSlope(poolByValue(groups, weights).counts);
+}
+
+/** The crude logistic slope from taxa pooled by value: a fractional logistic fit of each value's share of victims, weighted by its taxa. */
+function crudeSlope(counts: ValueCounts): number {
+  const { values, taxa, victims } = counts;
+  let used = 0;
+  for (let v = 0; v < values.length; v++) if (taxa[v] > 0) used++;
+  const xs = new Float64Array(used);
+  const ws = new Float64Array(used);
+  const shares = new Float64Array(used);
+  for (let v = 0, k = 0; v < values.length; v++) {
+    if (!(taxa[v] > 0)) continue;
+    xs[k] = values[v];
+    ws[k] = taxa[v];
+    shares[k] = victims[v] / taxa[v];
+    k++;
+  }
+  return fractionalSlope(xs, ws, shares);
 }
 
 /** The clade intercept a with sum_i expit(a + beta x_i) = victims (the fitted model reproduces the clade's count). */
@@ -343,6 +381,11 @@ export function standardisedLogOdds(groups: CladeGroup[], weights: ArrayLike<num
     const r0 = unexposed / total;
     return r1 > 0 && r1 < 1 && r0 > 0 && r0 < 1 ? Math.log(r1 / (1 - r1)) - Math.log(r0 / (1 - r0)) : NaN;
   }
+  return standardisedSlope(groups, weights, beta, poolByValue(groups, weights).counts);
+}
+
+/** standardisedLogOdds for numbers, with the weighted clades' taxa already pooled by value. */
+function standardisedSlope(groups: CladeGroup[], weights: ArrayLike<number>, beta: number, counts: ValueCounts): number {
   const intercepts = groups.map((g, k) => {
     if (weights[k] === 0) return NaN;
     let victims = 0;
@@ -350,59 +393,101 @@ export function standardisedLogOdds(groups: CladeGroup[], weights: ArrayLike<num
     return cladeIntercept(g.x, victims, beta);
   });
   // Numbers: the averaged risk curve R(x) = sum_c n_c expit(a_c + beta x) / N at every taxon's
-  // value, then the logistic slope that best fits it over the same values.
+  // value, then the logistic slope that best fits it over the same values (each value weighted by
+  // its taxa).
   const activeIntercepts: number[] = [];
   const activeMass: number[] = [];
   let total = 0;
+  let taxaCount = 0;
   for (let k = 0; k < groups.length; k++) {
     if (weights[k] === 0) continue;
     activeIntercepts.push(intercepts[k]);
     activeMass.push(weights[k] * groups[k].x.length);
     total += weights[k] * groups[k].x.length;
+    taxaCount += groups[k].x.length;
   }
-  const flat = flatten(groups, weights);
   const curve = (value: number): number => {
     const bx = beta * value;
     let sum = 0;
     for (let j = 0; j < activeIntercepts.length; j++) sum += activeMass[j] * expit(activeIntercepts[j] + bx);
     return sum / total;
   };
-  const targets = new Float64Array(flat.x.length);
-  if (flat.x.length * activeIntercepts.length <= 200_000) {
-    for (let i = 0; i < flat.x.length; i++) targets[i] = curve(flat.x[i]);
+  const { values, taxa } = counts;
+  let used = 0;
+  for (let v = 0; v < values.length; v++) if (taxa[v] > 0) used++;
+  const xs = new Float64Array(used);
+  const ws = new Float64Array(used);
+  for (let v = 0, k = 0; v < values.length; v++) {
+    if (!(taxa[v] > 0)) continue;
+    xs[k] = values[v];
+    ws[k] = taxa[v];
+    k++;
+  }
+  const targets = new Float64Array(used);
+  if (taxaCount * activeIntercepts.length <= 200_000) {
+    for (let k = 0; k < used; k++) targets[k] = curve(xs[k]);
   } else {
     // Many taxa and clades: the smooth curve on 256 points across the values, read off linearly.
-    const low = flat.x.reduce((a, v) => Math.min(a, v), Infinity);
-    const high = flat.x.reduce((a, v) => Math.max(a, v), -Infinity);
+    const low = xs[0];
+    const high = xs[used - 1];
     const points = 256;
     const step = (high - low) / (points - 1) || 1;
     const grid = Float64Array.from({ length: points }, (_, g) => curve(low + g * step));
-    for (let i = 0; i < flat.x.length; i++) {
-      const position = (flat.x[i] - low) / step;
+    for (let k = 0; k < used; k++) {
+      const position = (xs[k] - low) / step;
       const g = Math.min(points - 2, Math.max(0, Math.floor(position)));
       const t = position - g;
-      targets[i] = grid[g] * (1 - t) + grid[g + 1] * t;
+      targets[k] = grid[g] * (1 - t) + grid[g + 1] * t;
     }
   }
-  return fractionalSlope(flat.x, flat.w, targets);
+  return fractionalSlope(xs, ws, targets);
 }
 
-/** The taxa of the weighted clades as flat arrays of values, weights and outcomes. */
-function flatten(groups: CladeGroup[], weights: ArrayLike<number>): { x: Float64Array; w: Float64Array; y: Float64Array } {
+/** The taxa of weighted clades pooled by distinct value: values in increasing order, with the (weighted) taxa and victims at each. */
+interface ValueCounts {
+  values: Float64Array;
+  taxa: Float64Array;
+  victims: Float64Array;
+}
+
+/**
+ * The distinct values of x over the clades (in increasing order), the index of every taxon's value
+ * (valueOf[k][i] for taxon i of clade k), and the weighted taxa and victims at each value.
+ */
+function poolByValue(groups: CladeGroup[], weights: ArrayLike<number>): { counts: ValueCounts; valueOf: Int32Array[] } {
   let n = 0;
-  for (let k = 0; k < groups.length; k++) if (weights[k] > 0) n += groups[k].x.length;
-  const x = new Float64Array(n);
-  const w = new Float64Array(n);
-  const y = new Float64Array(n);
-  let i = 0;
-  for (let k = 0; k < groups.length; k++) {
-    if (weights[k] === 0) continue;
-    const g = groups[k];
-    for (let j = 0; j < g.x.length; j++, i++) {
-      x[i] = g.x[j];
-      w[i] = weights[k];
-      y[i] = g.y[j];
-    }
+  for (const g of groups) n += g.x.length;
+  const all = new Float64Array(n);
+  let at = 0;
+  for (const g of groups) {
+    all.set(g.x, at);
+    at += g.x.length;
   }
-  return { x, w, y };
+  all.sort();
+  let distinct = 0;
+  for (let i = 0; i < n; i++) if (i === 0 || all[i] !== all[i - 1]) all[distinct++] = all[i];
+  const values = all.slice(0, distinct);
+  const taxa = new Float64Array(distinct);
+  const victims = new Float64Array(distinct);
+  const valueOf = groups.map((g, k) => {
+    const of = new Int32Array(g.x.length);
+    for (let i = 0; i < g.x.length; i++) {
+      // The value's place among the sorted distinct values (binary search).
+      const x = g.x[i];
+      let low = 0;
+      let high = distinct - 1;
+      while (low < high) {
+        const middle = (low + high) >> 1;
+        if (values[middle] < x) low = middle + 1;
+        else high = middle;
+      }
+      const v = low;
+      of[i] = v;
+      if (weights[k] === 0) continue;
+      taxa[v] += weights[k];
+      victims[v] += weights[k] * g.y[i];
+    }
+    return of;
+  });
+  return { counts: { values, taxa, victims }, valueOf };
 }

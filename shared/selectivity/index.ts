@@ -17,7 +17,7 @@ export { cladeAdjustedSlope } from "./cladeAdjustedSlope";
 export { fitStratifiedSlope, type StratifiedSlopeFit } from "./stratifiedSlope";
 export { fitSelectivityModel, type ModelTraitInput, type SelectivityModelFit } from "./fitSelectivityModel";
 export { confoundingCheck, confoundingMethod, relativeChange, type ConfoundingContext } from "./confoundingCheck";
-export { judgeCladeConfounding, standardisedLogOdds, crudeLogOdds, cladeIntercept, CONFOUNDING_CITATION, DEFAULT_MIN_INFORMATIVE_CLADES, type CladeGroup, type CladeConfoundingOptions } from "./cladeConfounding";
+export { judgeCladeConfounding, judgeStateConfounding, standardisedLogOdds, crudeLogOdds, cladeIntercept, CONFOUNDING_CITATION, DEFAULT_MIN_INFORMATIVE_CLADES, type CladeGroup, type CladeCells, type CladeConfoundingOptions } from "./cladeConfounding";
 export { formatCompact, formatNumber } from "./formatNumber";
 export {
   crisisVersusBackground,

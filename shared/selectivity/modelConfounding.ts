@@ -1,7 +1,7 @@
 import type { DesignMatrix } from "../stats";
 import { normalTwoSidedP } from "../stats/distributions";
 import { choleskyDecompose, choleskySolve } from "../stats/linalg";
-import { fitMaximumLikelihood, Workspace, type Design } from "../stats/logisticKernels";
+import { fitMaximumLikelihood, informationPass, linearPredictors, withRowPattern, Workspace, type Design } from "../stats/logisticKernels";
 import { createUniformSource } from "../stats/random";
 import { CLADE_CONFOUNDING_REPLICATES, CLADE_CONFOUNDING_SEED } from "./cladeConfounding";
 import { answerIsClear, EARLY_STOP_BATCH, EARLY_STOP_TAXA } from "./bootstrapStopping";
@@ -36,7 +36,14 @@ export function judgeModelConfounding(
   design: DesignMatrix,
   y: ArrayLike<number>,
   contrasts: ModelContrast[],
-  options: { threshold: number; level: number; replicates?: number; seed?: number },
+  options: {
+    threshold: number;
+    level: number;
+    replicates?: number;
+    seed?: number;
+    /** The maximum likelihood estimates of this design and y (intercept first) when already fitted; else fitted here. */
+    fitted?: ArrayLike<number>;
+  },
 ): Map<string, Map<string, ConfoundingJudgement>> {
   // Large studies: fewer replicates (each one passes over every taxon).
   const largeStudy = design.rows > EARLY_STOP_TAXA;
@@ -47,7 +54,8 @@ export function judgeModelConfounding(
   const p = design.columns + 1;
   const full = withIntercept(design);
   const out = new Map<string, Map<string, ConfoundingJudgement>>();
-  const d: Design = { data: full, n, p };
+  // Dummy-coded traits leave most of the design 0: its row pattern lets every pass skip the zeros.
+  const d: Design = withRowPattern({ data: full, n, p });
   const ys = Float64Array.from({ length: n }, (_, i) => y[i]);
   // Built once and reused by every replicate: which side of each state contrast a taxon is on,
   // and the distinct values of each numeric contrast (taxa sharing a value share their terms).
@@ -56,20 +64,19 @@ export function judgeModelConfounding(
   const eta = new Float64Array(n);
   const weights = new Float64Array(n).fill(1);
   let fitted: Float64Array;
-  try {
-    const fit = fitMaximumLikelihood(d, ys, 25, 1e-8);
-    if (!fit.converged) return out;
-    fitted = Float64Array.from(fit.beta);
-  } catch {
-    return out;
+  if (options.fitted) fitted = Float64Array.from(options.fitted);
+  else {
+    try {
+      const fit = fitMaximumLikelihood(d, ys, 25, 1e-8);
+      if (!fit.converged) return out;
+      fitted = Float64Array.from(fit.beta);
+    } catch {
+      return out;
+    }
   }
   /** ln(crude) - ln(standardised) of every contrast for taxa weighted by `weights` (bootstrap counts), the model at beta. */
   const differences = (beta: Float64Array): number[] => {
-    for (let i = 0; i < n; i++) {
-      let sum = 0;
-      for (let k = 0; k < p; k++) sum += full[i * p + k] * beta[k];
-      eta[i] = sum;
-    }
+    linearPredictors(d, beta, eta);
     return prepared.map((c) => crudeLog(c, d, ys, weights) - standardisedLog(c, d, eta, beta, weights));
   };
   const observed = differences(fitted);
@@ -89,7 +96,7 @@ export function judgeModelConfounding(
     for (let i = 0; i < n; i++) weights[Math.floor(random() * n)]++;
     // The model re-estimated by one Newton step from the full-sample fit (a one-step bootstrap,
     // first-order equivalent to refitting and far cheaper on large studies).
-    weightedInformationPass(d, ys, weights, fitted, work);
+    informationPass(d, ys, fitted, work, weights);
     if (choleskyDecompose(work.information, p, work.lower) >= 0) continue;
     choleskySolve(work.lower, p, work.score, step);
     const beta = Float64Array.from(fitted, (v, j) => v + step[j]);
@@ -170,32 +177,6 @@ function prepareContrast(d: Design, c: ModelContrast): PreparedContrast {
   values.forEach((v, g) => index.set(v, g));
   const group = Int32Array.from(x, (v) => index.get(v)!);
   return { kind: "numeric", column: c.column, group, values };
-}
-
-/** The score and information of the logistic log-likelihood at beta with taxon weights (bootstrap counts). */
-function weightedInformationPass(d: Design, y: Float64Array, weights: Float64Array, beta: Float64Array, work: Workspace): void {
-  const { data, n, p } = d;
-  const info = work.information;
-  const score = work.score;
-  info.fill(0);
-  score.fill(0);
-  for (let i = 0; i < n; i++) {
-    const count = weights[i];
-    if (count === 0) continue;
-    const offset = i * p;
-    let eta = 0;
-    for (let j = 0; j < p; j++) eta += data[offset + j] * beta[j];
-    const mu = expit(eta);
-    const residual = count * (y[i] - mu);
-    const w = count * mu * (1 - mu);
-    for (let a = 0; a < p; a++) {
-      const xa = data[offset + a];
-      score[a] += xa * residual;
-      const wxa = w * xa;
-      const row = a * p;
-      for (let b = a; b < p; b++) info[row + b] += wxa * data[offset + b];
-    }
-  }
 }
 
 function crudeLog(c: PreparedContrast, d: Design, y: Float64Array, weights: Float64Array): number {

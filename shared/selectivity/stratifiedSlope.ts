@@ -1,6 +1,6 @@
 /** The common slope of a logistic regression with one intercept per stratum. */
 export interface StratifiedSlopeFit {
-  /** Slope b on the log-odds scale, and its standard error from the inverse information. */
+  /** Slope b on the log-odds scale, and its standard error from the inverse information (NaN when not asked for). */
   estimate: number;
   se: number;
   iterations: number;
@@ -30,7 +30,13 @@ const DIVERGENCE_ETA = 30;
  * fitStratifiedSlope(Float64Array.of(0, 1, 2, 0, 1, 2, 3), Uint8Array.of(0, 1, 0, 0, 0, 1, 1), Int32Array.of(0, 0, 0, 1, 1, 1, 1), 2)
  * // => { estimate: 1.5681, se: 1.1866, ... } (as the x coefficient of a logistic regression on x and a stratum dummy)
  */
-export function fitStratifiedSlope(x: Float64Array, y: Uint8Array, stratum: Int32Array, strata: number): StratifiedSlopeFit | null {
+export function fitStratifiedSlope(
+  x: Float64Array,
+  y: Uint8Array,
+  stratum: Int32Array,
+  strata: number,
+  opts: { standardError?: boolean } = {},
+): StratifiedSlopeFit | null {
   const n = x.length;
   const intercepts = new Float64Array(strata);
   const events = new Float64Array(strata);
@@ -46,43 +52,46 @@ export function fitStratifiedSlope(x: Float64Array, y: Uint8Array, stratum: Int3
   let slope = 0;
   let maxAbsX = 0;
   for (let i = 0; i < n; i++) maxAbsX = Math.max(maxAbsX, Math.abs(x[i]));
-  const scoreA = new Float64Array(strata);
-  const weightA = new Float64Array(strata);
-  const crossA = new Float64Array(strata);
   const stepA = new Float64Array(strata);
   const trialA = new Float64Array(strata);
 
-  const logLikelihood = (a: Float64Array, b: number): number => {
+  // One pass at (a, b) gives the log-likelihood and the pieces of the score and information (per
+  // stratum: score, weight and cross term; for the slope: score and weight), so a step accepted by
+  // the halving test needs no second pass for the next iteration.
+  const pieces = () => ({ scoreA: new Float64Array(strata), weightA: new Float64Array(strata), crossA: new Float64Array(strata), scoreB: 0, weightB: 0 });
+  const evaluate = (a: Float64Array, b: number, into: ReturnType<typeof pieces>): number => {
+    into.scoreA.fill(0);
+    into.weightA.fill(0);
+    into.crossA.fill(0);
+    let scoreB = 0;
+    let weightB = 0;
     let sum = 0;
     for (let i = 0; i < n; i++) {
-      const eta = a[stratum[i]] + b * x[i];
+      const k = stratum[i];
+      const xi = x[i];
+      const eta = a[k] + b * xi;
       // y eta - ln(1 + e^eta), without overflow
       const softplus = eta > 0 ? eta + Math.log1p(Math.exp(-eta)) : Math.log1p(Math.exp(eta));
       sum += y[i] * eta - softplus;
-    }
-    return sum;
-  };
-
-  let logLik = logLikelihood(intercepts, slope);
-  for (let iteration = 1; iteration <= MAX_ITERATIONS; iteration++) {
-    scoreA.fill(0);
-    weightA.fill(0);
-    crossA.fill(0);
-    let scoreB = 0;
-    let weightB = 0;
-    for (let i = 0; i < n; i++) {
-      const k = stratum[i];
-      const eta = intercepts[k] + slope * x[i];
       const mu = 1 / (1 + Math.exp(-eta));
       const w = mu * (1 - mu);
       const r = y[i] - mu;
-      const xi = x[i];
-      scoreA[k] += r;
-      weightA[k] += w;
-      crossA[k] += w * xi;
+      into.scoreA[k] += r;
+      into.weightA[k] += w;
+      into.crossA[k] += w * xi;
       scoreB += r * xi;
       weightB += w * xi * xi;
     }
+    into.scoreB = scoreB;
+    into.weightB = weightB;
+    return sum;
+  };
+
+  let current = pieces();
+  let trial = pieces();
+  let logLik = evaluate(intercepts, slope, current);
+  for (let iteration = 1; iteration <= MAX_ITERATIONS; iteration++) {
+    const { scoreA, weightA, crossA, scoreB, weightB } = current;
     let schur = weightB;
     let reducedScore = scoreB;
     for (let k = 0; k < strata; k++) {
@@ -98,7 +107,7 @@ export function fitStratifiedSlope(x: Float64Array, y: Uint8Array, stratum: Int3
     for (let halvings = 0; halvings < 30; halvings++) {
       for (let k = 0; k < strata; k++) trialA[k] = intercepts[k] + stepA[k];
       trialB = slope + stepB;
-      trialLogLik = logLikelihood(trialA, trialB);
+      trialLogLik = evaluate(trialA, trialB, trial);
       if (trialLogLik >= logLik - 1e-12 * Math.abs(logLik)) break;
       stepB /= 2;
       for (let k = 0; k < strata; k++) stepA[k] /= 2;
@@ -107,9 +116,12 @@ export function fitStratifiedSlope(x: Float64Array, y: Uint8Array, stratum: Int3
     intercepts.set(trialA);
     slope = trialB;
     logLik = trialLogLik;
+    [current, trial] = [trial, current];
     if (runsOff(intercepts, slope, maxAbsX)) return null;
     if (change < TOLERANCE) {
-      return { estimate: slope, se: Math.sqrt(1 / informationSchur(x, stratum, intercepts, slope, strata)), iterations: iteration, logLik };
+      // The standard error costs one more pass; a caller wanting the estimate alone (a bootstrap) skips it.
+      const se = opts.standardError === false ? NaN : Math.sqrt(1 / informationSchur(x, stratum, intercepts, slope, strata));
+      return { estimate: slope, se, iterations: iteration, logLik };
     }
   }
   return null;

@@ -104,7 +104,8 @@ export function buildDesignMatrix(variables: DesignVariable[]): DesignMatrix {
       if (variable.levels) {
         levels = variable.levels.map(String);
         if (new Set(levels).size !== levels.length) throw new Error(`${FN}: variable "${name}" lists a level twice`);
-        const unknown = labels.find((label) => !levels.includes(label));
+        const known = new Set(levels);
+        const unknown = labels.find((label) => !known.has(label));
         if (unknown !== undefined) throw new Error(`${FN}: variable "${name}" has the value "${unknown}", which is not among its levels`);
       } else {
         levels = [...observed].sort();
@@ -116,14 +117,17 @@ export function buildDesignMatrix(variables: DesignVariable[]): DesignMatrix {
       if (!observed.has(reference)) throw new Error(`${FN}: reference "${reference}" of "${name}" has no rows`);
       if (present.length < 2) throw new Error(`${FN}: variable "${name}" has only one observed level ("${reference}"); it cannot be estimated`);
       const columns: number[] = [];
-      for (const level of present) {
-        if (level === reference) continue;
+      // Each row's level looked up once, not compared with every level's name.
+      const levelOf = new Map(present.map((level, k) => [level, k]));
+      const rowLevel = Int32Array.from(labels, (label) => levelOf.get(label)!);
+      present.forEach((level, k) => {
+        if (level === reference) return;
         const column = new Float64Array(rows);
-        for (let i = 0; i < rows; i++) column[i] = labels[i] === level ? 1 : 0;
+        for (let i = 0; i < rows; i++) column[i] = rowLevel[i] === k ? 1 : 0;
         columns.push(names.length);
         names.push(`${name}=${level}`);
         columnsData.push(column);
-      }
+      });
       terms.push({ name, columns });
       encodings.push({ name, kind: "categorical", columns, reference, levels: present, emptyLevels });
     } else {

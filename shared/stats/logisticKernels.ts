@@ -9,6 +9,67 @@ export interface Design {
   data: Float64Array;
   n: number;
   p: number;
+  /** Where each row's nonzero values sit (see withRowPattern): passes then skip the zeros, with the same sums. */
+  pattern?: RowPattern;
+}
+
+/** Row i's nonzero values are in the columns column[start[i]] .. column[start[i + 1] - 1], in increasing order. */
+export interface RowPattern {
+  start: Int32Array;
+  column: Int32Array;
+}
+
+/** Share of nonzero values at or below which a design is worth its row pattern (dummy-coded traits are mostly 0). */
+const SPARSE_SHARE = 0.6;
+
+/**
+ * The design with its row pattern when most of its values are 0 (each dummy-coded trait puts at
+ * most one 1 in a row), else the design itself. A pass then adds only the nonzero products, in the
+ * same order: the skipped terms are exact zeros, so every sum comes out the same to the last bit
+ * (the passes fall back to the full row when beta or a linear predictor is not finite, where 0 times
+ * it would not be 0). The design's values must not change afterwards.
+ */
+export function withRowPattern(design: Design): Design {
+  const { data, n, p } = design;
+  let nonzero = 0;
+  for (let k = 0; k < n * p; k++) if (data[k] !== 0) nonzero++;
+  if (nonzero > SPARSE_SHARE * n * p) return design;
+  const start = new Int32Array(n + 1);
+  const column = new Int32Array(nonzero);
+  let at = 0;
+  for (let i = 0; i < n; i++) {
+    start[i] = at;
+    for (let j = 0; j < p; j++) if (data[i * p + j] !== 0) column[at++] = j;
+  }
+  start[n] = at;
+  return { data, n, p, pattern: { start, column } };
+}
+
+function allFinite(values: ArrayLike<number>, p: number): boolean {
+  for (let j = 0; j < p; j++) if (!Number.isFinite(values[j])) return false;
+  return true;
+}
+
+/** The linear predictors X beta of every row, into `out` (the row pattern skips the zeros when beta is finite). */
+export function linearPredictors(design: Design, beta: ArrayLike<number>, out: Float64Array): Float64Array {
+  const { data, n, p, pattern } = design;
+  if (pattern && allFinite(beta, p)) {
+    const { start, column } = pattern;
+    for (let i = 0; i < n; i++) {
+      const offset = i * p;
+      let eta = 0;
+      for (let k = start[i], end = start[i + 1]; k < end; k++) eta += data[offset + column[k]] * beta[column[k]];
+      out[i] = eta;
+    }
+    return out;
+  }
+  for (let i = 0; i < n; i++) {
+    const offset = i * p;
+    let eta = 0;
+    for (let j = 0; j < p; j++) eta += data[offset + j] * beta[j];
+    out[i] = eta;
+  }
+  return out;
 }
 
 /** Scratch arrays for one model size, reused across passes. */
@@ -29,30 +90,59 @@ export class Workspace {
 
 /**
  * One pass at beta: fills the upper triangle of the information X'WX and the score X'(y - mu),
- * and returns the log-likelihood and the largest |eta|.
+ * and returns the log-likelihood and the largest |eta|. With `weights`, row i counts weights[i]
+ * times (bootstrap counts; a row of weight 0 is left out): the same sums as over the rows repeated.
  */
-export function informationPass(design: Design, y: ArrayLike<number>, beta: ArrayLike<number>, work: Workspace): { logLik: number; maxAbsEta: number } {
-  const { data, n, p } = design;
+export function informationPass(
+  design: Design,
+  y: ArrayLike<number>,
+  beta: ArrayLike<number>,
+  work: Workspace,
+  weights?: ArrayLike<number>,
+): { logLik: number; maxAbsEta: number } {
+  const { data, n, p, pattern } = design;
   const info = work.information;
   const score = work.score;
   info.fill(0);
   score.fill(0);
+  const sparse = pattern !== undefined && allFinite(beta, p);
+  const start = pattern?.start;
+  const column = pattern?.column;
   let logLik = 0;
   let maxAbsEta = 0;
   for (let i = 0; i < n; i++) {
+    let count = 1;
+    if (weights !== undefined) {
+      count = weights[i];
+      if (count === 0) continue;
+    }
     const offset = i * p;
     let eta = 0;
-    for (let j = 0; j < p; j++) eta += data[offset + j] * beta[j];
+    if (sparse) for (let k = start![i], end = start![i + 1]; k < end; k++) eta += data[offset + column![k]] * beta[column![k]];
+    else for (let j = 0; j < p; j++) eta += data[offset + j] * beta[j];
     const e = Math.exp(-Math.abs(eta));
     const mu = eta >= 0 ? 1 / (1 + e) : e / (1 + e);
-    const w = e / ((1 + e) * (1 + e));
+    const w = (count * e) / ((1 + e) * (1 + e));
     const yi = y[i];
     // y - mu without cancellation: 1 - mu is computed from e directly.
-    const residual = yi === 1 ? (eta >= 0 ? e / (1 + e) : 1 / (1 + e)) : -mu;
+    const residual = count * (yi === 1 ? (eta >= 0 ? e / (1 + e) : 1 / (1 + e)) : -mu);
     // y eta - ln(1 + e^eta), from the same e = exp(-|eta|): only the sign of eta picks the form.
-    logLik -= Math.log1p(e) + (yi === 1 ? (eta < 0 ? -eta : 0) : eta > 0 ? eta : 0);
+    logLik -= count * (Math.log1p(e) + (yi === 1 ? (eta < 0 ? -eta : 0) : eta > 0 ? eta : 0));
     const absEta = Math.abs(eta);
     if (absEta > maxAbsEta) maxAbsEta = absEta;
+    if (sparse && eta === eta) {
+      // Only the nonzero products: the others add exact zeros.
+      const end = start![i + 1];
+      for (let ka = start![i]; ka < end; ka++) {
+        const a = column![ka];
+        const xa = data[offset + a];
+        score[a] += xa * residual;
+        const wxa = w * xa;
+        const row = a * p;
+        for (let kb = ka; kb < end; kb++) info[row + column![kb]] += wxa * data[offset + column![kb]];
+      }
+      continue;
+    }
     for (let a = 0; a < p; a++) {
       const xa = data[offset + a];
       score[a] += xa * residual;
@@ -130,10 +220,24 @@ export function fitMaximumLikelihood(design: Design, y: ArrayLike<number>, maxIt
   info.fill(0);
   rhs.fill(0);
   let events = 0;
+  const pattern = design.pattern;
   for (let i = 0; i < n; i++) {
     const offset = i * p;
     const wz = y[i] === 1 ? startWz : -startWz;
     events += y[i];
+    if (pattern) {
+      // Only the nonzero products (the others add exact zeros).
+      const end = pattern.start[i + 1];
+      for (let ka = pattern.start[i]; ka < end; ka++) {
+        const a = pattern.column[ka];
+        const xa = data[offset + a];
+        rhs[a] += xa * wz;
+        const wxa = startWeight * xa;
+        const row = a * p;
+        for (let kb = ka; kb < end; kb++) info[row + pattern.column[kb]] += wxa * data[offset + pattern.column[kb]];
+      }
+      continue;
+    }
     for (let a = 0; a < p; a++) {
       const xa = data[offset + a];
       rhs[a] += xa * wz;

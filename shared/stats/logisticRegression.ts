@@ -1,6 +1,6 @@
 import { chiSquareUpperTail, normalTwoSidedP, twoSidedCriticalValue } from "./distributions";
 import { choleskyDecompose, choleskyInverse } from "./linalg";
-import { divergingDirection, fitMaximumLikelihood, fitNewton, isSeparatingDirection, largestRowChange, type Design } from "./logisticKernels";
+import { divergingDirection, fitMaximumLikelihood, fitNewton, isSeparatingDirection, largestRowChange, withRowPattern, type Design } from "./logisticKernels";
 import { brentRoot } from "./roots";
 import { separationCheck, type SeparationKind } from "./separationCheck";
 import type { FlatMatrix } from "./types";
@@ -335,7 +335,7 @@ function coefficient(name: string, estimate: number, se: number, pValue: number,
   return { name, estimate, se, z: estimate / se, pValue, ci, oddsRatio: Math.exp(estimate), oddsRatioCi: [Math.exp(ci[0]), Math.exp(ci[1])] };
 }
 
-/** Copies X into a flat row-major design with the intercept column first, checking every value. */
+/** Copies X into a flat row-major design with the intercept column first, checking every value (with its row pattern when mostly 0). */
 function buildDesign(X: number[][] | FlatMatrix): { design: Design; predictorCount: number } {
   if (Array.isArray(X)) {
     const n = X.length;
@@ -356,7 +356,7 @@ function buildDesign(X: number[][] | FlatMatrix): { design: Design; predictorCou
         data[i * p + j + 1] = v;
       }
     }
-    return { design: { data, n, p }, predictorCount: m };
+    return { design: withRowPattern({ data, n, p }), predictorCount: m };
   }
   const { data: source, rows: n, columns: m } = X;
   if (!(source instanceof Float64Array) || source.length !== n * m || n === 0) {
@@ -372,7 +372,7 @@ function buildDesign(X: number[][] | FlatMatrix): { design: Design; predictorCou
       data[i * p + j + 1] = v;
     }
   }
-  return { design: { data, n, p }, predictorCount: m };
+  return { design: withRowPattern({ data, n, p }), predictorCount: m };
 }
 
 /**
