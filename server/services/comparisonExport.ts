@@ -2,6 +2,7 @@
 // column (the columns are the union of the tables'); `table` chooses one table with its own columns.
 // Text cells are neutralised against formula injection by the shared CSV writer.
 import { csvRow } from "../../shared/csv/write";
+import { formatMa } from "../../shared/format/ages";
 import { IUCN_SOURCE } from "../../shared/iucn";
 import { COMPARISON_EXPORT_TABLES, type Comparison, type ComparisonExportTable } from "../../shared/schemas/comparisons";
 
@@ -45,7 +46,7 @@ function comparisonRows(c: Comparison): Row[] {
     ["created_at", c.createdAt],
     ["run", `${r.run.name} (${r.run.id})`],
     ["run_data_hash_sha256", r.run.dataHash],
-    ["boundary", `${r.run.boundaryLabel} (${r.run.boundaryMa} Ma)`],
+    ["boundary", `${r.run.boundaryLabel} (${formatMa(r.run.boundaryMa)})`],
     ["model", `${r.run.modelMethod}; ${r.run.modelN} taxa`],
     ["list", `${r.list.name} (${r.list.id})`],
     ["categories_source", IUCN_SOURCE],

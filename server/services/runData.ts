@@ -8,6 +8,7 @@ import type { Database } from "../db";
 import { taxa } from "../../db/schema/index";
 import type { EncodedTrait } from "../../shared/selectivity/index";
 import type { SelectivityTaxon, SelectivityTraitSpec } from "../../shared/selectivity/types";
+import { formatMa } from "../../shared/format/ages";
 import { stageBelow } from "../../shared/timescale/index";
 import type { RunBoundaryDesign, RunParams } from "../../shared/schemas/runs";
 import type { OutcomesResult } from "../../shared/schemas/outcomes";
@@ -101,7 +102,7 @@ export function checkWindows(params: RunParams): void {
 function boundaryLabel(given: string | undefined, result: OutcomesResult): string {
   if (given) return given;
   const unit = result.boundaryUnits[0];
-  return unit ? `Base of the ${unit.label} (${result.boundary} Ma)` : `${result.boundary} Ma`;
+  return unit ? `Base of the ${unit.label} (${formatMa(result.boundary)})` : formatMa(result.boundary);
 }
 
 /** "1 taxon", "2,310 taxa". */

@@ -1,3 +1,4 @@
+import { formatMyr } from "../format/ages";
 import { wilsonInterval } from "../stats/wilsonInterval";
 import { DEPARTURE_Z } from "./crisisTurnover";
 
@@ -235,7 +236,7 @@ export function boundaryScorecard(input: BoundaryScorecardInput): BoundaryScorec
     status: "reported",
     summary:
       input.windowMyr > 0
-        ? `The losses are placed within a window of ${input.windowMyr.toFixed(2)} Myr below the boundary; the ranges cannot say whether they came at once or spread across it.`
+        ? `The losses are placed within a window of ${formatMyr(input.windowMyr)} below the boundary; the ranges cannot say whether they came at once or spread across it.`
         : "The window is 0 Myr: only taxa last seen at the boundary itself count as victims.",
     value: input.windowMyr,
     ci: null,

@@ -1,4 +1,4 @@
-import { formatMa, pluralize } from "../lib/format";
+import { agesWriter, pluralize } from "../lib/format";
 import { useTaxonOccurrences } from "../lib/queries/occurrences";
 import { EmptyState } from "./EmptyState";
 import { ErrorState } from "./ErrorState";
@@ -32,21 +32,23 @@ export function TaxonFinds({ studyId, taxon, range }: { studyId: string; taxon: 
   const x = (age: number) => 8 + ((oldest - age) / span) * (WIDTH - 16);
   const shown = occurrences.slice(0, SHOWN);
   const height = 30 + shown.length * ROW;
+  // The axis, the bars' titles and the table write every age of these finds alike ("94.00" beside "94.41").
+  const ages = agesWriter([oldest, youngest, ...shown.flatMap((o) => [o.maxMa, o.minMa])]);
   return (
     <section aria-label={`Finds of ${taxon}`} className="space-y-2 rounded-lg border border-stone-200 p-3" data-taxon-occurrences={taxon}>
       <h4 className="font-semibold">
         {taxon}: {pluralize(total, "find")}, {pluralize(collections, "collection")}
       </h4>
-      <svg width={WIDTH} height={height} role="img" aria-label={`${taxon}: finds from ${formatMa(oldest)} to ${formatMa(youngest)}, older to the left`} className="max-w-full">
+      <svg width={WIDTH} height={height} role="img" aria-label={`${taxon}: finds from ${ages.ma(oldest)} to ${ages.ma(youngest)}, older to the left`} className="max-w-full">
         {range && <rect x={x(range.fadMa)} y={4} width={Math.max(2, x(range.ladMa) - x(range.fadMa))} height={10} rx={3} className="fill-accent-600" />}
         {shown.map((o, i) => (
           <rect key={`${o.uploadId}-${o.row}`} x={x(o.maxMa)} y={22 + i * ROW} width={Math.max(2, x(o.minMa) - x(o.maxMa))} height={ROW - 3} className="fill-stone-500">
-            <title>{`Row ${o.row} of ${o.fileName}: ${formatMa(o.maxMa)} to ${formatMa(o.minMa)}${o.collection ? `, collection ${o.collection}` : ""}`}</title>
+            <title>{`Row ${o.row} of ${o.fileName}: ${ages.ma(o.maxMa)} to ${ages.ma(o.minMa)}${o.collection ? `, collection ${o.collection}` : ""}`}</title>
           </rect>
         ))}
       </svg>
       <p className="text-xs text-stone-600">
-        {formatMa(oldest)} (left) to {formatMa(youngest)} (right). {range ? "The upper bar is the taxon's range; " : ""}each lower bar one find's dates.
+        {ages.ma(oldest)} (left) to {ages.ma(youngest)} (right). {range ? "The upper bar is the taxon's range; " : ""}each lower bar one find's dates.
         {total > shown.length ? ` The first ${shown.length} of ${total} finds are drawn.` : ""}
       </p>
       <details className="text-sm">
@@ -66,8 +68,8 @@ export function TaxonFinds({ studyId, taxon, range }: { studyId: string; taxon: 
             <tbody className="divide-y divide-stone-100 tabular-nums">
               {shown.map((o) => (
                 <tr key={`${o.uploadId}-${o.row}`}>
-                  <td className="px-3 py-1">{o.maxMa}</td>
-                  <td className="px-3 py-1">{o.minMa}</td>
+                  <td className="px-3 py-1">{ages.number(o.maxMa)}</td>
+                  <td className="px-3 py-1">{ages.number(o.minMa)}</td>
                   <td className="px-3 py-1">{[o.earlyInterval, o.lateInterval].filter(Boolean).join(" – ") || "—"}</td>
                   <td className="px-3 py-1">{o.collection || "—"}</td>
                   <td className="px-3 py-1">

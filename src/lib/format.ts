@@ -96,19 +96,7 @@ export function formatPercent(value: number | null | undefined): string {
   return value === null || value === undefined || !Number.isFinite(value) ? "—" : percentFormat.format(value);
 }
 
-const ageFormat = new Intl.NumberFormat("en-GB", { maximumFractionDigits: 4 });
-
-/** "93.9 Ma" (an age before present, in millions of years). */
-export function formatMa(age: number): string {
-  return `${ageFormat.format(age)} Ma`;
-}
-
-/** "6.6 Myr" (a duration in millions of years). */
-export function formatMyr(duration: number): string {
-  return `${ageFormat.format(duration)} Myr`;
-}
-
-/** A plain number as ages are written, without the unit: "93.9". */
-export function formatAgeNumber(age: number): string {
-  return ageFormat.format(age);
-}
+// Ages in Ma and durations in Myr: every decimal an age has, at least one ("66.0 Ma"), and ages
+// shown together written alike ("94.00 Ma" beside "94.41 Ma"; agesWriter). Shared with the text the
+// statistics write.
+export { ageDecimals, agesWriter, formatAgeNumber, formatMa, formatMyr, sharedAgeDecimals, type AgeWriter } from "@shared/format/ages";

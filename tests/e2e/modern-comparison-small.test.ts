@@ -77,7 +77,7 @@ describe("a small modern comparison", () => {
       await page.getByRole("link", { name: "Back to modern comparison" }).click();
       const form = page.getByRole("form", { name: "Compare a list with a run" });
       await form.waitFor();
-      await expect.poll(() => form.getByLabel("Boundary of the run").locator("option").first().innerText()).toContain("66 Ma");
+      await expect.poll(() => form.getByLabel("Boundary of the run").locator("option").first().innerText()).toContain("(66.0 Ma)");
       await form.getByLabel("Name of the comparison").fill("Seven species today");
       await form.getByRole("button", { name: "Compare and save" }).click();
 

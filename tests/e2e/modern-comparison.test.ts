@@ -111,7 +111,7 @@ describe("modern comparison", () => {
       const form = page.getByRole("form", { name: "Compare a list with a run" });
       await form.waitFor();
       await screenshot(page, "modern-comparison-lists");
-      await expect.poll(() => form.getByLabel("Boundary of the run").locator("option").first().innerText()).toContain("66 Ma");
+      await expect.poll(() => form.getByLabel("Boundary of the run").locator("option").first().innerText()).toContain("(66.0 Ma)");
       await form.getByLabel("Name of the comparison").fill("Life habit today");
       await form.getByRole("button", { name: "Compare and save" }).click();
 

@@ -111,7 +111,7 @@ describe("selectivity screen", () => {
       await addForm.getByLabel("Period", { exact: true }).selectOption("Paleogene");
       await addForm.getByLabel("Epoch", { exact: true }).selectOption("Paleocene");
       await addForm.getByLabel("Stage", { exact: true }).selectOption("Danian");
-      await addForm.getByTestId("pending-boundary").filter({ hasText: "Base of the Danian stage, 66 Ma" }).waitFor();
+      await addForm.getByTestId("pending-boundary").filter({ hasText: "Base of the Danian stage, 66.0 Ma" }).waitFor();
       await addForm.getByRole("button", { name: "Add boundary" }).click();
       const chosen = page.getByRole("list", { name: "Chosen boundaries" });
       // Default window: the Maastrichtian, 72.2 - 66 = 6.2 Myr (ICS chart v2024/12).
@@ -125,7 +125,7 @@ describe("selectivity screen", () => {
       await addForm.getByLabel(/^Name in tables and figures/).fill("Danian, 3 Myr window");
       await addForm.getByRole("button", { name: "Add boundary" }).click();
       expect(await chosen.locator("li").count()).toBe(2);
-      expect(await chosen.innerText()).toContain("Window: 3 Myr");
+      expect(await chosen.innerText()).toContain("Window: 3.0 Myr"); // written like the boundary beside it, 66.0 Ma
 
       // Both traits, each against the reference the planted effects were built on.
       await page.getByRole("checkbox", { name: /^Feeding mode/ }).check();

@@ -63,7 +63,7 @@ describe("time bins", () => {
 
       await page.goto(`${server.url}/studies/${studyId}/codebook`);
       const summary = page.getByTestId("time-bins-summary");
-      await summary.getByText(/3 bins, from 1 \(458\.2 Ma\) to 3 \(449 Ma\)/).waitFor();
+      await summary.getByText(/3 bins, from 1 \(458\.2 Ma\) to 3 \(449\.0 Ma\)/).waitFor();
     });
   }, 120_000);
 });

@@ -11,7 +11,7 @@ export const RANK_WORD: Record<TimescaleRankName, string> = {
 };
 
 // The age formats live with every other number format; re-exported for the time scale widgets.
-export { formatAgeNumber, formatMa, formatMyr } from "../../lib/format";
+export { agesWriter, formatAgeNumber, formatMa, formatMyr, type AgeWriter } from "../../lib/format";
 
 /** The boundary plus the window, rounded to a year so 93.9 + 6.6 reads 100.5, not 100.49999999999999. */
 export function windowEdge(boundary: number, window: number): number {

@@ -9,7 +9,7 @@ import { LoadingState } from "../../components/LoadingState";
 import { formatCount } from "../../lib/format";
 import { useOutcomes, type OutcomesRequest } from "./api";
 import { OutcomeBadge } from "./OutcomeBadge";
-import { formatAgeNumber, formatMa } from "../../components/timescale/ages";
+import { agesWriter } from "../../components/timescale/ages";
 import { GROUP_ORDER, OUTCOME_GROUP_LABEL, OUTCOME_LABEL } from "./words";
 
 export const LIST_PAGE_SIZE = 50;
@@ -118,6 +118,8 @@ function TaxonTable({
   onSetOutcome: (taxon: OutcomeTaxon) => void;
   onRevoke: (taxon: OutcomeTaxon) => void;
 }) {
+  // The age columns write every age of the page alike: "94.00" beside "94.41", not "94".
+  const ages = agesWriter(items.flatMap((t) => [t.fad, t.lad, t.override?.boundaryMa]));
   return (
     <div className="-mx-5 overflow-x-auto sm:-mx-6">
       <table className="w-full min-w-[40rem] text-left text-[15px]">
@@ -159,15 +161,15 @@ function TaxonTable({
                 )}
                 {taxon.rangeProblem && <p className="mt-1 text-sm text-caution-700">{taxon.rangeProblem}</p>}
               </td>
-              <td className="px-3 py-2.5 text-right tabular-nums">{taxon.fad === null ? <span className="text-stone-500">—</span> : formatAgeNumber(taxon.fad)}</td>
-              <td className="px-3 py-2.5 text-right tabular-nums">{taxon.lad === null ? <span className="text-stone-500">—</span> : formatAgeNumber(taxon.lad)}</td>
+              <td className="px-3 py-2.5 text-right tabular-nums">{taxon.fad === null ? <span className="text-stone-500">—</span> : ages.number(taxon.fad)}</td>
+              <td className="px-3 py-2.5 text-right tabular-nums">{taxon.lad === null ? <span className="text-stone-500">—</span> : ages.number(taxon.lad)}</td>
               <td className="px-3 py-2.5">
                 <OutcomeBadge outcome={taxon.outcome} />
                 {taxon.override && (
                   <div className="mt-1 max-w-xs text-sm text-stone-600">
                     <p>
                       <span className="font-medium text-stone-800">Set by hand</span>{" "}
-                      {taxon.override.boundaryMa === null ? "for every boundary" : `for ${formatMa(taxon.override.boundaryMa)}`}; from the range:{" "}
+                      {taxon.override.boundaryMa === null ? "for every boundary" : `for ${ages.ma(taxon.override.boundaryMa)}`}; from the range:{" "}
                       {OUTCOME_LABEL[taxon.computedOutcome].toLowerCase()}.
                     </p>
                     <p className="mt-0.5 break-words text-stone-500 italic">“{taxon.override.reason}”</p>

@@ -1,19 +1,20 @@
 // The codebook's pointer to the study's own time bins: how many there are, and where to edit them.
 import { ButtonLink } from "../../components/Button";
 import { Card } from "../../components/Card";
-import { pluralize } from "../../lib/format";
+import { agesWriter, pluralize } from "../../lib/format";
 import { useTimeBins } from "../../lib/queries/timeBins";
 
 export function TimeBinsSummary({ studyId }: { studyId: string }) {
   const bins = useTimeBins(studyId);
   const list = bins.data?.bins ?? [];
+  const ages = agesWriter(list.flatMap((b) => [b.baseMa, b.topMa]));
   const summary = bins.isPending
     ? "Loading the time bins…"
     : bins.isError
       ? "The time bins could not be loaded."
       : list.length === 0
         ? "None: interval names are read from the ICS chart alone."
-        : `${pluralize(list.length, "bin")}, from ${list[0]!.name} (${list[0]!.baseMa} Ma) to ${list.at(-1)!.name} (${list.at(-1)!.topMa} Ma). Their names are read before the ICS chart's.`;
+        : `${pluralize(list.length, "bin")}, from ${list[0]!.name} (${ages.ma(list[0]!.baseMa)}) to ${list.at(-1)!.name} (${ages.ma(list.at(-1)!.topMa)}). Their names are read before the ICS chart's.`;
   return (
     <Card
       title="Time bins of this study"

@@ -1,7 +1,13 @@
 import { useId } from "react";
 import type { ImportChecks, NameMerges, SimilarNames } from "@shared/schemas/importChecks";
 import { Notice } from "../../components/Notice";
-import { formatCount, pluralize } from "../../lib/format";
+import { agesWriter, formatCount, pluralize } from "../../lib/format";
+
+/** "485.4 to 443.8 Ma", both ends written alike. */
+function spanAges(span: { oldestMa: number; youngestMa: number }): string {
+  const ages = agesWriter([span.oldestMa, span.youngestMa]);
+  return `${ages.number(span.oldestMa)} to ${ages.ma(span.youngestMa)}`;
+}
 
 /** Spellings chosen so far (spelling -> the one to read it as), of taxon names and of higher taxa. */
 export interface ChosenSpellings {
@@ -86,7 +92,7 @@ export function ImportChecksPanel({ checks, merges, onMergesChange, busy }: Impo
       {checks.warningCount > 0 ? (
         <Notice tone="warning" title={`${pluralize(checks.warningCount, "age looks", "ages look")} implausible`}>
           <p className="mb-2">
-            Compared with {checks.ageSpan ? `${checks.ageSpan.oldestMa} to ${checks.ageSpan.youngestMa} Ma (${checks.ageSpan.source === "study" ? "the ranges of the study's taxa" : "the middle half of this file's ages"})` : "the study's span"}.
+            Compared with {checks.ageSpan ? `${spanAges(checks.ageSpan)} (${checks.ageSpan.source === "study" ? "the ranges of the study's taxa" : "the middle half of this file's ages"})` : "the study's span"}.
             These are warnings: the rows can still be committed. Rows are numbered as a spreadsheet shows them (the header is row 1).
           </p>
           <div className="max-h-64 overflow-auto rounded border border-amber-200 bg-white">
@@ -115,7 +121,7 @@ export function ImportChecksPanel({ checks, merges, onMergesChange, busy }: Impo
         </Notice>
       ) : checks.ageSpan ? (
         <p className="text-sm text-stone-600">
-          Every age given in Ma lies near {checks.ageSpan.oldestMa} to {checks.ageSpan.youngestMa} Ma ({checks.ageSpan.source === "study" ? "the study's ranges" : "the middle half of this file's ages"}).
+          Every age given in Ma lies near {spanAges(checks.ageSpan)} ({checks.ageSpan.source === "study" ? "the study's ranges" : "the middle half of this file's ages"}).
         </p>
       ) : null}
 

@@ -1,6 +1,6 @@
 // How imported values read on the imports screen: states by label, ranges as ages or intervals.
 import type { Trait } from "@shared/schemas/traits";
-import { formatMeasurement } from "../../lib/format";
+import { formatMa, formatMeasurement } from "../../lib/format";
 
 const FIELD_LABELS: Record<string, string> = {
   name: "Name",
@@ -20,7 +20,7 @@ export function formatImportValue(value: unknown, trait: Trait | undefined): str
   if (value === null || value === undefined || value === "") return null;
   if (typeof value === "object") {
     const v = value as { ma?: number; interval?: string | null; name?: string };
-    if (typeof v.ma === "number") return v.interval ? `${v.interval} (${v.ma} Ma)` : `${v.ma} Ma`;
+    if (typeof v.ma === "number") return v.interval ? `${v.interval} (${formatMa(v.ma)})` : formatMa(v.ma);
     if (typeof v.name === "string") return v.name;
     return JSON.stringify(value);
   }

@@ -10,9 +10,9 @@ import { LoadingState } from "../../components/LoadingState";
 import { useToast } from "../../components/Toast";
 import { ThreadPanel } from "../../components/threads/ThreadPanel";
 import { ApiError, errorMessage } from "../../lib/api";
-import { formatDateTime } from "../../lib/format";
+import { formatDateTime, sharedAgeDecimals } from "../../lib/format";
 import { useRevertDecision, useTaxonHistory, type HistoryCell } from "./api";
-import { cellValue, formatStoredValue, type GridColumn } from "./cellValues";
+import { cellValue, formatStoredValue, storedAge, type GridColumn } from "./cellValues";
 import { ReasonDialog } from "./ReasonDialog";
 import { ValueText } from "./ValueText";
 
@@ -64,6 +64,8 @@ export function HistoryPanel({ studyId, row, column, traits, canRevert, onClose 
   const [tab, setTab] = useState<"history" | "discussion">("history");
   const discussion = threadTargetOf(row, column);
   const history = useTaxonHistory(studyId, row.id, historyCellOf(column));
+  // Every age of the panel (now, and each change's old and new value) written alike.
+  const ageDecimals = sharedAgeDecimals([cellValue(column, row), ...(history.data?.entries ?? []).flatMap((e) => [e.oldValue, e.newValue])].map(storedAge));
   const revert = useRevertDecision(studyId);
   const toast = useToast();
   const [reverting, setReverting] = useState<HistoryEntry | null>(null);
@@ -107,7 +109,7 @@ export function HistoryPanel({ studyId, row, column, traits, canRevert, onClose 
             {column.label} of <span className="italic">{row.name}</span>
           </h2>
           <p className="mt-1 text-sm text-stone-600">
-            Now: <ValueText field={field} value={cellValue(column, row)} traits={traits} />
+            Now: <ValueText field={field} value={cellValue(column, row)} traits={traits} ageDecimals={ageDecimals} />
           </p>
         </div>
         <Button variant="ghost" size="sm" onClick={onClose}>
@@ -157,8 +159,8 @@ export function HistoryPanel({ studyId, row, column, traits, canRevert, onClose 
                   <time dateTime={entry.createdAt}>{formatDateTime(entry.createdAt)}</time>
                 </p>
                 <p className="mt-1 text-[15px]">
-                  <ValueText field={field} value={entry.oldValue} traits={traits} /> <span aria-hidden="true">→</span>
-                  <span className="sr-only">to</span> <ValueText field={field} value={entry.newValue} traits={traits} />
+                  <ValueText field={field} value={entry.oldValue} traits={traits} ageDecimals={ageDecimals} /> <span aria-hidden="true">→</span>
+                  <span className="sr-only">to</span> <ValueText field={field} value={entry.newValue} traits={traits} ageDecimals={ageDecimals} />
                 </p>
                 {entry.reason && <p className="mt-1 rounded-md bg-stone-50 px-2.5 py-1.5 text-sm text-stone-700">“{entry.reason}”</p>}
                 {entry.importFileName && <p className="mt-1 text-sm text-stone-500">From the import of {entry.importFileName}</p>}
@@ -188,8 +190,8 @@ export function HistoryPanel({ studyId, row, column, traits, canRevert, onClose 
         summary={
           reverting && (
             <>
-              {column.label} of <span className="italic">{row.name}</span> goes back from <ValueText field={field} value={reverting.newValue} traits={traits} /> to{" "}
-              <ValueText field={field} value={reverting.oldValue} traits={traits} />. The revert is recorded as a change of its own.
+              {column.label} of <span className="italic">{row.name}</span> goes back from <ValueText field={field} value={reverting.newValue} traits={traits} ageDecimals={ageDecimals} /> to{" "}
+              <ValueText field={field} value={reverting.oldValue} traits={traits} ageDecimals={ageDecimals} />. The revert is recorded as a change of its own.
             </>
           )
         }

@@ -20,6 +20,7 @@ import type { TaxonRow } from "@shared/schemas/taxa";
 import { timescaleUnits } from "@shared/timescale/units";
 import { qualifiedHigherTaxon } from "@shared/imports/qualifiedHigherTaxon";
 import { cx } from "../../lib/cx";
+import { sharedAgeDecimals } from "../../lib/format";
 import { useCurrentStudy } from "../../lib/currentStudy";
 import { useIntervalLookup } from "../../lib/queries/timeBins";
 import { CellEditor, INTERVAL_LIST_ID, stateListId } from "./CellEditor";
@@ -142,7 +143,7 @@ function ThreadDot({ label }: { label: string }) {
   return <span className="ml-1.5 inline-block size-2 shrink-0 rounded-full bg-caution-700" role="img" aria-label={label} title={label} />;
 }
 
-function CellContent({ column, row, onShowFinds }: { column: GridColumn; row: TaxonRow; onShowFinds: (row: TaxonRow) => void }) {
+function CellContent({ column, row, onShowFinds, ageDecimals }: { column: GridColumn; row: TaxonRow; onShowFinds: (row: TaxonRow) => void; ageDecimals: number }) {
   if (column.kind === "count") {
     const count = row[column.id];
     if (count === undefined) return <MissingMark />;
@@ -161,7 +162,7 @@ function CellContent({ column, row, onShowFinds }: { column: GridColumn; row: Ta
     );
   }
   const value = cellValue(column, row);
-  const text = displayText(column, row);
+  const text = displayText(column, row, ageDecimals);
   const threadOnValue = column.kind === "trait" && row.openThreads.traitIds.includes(column.id);
   const threadOnTaxon = column.id === "name" && row.openThreads.count > 0;
   const qualified = column.id === "higherTaxon" && typeof value === "string" ? qualifiedHigherTaxon(value) : null;
@@ -196,6 +197,8 @@ export function TaxaGrid(props: TaxaGridProps) {
   const [active, setActive] = useState<ActiveCell>({ rowIndex: 0, columnId: "name" });
   const [editing, setEditing] = useState<{ initialText: string } | null>(null);
   const focusPending = useRef(false);
+  // The two age columns write every age of the page alike: "94.00 Ma" beside "94.41 Ma", not "94 Ma".
+  const ageDecimals = useMemo(() => sharedAgeDecimals(rows.flatMap((r) => [r.fadMa, r.ladMa])), [rows]);
 
   // Selecting rows only serves a bulk edit: people who cannot edit get no checkboxes.
   const columnDefs = useMemo(
@@ -209,11 +212,11 @@ export function TaxaGrid(props: TaxaGridProps) {
             size: widthOf(gridColumn),
             enableHiding: gridColumn.id !== "name",
             meta: { grid: gridColumn },
-            cell: ({ row }) => <CellContent column={gridColumn} row={row.original} onShowFinds={onShowFinds} />,
+            cell: ({ row }) => <CellContent column={gridColumn} row={row.original} onShowFinds={onShowFinds} ageDecimals={ageDecimals} />,
           }),
         ),
       ]),
-    [columns, canEdit, onShowFinds],
+    [columns, canEdit, onShowFinds, ageDecimals],
   );
 
   const sorting: SortingState = useMemo(() => [{ id: sort.columnId, desc: sort.desc }], [sort.columnId, sort.desc]);

@@ -5,7 +5,7 @@ import { checkTraitValue, rangeProblem, readRangeCell, readTraitCell, sameValue,
 import type { IntervalLookup } from "@shared/timebins/intervalLookup";
 import type { RangeEnd, RangeEndInput, TaxonChanges, TaxonRow } from "@shared/schemas/taxa";
 import type { Trait } from "@shared/schemas/traits";
-import { formatMeasurement } from "../../lib/format";
+import { formatMa, formatMeasurement } from "../../lib/format";
 
 export type TaxonField = "name" | "higherTaxon" | "fad" | "lad" | "notes";
 
@@ -47,18 +47,26 @@ export function formatTraitValue(trait: Trait | undefined, value: unknown): stri
   return state ? state.label : `${String(value)} (not in the codebook)`;
 }
 
-/** A range end for people: "Maastrichtian (top, 66 Ma)" or "72.1 Ma". */
-export function formatRangeEnd(end: RangeEnd | { ma?: number; interval?: string | null } | null | undefined): string {
+/**
+ * A range end for people: "Maastrichtian · 66.0 Ma" or "72.1 Ma"; with decimals, written to match
+ * the other ages of its column ("94.00 Ma" beside "94.41 Ma").
+ */
+export function formatRangeEnd(end: RangeEnd | { ma?: number; interval?: string | null } | null | undefined, decimals?: number): string {
   if (!end || typeof end !== "object") return "";
-  const ma = typeof end.ma === "number" ? formatMeasurement(end.ma, "Ma") : "";
+  const ma = typeof end.ma === "number" ? formatMa(end.ma, decimals) : "";
   if (end.interval) return ma ? `${end.interval} · ${ma}` : end.interval;
   return ma;
 }
 
+/** The age of a stored range end, or null: for writing the ages of one view alike (sharedAgeDecimals). */
+export function storedAge(value: unknown): number | null {
+  return value !== null && typeof value === "object" && typeof (value as { ma?: unknown }).ma === "number" ? (value as { ma: number }).ma : null;
+}
+
 /** Any stored value of a field, as the history and conflict views show it. */
-export function formatStoredValue(field: string, value: unknown, traits: Map<string, Trait>): string {
+export function formatStoredValue(field: string, value: unknown, traits: Map<string, Trait>, ageDecimals?: number): string {
   if (isEmptyValue(value)) return "";
-  if (field === "fad" || field === "lad") return formatRangeEnd(value as RangeEnd);
+  if (field === "fad" || field === "lad") return formatRangeEnd(value as RangeEnd, ageDecimals);
   const trait = traits.get(field);
   if (trait) return formatTraitValue(trait, value);
   if (typeof value === "object") return JSON.stringify(value);
@@ -82,10 +90,11 @@ export function cellValue(column: GridColumn, row: TaxonRow): unknown {
   }
 }
 
-export function displayText(column: GridColumn, row: TaxonRow): string {
+/** A cell as people read it; ageDecimals writes the range columns' ages alike (sharedAgeDecimals of the rows shown). */
+export function displayText(column: GridColumn, row: TaxonRow, ageDecimals?: number): string {
   const value = cellValue(column, row);
   if (column.kind === "trait") return formatTraitValue(column.trait, value);
-  if (column.kind === "range") return formatRangeEnd(value as RangeEnd);
+  if (column.kind === "range") return formatRangeEnd(value as RangeEnd, ageDecimals);
   if (column.kind === "count") return typeof value === "number" ? value.toLocaleString("en-US") : "";
   return String(value ?? "");
 }

@@ -87,11 +87,11 @@ describe("words around numbers", () => {
     expect(formatP(null)).toBe("—");
   });
 
-  it("writes ages as given, without trailing zeros", () => {
-    // ICS chart v2024/12: base of the Turonian 93.9 Ma, of the Triassic 251.902 Ma.
+  it("writes ages as given, a round figure with one decimal (more in tests/unit/format/ages.test.ts)", () => {
+    // ICS chart v2024/12: base of the Turonian 93.9 Ma, of the Triassic 251.902 Ma, of the Danian 66.00 Ma.
     expect(formatMa(93.9)).toBe("93.9 Ma");
     expect(formatMa(251.902)).toBe("251.902 Ma");
-    expect(formatMa(66)).toBe("66 Ma");
+    expect(formatMa(66)).toBe("66.0 Ma");
   });
 });
 

@@ -93,7 +93,8 @@ describe("boundaryScorecard", () => {
 
   it("brevity reports the window; standing out reads the robust z against 3.5", () => {
     expect(item(card, "brevity")).toMatchObject({ status: "reported", value: 6.6 });
-    expect(item(card, "brevity").summary).toMatch(/window of 6\.60 Myr/);
+    // Written as the other windows of the Boundary screen: the Cenomanian's 6.6 Myr (ICS chart v2024/12, 100.5 - 93.9), not 6.60.
+    expect(item(card, "brevity").summary).toMatch(/window of 6\.6 Myr below/);
     expect(item(card, "standingOut")).toMatchObject({ status: "meets", value: 13.98 });
     expect(item(boundaryScorecard({ ...base, standingOut: { z: 2.1, n: 6, reason: null } }), "standingOut").status).toBe("falls short");
     const tooFew = boundaryScorecard({ ...base, standingOut: { z: null, n: 3, reason: "only 3 other stages have a rate (5 are needed)" } });

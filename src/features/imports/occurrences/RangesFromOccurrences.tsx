@@ -11,16 +11,19 @@ import { Select } from "../../../components/Select";
 import { TaxonFinds } from "../../../components/TaxonFinds";
 import { TextField } from "../../../components/TextField";
 import { errorMessage } from "../../../lib/api";
-import { formatDateTime, formatMa, pluralize } from "../../../lib/format";
+import { formatDateTime, formatMa, pluralize, sharedAgeDecimals } from "../../../lib/format";
 import { useApplyRanges, useOccurrenceUploads, usePreviewRanges, useRevertOccurrences, useRevertRanges } from "./api";
 
-const ma = (value: number | null) => (value === null ? "—" : formatMa(value));
+/** An age of the preview table, written with the table's decimals. */
+const ma = (value: number | null, decimals: number) => (value === null ? "—" : formatMa(value, decimals));
 
 /** The study's occurrence uploads, and ranges derived from their finds: preview old -> new, apply the chosen ones, revert. */
 export function RangesFromOccurrences({ studyId, role }: { studyId: string; role: StudyRole }) {
   const uploads = useOccurrenceUploads(studyId);
   const revertUpload = useRevertOccurrences(studyId);
   const preview = usePreviewRanges(studyId);
+  // Old and new ranges of the preview table written alike ("94.00 Ma" beside "94.41 Ma").
+  const ageDecimals = sharedAgeDecimals([...(preview.data?.changes ?? []).flatMap((c) => [c.oldFadMa, c.oldLadMa, c.fadMa, c.ladMa]), ...(preview.data?.newTaxa ?? []).flatMap((t) => [t.fadMa, t.ladMa])]);
   const apply = useApplyRanges(studyId);
   const revertRanges = useRevertRanges(studyId);
   const [ageMode, setAgeMode] = useState<"bounds" | "midpoint">("bounds");
@@ -140,9 +143,9 @@ export function RangesFromOccurrences({ studyId, role }: { studyId: string; role
                             {r.taxon}
                           </button>
                         </td>
-                        <td className="px-3 py-1.5 tabular-nums">{r.isNew ? "new taxon" : `${ma(r.oldFadMa)} – ${ma(r.oldLadMa)}`}</td>
+                        <td className="px-3 py-1.5 tabular-nums">{r.isNew ? "new taxon" : `${ma(r.oldFadMa, ageDecimals)} – ${ma(r.oldLadMa, ageDecimals)}`}</td>
                         <td className="px-3 py-1.5 tabular-nums">
-                          {ma(r.fadMa)} – {ma(r.ladMa)}
+                          {ma(r.fadMa, ageDecimals)} – {ma(r.ladMa, ageDecimals)}
                         </td>
                         <td className="px-3 py-1.5 tabular-nums">
                           {r.occurrences} · {r.collections}
