@@ -110,6 +110,11 @@ describe("the demo tour", () => {
       for (const trait of data.traits) expect(header.some((h) => h.includes(trait.label)), trait.label).toBe(true);
       const firstRow = await page.locator('[role="row"][aria-rowindex="2"]').innerText();
       expect(data.taxa.some((t) => firstRow.includes(t.name)), firstRow).toBe(true);
+      // The two age columns write every age alike: the generator rounds ages to hundredths, so a
+      // round one reads "94.00 Ma" beside "94.41 Ma", never "94 Ma" (shared/format/ages.ts).
+      const ages = (await page.getByRole("gridcell").allInnerTexts()).map((t) => t.trim()).filter((t) => / Ma$/.test(t));
+      expect(ages.length).toBeGreaterThan(10);
+      expect(new Set(ages.map((t) => /\.(\d+) Ma$/.exec(t)?.[1]?.length ?? 0)), ages.join(" | ")).toEqual(new Set([2]));
       await tourPicture(page, "trait-table");
 
       // The Boundary screen at the base of the Turonian, picked with the time scale picker.
@@ -156,7 +161,10 @@ describe("the demo tour", () => {
       // the genera at risk): a, b = infaunal victims and survivors; c, d = epifaunal victims and survivors.
       const habitCells = (await habitRow.locator("td").allInnerTexts()).map((t) => t.trim());
       expect(habitCells[0].split(/\s+/)[0]).toBe(crudeOddsRatio("life_habit", "infaunal", "epifaunal").toPrecision(3));
-      expect(await page.getByTestId("confounding-note-life_habit").innerText()).toContain("Infaunal");
+      const habitNote = await page.getByTestId("confounding-note-life_habit").innerText();
+      expect(habitNote).toContain("Infaunal");
+      // Two life habits are flagged in the demo; the reading they share is said once, after both.
+      expect(habitNote.split("a shared cause, not necessarily an effect of the trait").length - 1, habitNote).toBe(1);
 
       for (const dismiss of await page.getByRole("button", { name: "Dismiss" }).all()) await dismiss.click();
       await forest.evaluate((el) => el.scrollIntoView({ block: "start" }));
