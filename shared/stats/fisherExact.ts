@@ -53,8 +53,8 @@ export interface FisherExactResult {
 
 const MAX_2X2_TOTAL = 10_000_000;
 const DEFAULT_EXACT_WORK_LIMIT = 2_000_000;
-/** Nodes the r x 2 network may visit before the test falls back to Monte Carlo. */
-const RX2_NODE_LIMIT = 300_000;
+/** Work (paths carried, completions listed) the r x 2 network may do before "auto" falls back to Monte Carlo: about a second. */
+const RX2_WORK_LIMIT = 6_000_000;
 const DEFAULT_REPLICATES = 100_000;
 const DEFAULT_SEED = 1;
 
@@ -158,8 +158,10 @@ function fisherExactRxC(table: number[][], opts: FisherExactOptions): FisherExac
     return { pValue: 1, logPValue: 0, alternative: "two-sided", method: "exact-rxc" };
   }
   if (rxcMethod !== "monte-carlo") {
-    // r x 2 and 2 x c tables: the network over rows reaches far larger tables exactly.
-    const twoColumn = compact.rowTotals.length === 2 || compact.columnTotals.length === 2 ? fisherRx2(compact, rxcMethod === "exact" ? 20 * RX2_NODE_LIMIT : RX2_NODE_LIMIT) : null;
+    // r x 2 and 2 x c tables: the network over rows reaches far larger tables exactly, most of all
+    // tables of many rows of unequal size; few large rows suit the enumeration over columns better,
+    // so even "exact" gives the network only its usual budget before trying that.
+    const twoColumn = compact.rowTotals.length === 2 || compact.columnTotals.length === 2 ? fisherRx2(compact, RX2_WORK_LIMIT) : null;
     if (twoColumn) return { pValue: Math.exp(twoColumn.logPValue), logPValue: twoColumn.logPValue, alternative: "two-sided", method: "exact-rxc" };
     // Over 20,000 taxa in a table larger than 2 x 2 the enumeration cannot finish within its
     // budget (its networks grow with the margins), so "auto" does not spend the budget finding out.

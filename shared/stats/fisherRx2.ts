@@ -1,56 +1,150 @@
 import { LogSumAccumulator, logFactorialTable } from "./distributions";
 import type { CompactTable } from "./freemanHalton";
+import { sortAndMergePairs } from "./pairedSort";
+import { countAtMost } from "./sortedSearch";
 
 /** Two tables count as equally likely when their probabilities differ by less than this factor (as R's fisher.test). */
 const LOG_RELATIVE_TOLERANCE = Math.log1p(1e-7);
+/** Partial log-weights closer than this are the same sum reached in another order (rounding only). */
+const MERGE_TOLERANCE = 1e-9;
+/** Completions of the last rows kept as sorted lists, at most. */
+const COMPLETION_LIMIT = 4_000_000;
+
+/** Scores (ascending) of one node's paths with how many paths reach each. */
+interface Paths {
+  scores: Float64Array;
+  counts: Float64Array;
+}
 
 /**
  * Exact two-sided Fisher-Freeman-Halton p-value of an r x 2 (or 2 x c) table by a network
- * algorithm (Mehta & Patel 1983): with the margins fixed, a table is a path through the rows
- * choosing how many of the first column's count fall in each, its probability is
- * prod C(n_i, x_i) / C(N, V), and the log-probability is a sum over rows. At each node (rows done,
- * count placed so far) the largest and smallest log-probability the remaining rows can add come
- * from a dynamic programme; when even the largest keeps every completion at or below the
- * observed table's probability, all completions count at once (their total is C(N_rest, V_rest)
- * by Vandermonde's identity), and when even the smallest lifts them all above it, none does.
- * Returns null when the bounds or the walk would take more than `nodeLimit` steps (the caller then
- * tries the general enumeration or simulates).
+ * algorithm (Mehta & Patel 1983, JASA 78:427): with the margins fixed, a table is a path through
+ * the rows choosing how many of the first column's count V fall in each; its probability is
+ * prod C(n_i, x_i) / C(N, V), so its log-probability is a sum over rows (a "score").
+ *
+ * Rows are taken smallest first. The paths through the first rows are carried level by level,
+ * merged where two paths reach the same node (rows done, count still to place) with the same
+ * score, and settled early by bounds: at each node the largest and smallest score the remaining
+ * rows can add come from a dynamic programme, so when even the largest keeps every completion at
+ * or below the observed table's score all completions count at once (their total is
+ * C(N_rest, V_rest) by Vandermonde's identity), and when even the smallest lifts them all above it
+ * none does. The largest rows at the end are not walked path by path: their completions are
+ * enumerated once per count still to place, sorted, and summed cumulatively, so each path that
+ * reaches them is finished by one binary search (meeting in the middle).
+ *
+ * Returns null when the work (paths carried plus completions listed) would pass `workLimit`;
+ * the caller then simulates. `completionLimit` bounds the completions listed (tests lower it to
+ * make the walk do more of the work).
  *
  * @example
  * fisherRx2({ cells: [[3, 1], [1, 3]], rowTotals: [4, 4], columnTotals: [4, 4], total: 8 }) // => { logPValue: ln(34/70) }
  */
-export function fisherRx2(table: CompactTable, nodeLimit = 5_000_000): { logPValue: number; nodes: number } | null {
-  const columns = table.columnTotals.length;
-  const rows = table.rowTotals.length;
-  let counts: number[];
-  let sizes: number[];
-  if (columns === 2) {
-    counts = table.cells.map((row) => row[0]);
-    sizes = table.rowTotals;
-  } else if (rows === 2) {
-    counts = table.cells[0];
-    sizes = table.columnTotals;
-  } else {
-    return null;
-  }
+export function fisherRx2(
+  table: CompactTable,
+  workLimit = 5_000_000,
+  completionLimit = COMPLETION_LIMIT,
+): { logPValue: number; nodes: number } | null {
+  const rowsOf = twoColumnRows(table);
+  if (!rowsOf) return null;
+  // Smallest rows first: few choices each while the paths are many.
+  const order = rowsOf.sizes.map((_, i) => i).sort((a, b) => rowsOf.sizes[a] - rowsOf.sizes[b]);
+  const sizes = order.map((i) => rowsOf.sizes[i]);
+  const counts = order.map((i) => rowsOf.counts[i]);
   const r = sizes.length;
   const placed = counts.reduce((a, v) => a + v, 0);
   const N = table.total;
   const lf = logFactorialTable(N);
   const logChoose = (n: number, k: number): number => (k < 0 || k > n ? -Infinity : lf[n] - lf[k] - lf[n - k]);
-  // The bounds' dynamic programme costs about sum_k (count placed) x (row size): give up early when
-  // that alone exceeds the budget (large tables go to the caller's other methods).
-  let programme = 0;
-  for (const n of sizes) programme += (Math.min(placed, N) + 1) * (n + 1);
-  if (programme > nodeLimit) return null;
-  // Most and least log-weight the rows k.. can add when they hold `need` of the first column.
-  const max: Float64Array[] = Array.from({ length: r + 1 }, () => new Float64Array(placed + 1).fill(-Infinity));
-  const min: Float64Array[] = Array.from({ length: r + 1 }, () => new Float64Array(placed + 1).fill(Infinity));
-  max[r][0] = 0;
-  min[r][0] = 0;
   const logC: Float64Array[] = sizes.map((n) => Float64Array.from({ length: n + 1 }, (_, x) => logChoose(n, x)));
   const rest = new Array<number>(r + 1).fill(0);
   for (let k = r - 1; k >= 0; k--) rest[k] = rest[k + 1] + sizes[k];
+
+  // The bounds' dynamic programme costs about sum_k (count placed) x (row size).
+  let work = 0;
+  for (const n of sizes) work += (placed + 1) * (n + 1);
+  if (work > workLimit) return null;
+  const { max, min } = completionBounds(sizes, logC, rest, placed);
+
+  let observed = 0;
+  for (let k = 0; k < r; k++) observed += logC[k][counts[k]];
+  const cutoff = observed + LOG_RELATIVE_TOLERANCE;
+  const logTotal = logChoose(N, placed);
+  const terms = new LogSumAccumulator();
+
+  // The last rows, whose completions are listed rather than walked.
+  let back = r;
+  let completions = 1;
+  while (back > 0 && completions * (sizes[back - 1] + 1) <= Math.min(completionLimit, workLimit)) {
+    completions *= sizes[back - 1] + 1;
+    back--;
+  }
+  work += completions;
+  if (work > workLimit) return null;
+  const tails = completionLists(sizes, logC, back, placed);
+
+  // The paths at each node are kept sorted by score with ln prefix sums of their weights, so for
+  // each choice of x the paths all of whose completions count are one prefix (summed at once),
+  // those none of whose completions count one suffix (dropped), and only the paths in between move on.
+  let level = new Map<number, Paths>([[placed, { scores: Float64Array.of(0), counts: Float64Array.of(1) }]]);
+  for (let k = 0; k < back; k++) {
+    const grow = new Map<number, { scores: number[]; counts: number[] }>();
+    for (const [need, paths] of level) {
+      const logPrefix = logPrefixSums(paths);
+      for (let x = Math.max(0, need - rest[k + 1]); x <= Math.min(sizes[k], need); x++) {
+        const child = need - x;
+        if (!Number.isFinite(max[k + 1][child])) continue;
+        const step = logC[k][x];
+        const allCount = countAtMost(paths.scores, cutoff - step - max[k + 1][child]);
+        if (allCount > 0) terms.add(logPrefix[allCount - 1] + step + logChoose(rest[k + 1], child) - logTotal);
+        const openEnd = countAtMost(paths.scores, cutoff - step - min[k + 1][child]);
+        if (openEnd <= allCount) continue;
+        let into = grow.get(child);
+        if (!into) grow.set(child, (into = { scores: [], counts: [] }));
+        for (let i = allCount; i < openEnd; i++) {
+          into.scores.push(paths.scores[i] + step);
+          into.counts.push(paths.counts[i]);
+        }
+        work += 1 + openEnd - allCount;
+        if (work > workLimit) return null;
+      }
+    }
+    level = new Map();
+    for (const [need, child] of grow) {
+      const scores = Float64Array.from(child.scores);
+      const pathCounts = Float64Array.from(child.counts);
+      const kept = sortAndMergePairs(scores, pathCounts, MERGE_TOLERANCE);
+      level.set(need, { scores: scores.subarray(0, kept), counts: pathCounts.subarray(0, kept) });
+    }
+  }
+
+  // Paths reaching the listed rows: the completions at or below what is left of the cutoff count.
+  for (const [need, paths] of level) {
+    const tail = tails[need];
+    if (!tail) continue;
+    for (let i = 0; i < paths.scores.length; i++) {
+      const counted = countAtMost(tail.scores, cutoff - paths.scores[i]);
+      if (counted === 0) continue;
+      terms.add(Math.log(paths.counts[i]) + paths.scores[i] + tail.logCumulative[counted - 1] - logTotal);
+    }
+  }
+  const logPValue = terms.value();
+  return { logPValue: logPValue === -Infinity ? -Infinity : Math.min(0, logPValue), nodes: work };
+}
+
+/** The first column's counts and the row sizes of an r x 2 table (or of a 2 x c table read sideways). */
+function twoColumnRows(table: CompactTable): { counts: number[]; sizes: number[] } | null {
+  if (table.columnTotals.length === 2) return { counts: table.cells.map((row) => row[0]), sizes: table.rowTotals };
+  if (table.rowTotals.length === 2) return { counts: table.cells[0], sizes: table.columnTotals };
+  return null;
+}
+
+/** Most and least score the rows k.. can add when they hold `need` of the first column (-Infinity/Infinity: impossible). */
+function completionBounds(sizes: number[], logC: Float64Array[], rest: number[], placed: number): { max: Float64Array[]; min: Float64Array[] } {
+  const r = sizes.length;
+  const max = Array.from({ length: r + 1 }, () => new Float64Array(placed + 1).fill(-Infinity));
+  const min = Array.from({ length: r + 1 }, () => new Float64Array(placed + 1).fill(Infinity));
+  max[r][0] = 0;
+  min[r][0] = 0;
   for (let k = r - 1; k >= 0; k--) {
     for (let need = 0; need <= Math.min(placed, rest[k]); need++) {
       let hi = -Infinity;
@@ -65,34 +159,50 @@ export function fisherRx2(table: CompactTable, nodeLimit = 5_000_000): { logPVal
       min[k][need] = lo;
     }
   }
-  let observed = 0;
-  for (let k = 0; k < r; k++) observed += logC[k][counts[k]];
-  const cutoff = observed + LOG_RELATIVE_TOLERANCE;
-  const logTotal = logChoose(N, placed);
-  const terms = new LogSumAccumulator();
-  let any = false;
-  let nodes = 0;
-  let aborted = false;
-  const visit = (k: number, need: number, so: number): void => {
-    if (aborted) return;
-    if (++nodes > nodeLimit) {
-      aborted = true;
-      return;
-    }
-    if (!Number.isFinite(max[k][need])) return;
-    if (so + max[k][need] <= cutoff) {
-      terms.add(so + logChoose(rest[k], need) - logTotal);
-      any = true;
-      return;
-    }
-    if (so + min[k][need] > cutoff) return;
-    const from = Math.max(0, need - rest[k + 1]);
-    const to = Math.min(sizes[k], need);
-    nodes += to - from;
-    for (let x = from; x <= to; x++) visit(k + 1, need - x, so + logC[k][x]);
-  };
-  visit(0, placed, 0);
-  if (aborted) return null;
-  if (!any) return { logPValue: -Infinity, nodes };
-  return { logPValue: Math.min(0, terms.value()), nodes };
+  return { max, min };
+}
+
+/**
+ * For each count still to place, the scores the rows from `back` on can add (ascending, merged)
+ * with ln of the cumulative sums of the completions' weights (in logs, so the least likely
+ * completions keep their digits when only they count).
+ */
+function completionLists(
+  sizes: number[],
+  logC: Float64Array[],
+  back: number,
+  placed: number,
+): Array<{ scores: Float64Array; logCumulative: Float64Array } | undefined> {
+  let lists: Paths[] = [{ scores: Float64Array.of(0), counts: Float64Array.of(1) }];
+  for (let k = sizes.length - 1; k >= back; k--) {
+    const grown: Array<{ scores: number[]; counts: number[] }> = [];
+    lists.forEach((list, need) => {
+      for (let x = 0; x <= sizes[k] && need + x <= placed; x++) {
+        const into = (grown[need + x] ??= { scores: [], counts: [] });
+        for (let i = 0; i < list.scores.length; i++) {
+          into.scores.push(list.scores[i] + logC[k][x]);
+          into.counts.push(list.counts[i]);
+        }
+      }
+    });
+    lists = Array.from(grown, (g) => {
+      const scores = Float64Array.from(g?.scores ?? []);
+      const pathCounts = Float64Array.from(g?.counts ?? []);
+      const kept = sortAndMergePairs(scores, pathCounts, MERGE_TOLERANCE);
+      return { scores: scores.subarray(0, kept), counts: pathCounts.subarray(0, kept) };
+    });
+  }
+  return lists.map((list) => (list.scores.length === 0 ? undefined : { scores: list.scores, logCumulative: logPrefixSums(list) }));
+}
+
+/** ln of the running sums of count * exp(score) along the (ascending) paths. */
+function logPrefixSums(paths: Paths): Float64Array {
+  const logPrefix = new Float64Array(paths.scores.length);
+  let sum = -Infinity;
+  for (let i = 0; i < paths.scores.length; i++) {
+    const term = Math.log(paths.counts[i]) + paths.scores[i];
+    sum = sum >= term ? sum + Math.log1p(Math.exp(term - sum)) : term + Math.log1p(Math.exp(sum - term));
+    logPrefix[i] = sum;
+  }
+  return logPrefix;
 }

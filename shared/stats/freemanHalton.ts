@@ -7,6 +7,7 @@
 
 import { LogSumAccumulator, logFactorialTable } from "./distributions";
 import { createUniformSource, type UniformSource } from "./random";
+import { sortAndMergePairs } from "./pairedSort";
 import { countAtMost } from "./sortedSearch";
 
 /** Two tables count as equally likely when their probabilities differ by less than this factor. */
@@ -97,69 +98,8 @@ interface NetworkNode extends NodeBounds {
 function sortAndMerge(node: NetworkNode): { pasts: Float64Array; counts: Float64Array } {
   const pasts = Float64Array.from(node.pasts);
   const counts = Float64Array.from(node.counts);
-  sortPairs(pasts, counts, 0, pasts.length - 1);
-  let kept = 0;
-  for (let i = 0; i < pasts.length; i++) {
-    if (kept > 0 && pasts[i] - pasts[kept - 1] < 1e-9) {
-      counts[kept - 1] += counts[i];
-    } else {
-      pasts[kept] = pasts[i];
-      counts[kept] = counts[i];
-      kept++;
-    }
-  }
+  const kept = sortAndMergePairs(pasts, counts, 1e-9);
   return { pasts: pasts.subarray(0, kept), counts: counts.subarray(0, kept) };
-}
-
-/** In-place quicksort of keys[lo..hi] carrying values along (median of three; insertion sort for short runs). */
-function sortPairs(keys: Float64Array, values: Float64Array, lo: number, hi: number): void {
-  while (hi - lo > 16) {
-    const mid = (lo + hi) >> 1;
-    if (keys[mid] < keys[lo]) swap(keys, values, mid, lo);
-    if (keys[hi] < keys[lo]) swap(keys, values, hi, lo);
-    if (keys[hi] < keys[mid]) swap(keys, values, hi, mid);
-    const pivot = keys[mid];
-    let i = lo;
-    let j = hi;
-    while (i <= j) {
-      while (keys[i] < pivot) i++;
-      while (keys[j] > pivot) j--;
-      if (i <= j) {
-        swap(keys, values, i, j);
-        i++;
-        j--;
-      }
-    }
-    // Recurse into the smaller part and loop on the larger, so the stack stays logarithmic.
-    if (j - lo < hi - i) {
-      sortPairs(keys, values, lo, j);
-      lo = i;
-    } else {
-      sortPairs(keys, values, i, hi);
-      hi = j;
-    }
-  }
-  for (let i = lo + 1; i <= hi; i++) {
-    const key = keys[i];
-    const value = values[i];
-    let at = i;
-    while (at > lo && keys[at - 1] > key) {
-      keys[at] = keys[at - 1];
-      values[at] = values[at - 1];
-      at--;
-    }
-    keys[at] = key;
-    values[at] = value;
-  }
-}
-
-function swap(keys: Float64Array, values: Float64Array, a: number, b: number): void {
-  const key = keys[a];
-  keys[a] = keys[b];
-  keys[b] = key;
-  const value = values[a];
-  values[a] = values[b];
-  values[b] = value;
 }
 
 /**
