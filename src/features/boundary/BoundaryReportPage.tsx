@@ -10,7 +10,7 @@ import { formatDateTime } from "../../lib/format";
 import { paths } from "../../lib/paths";
 import { useDocumentTitle } from "../../lib/useDocumentTitle";
 import { useStudy } from "../../lib/queries/study";
-import { agesWriter, RANK_WORD } from "../../components/timescale/ages";
+import { formatMa, formatMyr, RANK_WORD } from "../../components/timescale/ages";
 import { useOutcomes, useTurnover, type OutcomesRequest } from "./api";
 import { BoundaryScorecard } from "./BoundaryScorecard";
 import { readBoundaryView } from "./boundaryParams";
@@ -99,16 +99,15 @@ function Report({
   unitName: string | null;
 }) {
   const unit = outcomes.boundaryUnits.find((u) => u.name === unitName) ?? outcomes.boundaryUnits[outcomes.boundaryUnits.length - 1];
-  const ages = agesWriter([outcomes.boundary, outcomes.window]);
   return (
     <article className="space-y-8" data-testid="boundary-report">
       <header className="border-b border-stone-200 pb-6">
         <p className="text-sm font-semibold tracking-wide text-accent-700 uppercase">Stratasieve · boundary report</p>
         <h1 className="mt-2 text-3xl font-semibold tracking-tight text-stone-900">
-          {unit ? `Base of the ${unit.label} ${RANK_WORD[unit.rank]}, ${ages.ma(outcomes.boundary)}` : `Boundary at ${ages.ma(outcomes.boundary)}`}
+          {unit ? `Base of the ${unit.label} ${RANK_WORD[unit.rank]}, ${formatMa(outcomes.boundary)}` : `Boundary at ${formatMa(outcomes.boundary)}`}
         </h1>
         <p className="mt-2 text-[15px] text-stone-600">
-          Study: {study.name} · window {ages.myr(outcomes.window)} · time scale v{outcomes.timescaleVersion} · printed {formatDateTime(new Date())}
+          Study: {study.name} · window {formatMyr(outcomes.window)} · time scale v{outcomes.timescaleVersion} · printed {formatDateTime(new Date())}
         </p>
       </header>
       <OutcomeSummary result={outcomes} refreshing={false} />

@@ -8,7 +8,7 @@ import { cx } from "../../lib/cx";
 import { LoadingState } from "../../components/LoadingState";
 import { formatCount, pluralize } from "../../lib/format";
 import { useRates } from "./api";
-import { agesWriter, type AgeWriter } from "../../components/timescale/ages";
+import { formatAgeNumber, formatMa } from "../../components/timescale/ages";
 import { formatPercent, formatRate, formatWholePercent } from "./words";
 import { CHART_FONT, CHART_THEME } from "../../components/chartTheme";
 
@@ -68,8 +68,6 @@ function RatesBody({ data, boundary, measure, onMeasure }: { data: RatesResult; 
   const spanOld = stages[0].base;
   const spanYoung = stages[stages.length - 1].top;
   const boundaryOutside = boundary !== null && !crisis;
-  // The chart's labels, tooltips and table write every age alike (the boundary as the chart gives it).
-  const ages = agesWriter([boundary, ...stages.flatMap((s) => [s.base, s.top])]);
   const chartData: StageDatum[] = stages.map((s) => (s[measure] === null ? { stage: s.label } : { stage: s.label, value: s[measure] as number }));
   const measureInfo = MEASURES.find((m) => m.value === measure)!;
   const missingBars = stages.filter((s) => s[measure] === null).length;
@@ -123,11 +121,11 @@ function RatesBody({ data, boundary, measure, onMeasure }: { data: RatesResult; 
             "axes",
             "bars",
             (layer: BarCustomLayerProps<StageDatum>) => (measure === "proportionalExtinction" ? <ThresholdMark layer={layer} proportion={data.threshold.proportion} /> : null),
-            (layer: BarCustomLayerProps<StageDatum>) => (boundary !== null && crisis ? <BoundaryMark layer={layer} stages={stages} crisis={crisis} boundary={boundary} ages={ages} /> : null),
+            (layer: BarCustomLayerProps<StageDatum>) => (boundary !== null && crisis ? <BoundaryMark layer={layer} stages={stages} crisis={crisis} boundary={boundary} /> : null),
           ]}
-          tooltip={(props: BarTooltipProps<StageDatum>) => <StageTooltip stage={stages[props.index]} measure={measure} ages={ages} />}
+          tooltip={(props: BarTooltipProps<StageDatum>) => <StageTooltip stage={stages[props.index]} measure={measure} />}
           role="img"
-          ariaLabel={`${measureInfo.label} per stage, ${stages[0].label} to ${stages[stages.length - 1].label}${crisis ? `; boundary at ${ages.ma(boundary!)}, closing the ${crisis.label}` : ""}`}
+          ariaLabel={`${measureInfo.label} per stage, ${stages[0].label} to ${stages[stages.length - 1].label}${crisis ? `; boundary at ${formatMa(boundary!)}, closing the ${crisis.label}` : ""}`}
           ariaDescribedBy={helpId}
         />
       </div>
@@ -152,7 +150,7 @@ function RatesBody({ data, boundary, measure, onMeasure }: { data: RatesResult; 
         {boundary === null && <p>Choose a boundary above to mark it on the chart.</p>}
         {boundaryOutside && (
           <p>
-            The boundary at {ages.ma(boundary!)} lies outside the stages the study’s taxa span ({ages.ma(spanOld)} to {ages.ma(spanYoung)}).
+            The boundary at {formatMa(boundary!)} lies outside the stages the study’s taxa span ({formatMa(spanOld)} to {formatMa(spanYoung)}).
           </p>
         )}
         <p>
@@ -169,14 +167,14 @@ function RatesBody({ data, boundary, measure, onMeasure }: { data: RatesResult; 
 
       <details className="mt-4">
         <summary className="cursor-pointer text-sm font-medium text-accent-700 hover:text-accent-900">Numbers per stage</summary>
-        <StageTable stages={stages} crisis={crisis} ages={ages} />
+        <StageTable stages={stages} crisis={crisis} />
       </details>
     </>
   );
 }
 
 /** The chosen boundary as a vertical line: in the gap after the stage it closes, or inside a stage, to scale, for a custom age. */
-function BoundaryMark({ layer, stages, crisis, boundary, ages }: { layer: BarCustomLayerProps<StageDatum>; stages: StageRates[]; crisis: StageRates; boundary: number; ages: AgeWriter }) {
+function BoundaryMark({ layer, stages, crisis, boundary }: { layer: BarCustomLayerProps<StageDatum>; stages: StageRates[]; crisis: StageRates; boundary: number }) {
   const x = layer.xScale as unknown as { (stage: string): number; bandwidth(): number };
   const band = x.bandwidth();
   const next = stages[stages.indexOf(crisis) + 1];
@@ -193,7 +191,7 @@ function BoundaryMark({ layer, stages, crisis, boundary, ages }: { layer: BarCus
         fill={COLOR.boundary}
         style={{ fontFamily: CHART_FONT, fontSize: 12, fontWeight: 600 }}
       >
-        Boundary {ages.ma(boundary)}
+        Boundary {formatMa(boundary)}
       </text>
     </g>
   );
@@ -220,20 +218,20 @@ function ThresholdMark({ layer, proportion }: { layer: BarCustomLayerProps<Stage
   );
 }
 
-function StageTooltip({ stage, measure, ages }: { stage: StageRates; measure: Measure; ages: AgeWriter }) {
+function StageTooltip({ stage, measure }: { stage: StageRates; measure: Measure }) {
   const value = stage[measure];
   return (
     <div className="rounded-lg border border-stone-200 bg-white px-3 py-2 text-sm shadow-md">
       <p className="font-semibold text-stone-900">{stage.label}</p>
       <p className="text-stone-600 tabular-nums">
-        {ages.number(stage.base)}–{ages.ma(stage.top)} · {pluralize(stage.taxonCount, "taxon", "taxa")}
+        {formatAgeNumber(stage.base)}–{formatMa(stage.top)} · {pluralize(stage.taxonCount, "taxon", "taxa")}
       </p>
       <p className="mt-1 text-stone-900 tabular-nums">{value === null ? "Undefined" : formatValue(measure, value)}</p>
     </div>
   );
 }
 
-function StageTable({ stages, crisis, ages }: { stages: StageRates[]; crisis: StageRates | undefined; ages: AgeWriter }) {
+function StageTable({ stages, crisis }: { stages: StageRates[]; crisis: StageRates | undefined }) {
   const cell = "px-3 py-1.5 text-right tabular-nums";
   const show = (v: number | null, f: (n: number) => string) => (v === null ? "—" : f(v));
   return (
@@ -278,7 +276,7 @@ function StageTable({ stages, crisis, ages }: { stages: StageRates[]; crisis: St
                 {s.label}
               </th>
               <td className={cell}>
-                {ages.number(s.base)}–{ages.number(s.top)}
+                {formatAgeNumber(s.base)}–{formatAgeNumber(s.top)}
               </td>
               <td className={cell}>{formatCount(s.taxonCount)}</td>
               <td className={cell}>{formatCount(s.nbt)}</td>

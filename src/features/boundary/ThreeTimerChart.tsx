@@ -8,7 +8,7 @@ import { Caution } from "../../components/Caution";
 import { EmptyState } from "../../components/EmptyState";
 import { ErrorState } from "../../components/ErrorState";
 import { LoadingState } from "../../components/LoadingState";
-import { agesWriter, type AgeWriter } from "../../components/timescale/ages";
+import { formatAgeNumber, formatMa } from "../../components/timescale/ages";
 import { cx } from "../../lib/cx";
 import { formatCount, pluralize } from "../../lib/format";
 import { paths } from "../../lib/paths";
@@ -79,8 +79,6 @@ export function ThreeTimerChart({ studyId, boundary }: { studyId: string; bounda
 function ThreeTimerBody({ data, rates, ratesFailed, boundary }: { data: ThreeTimer; rates: RatesResult | null; ratesFailed: boolean; boundary: number | null }) {
   const helpId = useId();
   const stages = data.stages;
-  // The chart's labels, tooltips and table write every age alike (the boundary as the chart gives it).
-  const ages = agesWriter([boundary, ...stages.flatMap((s) => [s.baseMa, s.topMa])]);
   const crosser = new Map((rates?.stages ?? []).map((s) => [s.name, s]));
   const rateData: RateDatum[] = stages.map((s) => {
     const d: RateDatum = { stage: s.label };
@@ -100,7 +98,7 @@ function ThreeTimerBody({ data, rates, ratesFailed, boundary }: { data: ThreeTim
   const rotate = stages.length > 8 ? -40 : 0;
   const boundaryLayer = (layer: BarCustomLayerProps<RateDatum> | BarCustomLayerProps<CompletenessDatum>) =>
     boundaryIndex >= 0 && boundaryIndex < stages.length - 1 ? (
-      <BoundaryLine layer={layer} before={stages[boundaryIndex]!.label} after={stages[boundaryIndex + 1]!.label} boundary={boundary!} ages={ages} />
+      <BoundaryLine layer={layer} before={stages[boundaryIndex]!.label} after={stages[boundaryIndex + 1]!.label} boundary={boundary!} />
     ) : null;
 
   return (
@@ -125,7 +123,7 @@ function ThreeTimerBody({ data, rates, ratesFailed, boundary }: { data: ThreeTim
               axisBottom={{ tickSize: 4, tickPadding: 6, tickRotation: rotate }}
               axisLeft={{ tickSize: 4, tickPadding: 6, format: (v: number) => formatRate(v), legend: "Per-capita rate per stage (ln units)", legendPosition: "middle", legendOffset: -54 }}
               layers={["grid", "axes", "bars", boundaryLayer as never]}
-              tooltip={(props: BarTooltipProps<RateDatum>) => <StageTooltip stage={stages[props.index]!} series={SERIES.find((s) => s.key === props.id)!.label} value={props.value ?? null} ages={ages} />}
+              tooltip={(props: BarTooltipProps<RateDatum>) => <StageTooltip stage={stages[props.index]!} series={SERIES.find((s) => s.key === props.id)!.label} value={props.value ?? null} />}
               role="img"
               ariaLabel={`Three-timer extinction and origination and boundary-crosser extinction per stage, ${stages[0]!.label} to ${stages[stages.length - 1]!.label}`}
               ariaDescribedBy={helpId}
@@ -169,7 +167,7 @@ function ThreeTimerBody({ data, rates, ratesFailed, boundary }: { data: ThreeTim
             axisBottom={{ tickSize: 4, tickPadding: 6, tickRotation: rotate }}
             axisLeft={{ tickSize: 4, tickPadding: 6, tickValues: [0, 0.25, 0.5, 0.75, 1], legend: "Completeness (0 to 1)", legendPosition: "middle", legendOffset: -54 }}
             layers={["grid", "axes", "bars", (layer: BarCustomLayerProps<CompletenessDatum>) => <LowLine layer={layer} />, boundaryLayer as never]}
-            tooltip={(props: BarTooltipProps<CompletenessDatum>) => <StageTooltip stage={stages[props.index]!} series="Sampling completeness" value={props.value ?? null} ages={ages} />}
+            tooltip={(props: BarTooltipProps<CompletenessDatum>) => <StageTooltip stage={stages[props.index]!} series="Sampling completeness" value={props.value ?? null} />}
             role="img"
             ariaLabel={`Sampling completeness per stage, ${stages[0]!.label} to ${stages[stages.length - 1]!.label}; ${poorlySampled.length} below ${LOW_COMPLETENESS}`}
             ariaDescribedBy={helpId}
@@ -199,21 +197,21 @@ function ThreeTimerBody({ data, rates, ratesFailed, boundary }: { data: ThreeTim
 
       <details>
         <summary className="cursor-pointer text-sm font-medium text-accent-700 hover:text-accent-900">Numbers behind the charts</summary>
-        <NumbersTable stages={stages} crosserQ={(s) => crosser.get(s.bin)?.q ?? null} boundaryIndex={boundaryIndex} ages={ages} />
+        <NumbersTable stages={stages} crosserQ={(s) => crosser.get(s.bin)?.q ?? null} boundaryIndex={boundaryIndex} />
       </details>
     </div>
   );
 }
 
 /** The boundary as a vertical line in the gap between the stage it closes and the next. */
-function BoundaryLine({ layer, before, after, boundary, ages }: { layer: { xScale: unknown; innerHeight: number }; before: string; after: string; boundary: number; ages: AgeWriter }) {
+function BoundaryLine({ layer, before, after, boundary }: { layer: { xScale: unknown; innerHeight: number }; before: string; after: string; boundary: number }) {
   const x = layer.xScale as { (stage: string): number; bandwidth(): number };
   const position = (x(before) + x.bandwidth() + x(after)) / 2;
   return (
     <g aria-hidden="true">
       <line x1={position} x2={position} y1={-8} y2={layer.innerHeight} stroke={COLOR.boundary} strokeWidth={2} />
       <text x={position + 4} y={-10} fill={COLOR.boundary} style={{ fontFamily: CHART_FONT, fontSize: 12, fontWeight: 600 }}>
-        Boundary {ages.ma(boundary)}
+        Boundary {formatMa(boundary)}
       </text>
     </g>
   );
@@ -231,12 +229,12 @@ function LowLine({ layer }: { layer: BarCustomLayerProps<CompletenessDatum> }) {
   );
 }
 
-function StageTooltip({ stage, series, value, ages }: { stage: ThreeTimerRowDto; series: string; value: number | null; ages: AgeWriter }) {
+function StageTooltip({ stage, series, value }: { stage: ThreeTimerRowDto; series: string; value: number | null }) {
   return (
     <div className="rounded-lg border border-stone-200 bg-white px-3 py-2 text-sm shadow-md">
       <p className="font-semibold text-stone-900">{stage.label}</p>
       <p className="text-stone-600 tabular-nums">
-        {ages.number(stage.baseMa)}–{ages.ma(stage.topMa)} · {pluralize(stage.occurrences, "find")}
+        {formatAgeNumber(stage.baseMa)}–{formatMa(stage.topMa)} · {pluralize(stage.occurrences, "find")}
       </p>
       <p className="mt-1 text-stone-900 tabular-nums">
         {series}: {value === null ? "undefined" : formatRate(value)}
@@ -245,7 +243,7 @@ function StageTooltip({ stage, series, value, ages }: { stage: ThreeTimerRowDto;
   );
 }
 
-function NumbersTable({ stages, crosserQ, boundaryIndex, ages }: { stages: ThreeTimerRowDto[]; crosserQ: (s: ThreeTimerRowDto) => number | null; boundaryIndex: number; ages: AgeWriter }) {
+function NumbersTable({ stages, crosserQ, boundaryIndex }: { stages: ThreeTimerRowDto[]; crosserQ: (s: ThreeTimerRowDto) => number | null; boundaryIndex: number }) {
   const cell = "px-3 py-1.5 text-right tabular-nums";
   const show = (v: number | null, digits = 3) => (v === null ? "—" : v.toFixed(digits));
   const headings: Array<[string, string]> = [
@@ -284,7 +282,7 @@ function NumbersTable({ stages, crosserQ, boundaryIndex, ages }: { stages: Three
                 {s.label}
               </th>
               <td className={cx(cell, "whitespace-nowrap")}>
-                {ages.number(s.baseMa)}–{ages.number(s.topMa)}
+                {formatAgeNumber(s.baseMa)}–{formatAgeNumber(s.topMa)}
               </td>
               <td className={cell}>{formatCount(s.occurrences)}</td>
               <td className={cell}>{formatCount(s.sampled)}</td>

@@ -10,7 +10,7 @@ import { LoadingState } from "../../components/LoadingState";
 import { Select } from "../../components/Select";
 import { cx } from "../../lib/cx";
 import { formatCount, pluralize } from "../../lib/format";
-import { agesWriter, type AgeWriter } from "../../components/timescale/ages";
+import { formatAgeNumber, formatMa } from "../../components/timescale/ages";
 import type { useTurnover } from "./api";
 import { formatRate } from "./words";
 import { CHART_FONT, CHART_THEME } from "../../components/chartTheme";
@@ -91,13 +91,7 @@ export function TurnoverSection({
 }
 
 /** The boundary as a vertical line between the stage it closes and the next, on a point scale of stage labels. */
-/** Every age of the turnover charts and their table alike (the boundary as the chart gives it). */
-function turnoverAges(stages: ReadonlyArray<{ base: number; top: number }>, boundary: number): AgeWriter {
-  return agesWriter([boundary, ...stages.flatMap((s) => [s.base, s.top])]);
-}
-
 function boundaryLayer(stages: TurnoverStage[], boundary: number, withLabel = true) {
-  const ages = turnoverAges(stages, boundary);
   return function BoundaryLine(layer: LineCustomSvgLayerProps<Series>) {
     const crisisIndex = stages.findIndex((s) => s.crisis);
     if (crisisIndex < 0) return null;
@@ -117,7 +111,7 @@ function boundaryLayer(stages: TurnoverStage[], boundary: number, withLabel = tr
           fill={TURNOVER_COLOR.boundary}
           style={{ fontFamily: CHART_FONT, fontSize: 12, fontWeight: 600 }}
         >
-          Boundary {ages.ma(boundary)}
+          Boundary {formatMa(boundary)}
         </text>
         )}
       </g>
@@ -128,7 +122,6 @@ function boundaryLayer(stages: TurnoverStage[], boundary: number, withLabel = tr
 function RateLines({ data }: { data: TurnoverResult }) {
   const helpId = useId();
   const stages = data.stages;
-  const ages = turnoverAges(stages, data.boundary);
   const series: Series[] = [
     { id: "Extinction q", data: stages.map((s) => ({ x: s.label, y: s.q })) },
     { id: "Origination p", data: stages.map((s) => ({ x: s.label, y: s.p })) },
@@ -145,7 +138,7 @@ function RateLines({ data }: { data: TurnoverResult }) {
         </p>
       ) : (
         <p className="mt-1 text-[15px] text-stone-700" data-testid="turnover-sentence">
-          The boundary at {ages.ma(data.boundary)} closes no stage the study’s taxa reach, so there is no crisis stage to compare.
+          The boundary at {formatMa(data.boundary)} closes no stage the study’s taxa reach, so there is no crisis stage to compare.
         </p>
       )}
       <div className="mt-3 h-72" data-testid="turnover-rates-chart">
@@ -166,7 +159,7 @@ function RateLines({ data }: { data: TurnoverResult }) {
           axisLeft={{ tickSize: 4, tickPadding: 6, legend: "Rate per stage", legendPosition: "middle", legendOffset: -52, format: (v: number) => formatRate(v) }}
           layers={["grid", "axes", "lines", "points", "mesh", boundaryLayer(stages, data.boundary)]}
           role="img"
-          ariaLabel={`Per-capita extinction and origination per stage, ${stages[0].label} to ${stages[stages.length - 1].label}${data.crisisStage ? `; boundary at ${ages.ma(data.boundary)}, closing the ${data.crisisStage.label}` : ""}`}
+          ariaLabel={`Per-capita extinction and origination per stage, ${stages[0].label} to ${stages[stages.length - 1].label}${data.crisisStage ? `; boundary at ${formatMa(data.boundary)}, closing the ${data.crisisStage.label}` : ""}`}
           ariaDescribedBy={helpId}
         />
       </div>
@@ -361,7 +354,6 @@ function TurnoverTable({ data, groups }: { data: TurnoverResult; groups: Array<{
   const cell = "px-3 py-1.5 text-right tabular-nums";
   const head = cx(cell, "font-medium");
   const show = (v: number | null) => (v === null ? "—" : formatRate(v));
-  const ages = turnoverAges(data.stages, data.boundary);
   return (
     <div className="mt-3 overflow-x-auto">
       <table className="w-full min-w-[52rem] text-sm" data-testid="turnover-table">
@@ -404,7 +396,7 @@ function TurnoverTable({ data, groups }: { data: TurnoverResult; groups: Array<{
                 {s.edge && <span className="ml-1 text-xs font-normal text-stone-500">(edge)</span>}
               </th>
               <td className={cell}>
-                {ages.number(s.base)}–{ages.number(s.top)}
+                {formatAgeNumber(s.base)}–{formatAgeNumber(s.top)}
               </td>
               <td className={cell}>{formatCount(s.rangeThrough)}</td>
               <td className={cell}>{formatCount(s.crossingBase)}</td>
