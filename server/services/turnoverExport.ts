@@ -2,7 +2,7 @@
 // diversity curve is split), and the scorecard (the crisis stage's contrasts, each criterion, and the groups
 // each criterion read). Pure: the route hands over the turnover result.
 import { csvRow } from "../../shared/csv/write";
-import { agesWriter } from "../../shared/format/ages";
+import { formatMa, formatMyr } from "../../shared/format/ages";
 import type { TurnoverResult } from "../../shared/schemas/turnover";
 
 const groupColumn = (label: string) => `range_through_${label.toLowerCase().replace(/[^a-z0-9]+/g, "_").replace(/^_|_$/g, "") || "group"}`;
@@ -100,10 +100,9 @@ export function scorecardCsv(result: TurnoverResult): string {
       }
     }
   }
-  const ages = agesWriter([result.boundary, result.window]);
   const note = (line: string) => csvRow(["note", null, null, null, null, null, null, null, null, null, null, null, null, null, line]);
   text += note(
-    `Boundary ${ages.ma(result.boundary)}, window ${ages.myr(result.window)}; a group is hit when it lost more than ${scorecard.breadthShare} of its taxa at risk (read with at least ${scorecard.minGroupAtRisk} at risk); magnitude against ${scorecard.threshold} with a ${scorecard.level} Wilson interval.`,
+    `Boundary ${formatMa(result.boundary)}, window ${formatMyr(result.window)}; a group is hit when it lost more than ${scorecard.breadthShare} of its taxa at risk (read with at least ${scorecard.minGroupAtRisk} at risk); magnitude against ${scorecard.threshold} with a ${scorecard.level} Wilson interval.`,
   );
   if (contrast) text += note(contrast.method);
   text += note(scorecard.source);

@@ -1,9 +1,11 @@
 // How ages (Ma, before present) and durations (Myr) read, in the client and in the text the shared
-// code writes. Two rules, so one view never shows "94 Ma" beside "94.41 Ma":
-// - an age keeps every decimal it has (never rounded away: a chart boundary reads as the chart
-//   gives it, 93.9 or 251.902), with at least one, as the chart prints its round figures ("66.0");
-// - ages shown together (a table's column, a chart's axis and tooltips, a heading with its
-//   window) are written to one number of decimals, the most any of them needs: 94.00 beside 94.41.
+// code writes. Two rules, so a view never shows "94 Ma" beside "94.41 Ma":
+// - an age keeps every decimal it has (never rounded away or padded: a chart boundary reads as the
+//   chart gives it, 93.9 or 251.902, the same in every heading, chart and sentence), with at least
+//   one, as the chart prints its round figures ("66.0");
+// - a column or list of recorded ages (a taxon's range in the trait table, finds, the outcome
+//   lists, ranges from finds, time bins) is written to one number of decimals, the most any of
+//   them needs (agesWriter): 94.00 beside 94.41.
 // Durations follow the same rules. At most four decimals (the chart's youngest bases: 0.0042 Ma).
 
 /** The most decimals an age or duration is written with (the chart's 0.0042 Ma needs four). */
@@ -90,7 +92,7 @@ export interface AgeWriter {
 }
 
 /**
- * Writes the ages (and durations) of one view alike: give it every age the view shows.
+ * Writes a column or list of recorded ages alike: give it every age the column shows.
  *
  * @example
  * const write = agesWriter([94, 94.41]);

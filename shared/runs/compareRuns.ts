@@ -1,7 +1,7 @@
 // Comparing two runs of a study side by side (the "what changed" of a re-run): parameters, data
 // hash, row counts and, boundary by boundary and trait by trait, the numbers that moved. Pure, so
 // the server answers the diff route with it and anything else can compare two stored runs.
-import { agesWriter } from "../format/ages";
+import { formatMa, formatMyr } from "../format/ages";
 import { CORRECTION_LABELS, type RunParams } from "../schemas/runParams";
 import type { Run } from "../schemas/runs";
 import type { RunDiff } from "../schemas/runDiff";
@@ -12,9 +12,7 @@ const differs = (p: Pair) => p.base !== p.run;
 
 function paramChanges(base: RunParams, run: RunParams, traitLabel: (id: string) => string): string[] {
   const out: string[] = [];
-  // Both runs' boundaries and windows written alike, so "93.9 Ma" never sits beside "94.25 Ma".
-  const ages = agesWriter([...base.boundaries, ...run.boundaries].flatMap((b) => [b.boundaryMa, b.windowMyr]));
-  const boundaryText = (p: RunParams) => p.boundaries.map((b) => `${ages.ma(b.boundaryMa)}${b.windowMyr !== undefined ? ` (window ${ages.myr(b.windowMyr)})` : ""}`).join(", ");
+  const boundaryText = (p: RunParams) => p.boundaries.map((b) => `${formatMa(b.boundaryMa)}${b.windowMyr !== undefined ? ` (window ${formatMyr(b.windowMyr)})` : ""}`).join(", ");
   if (boundaryText(base) !== boundaryText(run)) out.push(`Boundaries: ${boundaryText(base)} → ${boundaryText(run)}`);
   const traitText = (t: RunParams["traits"][number]) =>
     [traitLabel(t.traitId), t.reference ? `reference ${t.reference}` : null, t.transform ? t.transform : null, t.standardise ? "standardised" : null].filter(Boolean).join(", ");

@@ -1,7 +1,7 @@
 import { logisticRegression } from "../stats/logisticRegression";
 import { oddsRatio } from "../stats/oddsRatio";
 import { encodeTrait, type EncodedTrait } from "./encodeTrait";
-import { agesWriter } from "../format/ages";
+import { formatMyr } from "../format/ages";
 import { numericStep, scaleNumericTrait, type NumericScaling } from "./scaleNumericTrait";
 import type { RobustnessPanel } from "../schemas/runChecks";
 import type { Interval, SelectivityTaxon, SelectivityTraitSpec } from "./types";
@@ -91,10 +91,9 @@ export function robustnessPanel(input: RobustnessInput): RobustnessPanel {
     const victims = taxa.reduce((n, t) => n + t.outcome, 0);
     variants.push({ id, kind, label, victims, survivors: taxa.length - victims, taxa });
   };
-  // The panel's windows and truncation distance read alike ("8.20 Myr" beside "2.05 Myr", not "8.2").
-  const ages = agesWriter([input.windowMyr, ...input.windows.map((w) => w.windowMyr), input.truncationMyr]);
-  add("run", "run", `The run’s own choice (window ${ages.myr(input.windowMyr)})`, input.taxa);
-  for (const w of input.windows) add(`window-${w.factor}`, "window", `Window ×${w.factor} (${ages.myr(w.windowMyr)})`, w.taxa);
+  // Windows and the truncation distance as the rest of the app writes them: the run's 8.2 Myr window reads 8.2 here too.
+  add("run", "run", `The run’s own choice (window ${formatMyr(input.windowMyr)})`, input.taxa);
+  for (const w of input.windows) add(`window-${w.factor}`, "window", `Window ×${w.factor} (${formatMyr(w.windowMyr)})`, w.taxa);
 
   const cladeSizes = new Map<string, number>();
   for (const t of input.taxa) cladeSizes.set(cladeOf(t), (cladeSizes.get(cladeOf(t)) ?? 0) + 1);
@@ -121,13 +120,13 @@ export function robustnessPanel(input: RobustnessInput): RobustnessPanel {
   add(
     "truncation-victims",
     "truncation-victims",
-    `Victims last seen within ${ages.myr(d)} below as survivors (${recodedVictims})`,
+    `Victims last seen within ${formatMyr(d)} below as survivors (${recodedVictims})`,
     input.taxa.map((t) => (lateVictim(t) ? { ...t, outcome: 0 as const } : t)),
   );
   add(
     "truncation-survivors",
     "truncation-survivors",
-    `Survivors last seen within ${ages.myr(d)} above as victims (${recodedSurvivors})`,
+    `Survivors last seen within ${formatMyr(d)} above as victims (${recodedSurvivors})`,
     input.taxa.map((t) => (lateSurvivor(t) ? { ...t, outcome: 1 as const } : t)),
   );
 

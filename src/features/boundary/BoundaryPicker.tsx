@@ -6,7 +6,7 @@ import type { DefaultWindow } from "@shared/timescale/defaultWindow";
 import { Button } from "../../components/Button";
 import { Card } from "../../components/Card";
 import { TextField } from "../../components/TextField";
-import { agesWriter, formatAgeNumber, RANK_WORD } from "../../components/timescale/ages";
+import { formatAgeNumber, formatMa, formatMyr, RANK_WORD } from "../../components/timescale/ages";
 import { PickModeSwitch, type BoundaryPickMode } from "../../components/timescale/PickModeSwitch";
 import type { ScaleIndex } from "../../components/timescale/scaleIndex";
 import { UnitSelects } from "../../components/timescale/UnitSelects";
@@ -106,10 +106,9 @@ function CustomAgeForm({ initialAge, onApply }: { initialAge: number | undefined
 function defaultWindowWords(defaultWindow: DefaultWindow<TimescaleUnitDto> | undefined): string {
   if (!defaultWindow) return "the duration of the stage just below the boundary";
   const { stage, windowMyr, wholeStage } = defaultWindow;
-  const ages = agesWriter([windowMyr, stage.duration]);
   return wholeStage
-    ? `the ${stage.label}’s duration, ${ages.myr(windowMyr)}`
-    : `the distance down to the base of the ${stage.label}, the stage this age falls in, ${ages.myr(windowMyr)} (not the stage’s whole ${ages.myr(stage.duration)}, which would run past its base)`;
+    ? `the ${stage.label}’s duration, ${formatMyr(windowMyr)}`
+    : `the distance down to the base of the ${stage.label}, the stage this age falls in, ${formatMyr(windowMyr)} (not the stage’s whole ${formatMyr(stage.duration)}, which would run past its base)`;
 }
 
 function WindowForm({
@@ -157,19 +156,18 @@ function BoundaryHeadline({ scale, boundary, chosenUnit }: { scale: ScaleIndex; 
   const named = chosenUnit ?? sharing[sharing.length - 1];
   const others = sharing.filter((u) => u !== named);
   const uncertainty = named?.uncertainty;
-  const ages = agesWriter([boundary, uncertainty]);
   return (
     <div className="mt-6 rounded-lg bg-stone-50 px-4 py-3" data-testid="boundary-headline">
       <p className="text-[15px] text-stone-900">
         <span className="font-semibold">Boundary: </span>
         {named ? (
           <>
-            base of the {named.label} {RANK_WORD[named.rank]}, {ages.ma(boundary)}
-            {uncertainty != null && <span className="text-stone-600"> (± {ages.myr(uncertainty)} on the chart)</span>}
+            base of the {named.label} {RANK_WORD[named.rank]}, {formatMa(boundary)}
+            {uncertainty != null && <span className="text-stone-600"> (± {formatMyr(uncertainty)} on the chart)</span>}
           </>
         ) : (
           <>
-            {ages.ma(boundary)}, a custom age{inside ? `, inside the ${inside.label}` : ""}
+            {formatMa(boundary)}, a custom age{inside ? `, inside the ${inside.label}` : ""}
           </>
         )}
       </p>

@@ -2,7 +2,7 @@ import type { TimescaleRankName, TimescaleUnitDto } from "@shared/schemas/timesc
 import { focusRing } from "../../components/focus";
 import { cx } from "../../lib/cx";
 import type { ScaleIndex } from "../../components/timescale/scaleIndex";
-import { agesWriter, RANK_WORD, windowEdge } from "../../components/timescale/ages";
+import { formatAgeNumber, formatMa, formatMyr, RANK_WORD, windowEdge } from "../../components/timescale/ages";
 
 const ROWS: ReadonlyArray<{ rank: TimescaleRankName; label: string }> = [
   { rank: "Period", label: "Period" },
@@ -64,9 +64,6 @@ export function BoundaryStrip({ scale, boundary, window, chosenUnit, onPick }: B
   const boundaryX = x(boundary);
   const edgeX = window === null ? null : x(windowEdge(boundary, window));
   const windowClipped = window !== null && windowEdge(boundary, window) > older;
-  // Every age of the strip alike: the boundary as the chart gives it, its neighbours to as many decimals.
-  const units = ROWS.flatMap((row) => scale.overlapping(row.rank, older, younger));
-  const ages = agesWriter([boundary, window, window === null ? null : windowEdge(boundary, window), older, younger, ...units.flatMap((u) => [u.base, u.top])]);
 
   return (
     <figure className="mt-6">
@@ -88,7 +85,7 @@ export function BoundaryStrip({ scale, boundary, window, chosenUnit, onPick }: B
             className="absolute top-0 z-20 -translate-x-1/2 rounded bg-accent-700 px-1.5 py-0.5 text-xs font-semibold whitespace-nowrap text-white tabular-nums"
             style={{ left: `${boundaryX}%` }}
           >
-            {ages.ma(boundary)}
+            {formatMa(boundary)}
           </span>
           <div className="relative flex flex-col gap-1">
             {ROWS.map((row) => (
@@ -105,8 +102,8 @@ export function BoundaryStrip({ scale, boundary, window, chosenUnit, onPick }: B
                       key={`${unit.rank}:${unit.name}`}
                       type="button"
                       onClick={() => onPick(unit)}
-                      title={`${unit.label} (${RANK_WORD[unit.rank]}): ${ages.number(unit.base)}–${ages.ma(unit.top)}`}
-                      aria-label={`Use the base of the ${unit.label} ${RANK_WORD[unit.rank]}, ${ages.ma(unit.base)}`}
+                      title={`${unit.label} (${RANK_WORD[unit.rank]}): ${formatAgeNumber(unit.base)}–${formatMa(unit.top)}`}
+                      aria-label={`Use the base of the ${unit.label} ${RANK_WORD[unit.rank]}, ${formatMa(unit.base)}`}
                       aria-pressed={chosen}
                       className={cx(
                         "absolute inset-y-0 overflow-hidden border-r border-white px-1.5 text-left text-xs font-medium whitespace-nowrap transition-colors",
@@ -138,15 +135,15 @@ export function BoundaryStrip({ scale, boundary, window, chosenUnit, onPick }: B
             <div aria-hidden="true" className="pointer-events-none absolute -top-1 -bottom-1 z-20 w-0.5 -translate-x-1/2 bg-accent-700" style={{ left: `${boundaryX}%` }} />
           </div>
           <div className="relative mt-1.5 h-5 text-xs text-stone-500 tabular-nums" aria-hidden="true">
-            <span className="absolute left-0">{ages.ma(older)}</span>
-            <span className="absolute right-0">{ages.ma(younger)}</span>
+            <span className="absolute left-0">{formatMa(older)}</span>
+            <span className="absolute right-0">{formatMa(younger)}</span>
           </div>
         </div>
       </div>
       <figcaption className="mt-1 flex flex-wrap items-center gap-x-5 gap-y-1 text-sm text-stone-600">
         <span className="inline-flex items-center gap-2">
           <span className="inline-block h-3.5 w-0.5 bg-accent-700" aria-hidden="true" />
-          Boundary at {ages.ma(boundary)}
+          Boundary at {formatMa(boundary)}
         </span>
         {window !== null && (
           <span className="inline-flex items-center gap-2">
@@ -154,7 +151,7 @@ export function BoundaryStrip({ scale, boundary, window, chosenUnit, onPick }: B
               className="inline-block h-3.5 w-5 rounded-sm border border-dashed border-caution-700/70 bg-[repeating-linear-gradient(135deg,rgb(138_90_18/0.2)_0_3px,transparent_3px_6px)]"
               aria-hidden="true"
             />
-            Window below it: {ages.myr(window)}, to {ages.ma(windowEdge(boundary, window))}
+            Window below it: {formatMyr(window)}, to {formatMa(windowEdge(boundary, window))}
             {windowClipped && " (reaches beyond the strip)"}
           </span>
         )}

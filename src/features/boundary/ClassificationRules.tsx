@@ -1,11 +1,10 @@
 import { Card } from "../../components/Card";
-import { agesWriter, windowEdge } from "../../components/timescale/ages";
+import { formatMa, windowEdge } from "../../components/timescale/ages";
 
 /** The rules that sort each taxon, written out with this boundary's numbers so a reviewer can check any row by hand. */
 export function ClassificationRules({ boundary, window }: { boundary: number; window: number }) {
-  const ages = agesWriter([boundary, windowEdge(boundary, window)]);
-  const b = ages.ma(boundary);
-  const edge = ages.ma(windowEdge(boundary, window));
+  const b = formatMa(boundary);
+  const edge = formatMa(windowEdge(boundary, window));
   return (
     <Card title="How each taxon is sorted" headingLevel={2}>
       <p className="text-sm text-stone-600">Ages in Ma: a larger number is older. First and last appearances are taken as coded in the trait table.</p>

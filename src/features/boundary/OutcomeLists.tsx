@@ -9,7 +9,7 @@ import { LoadingState } from "../../components/LoadingState";
 import { formatCount } from "../../lib/format";
 import { useOutcomes, type OutcomesRequest } from "./api";
 import { OutcomeBadge } from "./OutcomeBadge";
-import { agesWriter } from "../../components/timescale/ages";
+import { agesWriter, formatMa } from "../../components/timescale/ages";
 import { GROUP_ORDER, OUTCOME_GROUP_LABEL, OUTCOME_LABEL } from "./words";
 
 export const LIST_PAGE_SIZE = 50;
@@ -119,7 +119,7 @@ function TaxonTable({
   onRevoke: (taxon: OutcomeTaxon) => void;
 }) {
   // The age columns write every age of the page alike: "94.00" beside "94.41", not "94".
-  const ages = agesWriter(items.flatMap((t) => [t.fad, t.lad, t.override?.boundaryMa]));
+  const ages = agesWriter(items.flatMap((t) => [t.fad, t.lad]));
   return (
     <div className="-mx-5 overflow-x-auto sm:-mx-6">
       <table className="w-full min-w-[40rem] text-left text-[15px]">
@@ -169,7 +169,7 @@ function TaxonTable({
                   <div className="mt-1 max-w-xs text-sm text-stone-600">
                     <p>
                       <span className="font-medium text-stone-800">Set by hand</span>{" "}
-                      {taxon.override.boundaryMa === null ? "for every boundary" : `for ${ages.ma(taxon.override.boundaryMa)}`}; from the range:{" "}
+                      {taxon.override.boundaryMa === null ? "for every boundary" : `for ${formatMa(taxon.override.boundaryMa)}`}; from the range:{" "}
                       {OUTCOME_LABEL[taxon.computedOutcome].toLowerCase()}.
                     </p>
                     <p className="mt-0.5 break-words text-stone-500 italic">“{taxon.override.reason}”</p>

@@ -2,7 +2,7 @@ import type { BoundaryOutcomeName, OutcomesResult } from "@shared/schemas/outcom
 import { Card } from "../../components/Card";
 import { cx } from "../../lib/cx";
 import { formatCount, pluralize } from "../../lib/format";
-import { agesWriter, windowEdge } from "../../components/timescale/ages";
+import { formatMa, formatMyr, windowEdge } from "../../components/timescale/ages";
 import { formatPercent, GROUP_ORDER, OUTCOME_GROUP_LABEL } from "./words";
 
 const TILE_TONE: Record<BoundaryOutcomeName, string> = {
@@ -26,11 +26,10 @@ function defaultWindowSource(from: NonNullable<OutcomesResult["windowDefaultFrom
 export function OutcomeSummary({ result, refreshing }: { result: OutcomesResult; refreshing: boolean }) {
   const { counts, computedCounts, proportionalExtinction: pe } = result;
   const edge = windowEdge(result.boundary, result.window);
-  const ages = agesWriter([result.boundary, result.window, edge]);
   return (
     <Card
       title="Outcomes across the boundary"
-      description={`${pluralize(counts.total, "taxon", "taxa")} at ${ages.ma(result.boundary)}, window ${ages.myr(result.window)} (to ${ages.ma(edge)})${result.windowDefaultFrom ? `, ${defaultWindowSource(result.windowDefaultFrom)}` : ""}.`}
+      description={`${pluralize(counts.total, "taxon", "taxa")} at ${formatMa(result.boundary)}, window ${formatMyr(result.window)} (to ${formatMa(edge)})${result.windowDefaultFrom ? `, ${defaultWindowSource(result.windowDefaultFrom)}` : ""}.`}
       actions={refreshing ? <span className="text-sm text-stone-500" role="status">Updating…</span> : undefined}
     >
       <dl className="grid gap-3 sm:grid-cols-3" aria-label="Outcome counts">

@@ -11,7 +11,7 @@ import { formatCount, formatDateTime } from "../../lib/format";
 import { useOverrides, type OverrideStatus } from "./api";
 import { OutcomeBadge } from "./OutcomeBadge";
 import type { RevokeTarget } from "./OverrideDialogs";
-import { agesWriter, type AgeWriter } from "../../components/timescale/ages";
+import { formatMa } from "../../components/timescale/ages";
 
 const PAGE_SIZE = 20;
 
@@ -63,7 +63,7 @@ export function OverridesCard({ studyId, canOverride, onRevoke }: { studyId: str
         <>
           <ul className={cx("-my-3 divide-y divide-stone-100", overrides.isPlaceholderData && "opacity-60")}>
             {data.overrides.map((o) => (
-              <OverrideItem key={o.id} override={o} canOverride={canOverride} onRevoke={onRevoke} onDiscuss={setDiscussing} ages={agesWriter(data.overrides.map((x) => x.boundaryMa))} />
+              <OverrideItem key={o.id} override={o} canOverride={canOverride} onRevoke={onRevoke} onDiscuss={setDiscussing} />
             ))}
           </ul>
           {pages > 1 && (
@@ -100,18 +100,16 @@ interface OverrideItemProps {
   canOverride: boolean;
   onRevoke: (target: RevokeTarget) => void;
   onDiscuss: (override: OutcomeOverride) => void;
-  /** Writes the list's boundary ages alike. */
-  ages: AgeWriter;
 }
 
-function OverrideItem({ override: o, canOverride, onRevoke, onDiscuss, ages }: OverrideItemProps) {
+function OverrideItem({ override: o, canOverride, onRevoke, onDiscuss }: OverrideItemProps) {
   return (
     <li className="flex flex-col gap-2 py-3 sm:flex-row sm:items-start sm:justify-between" data-override-taxon={o.taxonName}>
       <div className="min-w-0">
         <p className="flex flex-wrap items-center gap-2">
           <span className="font-medium text-stone-900 italic">{o.taxonName}</span>
           <OutcomeBadge outcome={o.outcome} />
-          <span className="text-sm text-stone-500">{o.boundaryMa === null ? "every boundary" : `at ${ages.ma(o.boundaryMa)}`}</span>
+          <span className="text-sm text-stone-500">{o.boundaryMa === null ? "every boundary" : `at ${formatMa(o.boundaryMa)}`}</span>
           {o.source === "import" && <span className="text-sm text-stone-500">· from an import</span>}
           {!o.active && <span className="rounded bg-stone-100 px-1.5 py-0.5 text-xs font-semibold text-stone-600">Revoked</span>}
         </p>

@@ -12,7 +12,7 @@ import { LoadingState } from "../../components/LoadingState";
 import { PageHeader } from "../../components/PageHeader";
 import { TextLink } from "../../components/TextLink";
 import { useCurrentStudy } from "../../lib/currentStudy";
-import { formatCount, formatDateTime, formatNumber, formatMyr, formatP, sharedAgeDecimals } from "../../lib/format";
+import { formatCount, formatDateTime, formatNumber, formatMyr, formatP } from "../../lib/format";
 import { paths } from "../../lib/paths";
 import { useDocumentTitle } from "../../lib/useDocumentTitle";
 import { useRunDiff } from "../../lib/queries/runs";
@@ -169,7 +169,7 @@ function BoundaryComparison({ boundary, onlyChanged }: { boundary: RunDiff["boun
       description={
         <>
           {PRESENCE[boundary.presence] ? `This boundary is ${PRESENCE[boundary.presence]}. ` : null}
-          Window {window.base === window.run ? myr(window.run) : `${myr(window.base, window.run)} → ${myr(window.run, window.base)}`}.
+          Window {window.base === window.run ? myr(window.run) : `${myr(window.base)} → ${myr(window.run)}`}.
         </>
       }
     >
@@ -212,8 +212,7 @@ function BoundaryComparison({ boundary, onlyChanged }: { boundary: RunDiff["boun
   );
 }
 
-/** A window, written like the one it is set beside ("6.60 → 6.55 Myr", not "6.6"). */
-const myr = (v: number | null, beside: number | null = v) => (v === null ? "—" : formatMyr(v, sharedAgeDecimals([v, beside])));
+const myr = (v: number | null) => (v === null ? "—" : formatMyr(v));
 const count = (v: number | null) => (v === null ? "—" : formatCount(v));
 const flag = (v: boolean | null) => (v === null ? "—" : v ? "Flagged" : "Holds");
 

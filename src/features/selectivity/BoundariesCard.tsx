@@ -4,7 +4,7 @@ import { RUN_MAX_BOUNDARIES, runBoundaryParamsSchema } from "@shared/schemas/run
 import type { Timescale, TimescaleUnitDto } from "@shared/schemas/timescale";
 import { Button } from "../../components/Button";
 import { Card } from "../../components/Card";
-import { agesWriter, formatMa, RANK_WORD, type AgeWriter } from "../../components/timescale/ages";
+import { formatMa, formatMyr, RANK_WORD } from "../../components/timescale/ages";
 import { PickModeSwitch, type BoundaryPickMode } from "../../components/timescale/PickModeSwitch";
 import type { ScaleIndex } from "../../components/timescale/scaleIndex";
 import { UnitSelects } from "../../components/timescale/UnitSelects";
@@ -40,19 +40,17 @@ export interface BoundariesCardProps {
 }
 
 /** Default window words: "the Maastrichtian, 6.2 Myr", or for an age inside a stage "down to the base of the Cenomanian, 6.3 Myr". */
-function defaultWindowWords(scale: ScaleIndex, age: number, ages: AgeWriter): string {
+function defaultWindowWords(scale: ScaleIndex, age: number): string {
   const fallback = scale.defaultWindow(age);
   if (!fallback) return "none: no stage lies below this age, give a window";
   return fallback.wholeStage
-    ? `the ${fallback.stage.label}, ${ages.myr(fallback.windowMyr)}`
-    : `down to the base of the ${fallback.stage.label} (the stage this age falls in), ${ages.myr(fallback.windowMyr)}`;
+    ? `the ${fallback.stage.label}, ${formatMyr(fallback.windowMyr)}`
+    : `down to the base of the ${fallback.stage.label} (the stage this age falls in), ${formatMyr(fallback.windowMyr)}`;
 }
 
 /** The boundaries a run tests: one crisis, or a crisis beside background boundaries to set it against. */
 export function BoundariesCard({ timescale, scale, boundaries, errors, onChange, crisisKey, onCrisisChange, robustness, onRobustnessChange }: BoundariesCardProps) {
   const full = boundaries.length >= RUN_MAX_BOUNDARIES;
-  // The chosen boundaries' ages and windows read alike down the list.
-  const ages = agesWriter(boundaries.flatMap((b) => [b.boundaryMa, b.windowMyr ?? scale.defaultWindow(b.boundaryMa)?.windowMyr]));
   return (
     <Card
       title="1. Boundaries"
@@ -73,9 +71,9 @@ export function BoundariesCard({ timescale, scale, boundaries, errors, onChange,
               >
                 <div className="min-w-0">
                   <p className="font-medium text-stone-900">
-                    {i + 1}. {name} <span className="font-normal text-stone-600">· {ages.ma(b.boundaryMa)}</span>
+                    {i + 1}. {name} <span className="font-normal text-stone-600">· {formatMa(b.boundaryMa)}</span>
                   </p>
-                  <p className="text-sm text-stone-600">Window: {b.windowMyr !== undefined ? ages.myr(b.windowMyr) : `the default, ${defaultWindowWords(scale, b.boundaryMa, ages)}`}</p>
+                  <p className="text-sm text-stone-600">Window: {b.windowMyr !== undefined ? formatMyr(b.windowMyr) : `the default, ${defaultWindowWords(scale, b.boundaryMa)}`}</p>
                   {problems.map((problem) => (
                     <p key={problem} className="mt-1 text-sm font-medium text-red-700">
                       {problem}
@@ -260,7 +258,7 @@ function AddBoundary({ scale, boundaries, onAdd }: { scale: ScaleIndex; boundari
           optional
           inputMode="decimal"
           autoComplete="off"
-          hint={ageKnown ? `Empty: the default, ${defaultWindowWords(scale, age, agesWriter([scale.defaultWindow(age)?.windowMyr]))}.` : "Empty: the duration of the stage just below the boundary."}
+          hint={ageKnown ? `Empty: the default, ${defaultWindowWords(scale, age)}.` : "Empty: the duration of the stage just below the boundary."}
           {...form.field("windowMyr")}
         />
         <TextField label="Name in tables and figures" optional autoComplete="off" hint={mode === "unit" ? "Empty: named after the unit chosen." : "Empty: named from the time scale."} {...form.field("label")} />

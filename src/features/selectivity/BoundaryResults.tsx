@@ -2,7 +2,7 @@ import type { RunParams } from "@shared/schemas/runs";
 import type { RobustnessPanel } from "@shared/selectivity/robustnessPanel";
 import { Card } from "../../components/Card";
 import { cx } from "../../lib/cx";
-import { agesWriter } from "../../components/timescale/ages";
+import { formatMa, formatMyr } from "../../components/timescale/ages";
 import { formatCount, pluralize } from "../../lib/format";
 import { ChartFigure } from "./ChartFigure";
 import { ConfoundingCard } from "./ConfoundingCard";
@@ -115,7 +115,7 @@ function DesignLine({ boundary }: { boundary: BoundaryResult }) {
   return (
     <div className="rounded-xl border border-stone-200 bg-white px-5 py-4 sm:px-6">
       <p className="text-[15px] text-stone-800">
-        <span className="font-semibold text-stone-900">{boundary.label}</span> · {agesWriter([boundary.boundaryMa, boundary.windowMyr]).ma(boundary.boundaryMa)}, window {agesWriter([boundary.boundaryMa, boundary.windowMyr]).myr(boundary.windowMyr)}
+        <span className="font-semibold text-stone-900">{boundary.label}</span> · {formatMa(boundary.boundaryMa)}, window {formatMyr(boundary.windowMyr)}
         {boundary.windowDefaultFrom && <span className="text-stone-600"> (the {boundary.windowDefaultFrom.label})</span>}
       </p>
       <dl className="mt-3 grid grid-cols-2 gap-x-6 gap-y-2 sm:grid-cols-5" aria-label="Taxa entering the analysis">

@@ -3,7 +3,7 @@ import { Card } from "../../components/Card";
 import { ErrorState } from "../../components/ErrorState";
 import { cx } from "../../lib/cx";
 import { LoadingState } from "../../components/LoadingState";
-import { agesWriter } from "../../components/timescale/ages";
+import { formatMa, formatMyr } from "../../components/timescale/ages";
 import { ApiError } from "../../lib/api";
 import { formatCount } from "../../lib/format";
 import { Body, ColHead, HeadRow, ResultTable, td, tdNum } from "./ResultTable";
@@ -64,7 +64,7 @@ function BoundaryDesign({ design }: { design: RunPreview["boundaries"][number] }
   return (
     <section aria-label={`Design at ${design.label}`} data-design-boundary={design.boundaryMa}>
       <h3 className="text-[15px] font-semibold text-stone-900">
-        {design.label} <span className="font-normal text-stone-600">· {agesWriter([design.boundaryMa, design.windowMyr]).ma(design.boundaryMa)}, window {agesWriter([design.boundaryMa, design.windowMyr]).myr(design.windowMyr)}</span>
+        {design.label} <span className="font-normal text-stone-600">· {formatMa(design.boundaryMa)}, window {formatMyr(design.windowMyr)}</span>
       </h3>
       <p className="mt-1 text-[15px] leading-relaxed text-stone-700">{design.summary}</p>
       {atRisk === 0 ? (

@@ -1,5 +1,5 @@
 import { useId, useState } from "react";
-import { ageDecimals, formatMyr, pluralize } from "../../lib/format";
+import { formatMyr, pluralize } from "../../lib/format";
 import { EMPHASIS_COLOUR, REFERENCE_COLOUR } from "../../components/chartColours";
 import type { RobustnessPanel } from "@shared/selectivity/robustnessPanel";
 import type { RunResults } from "@shared/schemas/runs";
@@ -62,16 +62,13 @@ export function RobustnessCard({ results, index, label, printable = false }: { r
     );
   }
   const clades = panel.variants.filter((v) => v.kind === "clade").length;
-  // The truncation distance written like the windows in the variants' labels ("2.05 Myr" beside "8.20 Myr").
-  const written = panel.variants.filter((v) => v.kind === "window" || v.kind === "run").map((v) => /\d(?:\.(\d+))? Myr/.exec(v.label)?.[1]?.length ?? 0);
-  const truncation = formatMyr(panel.truncationMyr, Math.max(ageDecimals(panel.truncationMyr), ...written));
   return (
     <Card
       title={`Does it hold? Robustness at ${label}`}
       description={`Each odds ratio re-estimated under other windows (${panel.variants
         .filter((v) => v.kind === "window")
         .map((v) => v.label.replace(/^Window /, ""))
-        .join(", ")}), without each of ${pluralize(clades, "clade")} in turn, without single-stage taxa, and with last appearances within ${truncation} of the boundary recoded.`}
+        .join(", ")}), without each of ${pluralize(clades, "clade")} in turn, without single-stage taxa, and with last appearances within ${formatMyr(panel.truncationMyr)} of the boundary recoded.`}
       className="break-inside-avoid"
     >
       <div className="space-y-5" data-testid="robustness-panel">

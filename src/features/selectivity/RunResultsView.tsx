@@ -3,7 +3,7 @@ import type { Run, RunResults } from "@shared/schemas/runs";
 import { Caution } from "../../components/Caution";
 import { focusRing } from "../../components/focus";
 import { cx } from "../../lib/cx";
-import { agesWriter, formatMyr } from "../../components/timescale/ages";
+import { formatMa, formatMyr } from "../../components/timescale/ages";
 import { formatCount, formatDateTime } from "../../lib/format";
 import { BoundaryResults } from "./BoundaryResults";
 import { HeatMapCard } from "./HeatMapCard";
@@ -58,8 +58,6 @@ export function RunParameters({ run }: { run: Run }) {
   const p = run.params;
   const traitName = new Map((run.results?.traits ?? []).map((t) => [t.traitId, t.label]));
   const used = run.results?.boundaries ?? [];
-  // The boundaries' ages and windows read alike down the list.
-  const ages = agesWriter([...p.boundaries.flatMap((b, i) => [b.boundaryMa, used[i]?.windowMyr ?? b.windowMyr])]);
   return (
     <dl className="grid gap-x-8 gap-y-4 text-[15px] sm:grid-cols-2" data-testid="run-parameters">
       <Item label={p.boundaries.length === 1 ? "Boundary" : "Boundaries"}>
@@ -68,7 +66,7 @@ export function RunParameters({ run }: { run: Run }) {
             const u = used[i];
             return (
               <li key={`${b.boundaryMa}-${b.windowMyr ?? "default"}`}>
-                {u?.label ?? b.label ?? ages.ma(b.boundaryMa)}; window {u ? ages.myr(u.windowMyr) : b.windowMyr !== undefined ? ages.myr(b.windowMyr) : "the stage below"}
+                {u?.label ?? b.label ?? formatMa(b.boundaryMa)}; window {u ? formatMyr(u.windowMyr) : b.windowMyr !== undefined ? formatMyr(b.windowMyr) : "the stage below"}
                 {u?.windowDefaultFrom && ` (the ${u.windowDefaultFrom.label})`}
               </li>
             );

@@ -1,6 +1,6 @@
 // Rows the tables and charts of a run's results are drawn from.
 import type { RunResults } from "@shared/schemas/runs";
-import { agesWriter } from "../../lib/format";
+import { formatMyr } from "../../lib/format";
 import { ESTIMATE_KINDS, type EstimateKind, type ForestEstimate, type ForestRow } from "./ForestPlot";
 
 export type BoundaryResult = RunResults["boundaries"][number];
@@ -63,8 +63,7 @@ export interface HeatRow {
 
 /** A name per boundary column; two boundaries at one age (different windows) are told apart by the window. */
 export function boundaryColumns(boundaries: readonly BoundaryResult[]): string[] {
-  const ages = agesWriter(boundaries.map((b) => b.windowMyr));
-  return boundaries.map((b) => (boundaries.filter((o) => o.label === b.label).length > 1 ? `${b.label}, window ${ages.myr(b.windowMyr)}` : b.label));
+  return boundaries.map((b) => (boundaries.filter((o) => o.label === b.label).length > 1 ? `${b.label}, window ${formatMyr(b.windowMyr)}` : b.label));
 }
 
 /** Traits' contrasts by boundary, for the heat map and its table. */

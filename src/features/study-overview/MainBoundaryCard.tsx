@@ -11,7 +11,7 @@ import { TextField } from "../../components/TextField";
 import { PickModeSwitch, type BoundaryPickMode } from "../../components/timescale/PickModeSwitch";
 import { indexScale } from "../../components/timescale/scaleIndex";
 import { UnitSelects } from "../../components/timescale/UnitSelects";
-import { agesWriter } from "../../lib/format";
+import { formatMa, formatMyr } from "../../lib/format";
 import { formLevelMessage, useZodForm } from "../../lib/forms";
 import { paths } from "../../lib/paths";
 import { useTimescale } from "../../lib/queries/timescale";
@@ -29,8 +29,7 @@ export function MainBoundaryCard({ study, canEdit }: { study: Study; canEdit: bo
   const [editing, setEditing] = useState(false);
   const main = study.mainBoundary;
   const update = useUpdateStudy(study.id);
-  const ages = agesWriter([main?.boundaryMa, main?.windowMyr]);
-  const where = main ? (main.unit ? `base of the ${main.unit}, ${ages.ma(main.boundaryMa)}` : ages.ma(main.boundaryMa)) : null;
+  const where = main ? (main.unit ? `base of the ${main.unit}, ${formatMa(main.boundaryMa)}` : formatMa(main.boundaryMa)) : null;
 
   return (
     <Card
@@ -48,7 +47,7 @@ export function MainBoundaryCard({ study, canEdit }: { study: Study; canEdit: bo
         <div className="text-[15px] text-stone-800" data-testid="main-boundary">
           <p>
             <span className="font-semibold">{where}</span>
-            {main.windowMyr !== null && <span className="text-stone-600">, window {ages.myr(main.windowMyr)}</span>}
+            {main.windowMyr !== null && <span className="text-stone-600">, window {formatMyr(main.windowMyr)}</span>}
           </p>
           <p className="mt-1 text-sm text-stone-600">
             {main.source === "run" ? `The crisis boundary of the newest run, “${main.runName ?? "a run"}”. A choice made here counts until a newer run.` : "Set on this overview. A newer run’s crisis boundary takes its place."}

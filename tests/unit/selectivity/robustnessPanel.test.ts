@@ -87,7 +87,7 @@ describe("the tea-tasting table as a run (docs/sources.md section 2)", () => {
   it("recodes last appearances near the boundary both ways", () => {
     // Victims last seen within 2 Myr below 100 Ma: d1 (101 Ma) becomes a survivor:
     // deposit (2, 2), suspension (1, 3): 2 * 3 / (2 * 1) = 3.
-    expect(panel.variants.find((v) => v.id === "truncation-victims")!.label).toBe("Victims last seen within 2.0 Myr below as survivors (1)"); // written like the window, 10.0 Myr (shared/format/ages.ts)
+    expect(panel.variants.find((v) => v.id === "truncation-victims")!.label).toBe("Victims last seen within 2.0 Myr below as survivors (1)"); // one decimal at least (shared/format/ages.ts)
     expectRelativeClose(at("truncation-victims").crude!.estimate, 3, 1e-12);
     // Survivors last seen within 2 Myr above: s2 (99 Ma) becomes a victim:
     // deposit (3, 1), suspension (2, 2): 3 * 2 / (1 * 2) = 3.
