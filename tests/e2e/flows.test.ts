@@ -189,6 +189,16 @@ describe("the crosswalk", () => {
       expect(await page.getByLabel("State of Life habit for “epifaunal”").inputValue()).toBe("epifaunal");
       expect(await page.getByLabel("State of Life habit for “digging”").inputValue()).toBe("__undecided");
       expect(await page.getByText("same name", { exact: true }).count()).toBe(2);
+      // The crosswalk's selects look like the rest of the app's (src/components/Select.tsx): no native
+      // arrow but the app's chevron, the app's height and corners, for columns and states alike.
+      const look = (label: string) =>
+        page.getByLabel(label).evaluate((el) => {
+          const style = getComputedStyle(el);
+          return { appearance: style.appearance, height: el.getBoundingClientRect().height, radius: style.borderRadius, chevron: el.parentElement?.querySelector("svg[aria-hidden='true']") != null };
+        });
+      const columnLook = await look("List column for Life habit");
+      expect(columnLook).toMatchObject({ appearance: "none", height: 40, chevron: true });
+      expect(await look("State of Life habit for “digging”")).toEqual(columnLook);
       // "habitat zone" is not Environment's name: not paired until a person pairs it; then "marine" is matched.
       expect(await page.getByLabel("List column for Environment").inputValue()).toBe("");
       await page.getByLabel("List column for Environment").selectOption("habitat zone");
