@@ -1,4 +1,4 @@
-import { Link, NavLink, Outlet, useParams } from "react-router-dom";
+import { Link, NavLink, Outlet, useMatch, useParams } from "react-router-dom";
 import { can } from "@shared/roles";
 import type { Study } from "@shared/schemas/studies";
 import { buttonClasses } from "../components/Button";
@@ -11,12 +11,14 @@ import { useStudy } from "../lib/queries/study";
 import { ApiError } from "../lib/api";
 import { CurrentStudyContext } from "../lib/currentStudy";
 import { paths } from "../lib/paths";
+import { PrefetchFromOverview } from "./PrefetchFromOverview";
 import { STUDY_NAV } from "./studyNav";
 
 /** Every page inside a study: loads the study once, shows the study navigation beside the page. */
 export function StudyLayout() {
   const { studyId = "" } = useParams();
   const study = useStudy(studyId);
+  const onOverview = useMatch("/studies/:studyId") !== null;
 
   if (study.isPending) return <LoadingState label="Loading the study" />;
   if (study.isError) {
@@ -43,6 +45,7 @@ export function StudyLayout() {
         <div className="min-w-0">
           <Outlet />
         </div>
+        {onOverview && <PrefetchFromOverview />}
       </div>
     </CurrentStudyContext>
   );

@@ -67,7 +67,9 @@ export function BoundaryPage() {
   const turnover = useTurnover(study.id, turnoverRequest);
 
   const chosenUnit = view.choice?.kind === "unit" && scale ? scale.resolve(view.choice.name) : undefined;
-  const boundary = view.choice?.kind === "age" ? view.choice.age : (chosenUnit?.base ?? null);
+  // The main boundary carries its age, so the screen opens there without waiting for the time scale.
+  const mainBoundaryAge = view.choice?.kind === "unit" && study.mainBoundary?.unit === view.choice.name ? study.mainBoundary.boundaryMa : null;
+  const boundary = view.choice?.kind === "age" ? view.choice.age : (chosenUnit?.base ?? mainBoundaryAge);
   const result = outcomes.data && !outcomes.isPlaceholderData ? outcomes.data : undefined;
   const chart = <RatesChart studyId={study.id} boundary={boundary} />;
   const windowInEffect = result?.window ?? view.window ?? (boundary !== null && scale ? (scale.defaultWindow(boundary)?.windowMyr ?? null) : null);
@@ -134,14 +136,23 @@ export function BoundaryPage() {
           <ErrorState error={outcomes.error} title="The outcomes could not be worked out" onRetry={() => void outcomes.refetch()} />
         )}
         {request && outcomes.data && (
-          <Results
+          <ResultsHead
             studyId={study.id}
             result={outcomes.data}
             refreshing={outcomes.isPlaceholderData || outcomes.isFetching}
+            scorecard={<BoundaryScorecard turnover={turnover} csvUrl={turnoverRequest ? turnoverCsvUrl(study.id, "scorecard", turnoverRequest) : null} />}
+          />
+        )}
+
+        {/* One place in the page whatever the outcomes show, so the chart and its data stay put when they arrive. */}
+        {chart}
+
+        {request && outcomes.data && outcomes.data.counts.total > 0 && (
+          <ResultsTail
+            studyId={study.id}
+            result={outcomes.data}
             request={request}
             view={view}
-            chart={chart}
-            scorecard={<BoundaryScorecard turnover={turnover} csvUrl={turnoverRequest ? turnoverCsvUrl(study.id, "scorecard", turnoverRequest) : null} />}
             turnover={
               <TurnoverSection
                 turnover={turnover}
@@ -157,8 +168,6 @@ export function BoundaryPage() {
           />
         )}
 
-        {!(request && outcomes.data && outcomes.data.counts.total > 0) && chart}
-
         {boundary !== null && <SamplingCompleteness studyId={study.id} boundaryMa={boundary} />}
         <ThreeTimerChart studyId={study.id} boundary={boundary} />
 
@@ -171,25 +180,8 @@ export function BoundaryPage() {
   );
 }
 
-interface ResultsProps {
-  studyId: string;
-  result: OutcomesResult;
-  refreshing: boolean;
-  request: OutcomesRequest;
-  view: BoundaryView;
-  /** Extinction through time, shown after the counts so the crisis is read against the background. */
-  chart: ReactNode;
-  /** The mass-extinction criteria, read beside the outcome tiles. */
-  scorecard: ReactNode;
-  /** Origination beside extinction, the crisis against background, and diversity through time. */
-  turnover: ReactNode;
-  canOverride: boolean;
-  onList: (list: BoundaryView["list"], page: number) => void;
-  onSetOutcome: (taxon: OutcomeTaxon) => void;
-  onRevoke: (target: RevokeTarget) => void;
-}
-
-function Results({ studyId, result, refreshing, request, view, chart, scorecard, turnover, canOverride, onList, onSetOutcome, onRevoke }: ResultsProps) {
+/** The counts and the scorecard, with the cautions; or what to do when the study has no taxa yet. */
+function ResultsHead({ studyId, result, refreshing, scorecard }: { studyId: string; result: OutcomesResult; refreshing: boolean; scorecard: ReactNode }) {
   if (result.counts.total === 0) {
     return (
       <EmptyState
@@ -217,7 +209,27 @@ function Results({ studyId, result, refreshing, request, view, chart, scorecard,
           Selectivity results are statistical associations across a boundary, not proof of a kill mechanism; a shared cause can produce them.
         </Caution>
       </div>
-      {chart}
+    </>
+  );
+}
+
+interface ResultsTailProps {
+  studyId: string;
+  result: OutcomesResult;
+  request: OutcomesRequest;
+  view: BoundaryView;
+  /** Origination beside extinction, the crisis against background, and diversity through time. */
+  turnover: ReactNode;
+  canOverride: boolean;
+  onList: (list: BoundaryView["list"], page: number) => void;
+  onSetOutcome: (taxon: OutcomeTaxon) => void;
+  onRevoke: (target: RevokeTarget) => void;
+}
+
+/** After the extinction chart: turnover, the warnings and rules, and the lists of taxa. */
+function ResultsTail({ studyId, result, request, view, turnover, canOverride, onList, onSetOutcome, onRevoke }: ResultsTailProps) {
+  return (
+    <>
       {turnover}
       <div className="grid gap-6 xl:grid-cols-2">
         <OutcomeWarnings warnings={result.warnings} />

@@ -11,6 +11,7 @@ import { paths } from "../../lib/paths";
 import { useDocumentTitle } from "../../lib/useDocumentTitle";
 import { useStudy } from "../../lib/queries/study";
 import { formatMa, formatMyr, RANK_WORD } from "../../components/timescale/ages";
+import { DrawChartsAtOnce } from "../../components/DeferredChart";
 import { useOutcomes, useTurnover, type OutcomesRequest } from "./api";
 import { BoundaryScorecard } from "./BoundaryScorecard";
 import { readBoundaryView } from "./boundaryParams";
@@ -59,6 +60,8 @@ export function BoundaryReportPage() {
           </Button>
         </div>
       </nav>
+      {/* A document to print: its charts are drawn at once, not after the numbers. */}
+      <DrawChartsAtOnce value>
       <main data-report className="mx-auto max-w-5xl px-4 py-8 sm:px-6">
         {!where && (
           <EmptyState
@@ -80,6 +83,7 @@ export function BoundaryReportPage() {
           />
         )}
       </main>
+      </DrawChartsAtOnce>
     </div>
   );
 }

@@ -1,6 +1,7 @@
 import { useId, useState } from "react";
 import { BOUNDARY_MARK_COLOUR, REFERENCE_COLOUR, RISK_COLOUR, SUMMARY_COLOUR } from "../../components/chartColours";
-import { ResponsiveBar, type BarCustomLayerProps, type BarTooltipProps } from "@nivo/bar";
+import type { BarCustomLayerProps, BarTooltipProps } from "@nivo/bar";
+import { DeferredBar } from "../../components/deferredCharts";
 import type { RatesResult, StageRates } from "@shared/schemas/outcomes";
 import { Card } from "../../components/Card";
 import { ErrorState } from "../../components/ErrorState";
@@ -96,7 +97,7 @@ function RatesBody({ data, boundary, measure, onMeasure }: { data: RatesResult; 
       </fieldset>
 
       <div className="mt-4 h-80" data-testid="rates-chart">
-        <ResponsiveBar<StageDatum>
+        <DeferredBar<StageDatum>
           data={chartData}
           keys={["value"]}
           indexBy="stage"

@@ -1,5 +1,6 @@
 import { useId } from "react";
-import { ResponsiveBar, type BarCustomLayerProps, type BarTooltipProps } from "@nivo/bar";
+import type { BarCustomLayerProps, BarTooltipProps } from "@nivo/bar";
+import { DeferredBar } from "../../components/deferredCharts";
 import type { ThreeTimer, ThreeTimerRowDto } from "@shared/schemas/occurrences";
 import type { RatesResult } from "@shared/schemas/outcomes";
 import { ButtonLink } from "../../components/Button";
@@ -107,7 +108,7 @@ function ThreeTimerBody({ data, rates, ratesFailed, boundary }: { data: ThreeTim
         <h3 className="text-sm font-semibold text-stone-800">Extinction and origination rates per stage</h3>
         {anyRate ? (
           <div className="mt-2 h-80" data-testid="three-timer-rates-chart">
-            <ResponsiveBar<RateDatum>
+            <DeferredBar<RateDatum>
               data={rateData}
               keys={SERIES.map((s) => s.key)}
               indexBy="stage"
@@ -153,7 +154,7 @@ function ThreeTimerBody({ data, rates, ratesFailed, boundary }: { data: ThreeTim
       <div>
         <h3 className="text-sm font-semibold text-stone-800">Sampling completeness per stage</h3>
         <div className="mt-2 h-56" data-testid="three-timer-completeness-chart">
-          <ResponsiveBar<CompletenessDatum>
+          <DeferredBar<CompletenessDatum>
             data={completenessData}
             keys={["completeness"]}
             indexBy="stage"

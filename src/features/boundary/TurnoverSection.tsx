@@ -1,6 +1,7 @@
 import { useId } from "react";
 import { BOUNDARY_MARK_COLOUR, REFERENCE_COLOUR, TURNOVER_SERIES_COLOUR } from "../../components/chartColours";
-import { ResponsiveLine, type LineCustomSvgLayerProps } from "@nivo/line";
+import type { LineCustomSvgLayerProps } from "@nivo/line";
+import { DeferredLine } from "../../components/deferredCharts";
 import type { TurnoverResult, TurnoverStage } from "@shared/schemas/turnover";
 import { Card } from "../../components/Card";
 import { textLinkClasses } from "../../components/TextLink";
@@ -142,7 +143,7 @@ function RateLines({ data }: { data: TurnoverResult }) {
         </p>
       )}
       <div className="mt-3 h-72" data-testid="turnover-rates-chart">
-        <ResponsiveLine<Series>
+        <DeferredLine<Series>
           data={series}
           margin={{ top: 28, right: 20, bottom: 64, left: 64 }}
           xScale={{ type: "point" }}
@@ -311,7 +312,7 @@ function Diversity({ data, splitBy, onSplitBy, report }: { data: TurnoverResult;
               {g.label} <span className="font-normal text-stone-500">· {pluralize(g.taxa, "taxon", "taxa")}</span>
             </figcaption>
             <div className={small ? "h-44" : "h-64"}>
-              <ResponsiveLine<Series>
+              <DeferredLine<Series>
                 data={[{ id: g.label, data: g.stages.map((s, k) => ({ x: stages[k].label, y: s.rangeThrough })) }]}
                 margin={{ top: 22, right: 14, bottom: small ? 44 : 60, left: 44 }}
                 xScale={{ type: "point" }}
