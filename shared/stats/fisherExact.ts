@@ -54,7 +54,7 @@ export interface FisherExactResult {
 const MAX_2X2_TOTAL = 10_000_000;
 const DEFAULT_EXACT_WORK_LIMIT = 2_000_000;
 /** Work (paths carried, completions listed) the r x 2 network may do before "auto" falls back to Monte Carlo: about a second. */
-const RX2_WORK_LIMIT = 6_000_000;
+const RX2_WORK_LIMIT = 12_000_000;
 const DEFAULT_REPLICATES = 100_000;
 const DEFAULT_SEED = 1;
 

@@ -10,6 +10,12 @@ const MERGE_TOLERANCE = 1e-9;
 /** Completions of the last rows kept as sorted lists, at most. */
 const COMPLETION_LIMIT = 4_000_000;
 
+/** The scores (ascending) the listed rows can add for one count still to place, with ln cumulative weights. */
+interface CompletionList {
+  scores: Float64Array;
+  logCumulative: Float64Array;
+}
+
 /** Scores (ascending) of one node's paths with how many paths reach each. */
 interface Paths {
   scores: Float64Array;
@@ -82,12 +88,24 @@ export function fisherRx2(
   if (work > workLimit) return null;
   const tails = completionLists(sizes, logC, back, placed);
 
+  // Paths i in [from, to) of a node, moved by `step`, meet the listed completions: those at or below
+  // what is left of the cutoff count. Scores ascend, so what is left descends: one walk down the list.
+  const finishPaths = (paths: Paths, from: number, to: number, step: number, tail: CompletionList | undefined): void => {
+    if (!tail) return;
+    let counted = countAtMost(tail.scores, cutoff - step - paths.scores[from]);
+    for (let i = from; i < to && counted > 0; i++) {
+      const left = cutoff - step - paths.scores[i];
+      while (counted > 0 && tail.scores[counted - 1] > left) counted--;
+      if (counted > 0) terms.add(Math.log(paths.counts[i]) + paths.scores[i] + step + tail.logCumulative[counted - 1] - logTotal);
+    }
+  };
+
   // The paths at each node are kept sorted by score with ln prefix sums of their weights, so for
   // each choice of x the paths all of whose completions count are one prefix (summed at once),
   // those none of whose completions count one suffix (dropped), and only the paths in between move on.
   let level = new Map<number, Paths>([[placed, { scores: Float64Array.of(0), counts: Float64Array.of(1) }]]);
   for (let k = 0; k < back; k++) {
-    const grow = new Map<number, { scores: number[]; counts: number[] }>();
+    const grow = new Map<number, Paths[]>();
     for (const [need, paths] of level) {
       const logPrefix = logPrefixSums(paths);
       for (let x = Math.max(0, need - rest[k + 1]); x <= Math.min(sizes[k], need); x++) {
@@ -98,35 +116,28 @@ export function fisherRx2(
         if (allCount > 0) terms.add(logPrefix[allCount - 1] + step + logChoose(rest[k + 1], child) - logTotal);
         const openEnd = countAtMost(paths.scores, cutoff - step - min[k + 1][child]);
         if (openEnd <= allCount) continue;
-        let into = grow.get(child);
-        if (!into) grow.set(child, (into = { scores: [], counts: [] }));
-        for (let i = allCount; i < openEnd; i++) {
-          into.scores.push(paths.scores[i] + step);
-          into.counts.push(paths.counts[i]);
-        }
         work += 1 + openEnd - allCount;
         if (work > workLimit) return null;
+        if (k === back - 1) {
+          // The last walked row: finish these paths against the listed completions right away.
+          finishPaths(paths, allCount, openEnd, step, tails[child]);
+          continue;
+        }
+        // The open paths, moved by the same step, stay in order: a sorted run for the child.
+        const scores = paths.scores.slice(allCount, openEnd);
+        for (let i = 0; i < scores.length; i++) scores[i] += step;
+        const runs = grow.get(child);
+        const run = { scores, counts: paths.counts.slice(allCount, openEnd) };
+        if (runs) runs.push(run);
+        else grow.set(child, [run]);
       }
     }
     level = new Map();
-    for (const [need, child] of grow) {
-      const scores = Float64Array.from(child.scores);
-      const pathCounts = Float64Array.from(child.counts);
-      const kept = sortAndMergePairs(scores, pathCounts, MERGE_TOLERANCE);
-      level.set(need, { scores: scores.subarray(0, kept), counts: pathCounts.subarray(0, kept) });
-    }
+    for (const [need, runs] of grow) level.set(need, mergeRuns(runs));
   }
 
-  // Paths reaching the listed rows: the completions at or below what is left of the cutoff count.
-  for (const [need, paths] of level) {
-    const tail = tails[need];
-    if (!tail) continue;
-    for (let i = 0; i < paths.scores.length; i++) {
-      const counted = countAtMost(tail.scores, cutoff - paths.scores[i]);
-      if (counted === 0) continue;
-      terms.add(Math.log(paths.counts[i]) + paths.scores[i] + tail.logCumulative[counted - 1] - logTotal);
-    }
-  }
+  // Every row listed (small tables): the one path, at the root, meets them all.
+  if (back === 0) finishPaths(level.get(placed)!, 0, 1, 0, tails[placed]);
   const logPValue = terms.value();
   return { logPValue: logPValue === -Infinity ? -Infinity : Math.min(0, logPValue), nodes: work };
 }
@@ -172,7 +183,7 @@ function completionLists(
   logC: Float64Array[],
   back: number,
   placed: number,
-): Array<{ scores: Float64Array; logCumulative: Float64Array } | undefined> {
+): Array<CompletionList | undefined> {
   let lists: Paths[] = [{ scores: Float64Array.of(0), counts: Float64Array.of(1) }];
   for (let k = sizes.length - 1; k >= back; k--) {
     const grown: Array<{ scores: number[]; counts: number[] }> = [];
@@ -205,4 +216,47 @@ function logPrefixSums(paths: Paths): Float64Array {
     logPrefix[i] = sum;
   }
   return logPrefix;
+}
+
+/** Merges sorted runs of paths into one sorted list, joining scores closer than MERGE_TOLERANCE. */
+function mergeRuns(runs: Paths[]): Paths {
+  let queue = runs;
+  while (queue.length > 1) {
+    const merged: Paths[] = [];
+    for (let i = 0; i + 1 < queue.length; i += 2) merged.push(mergeTwo(queue[i], queue[i + 1]));
+    if (queue.length % 2 === 1) merged.push(queue[queue.length - 1]);
+    queue = merged;
+  }
+  const only = queue[0];
+  const scores = only.scores;
+  const counts = only.counts;
+  let kept = 0;
+  for (let i = 0; i < scores.length; i++) {
+    if (kept > 0 && scores[i] - scores[kept - 1] < MERGE_TOLERANCE) {
+      counts[kept - 1] += counts[i];
+    } else {
+      scores[kept] = scores[i];
+      counts[kept] = counts[i];
+      kept++;
+    }
+  }
+  return { scores: scores.subarray(0, kept), counts: counts.subarray(0, kept) };
+}
+
+function mergeTwo(a: Paths, b: Paths): Paths {
+  const length = a.scores.length + b.scores.length;
+  const scores = new Float64Array(length);
+  const counts = new Float64Array(length);
+  let i = 0;
+  let j = 0;
+  for (let at = 0; at < length; at++) {
+    if (j >= b.scores.length || (i < a.scores.length && a.scores[i] <= b.scores[j])) {
+      scores[at] = a.scores[i];
+      counts[at] = a.counts[i++];
+    } else {
+      scores[at] = b.scores[j];
+      counts[at] = b.counts[j++];
+    }
+  }
+  return { scores, counts };
 }
