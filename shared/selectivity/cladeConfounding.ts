@@ -108,7 +108,8 @@ function judge(groups: CladeGroup[], cells: CladeCells[], options: CladeConfound
   const draws: number[] = [];
   // Numbers: every replicate's taxa reuse the same arrays, and are pooled by distinct value for the
   // two marginal slopes (taxa sharing a value share their terms: the same likelihood, far fewer terms).
-  const sample = options.kind === "numeric" ? groups.map((g) => ({ x: new Float64Array(g.x.length), y: new Uint8Array(g.x.length) })) : [];
+  const sample = options.kind === "numeric" ? groups.map((g) => ({ x: new Float64Array(g.x.length), y: new Uint8Array(g.x.length), value: new Int32Array(g.x.length) })) : [];
+  const rows = large ? pooledRows(pooled!.counts.values.length, taxaCount) : null;
   for (let b = 0; b < planned; b++) {
     // Large studies stop at a look once the flag's answer is clear (see answerIsClear).
     if (largeStudy && options.replicates === undefined && b > 0 && b % EARLY_STOP_BATCH === 0 && answerIsClear(draws, difference, change, options)) {
@@ -133,6 +134,7 @@ function judge(groups: CladeGroup[], cells: CladeCells[], options: CladeConfound
         const j = Math.floor(random() * n);
         x[i] = g.x[j];
         y[i] = g.y[j];
+        sample[k].value[i] = valueOf[j];
         counts.taxa[valueOf[j]]++;
         counts.victims[valueOf[j]] += g.y[j];
       }
@@ -141,7 +143,7 @@ function judge(groups: CladeGroup[], cells: CladeCells[], options: CladeConfound
     let conditional: number;
     if (large) {
       // Large clades: the within-clade slope of the replicate by the stratified fit (see cladeAdjustedSlope).
-      conditional = stratifiedSlopeOf(sample);
+      conditional = stratifiedSlopeOf(sample, counts.values, rows!);
     } else {
       const strata = sample.map((g) => prepareConditionalStrata(g.x, g.y, new Int32Array(g.x.length), 1)[0]).filter((p) => p !== undefined);
       const at = conditionalLogLik(strata, options.conditionalLogOdds);
@@ -251,26 +253,53 @@ function formatLevel(alpha: number): string {
   return String(Number(alpha.toFixed(4)));
 }
 
-/** The slope of a logistic regression with one intercept per clade holding both outcomes (NaN when it runs off). */
-function stratifiedSlopeOf(groups: CladeGroup[]): number {
-  const mixed = groups.filter((g) => {
-    let v = 0;
-    for (const y of g.y) v += y;
-    return v > 0 && v < g.y.length;
-  });
-  const n = mixed.reduce((a, g) => a + g.x.length, 0);
-  const x = new Float64Array(n);
-  const y = new Uint8Array(n);
-  const stratum = new Int32Array(n);
-  let i = 0;
-  mixed.forEach((g, s) => {
-    for (let j = 0; j < g.x.length; j++, i++) {
-      x[i] = g.x[j];
-      y[i] = g.y[j];
-      stratum[i] = s;
+/** Scratch arrays for the taxa of a replicate pooled by clade and value (see stratifiedSlopeOf). */
+interface PooledRows {
+  x: Float64Array;
+  trials: Float64Array;
+  victims: Float64Array;
+  stratum: Int32Array;
+  /** Row of each value in the clade being pooled, -1 when none yet. */
+  slot: Int32Array;
+}
+
+function pooledRows(values: number, taxa: number): PooledRows {
+  return { x: new Float64Array(taxa), trials: new Float64Array(taxa), victims: new Float64Array(taxa), stratum: new Int32Array(taxa), slot: new Int32Array(values).fill(-1) };
+}
+
+/**
+ * The slope of a logistic regression with one intercept per clade holding both outcomes (NaN when
+ * it runs off), with the taxa of each clade pooled by value (one row per clade and value, with its
+ * taxa and victims: the same likelihood over fewer rows).
+ */
+function stratifiedSlopeOf(groups: Array<CladeGroup & { value: Int32Array }>, values: Float64Array, rows: PooledRows): number {
+  let used = 0;
+  let strata = 0;
+  for (const g of groups) {
+    let victims = 0;
+    for (const y of g.y) victims += y;
+    if (!(victims > 0 && victims < g.y.length)) continue;
+    for (let i = 0; i < g.y.length; i++) {
+      const v = g.value[i];
+      let row = rows.slot[v];
+      if (row < 0) {
+        row = used++;
+        rows.slot[v] = row;
+        rows.x[row] = values[v];
+        rows.trials[row] = 0;
+        rows.victims[row] = 0;
+        rows.stratum[row] = strata;
+      }
+      rows.trials[row]++;
+      rows.victims[row] += g.y[i];
     }
-  });
-  const fit = mixed.length > 0 ? fitStratifiedSlope(x, y, stratum, mixed.length, { standardError: false }) : null;
+    for (let i = 0; i < g.y.length; i++) rows.slot[g.value[i]] = -1;
+    strata++;
+  }
+  const fit =
+    strata > 0
+      ? fitStratifiedSlope(rows.x.subarray(0, used), rows.victims.subarray(0, used), rows.stratum.subarray(0, used), strata, { standardError: false, trials: rows.trials.subarray(0, used) })
+      : null;
   return fit ? fit.estimate : NaN;
 }
 

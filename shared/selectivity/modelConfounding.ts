@@ -57,9 +57,11 @@ export function judgeModelConfounding(
   // Dummy-coded traits leave most of the design 0: its row pattern lets every pass skip the zeros.
   const d: Design = withRowPattern({ data: full, n, p });
   const ys = Float64Array.from({ length: n }, (_, i) => y[i]);
-  // Built once and reused by every replicate: which side of each state contrast a taxon is on,
-  // and the distinct values of each numeric contrast (taxa sharing a value share their terms).
-  const prepared = contrasts.map((c) => prepareContrast(d, c));
+  // Built once and reused by every replicate: each taxon's state in every dummy-coded trait (the
+  // state contrasts of a trait share one pass over the taxa), and the distinct values of each
+  // numeric contrast (taxa sharing a value share their terms).
+  const stateTraits = prepareStateTraits(d, contrasts);
+  const prepared = contrasts.map((c) => (c.kind === "numeric" ? prepareNumeric(d, c) : null));
   const work = new Workspace(p);
   const eta = new Float64Array(n);
   const weights = new Float64Array(n).fill(1);
@@ -74,13 +76,23 @@ export function judgeModelConfounding(
       return out;
     }
   }
+  const crudeLogs = new Float64Array(contrasts.length);
+  const standardisedLogs = new Float64Array(contrasts.length);
+  const risks = new Float64Array(n);
   /** ln(crude) - ln(standardised) of every contrast for taxa weighted by `weights` (bootstrap counts), the model at beta. */
   const differences = (beta: Float64Array): number[] => {
     linearPredictors(d, beta, eta);
-    return prepared.map((c) => crudeLog(c, d, ys, weights) - standardisedLog(c, d, eta, beta, weights));
+    if (stateTraits.length > 0) for (let i = 0; i < n; i++) risks[i] = weights[i] === 0 ? 0 : expit(eta[i]);
+    for (const trait of stateTraits) stateTraitPass(trait, d, ys, eta, risks, beta, weights, crudeLogs, standardisedLogs);
+    prepared.forEach((c, k) => {
+      if (!c) return;
+      crudeLogs[k] = crudeLog(c, d, ys, weights);
+      standardisedLogs[k] = standardisedLog(c, d, eta, beta, weights);
+    });
+    return contrasts.map((_, k) => crudeLogs[k] - standardisedLogs[k]);
   };
   const observed = differences(fitted);
-  const crudeObserved = prepared.map((c) => crudeLog(c, d, ys, weights));
+  const crudeObserved = Array.from(crudeLogs);
   const random = createUniformSource(seed);
   const draws: number[][] = contrasts.map(() => []);
   const step = new Float64Array(p);
@@ -154,22 +166,11 @@ function withIntercept(design: DesignMatrix): Float64Array {
   return data;
 }
 
-/** A contrast with what every replicate reuses. */
-type PreparedContrast =
-  | { kind: "state"; column: number; side: Int8Array }
-  | { kind: "numeric"; column: number; group: Int32Array; values: Float64Array };
+/** A numeric contrast with what every replicate reuses: each taxon's index among the distinct values. */
+type PreparedContrast = { kind: "numeric"; column: number; group: Int32Array; values: Float64Array };
 
-/** Side of each taxon in a state contrast: 1 the state, 0 the reference (all dummies of the trait 0), -1 another state. */
-function prepareContrast(d: Design, c: ModelContrast): PreparedContrast {
+function prepareNumeric(d: Design, c: ModelContrast): PreparedContrast {
   const { n, p, data } = d;
-  if (c.kind === "state") {
-    const side = new Int8Array(n);
-    for (let i = 0; i < n; i++) {
-      if (data[i * p + c.column + 1] === 1) side[i] = 1;
-      else side[i] = c.traitColumns.some((other) => data[i * p + other + 1] !== 0) ? -1 : 0;
-    }
-    return { kind: "state", column: c.column, side };
-  }
   const x = new Float64Array(n);
   for (let i = 0; i < n; i++) x[i] = data[i * p + c.column + 1];
   const values = Float64Array.from(new Set(x)).sort();
@@ -179,30 +180,115 @@ function prepareContrast(d: Design, c: ModelContrast): PreparedContrast {
   return { kind: "numeric", column: c.column, group, values };
 }
 
-function crudeLog(c: PreparedContrast, d: Design, y: Float64Array, weights: Float64Array): number {
-  if (c.kind === "state") {
-    let a = 0;
-    let b = 0;
-    let cc = 0;
-    let dd = 0;
-    for (let i = 0; i < d.n; i++) {
-      const side = c.side[i];
-      const w = weights[i];
-      if (side < 0 || w === 0) continue;
-      if (side === 1) {
-        if (y[i] === 1) a += w;
-        else b += w;
-      } else if (y[i] === 1) cc += w;
-      else dd += w;
+/**
+ * The state contrasts of one dummy-coded trait: its design columns (with the intercept counted),
+ * the contrast judged for each column (-1 for none), and each taxon's state as the index of its
+ * column (-1: the reference, every dummy 0).
+ */
+interface StateTrait {
+  columns: number[];
+  contrastOf: number[];
+  state: Int32Array;
+}
+
+function prepareStateTraits(d: Design, contrasts: ModelContrast[]): StateTrait[] {
+  const { n, p, data } = d;
+  const byTrait = new Map<string, StateTrait>();
+  contrasts.forEach((c, k) => {
+    if (c.kind !== "state") return;
+    const columns = [c.column, ...c.traitColumns].sort((a, b) => a - b).map((j) => j + 1);
+    const key = `${c.key}\u0000${columns.join(",")}`;
+    let trait = byTrait.get(key);
+    if (!trait) {
+      const state = new Int32Array(n).fill(-1);
+      for (let i = 0; i < n; i++) {
+        for (let m = 0; m < columns.length; m++) {
+          if (data[i * p + columns[m]] !== 0) {
+            state[i] = m;
+            break;
+          }
+        }
+      }
+      trait = { columns, contrastOf: columns.map(() => -1), state };
+      byTrait.set(key, trait);
     }
-    if (a === 0 || b === 0 || cc === 0 || dd === 0) {
+    trait.contrastOf[trait.columns.indexOf(c.column + 1)] = k;
+  });
+  return [...byTrait.values()];
+}
+
+/**
+ * One pass over the taxa for every state contrast of a trait: the crude log odds ratio of each
+ * state against the reference (Haldane's 0.5 when a cell is empty) and the standardised one
+ * (g-computation: each taxon's risk with the trait set to the state and to the reference, averaged
+ * over the taxa of the two). A taxon of the state has its own risk (risks[i]) and the risk without
+ * the state's term; a reference taxon has its own risk and the risk with each state's term added.
+ */
+function stateTraitPass(
+  trait: StateTrait,
+  d: Design,
+  y: Float64Array,
+  eta: Float64Array,
+  risks: Float64Array,
+  beta: Float64Array,
+  weights: Float64Array,
+  crudeLogs: Float64Array,
+  standardisedLogs: Float64Array,
+): void {
+  const { n, p, data } = d;
+  const { columns, contrastOf, state } = trait;
+  const m = columns.length;
+  const victims1 = new Float64Array(m);
+  const survivors1 = new Float64Array(m);
+  const risk1 = new Float64Array(m);
+  const risk0 = new Float64Array(m);
+  const count = new Float64Array(m);
+  let victims0 = 0;
+  let survivors0 = 0;
+  for (let i = 0; i < n; i++) {
+    const w = weights[i];
+    if (w === 0) continue;
+    const s = state[i];
+    if (s >= 0) {
+      if (contrastOf[s] < 0) continue;
+      if (y[i] === 1) victims1[s] += w;
+      else survivors1[s] += w;
+      const j = columns[s];
+      risk1[s] += w * risks[i];
+      risk0[s] += w * expit(eta[i] - data[i * p + j] * beta[j]);
+      count[s] += w;
+      continue;
+    }
+    if (y[i] === 1) victims0 += w;
+    else survivors0 += w;
+    for (let t = 0; t < m; t++) {
+      if (contrastOf[t] < 0) continue;
+      risk1[t] += w * expit(eta[i] + beta[columns[t]]);
+      risk0[t] += w * risks[i];
+      count[t] += w;
+    }
+  }
+  for (let t = 0; t < m; t++) {
+    const k = contrastOf[t];
+    if (k < 0) continue;
+    let a = victims1[t];
+    let b = survivors1[t];
+    let c = victims0;
+    let dd = survivors0;
+    if (a === 0 || b === 0 || c === 0 || dd === 0) {
       a += 0.5;
       b += 0.5;
-      cc += 0.5;
+      c += 0.5;
       dd += 0.5;
     }
-    return Math.log((a * dd) / (b * cc));
+    crudeLogs[k] = Math.log((a * dd) / (b * c));
+    const r1 = risk1[t] / count[t];
+    const r0 = risk0[t] / count[t];
+    standardisedLogs[k] = r1 > 0 && r1 < 1 && r0 > 0 && r0 < 1 ? Math.log(r1 / (1 - r1)) - Math.log(r0 / (1 - r0)) : NaN;
   }
+}
+
+function crudeLog(c: PreparedContrast, d: Design, y: Float64Array, weights: Float64Array): number {
   // Taxa sharing a value enter the logistic fit as one weighted row with their share of victims (the same likelihood).
   const groupWeight = new Float64Array(c.values.length);
   const groupEvents = new Float64Array(c.values.length);
@@ -216,22 +302,6 @@ function crudeLog(c: PreparedContrast, d: Design, y: Float64Array, weights: Floa
 function standardisedLog(c: PreparedContrast, d: Design, eta: Float64Array, beta: Float64Array, weights: Float64Array): number {
   const { n, p, data } = d;
   const j = c.column + 1;
-  if (c.kind === "state") {
-    let r1 = 0;
-    let r0 = 0;
-    let count = 0;
-    for (let i = 0; i < n; i++) {
-      const w = weights[i];
-      if (c.side[i] < 0 || w === 0) continue;
-      const base = eta[i] - data[i * p + j] * beta[j];
-      r1 += w * expit(base + beta[j]);
-      r0 += w * expit(base);
-      count += w;
-    }
-    r1 /= count;
-    r0 /= count;
-    return r1 > 0 && r1 < 1 && r0 > 0 && r0 < 1 ? Math.log(r1 / (1 - r1)) - Math.log(r0 / (1 - r0)) : NaN;
-  }
   // Numbers: the averaged risk curve on a grid of the trait's quantiles, read at every value.
   const groups = c.values.length;
   const groupWeight = new Float64Array(groups);

@@ -32,17 +32,25 @@ const DIVERGENCE_ETA = 30;
  */
 export function fitStratifiedSlope(
   x: Float64Array,
-  y: Uint8Array,
+  y: ArrayLike<number>,
   stratum: Int32Array,
   strata: number,
-  opts: { standardError?: boolean } = {},
+  opts: {
+    standardError?: boolean;
+    /**
+     * Taxa pooled by stratum and value: row i stands for trials[i] taxa with the value x[i], y[i] of
+     * them victims (the same likelihood as the taxa one by one). Absent: one taxon per row, y 0 or 1.
+     */
+    trials?: ArrayLike<number>;
+  } = {},
 ): StratifiedSlopeFit | null {
   const n = x.length;
+  const trials = opts.trials;
   const intercepts = new Float64Array(strata);
   const events = new Float64Array(strata);
   const sizes = new Float64Array(strata);
   for (let i = 0; i < n; i++) {
-    sizes[stratum[i]]++;
+    sizes[stratum[i]] += trials ? trials[i] : 1;
     events[stratum[i]] += y[i];
   }
   for (let k = 0; k < strata; k++) {
@@ -69,13 +77,14 @@ export function fitStratifiedSlope(
     for (let i = 0; i < n; i++) {
       const k = stratum[i];
       const xi = x[i];
+      const t = trials ? trials[i] : 1;
       const eta = a[k] + b * xi;
       // y eta - ln(1 + e^eta), without overflow
       const softplus = eta > 0 ? eta + Math.log1p(Math.exp(-eta)) : Math.log1p(Math.exp(eta));
-      sum += y[i] * eta - softplus;
+      sum += y[i] * eta - t * softplus;
       const mu = 1 / (1 + Math.exp(-eta));
-      const w = mu * (1 - mu);
-      const r = y[i] - mu;
+      const w = t * mu * (1 - mu);
+      const r = y[i] - t * mu;
       into.scoreA[k] += r;
       into.weightA[k] += w;
       into.crossA[k] += w * xi;
@@ -120,7 +129,7 @@ export function fitStratifiedSlope(
     if (runsOff(intercepts, slope, maxAbsX)) return null;
     if (change < TOLERANCE) {
       // The standard error costs one more pass; a caller wanting the estimate alone (a bootstrap) skips it.
-      const se = opts.standardError === false ? NaN : Math.sqrt(1 / informationSchur(x, stratum, intercepts, slope, strata));
+      const se = opts.standardError === false ? NaN : Math.sqrt(1 / informationSchur(x, trials, stratum, intercepts, slope, strata));
       return { estimate: slope, se, iterations: iteration, logLik };
     }
   }
@@ -134,14 +143,14 @@ function runsOff(intercepts: Float64Array, slope: number, maxAbsX: number): bool
 }
 
 /** The Schur complement of the information at the final estimate: 1 / Var(slope). */
-function informationSchur(x: Float64Array, stratum: Int32Array, intercepts: Float64Array, slope: number, strata: number): number {
+function informationSchur(x: Float64Array, trials: ArrayLike<number> | undefined, stratum: Int32Array, intercepts: Float64Array, slope: number, strata: number): number {
   const weightA = new Float64Array(strata);
   const crossA = new Float64Array(strata);
   let weightB = 0;
   for (let i = 0; i < x.length; i++) {
     const k = stratum[i];
     const mu = 1 / (1 + Math.exp(-(intercepts[k] + slope * x[i])));
-    const w = mu * (1 - mu);
+    const w = (trials ? trials[i] : 1) * mu * (1 - mu);
     weightA[k] += w;
     crossA[k] += w * x[i];
     weightB += w * x[i] * x[i];

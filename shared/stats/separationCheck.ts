@@ -34,33 +34,33 @@ export interface SeparationCheckResult {
 export function separationCheck(X: ArrayLike<number>[] | { data: Float64Array; n: number; p: number }, y: ArrayLike<number>): SeparationCheckResult {
   const rows = Array.isArray(X) ? X.length : X.n;
   const p = Array.isArray(X) ? (rows > 0 ? X[0].length : 0) : X.p;
-  const at = Array.isArray(X) ? (i: number, j: number) => X[i][j] : (i: number, j: number) => X.data[i * X.p + j];
   if (rows === 0 || p === 0) return { kind: "none", direction: [], pivots: 0 };
-  // z_i = (2y - 1) x_i, one constraint per row.
-  const z: Float64Array[] = [];
+  // z_i = (2y - 1) x_i, one constraint per row, held row by row in one flat array (z[i * p + j]).
+  const z = new Float64Array(rows * p);
+  if (Array.isArray(X)) for (let i = 0; i < rows; i++) for (let j = 0; j < p; j++) z[i * p + j] = X[i][j];
+  else z.set(X.data.subarray(0, rows * p));
   const scale = new Array<number>(p).fill(0);
   for (let i = 0; i < rows; i++) {
     const sign = y[i] === 1 ? 1 : -1;
-    const row = new Float64Array(p);
     for (let j = 0; j < p; j++) {
-      row[j] = sign * at(i, j);
-      scale[j] = Math.max(scale[j], Math.abs(row[j]));
+      const v = sign * z[i * p + j];
+      z[i * p + j] = v;
+      scale[j] = Math.max(scale[j], Math.abs(v));
     }
-    z.push(row);
   }
   // Columns scaled to a largest absolute value of 1, so one tolerance serves every predictor.
-  for (const row of z) for (let j = 0; j < p; j++) if (scale[j] > 0) row[j] /= scale[j];
-  const m = z.length;
+  for (let i = 0; i < rows; i++) for (let j = 0; j < p; j++) if (scale[j] > 0) z[i * p + j] /= scale[j];
+  const m = rows;
   const tolerance = 1e-9 * Math.max(1, m);
 
   // Programme 1 through its dual: min 1's + 1't  s.t.  -Z'l + s - t = g,  l, s, t >= 0, g = sum z_i.
   // Columns: l_1..l_m, s_1..s_p, t_1..t_p. Start from s_j (g_j >= 0) or t_j (g_j < 0).
   const g = new Array<number>(p).fill(0);
-  for (const row of z) for (let j = 0; j < p; j++) g[j] += row[j];
+  for (let i = 0; i < m; i++) for (let j = 0; j < p; j++) g[j] += z[i * p + j];
   const columns1 = m + 2 * p;
   const A1 = Array.from({ length: p }, (_, j) => {
     const line = new Float64Array(columns1);
-    for (let i = 0; i < m; i++) line[i] = -z[i][j];
+    for (let i = 0; i < m; i++) line[i] = -z[i * p + j];
     line[m + j] = 1;
     line[m + p + j] = -1;
     return line;
@@ -79,7 +79,7 @@ export function separationCheck(X: ArrayLike<number>[] | { data: Float64Array; n
   const A2 = Array.from({ length: p + 1 }, (_, j) => {
     const line = new Float64Array(columns2);
     if (j < p) {
-      for (let i = 0; i < m; i++) line[i] = -z[i][j];
+      for (let i = 0; i < m; i++) line[i] = -z[i * p + j];
       line[m + j] = 1;
       line[m + p + j] = -1;
     } else {
