@@ -6,6 +6,7 @@ import { randomUUID } from "node:crypto";
 import { sql } from "drizzle-orm";
 import type { Database, DbOrTx } from "../db";
 import { checkTraitValue, rangeProblem, resolveRangeEnd, sameValue } from "../../shared/csv/values";
+import { formatMa } from "../../shared/format/ages";
 import type {
   RangeEnd,
   TaxaBulkEditInput,
@@ -296,7 +297,7 @@ export function createTaxonService(db: Database, grid: TaxaGrid = createTaxaGrid
         if (changed.length === 0) return { batchId: null, changed: 0, unchanged: states.length };
         await writeTaxa(tx, changed, user.id);
         await insertDecisions(tx, studyId, user.id, decisions);
-        const shown = value === null ? "empty" : typeof value === "object" ? `${(value as { ma: number }).ma} Ma` : `"${value}"`;
+        const shown = value === null ? "empty" : typeof value === "object" ? formatMa((value as { ma: number }).ma) : `"${value}"`;
         await recordActivity(tx, {
           studyId,
           userId: user.id,
