@@ -72,8 +72,16 @@ for (b in unique(rows$boundary)) {
       counts <- table(factor(v[ok], levels = states), factor(y[ok], levels = c(1, 0)))
       counts <- counts[rowSums(counts) > 0, , drop = FALSE]
       if (nrow(counts) >= 2 && all(colSums(counts) > 0)) {
-        p <- fisher.test(counts, workspace = 2e8)$p.value
-        keep(b, key, "", "test_p", p)
+        # R's network algorithm can run out of workspace on a table (many states of similar size,
+        # small p): that p-value is then listed as not compared, with R's reason, and the app's own
+        # p-value stands in for it in the multiple-testing correction of the other traits.
+        p <- tryCatch(fisher.test(counts, workspace = 2e8)$p.value, error = function(e) conditionMessage(e))
+        if (is.character(p)) {
+          skip(b, key, "", c("test_p", "adjusted_p"), paste("stats::fisher.test did not finish:", gsub("\\s+", " ", p)))
+          p <- as.numeric(app$app[as.character(app$boundary) == as.character(b) & app$trait == key & app$quantity == "test_p"][1])
+        } else {
+          keep(b, key, "", "test_p", p)
+        }
         p_values[key] <- p
       }
       ref <- spec$reference
@@ -171,7 +179,7 @@ if (length(skipped) > 0) {
 }
 both$app <- as.numeric(both$app)
 both$relative_difference <- abs(both$app - both$r) / pmax(abs(both$r), 1e-300)
-both$compared <- is.na(both$not_compared) & !is.na(both$r) & !is.na(both$app)
+both$compared <- is.na(both$not_compared) & is.na(both$why) & !is.na(both$r) & !is.na(both$app)
 both$status <- ifelse(both$compared, "compared",
   ifelse(!is.na(both$not_compared), paste("not compared:", both$not_compared),
     paste("not compared:", ifelse(is.na(both$why), "R gave no value", both$why))))

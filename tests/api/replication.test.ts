@@ -89,6 +89,30 @@ describe("the re-run download of a saved run", () => {
     console.log(`[replication] R recomputed ${compared.length} numbers of the demo's crisis run; ${comparison.length - compared.length} not compared`);
   });
 
+  it.runIf(needR)("lists a test R's fisher.test cannot finish as not compared, with R's reason, and still compares the rest", () => {
+    // The same script with a workspace far too small, so R's network algorithm gives up on every
+    // table larger than 2 x 2 at once, as it does with the full workspace on some large tables.
+    const cramped = mkdtempSync(join(tmpdir(), "stratasieve-rerun-cramped-"));
+    try {
+      for (const [name, text] of Object.entries(files)) writeFileSync(join(cramped, name), name === "rerun.R" ? text.replace("workspace = 2e8", "workspace = 10") : text);
+      expect(readFileSync(join(cramped, "rerun.R"), "utf8")).toContain("workspace = 10");
+      const r = spawnSync("Rscript", ["rerun.R", cramped], { cwd: cramped, encoding: "utf8", timeout: 120_000 });
+      expect(r.status, r.stderr).toBe(0);
+      const comparison = parse(readFileSync(join(cramped, "comparison.csv"), "utf8"));
+      const unfinished = comparison.filter((c) => c.quantity === "test_p" && /fisher\.test did not finish/.test(c.status));
+      expect(unfinished.length).toBeGreaterThan(0);
+      for (const c of unfinished) {
+        expect(comparison.find((x) => x.trait === c.trait && x.boundary === c.boundary && x.quantity === "adjusted_p")!.status).toMatch(/^not compared: stats::fisher\.test did not finish/);
+      }
+      // The other traits' adjusted p-values still agree: the app's p-value stood in for the missing one.
+      const adjusted = comparison.filter((c) => c.quantity === "adjusted_p" && c.status === "compared");
+      expect(adjusted.length).toBeGreaterThan(0);
+      for (const c of adjusted) expect(Number(c.relative_difference)).toBeLessThanOrEqual(1e-6);
+    } finally {
+      rmSync(cramped, { recursive: true, force: true });
+    }
+  });
+
   it("is refused with the reason once the study's data changed since the run", async () => {
     const [one] = await app.ctx.db.select().from(taxa).where(eq(taxa.studyId, seeded.studyId)).limit(1);
     await app.ctx.db.update(taxa).set({ name: `${one.name} (renamed)` }).where(eq(taxa.id, one.id));
