@@ -88,8 +88,8 @@ function judge(groups: CladeGroup[], cells: CladeCells[], options: CladeConfound
   const planned = options.replicates ?? (largeStudy ? 50 : CLADE_CONFOUNDING_REPLICATES);
   let replicates = planned;
   const seed = options.seed ?? CLADE_CONFOUNDING_SEED;
-  const prepared = groups.map((g) => prepareConditionalStrata(g.x, g.y, new Int32Array(g.x.length), 1)[0] ?? null);
-  const informative = states ? cells.filter((c) => c[0] + c[2] > 0 && c[1] + c[3] > 0).length : prepared.filter((p) => p !== null).length;
+  const withinClade = groups.map(conditionalShape);
+  const informative = states ? cells.filter((c) => c[0] + c[2] > 0 && c[1] + c[3] > 0).length : withinClade.filter((w) => w !== null).length;
   const ones = new Float64Array(groups.length).fill(1);
   // Numbers: the taxa pooled by distinct value once; every replicate refills the counts (see below).
   const pooled = states ? null : poolByValue(groups, ones);
@@ -100,7 +100,7 @@ function judge(groups: CladeGroup[], cells: CladeCells[], options: CladeConfound
   const change = Math.abs(Math.exp(standardised - crude) - 1);
   const thin = informative < options.minInformativeClades;
 
-  const large = options.kind === "numeric" && prepared.reduce((a, p) => a + (p ? p.x.length * p.cases : 0), 0) > 2_000_000;
+  const large = options.kind === "numeric" && withinClade.reduce((a, w) => a + (w ? w.taxa * w.cases : 0), 0) > 2_000_000;
   // Stratified bootstrap: taxa drawn with replacement within each clade (clade sizes and make-up
   // fixed, as the judgement is about these clades), every estimate recomputed; numbers take one
   // Newton step from the full-sample slope for the replicate's within-clade slope.
@@ -109,7 +109,7 @@ function judge(groups: CladeGroup[], cells: CladeCells[], options: CladeConfound
   // Numbers: every replicate's taxa reuse the same arrays, and are pooled by distinct value for the
   // two marginal slopes (taxa sharing a value share their terms: the same likelihood, far fewer terms).
   const sample = options.kind === "numeric" ? groups.map((g) => ({ x: new Float64Array(g.x.length), y: new Uint8Array(g.x.length), value: new Int32Array(g.x.length) })) : [];
-  const rows = large ? pooledRows(pooled!.counts.values.length, taxaCount) : null;
+  const rows = large ? pooledRows(pooled!.counts.values.length, taxaCount, groups.length) : null;
   for (let b = 0; b < planned; b++) {
     // Large studies stop at a look once the flag's answer is clear (see answerIsClear).
     if (largeStudy && options.replicates === undefined && b > 0 && b % EARLY_STOP_BATCH === 0 && answerIsClear(draws, difference, change, options)) {
@@ -150,7 +150,8 @@ function judge(groups: CladeGroup[], cells: CladeCells[], options: CladeConfound
       conditional = strata.length > 0 && at.information > 0 ? options.conditionalLogOdds + at.score / at.information : NaN;
     }
     if (!Number.isFinite(c) || !Number.isFinite(conditional)) continue;
-    const s = standardisedSlope(sample, ones, conditional, counts);
+    // Large clades: the clade intercepts from the same taxa pooled by value as the stratified fit's.
+    const s = standardisedSlope(sample, ones, conditional, counts, large ? rows! : undefined);
     if (Number.isFinite(s)) draws.push(c - s);
   }
   let se: number | null = null;
@@ -181,6 +182,27 @@ function judge(groups: CladeGroup[], cells: CladeCells[], options: CladeConfound
     seed,
     method,
   };
+}
+
+/**
+ * What the conditional likelihood would make of one clade (as prepareConditionalStrata, without
+ * building its stratum): null when it carries no information within the clade (one outcome or one
+ * value), else its taxa and cases (the smaller outcome group).
+ */
+function conditionalShape(g: CladeGroup): { taxa: number; cases: number } | null {
+  let events = 0;
+  let low = Infinity;
+  let high = -Infinity;
+  let taxa = 0;
+  for (let i = 0; i < g.x.length; i++) {
+    if (!Number.isFinite(g.x[i])) continue;
+    taxa++;
+    events += g.y[i];
+    low = Math.min(low, g.x[i]);
+    high = Math.max(high, g.x[i]);
+  }
+  if (events === 0 || events === taxa || !(high > low)) return null;
+  return { taxa, cases: events > taxa / 2 ? taxa - events : events };
 }
 
 /** A clade's counts: [state victims, state survivors, reference victims, reference survivors]. */
@@ -261,10 +283,19 @@ interface PooledRows {
   stratum: Int32Array;
   /** Row of each value in the clade being pooled, -1 when none yet. */
   slot: Int32Array;
+  /** Rows of clade k: segment[2k] to segment[2k + 1] (exclusive); -1 for a clade without both outcomes. */
+  segment: Int32Array;
 }
 
-function pooledRows(values: number, taxa: number): PooledRows {
-  return { x: new Float64Array(taxa), trials: new Float64Array(taxa), victims: new Float64Array(taxa), stratum: new Int32Array(taxa), slot: new Int32Array(values).fill(-1) };
+function pooledRows(values: number, taxa: number, clades: number): PooledRows {
+  return {
+    x: new Float64Array(taxa),
+    trials: new Float64Array(taxa),
+    victims: new Float64Array(taxa),
+    stratum: new Int32Array(taxa),
+    slot: new Int32Array(values).fill(-1),
+    segment: new Int32Array(2 * clades),
+  };
 }
 
 /**
@@ -275,10 +306,13 @@ function pooledRows(values: number, taxa: number): PooledRows {
 function stratifiedSlopeOf(groups: Array<CladeGroup & { value: Int32Array }>, values: Float64Array, rows: PooledRows): number {
   let used = 0;
   let strata = 0;
-  for (const g of groups) {
+  rows.segment.fill(-1);
+  for (let k = 0; k < groups.length; k++) {
+    const g = groups[k];
     let victims = 0;
     for (const y of g.y) victims += y;
     if (!(victims > 0 && victims < g.y.length)) continue;
+    rows.segment[2 * k] = used;
     for (let i = 0; i < g.y.length; i++) {
       const v = g.value[i];
       let row = rows.slot[v];
@@ -294,6 +328,7 @@ function stratifiedSlopeOf(groups: Array<CladeGroup & { value: Int32Array }>, va
       rows.victims[row] += g.y[i];
     }
     for (let i = 0; i < g.y.length; i++) rows.slot[g.value[i]] = -1;
+    rows.segment[2 * k + 1] = used;
     strata++;
   }
   const fit =
@@ -350,13 +385,18 @@ function crudeSlope(counts: ValueCounts): number {
   return fractionalSlope(xs, ws, shares);
 }
 
-/** The clade intercept a with sum_i expit(a + beta x_i) = victims (the fitted model reproduces the clade's count). */
-export function cladeIntercept(x: Float64Array, victims: number, beta: number): number {
-  const n = x.length;
+/** The clade intercept a with sum_i expit(a + beta x_i) = victims (the fitted model reproduces the clade's count); with `taxa`, x holds the clade's values pooled, each standing for taxa[i] taxa. */
+export function cladeIntercept(x: Float64Array, victims: number, beta: number, taxa?: ArrayLike<number>): number {
+  // taxa: the clade pooled by value, x[i] standing for taxa[i] taxa (the same sums over fewer terms).
+  let n = x.length;
+  if (taxa) {
+    n = 0;
+    for (let i = 0; i < x.length; i++) n += taxa[i];
+  }
   if (victims <= 0) return -Infinity;
   if (victims >= n) return Infinity;
   let mean = 0;
-  for (let i = 0; i < n; i++) mean += x[i];
+  for (let i = 0; i < x.length; i++) mean += (taxa ? taxa[i] : 1) * x[i];
   mean /= n;
   let a = Math.log(victims / (n - victims)) - beta * mean;
   let low = -Infinity;
@@ -364,10 +404,11 @@ export function cladeIntercept(x: Float64Array, victims: number, beta: number): 
   for (let iteration = 0; iteration < 100; iteration++) {
     let f = -victims;
     let slope = 0;
-    for (let i = 0; i < n; i++) {
+    for (let i = 0; i < x.length; i++) {
+      const t = taxa ? taxa[i] : 1;
       const p = expit(a + beta * x[i]);
-      f += p;
-      slope += p * (1 - p);
+      f += t * p;
+      slope += t * p * (1 - p);
     }
     if (Math.abs(f) < 1e-10 * n) break;
     if (f > 0) high = Math.min(high, a);
@@ -414,12 +455,15 @@ export function standardisedLogOdds(groups: CladeGroup[], weights: ArrayLike<num
 }
 
 /** standardisedLogOdds for numbers, with the weighted clades' taxa already pooled by value. */
-function standardisedSlope(groups: CladeGroup[], weights: ArrayLike<number>, beta: number, counts: ValueCounts): number {
+function standardisedSlope(groups: CladeGroup[], weights: ArrayLike<number>, beta: number, counts: ValueCounts, pooled?: PooledRows): number {
   const intercepts = groups.map((g, k) => {
     if (weights[k] === 0) return NaN;
     let victims = 0;
     for (let i = 0; i < g.y.length; i++) victims += g.y[i];
-    return cladeIntercept(g.x, victims, beta);
+    const from = pooled ? pooled.segment[2 * k] : -1;
+    if (from < 0) return cladeIntercept(g.x, victims, beta);
+    const to = pooled!.segment[2 * k + 1];
+    return cladeIntercept(pooled!.x.subarray(from, to), victims, beta, pooled!.trials.subarray(from, to));
   });
   // Numbers: the averaged risk curve R(x) = sum_c n_c expit(a_c + beta x) / N at every taxon's
   // value, then the logistic slope that best fits it over the same values (each value weighted by

@@ -167,7 +167,7 @@ function withIntercept(design: DesignMatrix): Float64Array {
 }
 
 /** A numeric contrast with what every replicate reuses: each taxon's index among the distinct values. */
-type PreparedContrast = { kind: "numeric"; column: number; group: Int32Array; values: Float64Array };
+type PreparedContrast = { kind: "numeric"; column: number; group: Int32Array; values: Float64Array; base: Float64Array };
 
 function prepareNumeric(d: Design, c: ModelContrast): PreparedContrast {
   const { n, p, data } = d;
@@ -177,7 +177,8 @@ function prepareNumeric(d: Design, c: ModelContrast): PreparedContrast {
   const index = new Map<number, number>();
   values.forEach((v, g) => index.set(v, g));
   const group = Int32Array.from(x, (v) => index.get(v)!);
-  return { kind: "numeric", column: c.column, group, values };
+  // base: scratch for the other terms' linear predictor of every taxon (see riskAverager).
+  return { kind: "numeric", column: c.column, group, values, base: new Float64Array(n) };
 }
 
 /**
@@ -317,7 +318,7 @@ function standardisedLog(c: PreparedContrast, d: Design, eta: Float64Array, beta
     while (k < groups - 1 && below + groupWeight[k] <= rank) below += groupWeight[k++];
     grid[g] = c.values[k];
   }
-  const risk = riskAverager(eta, data, p, j, beta[j], weights, n);
+  const risk = riskAverager(eta, data, p, j, beta[j], weights, n, c.base);
   const curve = Array.from(grid, (value) => risk(value));
   const targets = Float64Array.from(c.values, (v) => readCurve(grid, curve, v));
   return fractionalSlope(c.values, groupWeight, targets);
@@ -331,8 +332,7 @@ const RISK_BINS = 2048;
  * the trait's own term. Over many taxa the bases are first pooled into RISK_BINS bins, each at its
  * weighted mean (the error is of second order in the bin width, below 1e-6 in risk).
  */
-function riskAverager(eta: Float64Array, data: Float64Array, p: number, j: number, slope: number, weights: Float64Array, n: number): (value: number) => number {
-  const base = new Float64Array(n);
+function riskAverager(eta: Float64Array, data: Float64Array, p: number, j: number, slope: number, weights: Float64Array, n: number, base: Float64Array): (value: number) => number {
   let low = Infinity;
   let high = -Infinity;
   let total = 0;
