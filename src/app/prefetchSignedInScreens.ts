@@ -13,6 +13,7 @@ export function prefetchSignedInScreens(): void {
     import("./StudyLayout"),
     import("../features/studies/StudiesPage"),
     import("../features/study-overview/StudyOverviewPage"),
+    import("../features/study-overview/screenQueries"),
   ]).catch(() => {
     // A failed prefetch costs nothing: the router fetches the chunk again when it is needed.
     started = false;

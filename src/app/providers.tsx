@@ -8,6 +8,7 @@ import { meQuery } from "../lib/session";
 import { isPublicPath } from "./publicRoutes";
 import { createQueryClient } from "./queryClient";
 import { router } from "./router";
+import { provideScreenDataClient } from "./screenData";
 
 /** The session ended (or never began): sign in, then come back to the same page. */
 function redirectToSignIn() {
@@ -17,6 +18,7 @@ function redirectToSignIn() {
 }
 
 const queryClient = createQueryClient(redirectToSignIn);
+provideScreenDataClient(queryClient);
 
 // The first screen's own data is asked for at once, while its chunks are still arriving, instead of
 // after them: the session, the study of a study address, and the time scale of the screens that draw it.

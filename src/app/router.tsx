@@ -5,6 +5,7 @@ import { NotFoundPage } from "./NotFoundPage";
 import { PUBLIC_ROUTES } from "./publicRoutes";
 import { PublicLayout } from "./PublicLayout";
 import { RouteErrorPage } from "./RouteErrorPage";
+import { boundaryDataLoader, onEnteringOnly, overviewDataLoader } from "./screenData";
 
 /**
  * Every screen is a chunk of its own, fetched on the first visit, so the sign-in page carries neither
@@ -45,12 +46,22 @@ export const router = createBrowserRouter([
             path: "studies/:studyId",
             lazy: screen(() => import("./StudyLayout"), "StudyLayout"),
             children: [
-              { index: true, lazy: screen(() => import("../features/study-overview/StudyOverviewPage"), "StudyOverviewPage") },
+              {
+                index: true,
+                loader: overviewDataLoader,
+                shouldRevalidate: onEnteringOnly,
+                lazy: screen(() => import("../features/study-overview/StudyOverviewPage"), "StudyOverviewPage"),
+              },
               { path: "table", lazy: screen(() => import("../features/trait-table/TraitTablePage"), "TraitTablePage") },
               { path: "codebook", lazy: screen(() => import("../features/codebook/CodebookPage"), "CodebookPage") },
               { path: "codebook/time-bins", lazy: screen(() => import("../features/time-bins/TimeBinsPage"), "TimeBinsPage") },
               { path: "imports", lazy: screen(() => import("../features/imports/ImportsPage"), "ImportsPage") },
-              { path: "boundary", lazy: screen(() => import("../features/boundary/BoundaryPage"), "BoundaryPage") },
+              {
+                path: "boundary",
+                loader: boundaryDataLoader,
+                shouldRevalidate: onEnteringOnly,
+                lazy: screen(() => import("../features/boundary/BoundaryPage"), "BoundaryPage"),
+              },
               { path: "selectivity", lazy: screen(() => import("../features/selectivity/SelectivityPage"), "SelectivityPage") },
               { path: "runs", lazy: screen(() => import("../features/runs/RunsPage"), "RunsPage") },
               { path: "runs/compare", lazy: screen(() => import("../features/runs/RunComparePage"), "RunComparePage") },

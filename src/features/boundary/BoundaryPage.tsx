@@ -17,11 +17,12 @@ import { turnoverCsvUrl, useOutcomes, useTurnover, type OutcomesRequest } from "
 import { BoundaryScorecard } from "./BoundaryScorecard";
 import { TurnoverSection } from "./TurnoverSection";
 import { BoundaryPicker } from "./BoundaryPicker";
-import { mainBoundarySearch, readBoundaryView, withChoice, withList, withWindow, type BoundaryView } from "./boundaryParams";
+import { readBoundaryView, withChoice, withList, withWindow, type BoundaryView } from "./boundaryParams";
+import { knownBoundaryAge, openingSearch, outcomesRequestOf, turnoverRequestOf } from "./screenQueries";
 import { ClassificationRules } from "./ClassificationRules";
 import { SamplingCompleteness } from "./SamplingCompleteness";
 import { ThreeTimerChart } from "./ThreeTimerChart";
-import { LIST_PAGE_SIZE, OutcomeLists } from "./OutcomeLists";
+import { OutcomeLists } from "./OutcomeLists";
 import { OutcomeSummary } from "./OutcomeSummary";
 import { OutcomeWarnings } from "./OutcomeWarnings";
 import { OverridesCard } from "./OverridesCard";
@@ -37,25 +38,18 @@ function reportSearch(search: URLSearchParams, splitBy: string): string {
   return next.toString();
 }
 
-function requestOf(view: BoundaryView): OutcomesRequest | null {
-  if (!view.choice) return null;
-  const where = view.choice.kind === "unit" ? { boundaryUnit: view.choice.name } : { boundary: view.choice.age };
-  return { ...where, window: view.window, pageSize: LIST_PAGE_SIZE };
-}
-
 /** The Boundary screen: choose a boundary and window, see who survived, who was lost and why to be careful. */
 export function BoundaryPage() {
   const study = useCurrentStudy();
   useDocumentTitle(`Boundary · ${study.name}`);
   const [search, setSearch] = useSearchParams();
-  // An address without a boundary opens at the study's main boundary (set on the overview, or the newest run's crisis).
-  const opening = !search.has("unit") && !search.has("age") && study.mainBoundary ? mainBoundarySearch(search, study.mainBoundary) : null;
+  const opening = openingSearch(study, search);
   const openingKey = opening?.toString();
   useEffect(() => {
     if (openingKey !== undefined) setSearch(new URLSearchParams(openingKey), { replace: true });
   }, [openingKey, setSearch]);
   const view = readBoundaryView(opening ?? search);
-  const request = requestOf(view);
+  const request = outcomesRequestOf(view);
   const timescale = useTimescale();
   const scale = useMemo(() => (timescale.data ? indexScale(timescale.data.units) : null), [timescale.data]);
   const outcomes = useOutcomes(study.id, request);
@@ -63,13 +57,12 @@ export function BoundaryPage() {
   const [setting, setSetting] = useState<OutcomeTaxon | null>(null);
   const [revoking, setRevoking] = useState<RevokeTarget | null>(null);
   const [splitBy, setSplitBy] = useState("");
-  const turnoverRequest = request ? { boundaryUnit: request.boundaryUnit, boundary: request.boundary, window: request.window, splitBy: splitBy || undefined } : null;
+  const turnoverRequest = turnoverRequestOf(request, splitBy);
   const turnover = useTurnover(study.id, turnoverRequest);
 
   const chosenUnit = view.choice?.kind === "unit" && scale ? scale.resolve(view.choice.name) : undefined;
   // The main boundary carries its age, so the screen opens there without waiting for the time scale.
-  const mainBoundaryAge = view.choice?.kind === "unit" && study.mainBoundary?.unit === view.choice.name ? study.mainBoundary.boundaryMa : null;
-  const boundary = view.choice?.kind === "age" ? view.choice.age : (chosenUnit?.base ?? mainBoundaryAge);
+  const boundary = chosenUnit?.base ?? knownBoundaryAge(study, view);
   const result = outcomes.data && !outcomes.isPlaceholderData ? outcomes.data : undefined;
   const chart = <RatesChart studyId={study.id} boundary={boundary} />;
   const windowInEffect = result?.window ?? view.window ?? (boundary !== null && scale ? (scale.defaultWindow(boundary)?.windowMyr ?? null) : null);

@@ -11,8 +11,8 @@ import { useOutcomes, type OutcomesRequest } from "./api";
 import { OutcomeBadge } from "./OutcomeBadge";
 import { agesWriter, formatMa } from "../../components/timescale/ages";
 import { GROUP_ORDER, OUTCOME_GROUP_LABEL, OUTCOME_LABEL } from "./words";
+import { LIST_PAGE_SIZE } from "./screenQueries";
 
-export const LIST_PAGE_SIZE = 50;
 
 const FLAG_LABEL: Record<OutcomeTaxon["flags"][number], string> = {
   singleInterval: "single stage",

@@ -1,5 +1,5 @@
 // TanStack Query hooks of the Boundary screen: one per endpoint.
-import { keepPreviousData, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
+import { keepPreviousData, queryOptions, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
 import type { z } from "zod";
 import type {
   BoundaryOutcomeName,
@@ -36,19 +36,22 @@ function toSearch(params: Record<string, string | number | undefined>): string {
 }
 
 /**
- * GET /api/studies/:studyId/outcomes: counts, proportional extinction, warnings and one page of each
- * group (or of `group` only). `request` null means no boundary is chosen yet (nothing is fetched).
+ * Ranges are edited on other screens, so a visit to this one asks again for what it shows; an answer
+ * a few seconds old (asked for as the navigation to the screen began) counts as this visit's.
  */
-export function useOutcomes(studyId: string, request: OutcomesRequest | null) {
-  const params = { ...request };
-  return useQuery({
-    queryKey: queryKeys.boundary.outcomes(studyId, params),
-    queryFn: ({ signal }) => api.get<OutcomesResult>(`${studyApiPath(studyId)}/outcomes?${toSearch(params)}`, signal),
-    enabled: request !== null,
-    // Ranges are edited on other screens; a visit to this one should show the current outcomes.
-    staleTime: 0,
-    placeholderData: keepPreviousData,
+export const FRESH_FOR_A_VISIT_MS = 5_000;
+
+/** GET /api/studies/:studyId/outcomes: counts, proportional extinction, warnings and one page of each group (or of `group` only). */
+export const outcomesQuery = (studyId: string, request: Partial<OutcomesRequest>) =>
+  queryOptions({
+    queryKey: queryKeys.boundary.outcomes(studyId, { ...request }),
+    queryFn: ({ signal }) => api.get<OutcomesResult>(`${studyApiPath(studyId)}/outcomes?${toSearch({ ...request })}`, signal),
+    staleTime: FRESH_FOR_A_VISIT_MS,
   });
+
+/** The outcomes of a boundary; `request` null means no boundary is chosen yet (nothing is fetched). */
+export function useOutcomes(studyId: string, request: OutcomesRequest | null) {
+  return useQuery({ ...outcomesQuery(studyId, { ...request }), enabled: request !== null, placeholderData: keepPreviousData });
 }
 
 /** GET /api/studies/:studyId/outcome-overrides: outcomes set by hand, newest first. */
@@ -63,26 +66,28 @@ export function useOverrides(studyId: string, status: OverrideStatus, page: numb
 }
 
 /** GET /api/studies/:studyId/rates: extinction per stage over the stages the study's taxa span. */
-export function useRates(studyId: string) {
-  return useQuery({
+export const ratesQuery = (studyId: string) =>
+  queryOptions({
     queryKey: queryKeys.boundary.rates(studyId),
     queryFn: ({ signal }) => api.get<RatesResult>(`${studyApiPath(studyId)}/rates`, signal),
-    staleTime: 0,
+    staleTime: FRESH_FOR_A_VISIT_MS,
   });
-}
+
+export const useRates = (studyId: string) => useQuery(ratesQuery(studyId));
 
 /**
  * GET /api/studies/:studyId/occurrences/three-timer?boundaryMa: three-timer counts, sampling completeness and rates
  * per stage, and the stages on both sides of the boundary when one is given. Below the study's "occurrences" key,
  * so an occurrence upload or revert refreshes it.
  */
-export function useThreeTimer(studyId: string, boundaryMa: number | null) {
-  return useQuery({
+export const threeTimerQuery = (studyId: string, boundaryMa: number | null) =>
+  queryOptions({
     queryKey: [...queryKeys.studies.detail(studyId), "occurrences", "three-timer", boundaryMa] as const,
     queryFn: ({ signal }) =>
       api.get<ThreeTimer>(`${studyApiPath(studyId)}/occurrences/three-timer${boundaryMa === null ? "" : `?boundaryMa=${encodeURIComponent(String(boundaryMa))}`}`, signal),
   });
-}
+
+export const useThreeTimer = (studyId: string, boundaryMa: number | null) => useQuery(threeTimerQuery(studyId, boundaryMa));
 
 /** What the screen asks the turnover endpoint: the boundary and window of the outcomes, and how to split the diversity curve. */
 export interface TurnoverRequest {
@@ -96,15 +101,15 @@ export interface TurnoverRequest {
  * GET /api/studies/:studyId/turnover: origination and extinction per stage, standing diversity, the crisis
  * stage against its background and the boundary scorecard. `request` null: no boundary chosen (nothing fetched).
  */
-export function useTurnover(studyId: string, request: TurnoverRequest | null) {
-  const params = { ...request };
-  return useQuery({
-    queryKey: queryKeys.boundary.turnover(studyId, params),
-    queryFn: ({ signal }) => api.get<TurnoverResult>(`${studyApiPath(studyId)}/turnover?${toSearch(params)}`, signal),
-    enabled: request !== null,
-    staleTime: 0,
-    placeholderData: keepPreviousData,
+export const turnoverQuery = (studyId: string, request: TurnoverRequest) =>
+  queryOptions({
+    queryKey: queryKeys.boundary.turnover(studyId, { ...request }),
+    queryFn: ({ signal }) => api.get<TurnoverResult>(`${studyApiPath(studyId)}/turnover?${toSearch({ ...request })}`, signal),
+    staleTime: FRESH_FOR_A_VISIT_MS,
   });
+
+export function useTurnover(studyId: string, request: TurnoverRequest | null) {
+  return useQuery({ ...turnoverQuery(studyId, { ...request }), enabled: request !== null, placeholderData: keepPreviousData });
 }
 
 /** GET /api/studies/:studyId/exports/turnover.csv or scorecard.csv for the same request (a plain download link). */

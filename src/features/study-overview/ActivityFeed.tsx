@@ -8,9 +8,8 @@ import { LoadingState } from "../../components/LoadingState";
 import { TextLink } from "../../components/TextLink";
 import { formatCount, formatDateTime } from "../../lib/format";
 import { paths } from "../../lib/paths";
-import { useActivity } from "./api";
+import { ACTIVITY_PAGE_SIZE, useActivity } from "./api";
 
-const PAGE_SIZE = 10;
 
 /** What part of the study an entry belongs to, from its kind. */
 function areaOf(kind: string): { label: string; tone: string } {
@@ -42,9 +41,9 @@ function linkOf(studyId: string, item: ActivityItem): { to: string; label: strin
 /** The study's activity, newest first, a page at a time. */
 export function ActivityFeed({ studyId }: { studyId: string }) {
   const [page, setPage] = useState(1);
-  const feed = useActivity(studyId, page, PAGE_SIZE);
+  const feed = useActivity(studyId, page);
   const total = feed.data?.total ?? 0;
-  const pageCount = Math.max(1, Math.ceil(total / PAGE_SIZE));
+  const pageCount = Math.max(1, Math.ceil(total / ACTIVITY_PAGE_SIZE));
 
   return (
     <Card title="Recent activity" description="Imports, edits in bulk, runs, comparisons, threads and membership changes.">

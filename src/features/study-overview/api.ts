@@ -1,4 +1,4 @@
-import { keepPreviousData, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
+import { keepPreviousData, queryOptions, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
 import type { ActivityList } from "@shared/schemas/activity";
 import type { NotificationPreference, NotificationPreferenceList, NotificationPreferenceUpdateInput } from "@shared/schemas/notifications";
 import type { Study, StudyUpdateInput } from "@shared/schemas/studies";
@@ -34,22 +34,26 @@ export function useDeleteStudy(studyId: string) {
   });
 }
 
+/** Entries per page of the activity feed. */
+export const ACTIVITY_PAGE_SIZE = 10;
+
 /** GET /api/studies/:studyId/activity?page&pageSize: the feed, newest first. */
-export function useActivity(studyId: string, page: number, pageSize: number) {
-  return useQuery({
+export const activityQuery = (studyId: string, page: number) =>
+  queryOptions({
     queryKey: queryKeys.activity.page(studyId, page),
-    queryFn: ({ signal }) => api.get<ActivityList>(studyApiPath(studyId, `/activity?page=${page}&pageSize=${pageSize}`), signal),
-    placeholderData: keepPreviousData,
+    queryFn: ({ signal }) => api.get<ActivityList>(studyApiPath(studyId, `/activity?page=${page}&pageSize=${ACTIVITY_PAGE_SIZE}`), signal),
   });
-}
+
+export const useActivity = (studyId: string, page: number) => useQuery({ ...activityQuery(studyId, page), placeholderData: keepPreviousData });
 
 /** GET /api/notification-preferences: the caller's e-mail choice for mentions, per study. */
-export function useMentionPreferences() {
-  return useQuery({
+export const mentionPreferencesQuery = () =>
+  queryOptions({
     queryKey: queryKeys.notifications.preferences,
     queryFn: ({ signal }) => api.get<NotificationPreferenceList>("/notification-preferences", signal),
   });
-}
+
+export const useMentionPreferences = () => useQuery(mentionPreferencesQuery());
 
 /** PUT /api/notification-preferences/:studyId */
 export function useSetMentionPreference(studyId: string) {
@@ -64,13 +68,12 @@ export function useSetMentionPreference(studyId: string) {
 }
 
 /** GET /api/studies/:studyId/taxa?page=1&pageSize=1: only the total, to tell whether the study has taxa yet. */
-export function useTaxaTotal(studyId: string) {
-  const query = "page=1&pageSize=1";
-  return useQuery({
-    queryKey: queryKeys.taxa.page(studyId, query),
-    queryFn: ({ signal }) => api.get<TaxaPage>(studyApiPath(studyId, `/taxa?${query}`), signal),
-    select: (page) => page.total,
+export const taxaTotalQuery = (studyId: string) =>
+  queryOptions({
+    queryKey: queryKeys.taxa.page(studyId, "page=1&pageSize=1"),
+    queryFn: ({ signal }) => api.get<TaxaPage>(studyApiPath(studyId, "/taxa?page=1&pageSize=1"), signal),
   });
-}
+
+export const useTaxaTotal = (studyId: string) => useQuery({ ...taxaTotalQuery(studyId), select: (page) => page.total });
 
 /** GET /api/studies/:studyId/exports/template.csv: the study's import template (a plain download link). */

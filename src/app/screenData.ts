@@ -1,0 +1,46 @@
+import type { QueryClient } from "@tanstack/react-query";
+import type { LoaderFunctionArgs, ShouldRevalidateFunctionArgs } from "react-router-dom";
+import type { Study } from "@shared/schemas/studies";
+import { queryKeys } from "../lib/queryKeys";
+import { studyQuery } from "../lib/queries/study";
+
+let client: QueryClient | null = null;
+
+/** The app's query client, for the route loaders below (set once by the providers). */
+export function provideScreenDataClient(queryClient: QueryClient): void {
+  client = queryClient;
+}
+
+/** The study as cached (its own answer, else the studies list's copy), or asked for (joining a request in flight). */
+async function studyFor(queryClient: QueryClient, studyId: string): Promise<Study> {
+  const cached = queryClient.getQueryData(studyQuery(studyId).queryKey) ?? queryClient.getQueryData<Study[]>(queryKeys.studies.list())?.find((s) => s.id === studyId);
+  return cached ?? queryClient.fetchQuery(studyQuery(studyId));
+}
+
+/**
+ * Route loader of the Boundary screen: starts the screen's requests as the navigation begins, beside
+ * its script, instead of after the script has loaded and the screen drawn. Never holds the navigation
+ * (answers at once) and never fails it: the screen asks again, and shows its own errors.
+ */
+export function boundaryDataLoader({ params, request }: LoaderFunctionArgs): null {
+  const queryClient = client;
+  const studyId = params.studyId;
+  if (!queryClient || !studyId) return null;
+  const search = new URL(request.url).searchParams;
+  void Promise.all([studyFor(queryClient, studyId), import("../features/boundary/screenQueries")])
+    .then(([study, screen]) => screen.prefetchBoundaryScreen(queryClient, study, search))
+    .catch(() => undefined);
+  return null;
+}
+
+/** Route loader of a study's Overview: its requests start as the navigation begins (as above). */
+export function overviewDataLoader({ params }: LoaderFunctionArgs): null {
+  const queryClient = client;
+  const studyId = params.studyId;
+  if (!queryClient || !studyId) return null;
+  void import("../features/study-overview/screenQueries").then((screen) => screen.prefetchOverviewScreen(queryClient, studyId)).catch(() => undefined);
+  return null;
+}
+
+/** Within a screen (a new boundary, a list's page) the screen asks for itself: the loader runs when the screen is entered. */
+export const onEnteringOnly = ({ currentUrl, nextUrl }: ShouldRevalidateFunctionArgs) => currentUrl.pathname !== nextUrl.pathname;
