@@ -1813,6 +1813,222 @@ export type RunDiff = {
              */
             changed: boolean;
         }>;
+        sampling: RunDiffSampling;
+        robustness: RunDiffRobustness;
+    }>;
+    crisis: RunDiffCrisis;
+};
+
+/**
+ * Does each contrast hold once sampling is allowed for, in each run
+ */
+export type RunDiffSampling = {
+    base: RunDiffCheckSide;
+    run: RunDiffCheckSide;
+    /**
+     * Set when only one of the two runs has this check (e.g. "Not in the earlier run: ..."): its verdicts are then not compared
+     */
+    note: string | null;
+    /**
+     * The verdicts that differ, one sentence each; empty when none does or only one run has the check
+     */
+    changes: Array<string>;
+    /**
+     * changes is not empty
+     */
+    changed: boolean;
+    contrasts: Array<{
+        traitKey: string;
+        traitLabel: string;
+        contrast: string;
+        presence: 'both' | 'baseOnly' | 'runOnly';
+        verdict: {
+            base: 'holds' | 'does_not_hold' | 'no_signal' | 'not_estimable' | null;
+            run: 'holds' | 'does_not_hold' | 'no_signal' | 'not_estimable' | null;
+        };
+        /**
+         * The odds ratio once the sampling covariates are in the model
+         */
+        withSampling: {
+            base: number | null;
+            run: number | null;
+        };
+        /**
+         * Both runs hold the check, and the verdict differs or only one run has this contrast
+         */
+        changed: boolean;
+    }>;
+};
+
+export type RunDiffCheckSide = {
+    /**
+     * computed: the run holds this check; not-computed: the run says why it has none (reason); absent: the run holds nothing of it (saved before the check existed, or it did not ask for it)
+     */
+    status: 'computed' | 'not-computed' | 'absent';
+    reason: string | null;
+};
+
+/**
+ * The robustness panel's verdicts at this boundary, in each run
+ */
+export type RunDiffRobustness = {
+    base: RunDiffCheckSide;
+    run: RunDiffCheckSide;
+    /**
+     * Set when only one of the two runs has this check (e.g. "Not in the earlier run: ..."): its verdicts are then not compared
+     */
+    note: string | null;
+    /**
+     * The verdicts that differ, one sentence each; empty when none does or only one run has the check
+     */
+    changes: Array<string>;
+    /**
+     * changes is not empty
+     */
+    changed: boolean;
+    counts: {
+        crude: {
+            /**
+             * Contrasts per verdict; null where the run has no panel at this boundary
+             */
+            base: {
+                holds: number;
+                fragile: number;
+                'never-there': number;
+                'not-estimated': number;
+            } | null;
+            /**
+             * Contrasts per verdict; null where the run has no panel at this boundary
+             */
+            run: {
+                holds: number;
+                fragile: number;
+                'never-there': number;
+                'not-estimated': number;
+            } | null;
+        };
+        adjusted: {
+            /**
+             * Contrasts per verdict; null where the run has no panel at this boundary
+             */
+            base: {
+                holds: number;
+                fragile: number;
+                'never-there': number;
+                'not-estimated': number;
+            } | null;
+            /**
+             * Contrasts per verdict; null where the run has no panel at this boundary
+             */
+            run: {
+                holds: number;
+                fragile: number;
+                'never-there': number;
+                'not-estimated': number;
+            } | null;
+        };
+    };
+    contrasts: Array<{
+        traitKey: string;
+        traitLabel: string;
+        contrast: string;
+        presence: 'both' | 'baseOnly' | 'runOnly';
+        crude: {
+            status: {
+                base: 'holds' | 'fragile' | 'never-there' | 'not-estimated' | null;
+                run: 'holds' | 'fragile' | 'never-there' | 'not-estimated' | null;
+            };
+            /**
+             * Variants under which each run found the contrast fragile
+             */
+            changedUnder: {
+                base: Array<string> | null;
+                run: Array<string> | null;
+            };
+        };
+        adjusted: {
+            status: {
+                base: 'holds' | 'fragile' | 'never-there' | 'not-estimated' | null;
+                run: 'holds' | 'fragile' | 'never-there' | 'not-estimated' | null;
+            };
+            /**
+             * Variants under which each run found the contrast fragile
+             */
+            changedUnder: {
+                base: Array<string> | null;
+                run: Array<string> | null;
+            };
+        };
+        /**
+         * Both runs hold the panel, and a verdict or the variants a fragile verdict names differ, or only one run has this contrast
+         */
+        changed: boolean;
+    }>;
+};
+
+/**
+ * Crisis against background, trait by trait, in each run
+ */
+export type RunDiffCrisis = {
+    base: RunDiffCheckSide;
+    run: RunDiffCheckSide;
+    /**
+     * Set when only one of the two runs has this check (e.g. "Not in the earlier run: ..."): its verdicts are then not compared
+     */
+    note: string | null;
+    /**
+     * The verdicts that differ, one sentence each; empty when none does or only one run has the check
+     */
+    changes: Array<string>;
+    /**
+     * changes is not empty
+     */
+    changed: boolean;
+    /**
+     * The boundary each run took as the crisis
+     */
+    crisis: {
+        base: string | null;
+        run: string | null;
+    };
+    traits: Array<{
+        key: string;
+        label: string;
+        presence: 'both' | 'baseOnly' | 'runOnly';
+        /**
+         * differs: the adjusted test says the crisis sorted differently from background; same: it does not; not-tested: the model could not be fitted
+         */
+        verdict: {
+            base: 'differs' | 'same' | 'not-tested' | null;
+            run: 'differs' | 'same' | 'not-tested' | null;
+        };
+        adjustedPValue: {
+            base: number | null;
+            run: number | null;
+        };
+        contrasts: Array<{
+            contrast: string;
+            presence: 'both' | 'baseOnly' | 'runOnly';
+            /**
+             * differs: the trait's adjusted test and this contrast's interval both say the crisis differed
+             */
+            verdict: {
+                base: 'differs' | 'same' | null;
+                run: 'differs' | 'same' | null;
+            };
+            /**
+             * Crisis odds ratio over background odds ratio
+             */
+            ratio: {
+                base: number | null;
+                run: number | null;
+            };
+            changed: boolean;
+        }>;
+        /**
+         * Both runs compared the crisis, and the trait's or a contrast's verdict differs, or only one run has it
+         */
+        changed: boolean;
     }>;
 };
 

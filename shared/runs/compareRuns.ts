@@ -1,10 +1,15 @@
 // Comparing two runs of a study side by side (the "what changed" of a re-run): parameters, data
-// hash, row counts and, boundary by boundary and trait by trait, the numbers that moved. Pure, so
-// the server answers the diff route with it and anything else can compare two stored runs.
+// hash, row counts and, boundary by boundary and trait by trait, the numbers that moved, and the
+// verdicts of the run's own checks (compareRunChecks.ts). Pure, so the server answers the diff
+// route with it and anything else can compare two stored runs.
 import { formatMa, formatMyr } from "../format/ages";
+import { DEFAULT_WINDOW_FACTORS } from "../schemas/runChecks";
 import { CORRECTION_LABELS, type RunParams } from "../schemas/runParams";
 import type { Run } from "../schemas/runs";
 import type { RunDiff } from "../schemas/runDiff";
+import { SAMPLING_COVARIATE_LABELS } from "../schemas/samplingCheck";
+import { compareCrisis, compareRobustness, compareSampling } from "./compareRunChecks";
+import { pairBy, presence } from "./pairBy";
 
 type Pair = { base: number | null; run: number | null };
 const pair = (base: number | null | undefined, run: number | null | undefined): Pair => ({ base: base ?? null, run: run ?? null });
@@ -28,38 +33,29 @@ function paramChanges(base: RunParams, run: RunParams, traitLabel: (id: string) 
   if (base.level !== run.level) out.push(`Confidence level: ${base.level} → ${run.level}`);
   if (base.confoundingThreshold !== run.confoundingThreshold) out.push(`Confounding threshold: ${base.confoundingThreshold} → ${run.confoundingThreshold}`);
   if (base.stratifyBy !== run.stratifyBy) out.push(`Stratified by: ${base.stratifyBy} → ${run.stratifyBy}`);
-  return out;
-}
-
-/**
- * Pairs items of two lists by key (the n-th item of a key with the n-th of the same key), in the
- * order of the run and then the base's leftovers.
- */
-function pairBy<T>(base: T[], run: T[], key: (item: T) => string): Array<{ key: string; base: T | null; run: T | null }> {
-  const keyed = (list: T[]) => {
-    const seen = new Map<string, number>();
-    return list.map((item) => {
-      const k = key(item);
-      const n = seen.get(k) ?? 0;
-      seen.set(k, n + 1);
-      return { k, slot: `${k}\u0000${n}`, item };
-    });
+  const crisisText = (p: RunParams) => {
+    const b = p.crisisBoundary === undefined ? undefined : p.boundaries[p.crisisBoundary];
+    return b ? (b.label ?? formatMa(b.boundaryMa)) : "none";
   };
-  const baseSlots = new Map(keyed(base).map((b) => [b.slot, b.item]));
-  const runKeyed = keyed(run);
-  const out: Array<{ key: string; base: T | null; run: T | null }> = runKeyed.map((r) => ({ key: r.k, base: baseSlots.get(r.slot) ?? null, run: r.item }));
-  const taken = new Set(runKeyed.map((r) => r.slot));
-  for (const b of keyed(base)) if (!taken.has(b.slot)) out.push({ key: b.k, base: b.item, run: null });
+  if (crisisText(base) !== crisisText(run)) out.push(`Crisis boundary: ${crisisText(base)} → ${crisisText(run)}`);
+  const samplingText = (p: RunParams) => (p.samplingCovariates?.length ? p.samplingCovariates.map((c) => SAMPLING_COVARIATE_LABELS[c]).join(" and ") : "none");
+  if (samplingText(base) !== samplingText(run)) out.push(`Sampling covariates: ${samplingText(base)} → ${samplingText(run)}`);
+  // Runs that left the robustness settings out used the defaults.
+  const windowsText = (p: RunParams) => `${(p.robustness?.windowFactors ?? DEFAULT_WINDOW_FACTORS).join(", ")} times the window`;
+  if (windowsText(base) !== windowsText(run)) out.push(`Robustness windows: ${windowsText(base)} → ${windowsText(run)}`);
+  const truncationText = (p: RunParams) => (p.robustness?.truncationMyr === undefined ? "a quarter of the window" : formatMyr(p.robustness.truncationMyr));
+  if (truncationText(base) !== truncationText(run)) out.push(`Robustness truncation: ${truncationText(base)} → ${truncationText(run)}`);
   return out;
 }
-
-const presence = (p: { base: unknown; run: unknown }) => (p.base && p.run ? "both" : p.base ? "baseOnly" : "runOnly") as "both" | "baseOnly" | "runOnly";
 
 /**
  * What changed from `base` to `run`: the parameters in words, whether the data hash moved, the
  * row counts, and for each boundary (paired by age), trait (by key) and contrast (by name) the
  * base and run values of the odds ratios, p-values and flags, each marked `changed` when any differs.
- * An item only one side has is kept, with `presence` saying which.
+ * An item only one side has is kept, with `presence` saying which. Per boundary, the verdicts of the
+ * sampling check and the robustness panel, and for the run as a whole crisis against background,
+ * with the verdicts that changed in words; a check only one run holds is named in `note`, not
+ * compared.
  *
  * @example
  * const diff = compareRuns(olderRun, reRun);
@@ -72,15 +68,18 @@ export function compareRuns(base: Run, run: Run): RunDiff {
   const { results: _r, ...runSummary } = run;
   void _b;
   void _r;
+  const baseBoundaries = base.results?.boundaries ?? [];
+  const runBoundaries = run.results?.boundaries ?? [];
   return {
     base: baseSummary,
     run: runSummary,
     hashChanged: base.dataHash !== run.dataHash,
     rowCount: { ...pair(base.rowCount, run.rowCount), change: base.rowCount !== null && run.rowCount !== null ? run.rowCount - base.rowCount : null },
     paramsChanged: paramChanges(base.params, run.params, (id) => labels.get(id) ?? id),
-    boundaries: pairBy(base.results?.boundaries ?? [], run.results?.boundaries ?? [], (b) => String(b.boundaryMa)).map((bp) => {
+    boundaries: pairBy(baseBoundaries, runBoundaries, (b) => String(b.boundaryMa)).map((bp) => {
       const b = bp.base;
       const r = bp.run;
+      const comparable = bp.base !== null && bp.run !== null;
       return {
         boundaryMa: (r ?? b)!.boundaryMa,
         windowMyr: pair(b?.windowMyr, r?.windowMyr),
@@ -113,7 +112,10 @@ export function compareRuns(base: Run, run: Run): RunDiff {
             changed: Object.values(numbers).some(differs) || contrasts.some((c) => c.changed),
           };
         }),
+        sampling: compareSampling(b, r, comparable),
+        robustness: compareRobustness(base, run, b ? baseBoundaries.indexOf(b) : -1, r ? runBoundaries.indexOf(r) : -1, comparable),
       };
     }),
+    crisis: compareCrisis(base, run),
   };
 }
