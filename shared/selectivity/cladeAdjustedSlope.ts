@@ -44,19 +44,21 @@ export function cladeAdjustedSlope(
   minInformativeClades = 3,
 ): { adjusted: ContrastResult["cladeAdjusted"]; notes: string[]; groups: CladeGroup[]; conditionalLogOdds: number | null } {
   const cladeCount = cladeNames.length;
-  const members: number[][] = Array.from({ length: cladeCount }, () => []);
+  // Each clade's taxa with a value, in taxon order: counted, then filled (no array per clade grown one by one).
+  const sizes = new Int32Array(cladeCount);
+  for (let i = 0; i < transformed.length; i++) if (!Number.isNaN(transformed[i]) && clade[i] >= 0) sizes[clade[i]]++;
+  const byClade = Array.from(sizes, (size) => ({ x: new Float64Array(size), y: new Uint8Array(size), filled: 0 }));
   for (let i = 0; i < transformed.length; i++) {
     if (Number.isNaN(transformed[i]) || clade[i] < 0) continue;
-    members[clade[i]].push(i);
+    const group = byClade[clade[i]];
+    group.x[group.filled] = (transformed[i] - scaling.center) / scaling.scale;
+    group.y[group.filled++] = outcome[i];
   }
   const groups: CladeGroup[] = [];
   const groupClade: number[] = [];
-  members.forEach((rows, c) => {
-    if (rows.length === 0) return;
-    groups.push({
-      x: Float64Array.from(rows, (i) => (transformed[i] - scaling.center) / scaling.scale),
-      y: Uint8Array.from(rows, (i) => outcome[i]),
-    });
+  byClade.forEach((group, c) => {
+    if (group.filled === 0) return;
+    groups.push({ x: group.x, y: group.y });
     groupClade.push(c);
   });
   const prepared = groups.map((g) => prepareConditionalStrata(g.x, g.y, new Int32Array(g.x.length), 1)[0] ?? null);
