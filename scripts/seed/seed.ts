@@ -58,6 +58,9 @@ async function demoAccountsInUse(db: Db): Promise<DemoAccount[]> {
  */
 export async function seedIfEmpty(databaseUrl: string, env: { NODE_ENV?: string } = process.env): Promise<string[]> {
   const pool = new pg.Pool({ connectionString: databaseUrl, max: 2 });
+  // pool.end() resolves before its clients' connections have closed; one ended by the server in
+  // that moment (a shutdown, a dropped database) must not crash the process. Queries still reject.
+  pool.on("error", (err) => console.error(`seeding pool: ${err.message}`));
   const db = drizzle(pool, { schema });
   const lines: string[] = [];
   try {
