@@ -311,6 +311,85 @@ describe("a run on the planted study", () => {
     expect(diff.hashChanged).toBe(false);
     expect(diff.paramsChanged).toEqual([]);
     expect(diff.boundaries[0].traits.every((t) => !t.changed)).toBe(true);
+    // The checks of the findings: the robustness panel in both runs, the same verdicts; no sampling
+    // covariates asked for and one boundary only (no crisis), so nothing to compare there.
+    expect(diff.boundaries[0].robustness).toMatchObject({ base: { status: "computed" }, run: { status: "computed" }, note: null, changes: [], changed: false });
+    expect(diff.boundaries[0].robustness.contrasts.length).toBeGreaterThan(0);
+    expect(diff.boundaries[0].sampling).toMatchObject({ base: { status: "absent" }, run: { status: "absent" }, note: null, contrasts: [] });
+    expect(diff.crisis).toMatchObject({ base: { status: "not-computed" }, run: { status: "not-computed" }, note: null, changes: [], changed: false });
+  });
+
+  it("compares the verdicts of the run's checks, and names the checks a run saved before them lacks", async () => {
+    const stored = first.results!;
+    expect(stored.robustness?.status).toBe("computed");
+    if (stored.robustness?.status !== "computed") return;
+    const panel = stored.robustness.boundaries[0].panel!;
+    const insertCopy = async (name: string, results: Record<string, unknown>) =>
+      (
+        await app.ctx.db
+          .insert(runs)
+          .values({ studyId, name, params: first.params as unknown as Record<string, unknown>, appVersion: "invented", status: "succeeded", progress: 1, dataHash: first.dataHash, rowCount: first.rowCount, results })
+          .returning()
+      )[0];
+    const diffOf = async (runId: string, againstId: string) => {
+      const res = await cast.people.viewer.agent.get(`/api/studies/${studyId}/runs/${runId}/diff?against=${againstId}`);
+      expect(res.status, JSON.stringify(res.body)).toBe(200);
+      return res.body as RunDiff;
+    };
+
+    // The first run as a run saved before runs computed the robustness panel and crisis against background.
+    const { robustness: _panel, crisisVersusBackground: _crisis, ...beforeChecks } = stored;
+    void _panel;
+    void _crisis;
+    const older = await insertCopy("Planted effects, saved before the checks (invented)", beforeChecks);
+
+    // The first run with invented verdicts: the life habit's crude robustness verdict turned, and a
+    // sampling check saying its contrast does not hold once sampling is allowed for.
+    const habit = panel.contrasts.find((c) => c.traitKey === "life_habit")!;
+    const turned = habit.verdict.crude.status === "holds" ? "never-there" : "holds";
+    const edited = structuredClone(stored);
+    if (edited.robustness?.status !== "computed") return;
+    edited.robustness.boundaries[0].panel!.contrasts.find((c) => c.traitKey === "life_habit")!.verdict.crude = { status: turned, changedUnder: [], sentence: "Invented for this test." };
+    edited.boundaries[0].sampling = {
+      covariates: ["occurrences"],
+      taxa: PLANTED.length,
+      withoutOccurrences: 0,
+      covariateTerms: [],
+      contrasts: [{ traitKey: "life_habit", traitLabel: "Life habit", state: "infaunal", contrast: habit.contrast, withoutSampling: null, withSampling: null, verdict: "does_not_hold", words: "Invented for this test." }],
+      note: null,
+      method: "Invented for this test.",
+      caution: "Invented for this test.",
+    };
+    const invented = await insertCopy("Planted effects, verdicts invented", edited as unknown as Record<string, unknown>);
+    try {
+      const fromOlder = await diffOf(first.id, older.id);
+      expect(fromOlder.boundaries[0].robustness).toMatchObject({
+        base: { status: "absent" },
+        run: { status: "computed" },
+        note: "Not in the earlier run: it was saved before runs computed a robustness panel.",
+        changes: [],
+        changed: false,
+      });
+      // The older run has no crisis part; the first run did not compute one (one boundary): no note either way.
+      expect(fromOlder.crisis).toMatchObject({ base: { status: "absent" }, run: { status: "not-computed" }, note: null, changes: [] });
+
+      const words = { holds: "holds", fragile: "fragile", "never-there": "never there", "not-estimated": "not estimated" } as const;
+      const toInvented = await diffOf(invented.id, first.id);
+      expect(toInvented.boundaries[0].robustness.changes).toContain(`Life habit, ${habit.contrast} (crude): ${words[habit.verdict.crude.status]} → ${words[turned]}`);
+      expect(toInvented.boundaries[0].robustness.contrasts.filter((c) => c.changed).map((c) => c.traitKey)).toEqual(["life_habit"]);
+      expect(toInvented.boundaries[0].sampling).toMatchObject({
+        base: { status: "absent" },
+        run: { status: "computed" },
+        note: "Not in the earlier run: it added no sampling covariates, or was saved before runs could.",
+        changes: [],
+      });
+      // Compared the other way, the stored sampling check is the one the later run lacks.
+      const back = await diffOf(first.id, invented.id);
+      expect(back.boundaries[0].sampling.note).toBe("Not in the later run: it added no sampling covariates, or was saved before runs could.");
+      expect(back.boundaries[0].robustness.changes).toContain(`Life habit, ${habit.contrast} (crude): ${words[turned]} → ${words[habit.verdict.crude.status]}${habit.verdict.crude.status === "fragile" ? ` (changes under ${habit.verdict.crude.changedUnder.join("; ")})` : ""}`);
+    } finally {
+      await app.ctx.db.delete(runs).where(inArray(runs.id, [older.id, invented.id]));
+    }
   });
 
   it("re-run after a value changed reads a different hash, and the comparison shows what changed", async () => {

@@ -1,6 +1,6 @@
 import { Fragment, useId, useState } from "react";
 import { Link, useSearchParams } from "react-router-dom";
-import type { RunDiff } from "@shared/schemas/runDiff";
+import type { RunDiff, RunDiffCheckSide } from "@shared/schemas/runDiff";
 import type { RunSummary } from "@shared/schemas/runs";
 import { Button, ButtonLink } from "../../components/Button";
 import { Card } from "../../components/Card";
@@ -76,7 +76,7 @@ export function RunComparePage() {
 function Comparison({ studyId, diff }: { studyId: string; diff: RunDiff }) {
   const [onlyChanged, setOnlyChanged] = useState(false);
   const onlyId = useId();
-  const anyChange = diff.boundaries.some((b) => b.traits.some((t) => t.changed));
+  const anyChange = diff.boundaries.some((b) => b.traits.some((t) => t.changed) || b.sampling.changed || b.robustness.changed) || diff.crisis.changed;
   return (
     <div className="space-y-6" data-testid="run-comparison">
       <div className="grid gap-4 md:grid-cols-2">
@@ -109,9 +109,22 @@ function Comparison({ studyId, diff }: { studyId: string; diff: RunDiff }) {
           ) : (
             <ChangedParameters changes={diff.paramsChanged} />
           )}
-          {!anyChange && <p className="text-stone-700">No test result or odds ratio differs between the two runs.</p>}
+          {!anyChange && <p className="text-stone-700">No test result, odds ratio or verdict differs between the two runs.</p>}
         </div>
       </Card>
+
+      {shown(diff.crisis) && (
+        <Card
+          title="Crisis against background"
+          description={
+            diff.crisis.crisis.base === diff.crisis.crisis.run
+              ? `Does each trait sort survivors from victims differently at ${diff.crisis.crisis.run} than at the background boundaries?`
+              : "Does each trait sort survivors from victims differently at the crisis than at the background boundaries?"
+          }
+        >
+          <CheckChanges check={diff.crisis} name="crisis" />
+        </Card>
+      )}
 
       <div className="flex items-center gap-2">
         <input id={onlyId} type="checkbox" checked={onlyChanged} onChange={(e) => setOnlyChanged(e.target.checked)} className="size-4 rounded border-stone-300 accent-accent-600" />
@@ -163,6 +176,11 @@ function BoundaryComparison({ boundary, onlyChanged }: { boundary: RunDiff["boun
     ["In the regression", boundary.completeCases],
   ];
   const window = boundary.windowMyr;
+  const checks: Array<[string, string, Check]> = [
+    ["Does each contrast hold once sampling is allowed for?", "sampling", boundary.sampling],
+    ["Robustness panel", "robustness", boundary.robustness],
+  ];
+  const checksShown = checks.filter(([, , check]) => shown(check) && (!onlyChanged || check.changed || check.note !== null));
   return (
     <Card
       title={boundary.label}
@@ -183,8 +201,18 @@ function BoundaryComparison({ boundary, onlyChanged }: { boundary: RunDiff["boun
           </div>
         ))}
       </dl>
+      {checksShown.length > 0 && (
+        <div className="mb-4 space-y-3" aria-label={`Checks of the findings at ${boundary.label}`} role="group">
+          {checksShown.map(([title, name, check]) => (
+            <div key={name}>
+              <h3 className="text-sm font-semibold text-stone-900">{title}</h3>
+              <CheckChanges check={check} name={name} />
+            </div>
+          ))}
+        </div>
+      )}
       {traits.length === 0 ? (
-        <p className="text-[15px] text-stone-600">Nothing changed at this boundary.</p>
+        <p className="text-[15px] text-stone-600">{boundary.traits.length === 0 ? "No trait results at this boundary." : "No test result or odds ratio changed at this boundary."}</p>
       ) : (
         <div className="overflow-x-auto rounded-lg border border-stone-200">
           <table className="w-full min-w-[30rem] text-sm">
@@ -209,6 +237,30 @@ function BoundaryComparison({ boundary, onlyChanged }: { boundary: RunDiff["boun
         </div>
       )}
     </Card>
+  );
+}
+
+type Check = { base: RunDiffCheckSide; run: RunDiffCheckSide; note: string | null; changes: string[]; changed: boolean };
+
+/** A check is worth a line when either run holds it (otherwise neither has anything to compare). */
+const shown = (check: Check) => check.base.status === "computed" || check.run.status === "computed";
+
+/** The verdicts of one check that changed, in words; or why they are not compared. */
+function CheckChanges({ check, name }: { check: Check; name: string }) {
+  return (
+    <div className="text-[15px]" data-compare-check={name} data-changed={check.changed ? "true" : "false"}>
+      {check.note !== null ? (
+        <p className="text-stone-600">{check.note}</p>
+      ) : check.changes.length === 0 ? (
+        <p className="text-stone-700">Same verdicts in both runs.</p>
+      ) : (
+        <ul className="mt-1 list-disc space-y-0.5 pl-5 text-stone-800">
+          {check.changes.map((change) => (
+            <li key={change}>{change}</li>
+          ))}
+        </ul>
+      )}
+    </div>
   );
 }
 

@@ -35,6 +35,9 @@ export function RerunChanges({ studyId, runId, baseId }: { studyId: string; runI
 function DiffSummary({ diff }: { diff: RunDiff }) {
   const changed: ChangedTrait[] = diff.boundaries.flatMap((b) => b.traits.filter((t) => t.changed).map((t) => ({ ...t, boundary: b.label })));
   const rowChange = diff.rowCount.change;
+  // The verdicts of the run's checks (sampling, robustness, crisis against background) that moved.
+  const at = (label: string) => (diff.boundaries.length > 1 ? ` (at ${label})` : "");
+  const verdicts = [...diff.boundaries.flatMap((b) => [...b.sampling.changes, ...b.robustness.changes].map((c) => `${c}${at(b.label)}`)), ...diff.crisis.changes];
   return (
     <div className="space-y-3 text-[15px]" data-testid="rerun-changes">
       <p className={cx("rounded-lg px-4 py-3", diff.hashChanged ? "border border-caution-200 bg-caution-50 text-stone-800" : "bg-stone-50 text-stone-700")}>
@@ -54,9 +57,9 @@ function DiffSummary({ diff }: { diff: RunDiff }) {
       {diff.paramsChanged.length > 0 && (
         <ChangedParameters changes={diff.paramsChanged} />
       )}
-      {changed.length === 0 ? (
-        <p className="text-stone-700">No test result or odds ratio moved.</p>
-      ) : (
+      {changed.length === 0 && verdicts.length === 0 ? (
+        <p className="text-stone-700">No test result, odds ratio or verdict moved.</p>
+      ) : changed.length === 0 ? null : (
         <div>
           <p className="font-medium text-stone-900">Results that moved</p>
           <ul className="mt-1 space-y-1 text-stone-700">
@@ -69,6 +72,16 @@ function DiffSummary({ diff }: { diff: RunDiff }) {
                   .map((c) => `; ${c.contrast}: crude odds ratio ${arrow(formatEstimate(c.crudeOddsRatio.base), formatEstimate(c.crudeOddsRatio.run))}`)
                   .join("")}
               </li>
+            ))}
+          </ul>
+        </div>
+      )}
+      {verdicts.length > 0 && (
+        <div data-testid="rerun-verdicts">
+          <p className="font-medium text-stone-900">Verdicts that changed</p>
+          <ul className="mt-1 list-disc space-y-1 pl-5 text-stone-700">
+            {verdicts.map((v) => (
+              <li key={v}>{v}</li>
             ))}
           </ul>
         </div>
