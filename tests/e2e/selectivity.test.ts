@@ -7,7 +7,9 @@ import { randomUUID } from "node:crypto";
 import { readFileSync } from "node:fs";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Download, Page } from "playwright-core";
+import { eq } from "drizzle-orm";
 import { runs, taxa } from "../../db/schema/index";
+import type { Run } from "../../shared/schemas/runs";
 import { launchBrowser, screenshot, withScreenshotOnFailure } from "../support/browser";
 import { PASSWORD, startTestServer, uniqueEmail } from "../support/server";
 import { NO_HABIT, NOT_AT_RISK, plantedTaxa, SPARED } from "../support/plantedSelectivity";
@@ -253,7 +255,7 @@ describe("selectivity screen", () => {
       const changes = page.getByTestId("rerun-changes");
       await changes.waitFor({ timeout: 60_000 });
       expect(await changes.innerText()).toContain("Same data");
-      expect(await changes.innerText()).toContain("No test result or odds ratio moved.");
+      expect(await changes.innerText()).toContain("No test result, odds ratio or verdict moved.");
 
       // The two runs side by side, chosen in the list.
       await page.getByRole("navigation", { name: "Study" }).getByRole("link", { name: "Runs" }).click();
@@ -265,6 +267,61 @@ describe("selectivity screen", () => {
       expect(await comparison.getByTestId("data-change").innerText()).toContain("Same data");
       await comparison.getByText("Same parameters.").waitFor();
       expect(await comparison.locator('[data-compare-trait][data-changed="true"]').count()).toBe(0);
+      // The checks of the findings: both runs hold a robustness panel at each boundary, with the same verdicts.
+      expect(await comparison.locator('[data-compare-check="robustness"]').count()).toBe(2);
+      expect(await comparison.locator('[data-compare-check="robustness"]').first().innerText()).toBe("Same verdicts in both runs.");
+
+      // A stored copy of the run with one robustness verdict turned and a sampling check the first
+      // run lacks (invented for this test): the comparison names the turned verdict, and says the
+      // sampling check is not in the earlier run rather than calling it a change.
+      const stored = ((await (await page.request.get(`${server.url}/api/studies/${studyId}/runs/${runId}`)).json()) as Run).results!;
+      if (stored.robustness?.status !== "computed") throw new Error("The run has no robustness panel");
+      const habitContrast = stored.robustness.boundaries[0]!.panel!.contrasts.find((c) => c.traitKey === "life_habit")!;
+      const before = habitContrast.verdict.crude.status;
+      const turned = before === "holds" ? "never-there" : "holds";
+      const edited = structuredClone(stored);
+      if (edited.robustness?.status !== "computed") throw new Error("The run has no robustness panel");
+      edited.robustness.boundaries[0]!.panel!.contrasts.find((c) => c.traitKey === "life_habit")!.verdict.crude = { status: turned, changedUnder: [], sentence: "Invented for this test." };
+      edited.boundaries[0]!.sampling = {
+        covariates: ["occurrences"],
+        taxa: AT_RISK,
+        withoutOccurrences: 0,
+        covariateTerms: [],
+        contrasts: [{ traitKey: "life_habit", traitLabel: "Life habit", state: "infaunal", contrast: habitContrast.contrast, withoutSampling: null, withSampling: null, verdict: "holds", words: "Invented for this test." }],
+        note: null,
+        method: "Invented for this test.",
+        caution: "Invented for this test.",
+      };
+      const storedRun = (await (await page.request.get(`${server.url}/api/studies/${studyId}/runs/${runId}`)).json()) as Run;
+      const [copy] = await server.ctx.db
+        .insert(runs)
+        .values({
+          studyId,
+          name: "Planted effects, verdicts invented",
+          params: storedRun.params as unknown as Record<string, unknown>,
+          appVersion: "invented",
+          status: "succeeded",
+          progress: 1,
+          dataHash: storedRun.dataHash,
+          rowCount: storedRun.rowCount,
+          results: edited as unknown as Record<string, unknown>,
+          createdBy: userId,
+        })
+        .returning();
+      await page.goto(`${server.url}/studies/${studyId}/runs/compare?base=${runId}&run=${copy!.id}`);
+      const turnedCheck = page.getByTestId("run-comparison").locator('[data-compare-check="robustness"]').first();
+      await turnedCheck.waitFor();
+      expect(await turnedCheck.getAttribute("data-changed")).toBe("true");
+      const verdictWords = { holds: "holds", fragile: "fragile", "never-there": "never there", "not-estimated": "not estimated" } as const;
+      expect(await turnedCheck.innerText()).toContain(`Life habit, ${habitContrast.contrast} (crude): ${verdictWords[before]} → ${verdictWords[turned]}`);
+      const samplingCheck = page.getByTestId("run-comparison").locator('[data-compare-check="sampling"]');
+      expect(await samplingCheck.innerText()).toBe("Not in the earlier run: it added no sampling covariates, or was saved before runs could.");
+      expect(await samplingCheck.getAttribute("data-changed")).toBe("false");
+      expect(await page.getByText("No test result, odds ratio or verdict differs between the two runs.").count()).toBe(0);
+      // Show only what changed keeps the turned verdict and drops the boundary whose verdicts stand.
+      await page.getByLabel("Show only what changed").check();
+      expect(await page.getByTestId("run-comparison").locator('[data-compare-check="robustness"]').count()).toBe(1);
+      await server.ctx.db.delete(runs).where(eq(runs.id, copy!.id));
 
       // A run that failed shows why, and a Retry computes it.
       const params = ((await (await page.request.get(`${server.url}/api/studies/${studyId}/runs/${runId}`)).json()) as { params: Record<string, unknown> }).params;
