@@ -2,7 +2,7 @@ import { buildDesignMatrix, logisticRegression, type LogisticRegressionResult } 
 import { twoSidedCriticalValue } from "../stats/distributions";
 import { numericPredictorLabel, type NumericScaling } from "./scaleNumericTrait";
 import { fitPrepared, prepareConditionalStrata } from "../stats/conditionalLogistic";
-import type { CladeGroup } from "./cladeConfounding";
+import { conditionalShape, type CladeGroup } from "./cladeConfounding";
 import { fitStratifiedSlope } from "./stratifiedSlope";
 
 /** Above this many recursion steps (sum over clades of size x cases) the conditional fit gives way to the stratified one. */
@@ -61,8 +61,10 @@ export function cladeAdjustedSlope(
     groups.push({ x: group.x, y: group.y });
     groupClade.push(c);
   });
-  const prepared = groups.map((g) => prepareConditionalStrata(g.x, g.y, new Int32Array(g.x.length), 1)[0] ?? null);
-  const kept = prepared.map((p, k) => (p ? k : -1)).filter((k) => k >= 0);
+  // Which clades carry information within clade (and the conditional fit's work), without building
+  // the conditional strata, which only the conditional fit needs.
+  const shapes = groups.map(conditionalShape);
+  const kept = shapes.map((shape, k) => (shape ? k : -1)).filter((k) => k >= 0);
   const withTaxa = groups.length;
   const none = (note: string) => ({ adjusted: null, notes: [note], groups, conditionalLogOdds: null });
   if (withTaxa === 0) return none(`No taxon with a value of ${spec.label} has a clade, so the odds ratio within clades cannot be estimated.`);
@@ -94,8 +96,8 @@ export function cladeAdjustedSlope(
     );
   }
 
-  const informativeStrata = prepared.filter((p): p is NonNullable<typeof p> => p !== null);
-  if (conditionalWork(informativeStrata) > CONDITIONAL_WORK_LIMIT) {
+  const work = shapes.reduce((a, shape) => a + (shape ? shape.taxa * shape.cases : 0), 0);
+  if (work > CONDITIONAL_WORK_LIMIT) {
     // Clades this large make the conditional recursion slow, and make it unnecessary: with many
     // taxa per clade the incidental-parameter bias of one intercept per clade vanishes (Breslow &
     // Day 1980, vol. 1, ch. 7), so the ordinary stratified fit is used and said.
@@ -123,6 +125,7 @@ export function cladeAdjustedSlope(
       };
     }
   }
+  const informativeStrata = kept.map((k) => prepareConditionalStrata(groups[k].x, groups[k].y, new Int32Array(groups[k].x.length), 1)[0]);
   const conditional = fitPrepared(informativeStrata, 0);
   if (conditional.converged && Number.isFinite(conditional.se)) {
     const z = twoSidedCriticalValue(level);

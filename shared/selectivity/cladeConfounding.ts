@@ -130,11 +130,13 @@ function judge(groups: CladeGroup[], cells: CladeCells[], options: CladeConfound
       const valueOf = pooled!.valueOf[k];
       const { x, y } = sample[k];
       const n = g.x.length;
+      const value = sample[k].value;
       for (let i = 0; i < n; i++) {
         const j = Math.floor(random() * n);
-        x[i] = g.x[j];
+        // Large clades work from the values' indices (pooled rows); the values themselves only for the conditional step.
+        if (large) value[i] = valueOf[j];
+        else x[i] = g.x[j];
         y[i] = g.y[j];
-        sample[k].value[i] = valueOf[j];
         counts.taxa[valueOf[j]]++;
         counts.victims[valueOf[j]] += g.y[j];
       }
@@ -189,7 +191,7 @@ function judge(groups: CladeGroup[], cells: CladeCells[], options: CladeConfound
  * building its stratum): null when it carries no information within the clade (one outcome or one
  * value), else its taxa and cases (the smaller outcome group).
  */
-function conditionalShape(g: CladeGroup): { taxa: number; cases: number } | null {
+export function conditionalShape(g: CladeGroup): { taxa: number; cases: number } | null {
   let events = 0;
   let low = Infinity;
   let high = -Infinity;
