@@ -180,7 +180,8 @@ function BoundaryComparison({ boundary, onlyChanged }: { boundary: RunDiff["boun
     ["Does each contrast hold once sampling is allowed for?", "sampling", boundary.sampling],
     ["Robustness panel", "robustness", boundary.robustness],
   ];
-  const checksShown = checks.filter(([, , check]) => shown(check) && (!onlyChanged || check.changed || check.note !== null));
+  // A boundary only one run has has no verdicts to compare: its presence line says so.
+  const checksShown = boundary.presence === "both" ? checks.filter(([, , check]) => shown(check) && (!onlyChanged || check.changed || check.note !== null)) : [];
   return (
     <Card
       title={boundary.label}
