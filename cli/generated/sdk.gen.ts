@@ -616,7 +616,7 @@ export const rerunRun = <ThrowOnError extends boolean = false>(options: Options<
 });
 
 /**
- * Two finished runs side by side: whether the data changed (hash, row count), which parameters differ, and each trait's and contrast's odds ratios and p-values
+ * Two finished runs side by side: whether the data changed (hash, row count), which parameters differ, each trait's and contrast's odds ratios and p-values, and the verdicts of the runs' checks that changed (sampling, robustness panel, crisis against background)
  *
  * Study action: `study.read`
  */

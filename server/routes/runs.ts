@@ -101,7 +101,7 @@ export function runsRouter(ctx: AppContext, registry: OpenAPIRegistry): ApiRoute
     method: "get",
     path: "/studies/:studyId/runs/:runId/diff",
     operationId: "diffRuns",
-    summary: "Two finished runs side by side: whether the data changed (hash, row count), which parameters differ, and each trait's and contrast's odds ratios and p-values",
+    summary: "Two finished runs side by side: whether the data changed (hash, row count), which parameters differ, each trait's and contrast's odds ratios and p-values, and the verdicts of the runs' checks that changed (sampling, robustness panel, crisis against background)",
     tags,
     access: "study.read",
     params: runParamsPathSchema,
