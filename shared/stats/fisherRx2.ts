@@ -1,6 +1,6 @@
 import { LogSumAccumulator, logFactorialTable } from "./distributions";
 import type { CompactTable } from "./freemanHalton";
-import { sortAndMergePairs } from "./pairedSort";
+import { mergeCloseKeys, sortAndMergePairs } from "./pairedSort";
 import { countAtMost } from "./sortedSearch";
 
 /** Two tables count as equally likely when their probabilities differ by less than this factor (as R's fisher.test). */
@@ -227,19 +227,8 @@ function mergeRuns(runs: Paths[]): Paths {
     if (queue.length % 2 === 1) merged.push(queue[queue.length - 1]);
     queue = merged;
   }
-  const only = queue[0];
-  const scores = only.scores;
-  const counts = only.counts;
-  let kept = 0;
-  for (let i = 0; i < scores.length; i++) {
-    if (kept > 0 && scores[i] - scores[kept - 1] < MERGE_TOLERANCE) {
-      counts[kept - 1] += counts[i];
-    } else {
-      scores[kept] = scores[i];
-      counts[kept] = counts[i];
-      kept++;
-    }
-  }
+  const { scores, counts } = queue[0];
+  const kept = mergeCloseKeys(scores, counts, MERGE_TOLERANCE);
   return { scores: scores.subarray(0, kept), counts: counts.subarray(0, kept) };
 }
 

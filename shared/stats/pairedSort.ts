@@ -46,6 +46,11 @@ export function sortPairs(keys: Float64Array, values: Float64Array, lo = 0, hi =
  */
 export function sortAndMergePairs(keys: Float64Array, values: Float64Array, tolerance: number): number {
   sortPairs(keys, values, 0, keys.length - 1);
+  return mergeCloseKeys(keys, values, tolerance);
+}
+
+/** On keys already ascending: merges keys within `tolerance` of the one kept before, adding values; returns the length kept. */
+export function mergeCloseKeys(keys: Float64Array, values: Float64Array, tolerance: number): number {
   let kept = 0;
   for (let i = 0; i < keys.length; i++) {
     if (kept > 0 && keys[i] - keys[kept - 1] < tolerance) {
