@@ -4,11 +4,14 @@ import type { Study } from "@shared/schemas/studies";
 import { queryKeys } from "../lib/queryKeys";
 import { studyQuery } from "../lib/queries/study";
 
-let client: QueryClient | null = null;
+// The router runs the first page's loaders as soon as it is created, before the providers have made
+// the query client: the loaders wait for it (without holding the navigation).
+let provide: (queryClient: QueryClient) => void = () => undefined;
+const client = new Promise<QueryClient>((resolve) => (provide = resolve));
 
-/** The app's query client, for the route loaders below (set once by the providers). */
+/** The app's query client, for the route loaders below (given once by the providers). */
 export function provideScreenDataClient(queryClient: QueryClient): void {
-  client = queryClient;
+  provide(queryClient);
 }
 
 /** The study as cached (its own answer, else the studies list's copy), or asked for (joining a request in flight). */
@@ -23,22 +26,26 @@ async function studyFor(queryClient: QueryClient, studyId: string): Promise<Stud
  * (answers at once) and never fails it: the screen asks again, and shows its own errors.
  */
 export function boundaryDataLoader({ params, request }: LoaderFunctionArgs): null {
-  const queryClient = client;
   const studyId = params.studyId;
-  if (!queryClient || !studyId) return null;
+  if (!studyId) return null;
   const search = new URL(request.url).searchParams;
-  void Promise.all([studyFor(queryClient, studyId), import("../features/boundary/screenQueries")])
-    .then(([study, screen]) => screen.prefetchBoundaryScreen(queryClient, study, search))
+  void client
+    .then((queryClient) =>
+      Promise.all([studyFor(queryClient, studyId), import("../features/boundary/screenQueries")]).then(([study, screen]) =>
+        screen.prefetchBoundaryScreen(queryClient, study, search),
+      ),
+    )
     .catch(() => undefined);
   return null;
 }
 
 /** Route loader of a study's Overview: its requests start as the navigation begins (as above). */
 export function overviewDataLoader({ params }: LoaderFunctionArgs): null {
-  const queryClient = client;
   const studyId = params.studyId;
-  if (!queryClient || !studyId) return null;
-  void import("../features/study-overview/screenQueries").then((screen) => screen.prefetchOverviewScreen(queryClient, studyId)).catch(() => undefined);
+  if (!studyId) return null;
+  void Promise.all([client, import("../features/study-overview/screenQueries")])
+    .then(([queryClient, screen]) => screen.prefetchOverviewScreen(queryClient, studyId))
+    .catch(() => undefined);
   return null;
 }
 
