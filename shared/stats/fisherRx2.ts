@@ -105,6 +105,9 @@ export function fisherRx2(
   // those none of whose completions count one suffix (dropped), and only the paths in between move on.
   let level = new Map<number, Paths>([[placed, { scores: Float64Array.of(0), counts: Float64Array.of(1) }]]);
   for (let k = 0; k < back; k++) {
+    const workBefore = work;
+    let pathsIn = 0;
+    for (const paths of level.values()) pathsIn += paths.scores.length;
     const grow = new Map<number, Paths[]>();
     for (const [need, paths] of level) {
       const logPrefix = logPrefixSums(paths);
@@ -133,7 +136,17 @@ export function fisherRx2(
       }
     }
     level = new Map();
-    for (const [need, runs] of grow) level.set(need, mergeRuns(runs));
+    let pathsOut = 0;
+    for (const [need, runs] of grow) {
+      const merged = mergeRuns(runs);
+      level.set(need, merged);
+      pathsOut += merged.scores.length;
+    }
+    // Give up early when, even if the paths stopped multiplying, the rows still to walk would cost
+    // more than the budget left (each path costing what one did at this row): a table that far out
+    // of reach should reach Monte Carlo without spending the whole budget first.
+    const perPath = (work - workBefore) / Math.max(1, pathsIn);
+    if (work + pathsOut * perPath * (back - 1 - k) > workLimit) return null;
   }
 
   // Every row listed (small tables): the one path, at the root, meets them all.
