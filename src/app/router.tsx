@@ -5,7 +5,7 @@ import { NotFoundPage } from "./NotFoundPage";
 import { PUBLIC_ROUTES } from "./publicRoutes";
 import { PublicLayout } from "./PublicLayout";
 import { RouteErrorPage } from "./RouteErrorPage";
-import { boundaryDataLoader, onEnteringOnly, overviewDataLoader } from "./screenData";
+import { boundaryDataLoader, onEnteringOnly, overviewDataLoader, studiesDataLoader } from "./screenData";
 
 /**
  * Every screen is a chunk of its own, fetched on the first visit, so the sign-in page carries neither
@@ -40,7 +40,7 @@ export const router = createBrowserRouter([
       {
         lazy: screen(() => import("./AppShell"), "AppShell"),
         children: [
-          { index: true, lazy: screen(() => import("../features/studies/StudiesPage"), "StudiesPage") },
+          { index: true, loader: studiesDataLoader, shouldRevalidate: onEnteringOnly, lazy: screen(() => import("../features/studies/StudiesPage"), "StudiesPage") },
           { path: "studies/new", lazy: screen(() => import("../features/studies/NewStudyPage"), "NewStudyPage") },
           {
             path: "studies/:studyId",

@@ -2,7 +2,8 @@ import type { QueryClient } from "@tanstack/react-query";
 import type { LoaderFunctionArgs, ShouldRevalidateFunctionArgs } from "react-router-dom";
 import type { Study } from "@shared/schemas/studies";
 import { queryKeys } from "../lib/queryKeys";
-import { studyQuery } from "../lib/queries/study";
+import { studiesQuery, studyQuery } from "../lib/queries/study";
+import { meQuery } from "../lib/session";
 
 // The router runs the first page's loaders as soon as it is created, before the providers have made
 // the query client: the loaders wait for it (without holding the navigation).
@@ -45,6 +46,26 @@ export function overviewDataLoader({ params }: LoaderFunctionArgs): null {
   if (!studyId) return null;
   void Promise.all([client, import("../features/study-overview/screenQueries")])
     .then(([queryClient, screen]) => screen.prefetchOverviewScreen(queryClient, studyId))
+    .catch(() => undefined);
+  return null;
+}
+
+/**
+ * Route loader of the studies list: a person with one study is taken straight to it (the list's
+ * own rule, after signing in), so that study's Overview requests start as soon as the list arrives,
+ * beside the list's script and the session, instead of a round trip after the redirect. Never holds
+ * or fails the navigation; a person with several studies costs nothing more.
+ */
+export function studiesDataLoader(): null {
+  void client
+    .then(async (queryClient) => {
+      // The session first (it answers 200 for nobody): a signed-out visit asks nothing that would fail.
+      await queryClient.fetchQuery(meQuery());
+      const studies = await queryClient.fetchQuery(studiesQuery());
+      if (studies.length !== 1) return;
+      const screen = await import("../features/study-overview/screenQueries");
+      screen.prefetchOverviewScreen(queryClient, studies[0].id);
+    })
     .catch(() => undefined);
   return null;
 }
