@@ -2,6 +2,7 @@ import { conditionalLogLik, prepareConditionalStrata } from "../stats/conditiona
 import { normalTwoSidedP } from "../stats/distributions";
 import { createUniformSource } from "../stats/random";
 import { fitStratifiedSlope } from "./stratifiedSlope";
+import { haldaneLogOdds } from "./haldaneLogOdds";
 import { answerIsClear, EARLY_STOP_BATCH, EARLY_STOP_TAXA } from "./bootstrapStopping";
 import { expit, fractionalSlope } from "./fractionalSlope";
 import type { ConfoundingJudgement } from "./types";
@@ -245,13 +246,7 @@ function statesCrude(cells: CladeCells[]): number {
     c += v0;
     d += s0;
   }
-  if (a === 0 || b === 0 || c === 0 || d === 0) {
-    a += 0.5;
-    b += 0.5;
-    c += 0.5;
-    d += 0.5;
-  }
-  return Math.log((a * d) / (b * c));
+  return haldaneLogOdds(a, b, c, d);
 }
 
 /** The directly standardised log odds ratio over the clades' cells (each clade weighted by its taxa), as standardisedLogOdds for states. */
@@ -358,13 +353,7 @@ export function crudeLogOdds(groups: CladeGroup[], weights: ArrayLike<number>, k
         else d += w;
       }
     });
-    if (a === 0 || b === 0 || c === 0 || d === 0) {
-      a += 0.5;
-      b += 0.5;
-      c += 0.5;
-      d += 0.5;
-    }
-    return Math.log((a * d) / (b * c));
+    return haldaneLogOdds(a, b, c, d);
   }
   return crudeSlope(poolByValue(groups, weights).counts);
 }

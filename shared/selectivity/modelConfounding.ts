@@ -6,6 +6,7 @@ import { createUniformSource } from "../stats/random";
 import { CLADE_CONFOUNDING_REPLICATES, CLADE_CONFOUNDING_SEED } from "./cladeConfounding";
 import { answerIsClear, EARLY_STOP_BATCH, EARLY_STOP_TAXA } from "./bootstrapStopping";
 import { expit, fractionalSlope } from "./fractionalSlope";
+import { haldaneLogOdds } from "./haldaneLogOdds";
 import type { ConfoundingJudgement } from "./types";
 
 /** One contrast to judge: a state's dummy column (others of the same trait listed) or a numeric column (0-based, without intercept). */
@@ -272,17 +273,7 @@ function stateTraitPass(
   for (let t = 0; t < m; t++) {
     const k = contrastOf[t];
     if (k < 0) continue;
-    let a = victims1[t];
-    let b = survivors1[t];
-    let c = victims0;
-    let dd = survivors0;
-    if (a === 0 || b === 0 || c === 0 || dd === 0) {
-      a += 0.5;
-      b += 0.5;
-      c += 0.5;
-      dd += 0.5;
-    }
-    crudeLogs[k] = Math.log((a * dd) / (b * c));
+    crudeLogs[k] = haldaneLogOdds(victims1[t], survivors1[t], victims0, survivors0);
     const r1 = risk1[t] / count[t];
     const r0 = risk0[t] / count[t];
     standardisedLogs[k] = r1 > 0 && r1 < 1 && r0 > 0 && r0 < 1 ? Math.log(r1 / (1 - r1)) - Math.log(r0 / (1 - r0)) : NaN;
