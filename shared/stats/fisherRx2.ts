@@ -1,4 +1,5 @@
 import { LogSumAccumulator, logFactorialTable } from "./distributions";
+import { logPrefixSums } from "./logPrefixSums";
 import type { CompactTable } from "./freemanHalton";
 import { mergeCloseKeys, sortAndMergePairs } from "./pairedSort";
 import { countAtMost } from "./sortedSearch";
@@ -110,7 +111,7 @@ export function fisherRx2(
     for (const paths of level.values()) pathsIn += paths.scores.length;
     const grow = new Map<number, Paths[]>();
     for (const [need, paths] of level) {
-      const logPrefix = logPrefixSums(paths);
+      const logPrefix = logPrefixSums(paths.scores, paths.counts);
       for (let x = Math.max(0, need - rest[k + 1]); x <= Math.min(sizes[k], need); x++) {
         const child = need - x;
         if (!Number.isFinite(max[k + 1][child])) continue;
@@ -216,19 +217,7 @@ function completionLists(
       return { scores: scores.subarray(0, kept), counts: pathCounts.subarray(0, kept) };
     });
   }
-  return lists.map((list) => (list.scores.length === 0 ? undefined : { scores: list.scores, logCumulative: logPrefixSums(list) }));
-}
-
-/** ln of the running sums of count * exp(score) along the (ascending) paths. */
-function logPrefixSums(paths: Paths): Float64Array {
-  const logPrefix = new Float64Array(paths.scores.length);
-  let sum = -Infinity;
-  for (let i = 0; i < paths.scores.length; i++) {
-    const term = Math.log(paths.counts[i]) + paths.scores[i];
-    sum = sum >= term ? sum + Math.log1p(Math.exp(term - sum)) : term + Math.log1p(Math.exp(sum - term));
-    logPrefix[i] = sum;
-  }
-  return logPrefix;
+  return lists.map((list) => (list.scores.length === 0 ? undefined : { scores: list.scores, logCumulative: logPrefixSums(list.scores, list.counts) }));
 }
 
 /** Merges sorted runs of paths into one sorted list, joining scores closer than MERGE_TOLERANCE. */

@@ -7,6 +7,7 @@
 
 import { LogSumAccumulator, logFactorialTable } from "./distributions";
 import { createUniformSource, type UniformSource } from "./random";
+import { logPrefixSums } from "./logPrefixSums";
 import { sortAndMergePairs } from "./pairedSort";
 import { countAtMost } from "./sortedSearch";
 
@@ -177,13 +178,7 @@ export function freemanHaltonExact(table: CompactTable, workLimit: number): { lo
       const { pasts, counts } = sortAndMerge(node);
       node.pasts = [];
       node.counts = [];
-      const logPrefix = new Float64Array(pasts.length);
-      let running = -Infinity;
-      for (let i = 0; i < pasts.length; i++) {
-        const term = Math.log(counts[i]) + pasts[i];
-        running = running === -Infinity ? term : Math.max(running, term) + Math.log1p(Math.exp(-Math.abs(running - term)));
-        logPrefix[i] = running;
-      }
+      const logPrefix = logPrefixSums(pasts, counts);
       const completed = expandColumn(node.margins, columnTotals[j], logFactorials, (childMargins, delta) => {
         work++;
         let bounds: NodeBounds;
