@@ -360,20 +360,27 @@ export function crudeLogOdds(groups: CladeGroup[], weights: ArrayLike<number>, k
 
 /** The crude logistic slope from taxa pooled by value: a fractional logistic fit of each value's share of victims, weighted by its taxa. */
 function crudeSlope(counts: ValueCounts): number {
-  const { values, taxa, victims } = counts;
+  const { xs, ws, at } = occupiedValues(counts);
+  const shares = Float64Array.from(at, (v) => counts.victims[v] / counts.taxa[v]);
+  return fractionalSlope(xs, ws, shares);
+}
+
+/** The pooled values that hold taxa (xs, ascending), their taxa as weights (ws), and where each sits in `counts` (at). */
+function occupiedValues(counts: ValueCounts): { xs: Float64Array; ws: Float64Array; at: Int32Array } {
+  const { values, taxa } = counts;
   let used = 0;
   for (let v = 0; v < values.length; v++) if (taxa[v] > 0) used++;
   const xs = new Float64Array(used);
   const ws = new Float64Array(used);
-  const shares = new Float64Array(used);
+  const at = new Int32Array(used);
   for (let v = 0, k = 0; v < values.length; v++) {
     if (!(taxa[v] > 0)) continue;
     xs[k] = values[v];
     ws[k] = taxa[v];
-    shares[k] = victims[v] / taxa[v];
+    at[k] = v;
     k++;
   }
-  return fractionalSlope(xs, ws, shares);
+  return { xs, ws, at };
 }
 
 /** The clade intercept a with sum_i expit(a + beta x_i) = victims (the fitted model reproduces the clade's count); with `taxa`, x holds the clade's values pooled, each standing for taxa[i] taxa. */
@@ -476,17 +483,8 @@ function standardisedSlope(groups: CladeGroup[], weights: ArrayLike<number>, bet
     for (let j = 0; j < activeIntercepts.length; j++) sum += activeMass[j] * expit(activeIntercepts[j] + bx);
     return sum / total;
   };
-  const { values, taxa } = counts;
-  let used = 0;
-  for (let v = 0; v < values.length; v++) if (taxa[v] > 0) used++;
-  const xs = new Float64Array(used);
-  const ws = new Float64Array(used);
-  for (let v = 0, k = 0; v < values.length; v++) {
-    if (!(taxa[v] > 0)) continue;
-    xs[k] = values[v];
-    ws[k] = taxa[v];
-    k++;
-  }
+  const { xs, ws } = occupiedValues(counts);
+  const used = xs.length;
   const targets = new Float64Array(used);
   if (taxaCount * activeIntercepts.length <= 200_000) {
     for (let k = 0; k < used; k++) targets[k] = curve(xs[k]);
