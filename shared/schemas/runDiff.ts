@@ -33,6 +33,9 @@ const checkFields = {
   changed: z.boolean().meta({ description: "changes is not empty" }),
 };
 
+/** Which contrast of which trait a compared verdict belongs to, and which runs have it. */
+const contrastIdentity = { traitKey: z.string(), traitLabel: z.string(), contrast: z.string(), presence: presenceSchema };
+
 const ROBUSTNESS_STATUSES = ["holds", "fragile", "never-there", "not-estimated"] as const;
 const robustnessCountsSchema = z
   .object({ holds: z.number().int(), fragile: z.number().int(), "never-there": z.number().int(), "not-estimated": z.number().int() })
@@ -48,10 +51,7 @@ export const runDiffSamplingSchema = z
     ...checkFields,
     contrasts: z.array(
       z.object({
-        traitKey: z.string(),
-        traitLabel: z.string(),
-        contrast: z.string(),
-        presence: presenceSchema,
+        ...contrastIdentity,
         verdict: verdictPair(z.enum(SAMPLING_VERDICTS)),
         withSampling: pairSchema.meta({ description: "The odds ratio once the sampling covariates are in the model" }),
         changed: z.boolean().meta({ description: "Both runs hold the check, and the verdict differs or only one run has this contrast" }),
@@ -66,10 +66,7 @@ export const runDiffRobustnessSchema = z
     counts: z.object({ crude: z.object({ base: robustnessCountsSchema, run: robustnessCountsSchema }), adjusted: z.object({ base: robustnessCountsSchema, run: robustnessCountsSchema }) }),
     contrasts: z.array(
       z.object({
-        traitKey: z.string(),
-        traitLabel: z.string(),
-        contrast: z.string(),
-        presence: presenceSchema,
+        ...contrastIdentity,
         crude: robustnessMeasureSchema,
         adjusted: robustnessMeasureSchema,
         changed: z.boolean().meta({ description: "Both runs hold the panel, and a verdict or the variants a fragile verdict names differ, or only one run has this contrast" }),
