@@ -10,6 +10,8 @@ import { imports, modernLists, modernSpecies, runs, taxa, traits } from "../../d
 import type { Comparison, ComparisonList } from "../../shared/schemas/comparisons";
 import type { CrosswalkSaved, ModernList, ModernListPreview, ModernListUpload } from "../../shared/schemas/modernLists";
 import type { Run } from "../../shared/schemas/runs";
+import { crisisTaxaRows } from "../support/inventedCrisis";
+import { MODERN_CRISIS } from "../support/modernComparison";
 import { createTestApp, type TestApp } from "../support/server";
 import { castOfRoles, type Cast } from "./fixtures";
 
@@ -57,18 +59,7 @@ async function buildCrisis(): Promise<void> {
     .returning();
   habitId = habit.id;
   // Survivors range across 66 Ma; victims are last seen at 67 Ma, inside the stage below (the Maastrichtian).
-  await app.ctx.db.insert(taxa).values(
-    HABITS.flatMap((h) =>
-      Array.from({ length: 40 }, (_, k) => ({
-        studyId,
-        name: `Priscella ${h.code} ${k + 1} (invented)`,
-        higherTaxon: "Priscellidae",
-        fadMa: 70,
-        ladMa: k < h.victims ? 67 : 60,
-        traitValues: { [habitId]: h.code },
-      })),
-    ),
-  );
+  await app.ctx.db.insert(taxa).values(crisisTaxaRows({ ...MODERN_CRISIS, habits: HABITS }, studyId, habitId));
   const started = await cast.people.analyst.agent
     .post(`/api/studies/${studyId}/runs`)
     .send({ name: "Habit across 66 Ma", boundaries: [{ boundaryMa: 66 }], traits: [{ traitId: habitId, reference: "epifaunal" }] });

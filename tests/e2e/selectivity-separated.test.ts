@@ -5,11 +5,10 @@
 // Konis 2007, DPhil thesis, Oxford, before fitting), fit Firth's penalised regression (Firth 1993,
 // Biometrika 80:27) instead of reporting a Wald interval that runs off to infinity, and claim no
 // selective effect its interval does not support. Every taxon and value is invented.
-import { randomUUID } from "node:crypto";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { taxa } from "../../db/schema/index";
 import { launchBrowser, screenshot, withScreenshotOnFailure } from "../support/browser";
-import { PASSWORD, startTestServer, uniqueEmail } from "../support/server";
+import { studyWithFinishedCrisisRun, type InventedCrisis } from "../support/inventedCrisis";
+import { startTestServer } from "../support/server";
 
 type Server = Awaited<ReturnType<typeof startTestServer>>;
 type Browser = Awaited<ReturnType<typeof launchBrowser>>;
@@ -38,41 +37,11 @@ afterAll(async () => {
   await server?.close();
 });
 
+const SEPARATED_CRISIS: InventedCrisis = { habits: HABITS, perHabit: PER_HABIT, genus: "Dremora", higherTaxon: (k) => CLADES[k % CLADES.length] };
+
 /** A study lead, a study with the suggested codebook, the invented taxa, and a finished run (set up through the API). */
-async function studyWithFinishedRun() {
-  const { context } = browser;
-  const signup = await context.request.post(`${server.url}/api/auth/signup`, { data: { email: uniqueEmail("lead"), password: PASSWORD, name: "Invented Study Lead" } });
-  expect(signup.status()).toBe(201);
-  const created = await context.request.post(`${server.url}/api/studies`, {
-    data: { name: `Invented separated crisis ${randomUUID().slice(0, 6)}`, description: "Invented example study.", suggestedCodebook: true },
-  });
-  expect(created.status()).toBe(201);
-  const studyId = ((await created.json()) as { id: string }).id;
-  const api = `${server.url}/api/studies/${studyId}`;
-  const traits = ((await (await context.request.get(`${api}/traits`)).json()) as { traits: Array<{ id: string; key: string }> }).traits;
-  const habitId = traits.find((t) => t.key === "life_habit")!.id;
-  await server.ctx.db.insert(taxa).values(
-    HABITS.flatMap((h) =>
-      Array.from({ length: PER_HABIT }, (_, k) => ({
-        studyId,
-        name: `Dremora ${h.code} ${k + 1} (invented)`,
-        higherTaxon: CLADES[k % CLADES.length],
-        fadMa: 70,
-        ladMa: k < h.victims ? 67 : 60,
-        traitValues: { [habitId]: h.code },
-      })),
-    ),
-  );
-  const run = await context.request.post(`${api}/runs`, {
-    data: { name: "Separated life habit across 66 Ma", boundaries: [{ boundaryMa: 66 }], traits: [{ traitId: habitId, reference: "epifaunal" }] },
-  });
-  expect(run.status()).toBe(202);
-  const runId = ((await run.json()) as { id: string }).id;
-  await expect
-    .poll(async () => ((await (await context.request.get(`${api}/runs/${runId}`)).json()) as { status: string }).status, { timeout: 60_000, interval: 200 })
-    .toBe("succeeded");
-  return { studyId, runId };
-}
+const studyWithFinishedRun = () =>
+  studyWithFinishedCrisisRun(server, browser.context, SEPARATED_CRISIS, { study: "Invented separated crisis", run: "Separated life habit across 66 Ma" });
 
 describe("a separated selectivity run", () => {
   it("says the data separate, found by the linear programme before fitting, fits Firth's regression and claims nothing its interval does not support", async () => {

@@ -3,10 +3,10 @@
 // directly or by the owner so only the call under test is judged. Every name is invented.
 import { randomUUID } from "node:crypto";
 import type { BrowserContext } from "playwright-core";
-import { expect } from "vitest";
-import { comparisons, modernLists, modernSpecies, runs, taxa, traits } from "../../db/schema/index";
+import { comparisons, modernLists, modernSpecies, runs, traits } from "../../db/schema/index";
 import type { Cast } from "../api/fixtures";
-import { PASSWORD, uniqueEmail, type TestApp } from "./server";
+import { studyWithFinishedCrisisRun, type InventedCrisis } from "./inventedCrisis";
+import { type TestApp } from "./server";
 
 type Agent = Cast["anonymous"];
 
@@ -156,33 +156,11 @@ const CRISIS_HABITS = [
   { code: "infaunal", victims: 30 },
 ];
 
+/** The crisis of the modern-comparison tests, as rows (the API test) or as a finished run (the browser tests). */
+export const MODERN_CRISIS: InventedCrisis = { habits: CRISIS_HABITS, perHabit: 40, genus: "Priscella", higherTaxon: () => "Priscellidae" };
+
 /** A study lead signed up in `context`, a study with the suggested codebook, the invented crisis, and a finished run (set up through the API). */
 export async function studyWithFinishedHabitRun(server: TestApp & { url: string }, context: BrowserContext): Promise<{ studyUrl: string }> {
-  const signup = await context.request.post(`${server.url}/api/auth/signup`, { data: { email: uniqueEmail("lead"), password: PASSWORD, name: "Invented Study Lead" } });
-  expect(signup.status()).toBe(201);
-  const created = await context.request.post(`${server.url}/api/studies`, { data: { name: `Invented basin crisis ${randomUUID().slice(0, 6)}`, description: "Invented example study.", suggestedCodebook: true } });
-  expect(created.status()).toBe(201);
-  const studyId = ((await created.json()) as { id: string }).id;
-  const api = `${server.url}/api/studies/${studyId}`;
-  const studyTraits = ((await (await context.request.get(`${api}/traits`)).json()) as { traits: Array<{ id: string; key: string }> }).traits;
-  const habitId = studyTraits.find((t) => t.key === "life_habit")!.id;
-  await server.ctx.db.insert(taxa).values(
-    CRISIS_HABITS.flatMap((h) =>
-      Array.from({ length: 40 }, (_, k) => ({
-        studyId,
-        name: `Priscella ${h.code} ${k + 1} (invented)`,
-        higherTaxon: "Priscellidae",
-        fadMa: 70,
-        ladMa: k < h.victims ? 67 : 60,
-        traitValues: { [habitId]: h.code },
-      })),
-    ),
-  );
-  const run = await context.request.post(`${api}/runs`, { data: { name: "Life habit across 66 Ma", boundaries: [{ boundaryMa: 66 }], traits: [{ traitId: habitId, reference: "epifaunal" }] } });
-  expect(run.status()).toBe(202);
-  const runId = ((await run.json()) as { id: string }).id;
-  await expect
-    .poll(async () => ((await (await context.request.get(`${api}/runs/${runId}`)).json()) as { status: string }).status, { timeout: 60_000, interval: 200 })
-    .toBe("succeeded");
-  return { studyUrl: `${server.url}/studies/${studyId}` };
+  const { studyUrl } = await studyWithFinishedCrisisRun(server, context, MODERN_CRISIS, { study: "Invented basin crisis", run: "Life habit across 66 Ma" });
+  return { studyUrl };
 }
