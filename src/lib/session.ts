@@ -1,9 +1,13 @@
 // The signed-in account. Many screens need it (the top bar, the account form, the invitation
 // page), so its one query hook lives here rather than in a feature.
 import { queryOptions, useQuery } from "@tanstack/react-query";
-import type { Me, Session } from "@shared/schemas/auth";
+import type { QueryClient } from "@tanstack/react-query";
+import type { Me, Session, User } from "@shared/schemas/auth";
 import { api, ApiError } from "./api";
 import { queryKeys } from "./queryKeys";
+
+/** The server's environment as the last session answer gave it: the same for the page's whole life. */
+let environmentSeen: Me["environment"] | undefined;
 
 /**
  * Asks GET /auth/session, which answers 200 even when nobody is signed in (a 401 would show as an
@@ -12,6 +16,7 @@ import { queryKeys } from "./queryKeys";
  */
 async function fetchMe(signal: AbortSignal): Promise<Me> {
   const session = await api.get<Session>("/auth/session", signal);
+  environmentSeen = session.environment;
   if (!session.user) throw new ApiError(401, "unauthorized", "Sign in to continue.");
   return { user: session.user, environment: session.environment };
 }
@@ -23,6 +28,15 @@ export const meQuery = () =>
     queryFn: ({ signal }) => fetchMe(signal),
     staleTime: 5 * 60 * 1000,
   });
+
+/**
+ * After signing in: the session is the sign-in's answer (the person) and the environment already
+ * seen, so the next screen does not ask for it again; asked only when the environment is not known.
+ */
+export function primeSession(queryClient: QueryClient, user: User): void {
+  if (environmentSeen) queryClient.setQueryData(meQuery().queryKey, { user, environment: environmentSeen });
+  else void queryClient.prefetchQuery(meQuery());
+}
 
 export function useMe() {
   return useQuery(meQuery());

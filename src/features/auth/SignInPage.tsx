@@ -1,3 +1,4 @@
+import { useQueryClient } from "@tanstack/react-query";
 import { useNavigate, useSearchParams } from "react-router-dom";
 import { loginSchema } from "@shared/schemas/auth";
 import { Button } from "../../components/Button";
@@ -5,6 +6,8 @@ import { FormError } from "../../components/Notice";
 import { PasswordField, TextField } from "../../components/TextField";
 import { TextLink } from "../../components/TextLink";
 import { formLevelMessage, useZodForm } from "../../lib/forms";
+import { markListSeen, onlyStudyToOpen } from "../../lib/onlyStudy";
+import { studiesQuery } from "../../lib/queries/study";
 import { paths, safeNextPath, withNext } from "../../lib/paths";
 import { useDocumentTitle } from "../../lib/useDocumentTitle";
 import { useSignIn } from "./api";
@@ -16,12 +19,18 @@ export function SignInPage() {
   const next = safeNextPath(params.get("next"));
   const cameFromAPage = next !== paths.home;
   const navigate = useNavigate();
+  const queryClient = useQueryClient();
   const signIn = useSignIn();
   const form = useZodForm(loginSchema, { email: params.get("email") ?? "", password: "" });
 
   const submit = form.handleSubmit((input) => {
     signIn.mutate(input, {
-      onSuccess: () => navigate(next, { replace: true }),
+      onSuccess: (user) => {
+        // Home with one study is that study (the list's own rule): go there directly, a screen sooner.
+        const only = next === paths.home ? onlyStudyToOpen(user.id, queryClient.getQueryData(studiesQuery().queryKey)) : null;
+        if (only) markListSeen(user.id);
+        navigate(only ? paths.study(only.id) : next, { replace: true });
+      },
       onError: form.showServerErrors,
     });
   });

@@ -1,6 +1,6 @@
 import { useMutation, useQueryClient } from "@tanstack/react-query";
 import { studiesQuery } from "../../lib/queries/study";
-import { meQuery } from "../../lib/session";
+import { primeSession } from "../../lib/session";
 import type { LoginInput, SignupAnswer, SignupInput, User } from "@shared/schemas/auth";
 import { api } from "../../lib/api";
 
@@ -19,11 +19,12 @@ export function useSignIn() {
   const queryClient = useQueryClient();
   return useMutation({
     mutationFn: (input: LoginInput) => api.post<User>("/auth/login", input),
-    onSuccess: () => {
+    // Waited for before the form moves on (the button stays busy): the list of studies decides where
+    // the person lands, and one study opens at once instead of through the list (src/lib/onlyStudy.ts).
+    onSuccess: async (user) => {
       forget();
-      // The next screens need the session and the list of studies: ask for both now, side by side.
-      void queryClient.prefetchQuery(meQuery());
-      void queryClient.prefetchQuery(studiesQuery());
+      primeSession(queryClient, user);
+      await queryClient.prefetchQuery(studiesQuery());
     },
   });
 }

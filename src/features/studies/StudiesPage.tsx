@@ -12,30 +12,12 @@ import { RoleBadge } from "../../components/RoleBadge";
 import { textLinkClasses } from "../../components/TextLink";
 import { formatDate, pluralize } from "../../lib/format";
 import { paths } from "../../lib/paths";
+import { markListSeen, onlyStudyToOpen } from "../../lib/onlyStudy";
 import { useMe } from "../../lib/session";
 import { useDocumentTitle } from "../../lib/useDocumentTitle";
 import { useStudies } from "./api";
 import { newStudyThen } from "./newStudySteps";
 import { downloadSuggestedTaxaTemplate, TAXA_TEMPLATE_FILE_NAME } from "./taxaTemplate";
-
-/** sessionStorage key: set once this person has seen the studies list (or been taken to their only study) in this browser session. */
-const listSeenKey = (userId: string) => `stratasieve:studies-list-seen:${userId}`;
-
-function listSeen(userId: string): boolean {
-  try {
-    return window.sessionStorage.getItem(listSeenKey(userId)) !== null;
-  } catch {
-    return true; // storage refused: never redirect, the list always shows
-  }
-}
-
-function markListSeen(userId: string): void {
-  try {
-    window.sessionStorage.setItem(listSeenKey(userId), "1");
-  } catch {
-    // Nothing to remember without storage; listSeen then answers true.
-  }
-}
 
 /**
  * A person with exactly one study (a demo account on first start, someone just invited) goes straight
@@ -47,14 +29,13 @@ function useOpenOnlyStudyOnce(studies: Study[] | undefined): boolean {
   const navigate = useNavigate();
   const arrivedByLink = useNavigationType() === NavigationType.Push;
   const userId = me.data?.user.id;
-  const only = studies?.length === 1 ? studies[0] : null;
-  const opening = Boolean(only && userId && !arrivedByLink && !listSeen(userId));
+  const only = userId && !arrivedByLink ? onlyStudyToOpen(userId, studies) : null;
   useEffect(() => {
     if (!userId || !studies) return;
     markListSeen(userId);
-    if (opening && only) navigate(paths.study(only.id), { replace: true });
-  }, [opening, only, studies, userId, navigate]);
-  return opening;
+    if (only) navigate(paths.study(only.id), { replace: true });
+  }, [only, studies, userId, navigate]);
+  return only !== null;
 }
 
 /** Home: the studies the person leads or belongs to. */
