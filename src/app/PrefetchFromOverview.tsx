@@ -1,26 +1,42 @@
 import { useEffect } from "react";
 import { useIsFetching, useQueryClient } from "@tanstack/react-query";
+import type { Study } from "@shared/schemas/studies";
 import { timescaleQuery } from "../lib/queries/timescale";
 
-let fetched = false;
+let scriptFetched = false;
+/** Studies whose main boundary was fetched ahead in this page load, by id and boundary. */
+const boundariesFetched = new Set<string>();
 
 /**
- * On a study's Overview, once its own data is in and the browser is idle: the Boundary screen's
- * script (with the charts) and the time scale, the likely next screen's pieces that are the same for
- * every study, so that screen asks only for its own data when opened. Once per page load.
+ * On a study's Overview, once its own data is in and the browser is idle: what the Boundary screen
+ * (the likely next one) needs, so that it opens without waiting. Its script (with the charts) and the
+ * time scale once per page load; the study's main boundary (outcomes, turnover, rates, sampling) once
+ * per study and boundary. Those answers are refreshed when the screen opens more than a few seconds
+ * later (src/features/boundary/api.ts), and shown meanwhile.
  */
-export function PrefetchFromOverview() {
+export function PrefetchFromOverview({ study }: { study: Study }) {
   const queryClient = useQueryClient();
   const fetching = useIsFetching();
+  const boundaryKey = study.mainBoundary ? `${study.id}:${JSON.stringify(study.mainBoundary)}` : null;
   useEffect(() => {
-    if (fetched || fetching > 0) return;
+    const boundaryDue = boundaryKey !== null && !boundariesFetched.has(boundaryKey);
+    if ((scriptFetched && !boundaryDue) || fetching > 0) return;
     const prefetch = () => {
-      fetched = true;
-      void queryClient.prefetchQuery(timescaleQuery());
-      import("../features/boundary/BoundaryPage").catch(() => {
-        // The router fetches the chunk again when it is needed.
-        fetched = false;
-      });
+      const screen = import("../features/boundary/BoundaryPage");
+      if (!scriptFetched) {
+        scriptFetched = true;
+        void queryClient.prefetchQuery(timescaleQuery());
+        screen.catch(() => {
+          // The router fetches the chunk again when it is needed.
+          scriptFetched = false;
+        });
+      }
+      if (boundaryDue) {
+        boundariesFetched.add(boundaryKey);
+        import("../features/boundary/screenQueries")
+          .then((queries) => queries.prefetchBoundaryScreen(queryClient, study, new URLSearchParams()))
+          .catch(() => boundariesFetched.delete(boundaryKey));
+      }
     };
     if (typeof window.requestIdleCallback !== "function") {
       const timer = window.setTimeout(prefetch, 200);
@@ -28,6 +44,6 @@ export function PrefetchFromOverview() {
     }
     const idle = window.requestIdleCallback(prefetch, { timeout: 2000 });
     return () => window.cancelIdleCallback(idle);
-  }, [fetching, queryClient]);
+  }, [boundaryKey, fetching, queryClient, study]);
   return null;
 }

@@ -45,7 +45,7 @@ export function StudyLayout() {
         <div className="min-w-0">
           <Outlet />
         </div>
-        {onOverview && <PrefetchFromOverview />}
+        {onOverview && <PrefetchFromOverview study={study.data} />}
       </div>
     </CurrentStudyContext>
   );
