@@ -1,10 +1,22 @@
 // The first visit of a signed-out person: the app's address leads to the sign-in page without a
 // single failed request or console error (the session question answers 200 for nobody), the page
 // is built from the compressed, split client (no chart or grid code), and signing in goes on to
-// the studies. Invented names and addresses.
+// the studies. A person with one study signs in straight to it, and its Overview fetches the study's
+// main boundary ahead, so the Boundary screen opens without waiting. Invented names and addresses.
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { launchBrowser, withScreenshotOnFailure } from "../support/browser";
+import { studyWithFinishedCrisisRun, type InventedCrisis } from "../support/inventedCrisis";
 import { PASSWORD, signedInAgent, startTestServer } from "../support/server";
+
+const SMALL_CRISIS: InventedCrisis = {
+  habits: [
+    { code: "epifaunal", victims: 3 },
+    { code: "infaunal", victims: 9 },
+  ],
+  perHabit: 12,
+  genus: "Lantivora",
+  higherTaxon: (k) => `Invented family ${(k % 3) + 1}`,
+};
 
 type Server = Awaited<ReturnType<typeof startTestServer>>;
 type Browser = Awaited<ReturnType<typeof launchBrowser>>;
@@ -57,5 +69,49 @@ describe("first visit", () => {
       expect(failed).toEqual([]);
       expect(consoleErrors).toEqual([]);
     });
+  });
+
+  it("a person with one study signs in straight to its Overview, which fetches the main boundary ahead for the Boundary screen", async () => {
+    const { context, close } = await launchBrowser();
+    try {
+      const { studyUrl, email } = await studyWithFinishedCrisisRun(server, context, SMALL_CRISIS, { study: "Invented landing study", run: "Life habit across 66 Ma" });
+      await context.request.post(`${server.url}/api/auth/logout`);
+      const page = await context.newPage();
+      const visited: string[] = [];
+      page.on("framenavigated", (frame) => {
+        if (frame === page.mainFrame()) visited.push(new URL(frame.url()).pathname);
+      });
+      const asked: string[] = [];
+      page.on("request", (r) => asked.push(new URL(r.url()).pathname));
+      await withScreenshotOnFailure(context, "first-visit-landing", async () => {
+        await page.goto(`${server.url}/sign-in`);
+        await page.getByLabel("E-mail").fill(email);
+        await page.getByLabel("Password", { exact: true }).fill(PASSWORD);
+        await page.getByRole("button", { name: "Sign in" }).click();
+        await page.waitForURL(studyUrl);
+        await page.getByRole("heading", { level: 1, name: /Invented landing study/ }).waitFor();
+        // Straight from the form to the study: the studies list was never drawn on the way.
+        expect(visited).not.toContain("/");
+
+        // Once the Overview is quiet it has asked for the main boundary's outcomes and turnover.
+        await page.waitForLoadState("networkidle");
+        expect(asked.some((p) => p.endsWith("/outcomes"))).toBe(true);
+        expect(asked.some((p) => p.endsWith("/turnover"))).toBe(true);
+        // From here the server answers outcomes only after 20 s: the screen shows them at once
+        // all the same, from what the Overview fetched.
+        await page.route("**/api/studies/*/outcomes?**", async (route) => {
+          await new Promise((resolve) => setTimeout(resolve, 20_000));
+          await route.continue().catch(() => undefined);
+        });
+        await page.getByRole("navigation", { name: "Study" }).getByRole("link", { name: "Boundary" }).click();
+        const counts = page.getByRole("region", { name: "Outcomes across the boundary" }).getByLabel("Outcome counts");
+        await counts.waitFor({ timeout: 5_000 });
+        // Victims: the 3 + 9 genera of SMALL_CRISIS last seen at 67 Ma; survivors the other 12.
+        expect((await counts.innerText()).replace(/\s+/g, " ")).toMatch(/Survivors 12 .*Victims 12 /);
+        await page.unrouteAll({ behavior: "ignoreErrors" });
+      });
+    } finally {
+      await close();
+    }
   });
 });

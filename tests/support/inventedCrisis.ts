@@ -33,7 +33,7 @@ export function crisisTaxaRows(crisis: InventedCrisis, studyId: string, habitId:
 }
 
 /**
- * A study lead signed up in `context`, a study with the suggested codebook holding the crisis, and a
+ * A study lead signed up in `context` (their address returned, the password is PASSWORD), a study with the suggested codebook holding the crisis, and a
  * finished run of the life habit across 66 Ma (epifaunal the reference), all through the API.
  */
 export async function studyWithFinishedCrisisRun(
@@ -41,8 +41,9 @@ export async function studyWithFinishedCrisisRun(
   context: BrowserContext,
   crisis: InventedCrisis,
   names: { study: string; run: string },
-): Promise<{ studyId: string; runId: string; studyUrl: string }> {
-  const signup = await context.request.post(`${server.url}/api/auth/signup`, { data: { email: uniqueEmail("lead"), password: PASSWORD, name: "Invented Study Lead" } });
+): Promise<{ studyId: string; runId: string; studyUrl: string; email: string }> {
+  const email = uniqueEmail("lead");
+  const signup = await context.request.post(`${server.url}/api/auth/signup`, { data: { email, password: PASSWORD, name: "Invented Study Lead" } });
   expect(signup.status()).toBe(201);
   const created = await context.request.post(`${server.url}/api/studies`, {
     data: { name: `${names.study} ${randomUUID().slice(0, 6)}`, description: "Invented example study.", suggestedCodebook: true },
@@ -59,5 +60,5 @@ export async function studyWithFinishedCrisisRun(
   await expect
     .poll(async () => ((await (await context.request.get(`${api}/runs/${runId}`)).json()) as { status: string }).status, { timeout: 60_000, interval: 200 })
     .toBe("succeeded");
-  return { studyId, runId, studyUrl: `${server.url}/studies/${studyId}` };
+  return { studyId, runId, studyUrl: `${server.url}/studies/${studyId}`, email };
 }
