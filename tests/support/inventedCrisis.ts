@@ -33,8 +33,9 @@ export function crisisTaxaRows(crisis: InventedCrisis, studyId: string, habitId:
 }
 
 /**
- * A study lead signed up in `context` (their address returned, the password is PASSWORD), a study with the suggested codebook holding the crisis, and a
- * finished run of the life habit across 66 Ma (epifaunal the reference), all through the API.
+ * A study lead signed up in `context` (their address returned; the password is PASSWORD), a study
+ * with the suggested codebook holding the crisis, and a finished run of the life habit across 66 Ma
+ * (epifaunal the reference), all through the API.
  */
 export async function studyWithFinishedCrisisRun(
   server: TestApp & { url: string },
