@@ -79,11 +79,16 @@ describe("Content Security Policy", () => {
       await page.getByLabel("E-mail").fill(lead.email);
       await page.getByLabel("Password", { exact: true }).fill(lead.password);
       await page.getByRole("button", { name: "Sign in" }).click();
-      await page.waitForURL(`${server.url}/`);
+      // The lead has one study: the form goes straight to it (src/lib/onlyStudy.ts).
+      const studyUrl = `${server.url}/studies/${demo.studyId}`;
+      await page.waitForURL(studyUrl);
+      await settled(page, inFlight);
+      visited.push("overview after signing in");
+      await page.goto(`${server.url}/`);
+      await page.getByRole("heading", { level: 1, name: "Studies" }).waitFor();
       await settled(page, inFlight);
       visited.push("studies");
 
-      const studyUrl = `${server.url}/studies/${demo.studyId}`;
       await page.goto(studyUrl);
       await settled(page, inFlight);
       const studyNav = page.getByRole("navigation", { name: "Study" });
@@ -118,7 +123,7 @@ describe("Content Security Policy", () => {
       expect(await page.locator("main svg").count()).toBeGreaterThan(0);
     });
 
-    expect(visited).toHaveLength(1 + STUDY_NAV.length + 5 + 2);
+    expect(visited).toHaveLength(2 + STUDY_NAV.length + 5 + 2);
     expect(await violations()).toEqual([]);
     expect(consoleComplaints).toEqual([]);
     expect(pageErrors).toEqual([]);
