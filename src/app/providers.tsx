@@ -7,7 +7,7 @@ import { timescaleQuery } from "../lib/queries/timescale";
 import { meQuery } from "../lib/session";
 import { isPublicPath } from "./publicRoutes";
 import { createQueryClient } from "./queryClient";
-import { router } from "./router";
+import { createAppRouter } from "./router";
 import { provideScreenDataClient } from "./screenData";
 
 /** The session ended (or never began): sign in, then come back to the same page. */
@@ -30,6 +30,11 @@ function prefetchFirstScreen(pathname: string) {
   if (studyId && /\/(boundary|selectivity)(\/|$)/.test(pathname)) void queryClient.prefetchQuery(timescaleQuery());
 }
 prefetchFirstScreen(window.location.pathname);
+
+// Made after those requests are asked for: creating the router asks for the first screen's script
+// chunks (about 40 on a cold visit), and the browser's six connections to the server serve requests
+// in the order they were asked, so the study and the session would otherwise wait behind them.
+const router = createAppRouter();
 
 export function AppProviders() {
   return (

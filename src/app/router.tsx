@@ -1,5 +1,5 @@
 import type { ComponentType } from "react";
-import { createBrowserRouter } from "react-router-dom";
+import { createBrowserRouter, type RouteObject } from "react-router-dom";
 import { LoadingState } from "../components/LoadingState";
 import { NotFoundPage } from "./NotFoundPage";
 import { PUBLIC_ROUTES } from "./publicRoutes";
@@ -16,7 +16,7 @@ const screen =
   () =>
     load().then((module) => ({ Component: module[name] }));
 
-export const router = createBrowserRouter([
+const routes: RouteObject[] = [
   {
     errorElement: <RouteErrorPage />,
     // Shown once, while the first screen's chunk arrives.
@@ -79,4 +79,7 @@ export const router = createBrowserRouter([
       },
     ],
   },
-]);
+];
+
+/** The app's router. Creating it starts fetching the first screen's chunks (see providers.tsx). */
+export const createAppRouter = () => createBrowserRouter(routes);
