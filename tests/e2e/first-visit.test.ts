@@ -2,7 +2,8 @@
 // single failed request or console error (the session question answers 200 for nobody), the page
 // is built from the compressed, split client (no chart or grid code), and signing in goes on to
 // the studies. A person with one study signs in straight to it, and its Overview fetches the study's
-// main boundary ahead, so the Boundary screen opens without waiting. Invented names and addresses.
+// main boundary ahead, so the Boundary screen opens without waiting. A cold visit to a study's screen
+// asks for the study before the screen's scripts. Invented names and addresses.
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { launchBrowser, withScreenshotOnFailure } from "../support/browser";
 import { studyWithFinishedCrisisRun, type InventedCrisis } from "../support/inventedCrisis";
@@ -109,6 +110,27 @@ describe("first visit", () => {
         // Victims: the 3 + 9 genera of SMALL_CRISIS last seen at 67 Ma; survivors the other 12.
         expect((await counts.innerText()).replace(/\s+/g, " ")).toMatch(/Survivors 12 .*Victims 12 /);
         await page.unrouteAll({ behavior: "ignoreErrors" });
+      });
+    } finally {
+      await close();
+    }
+  });
+
+  it("a cold visit to a study's screen asks for the study before the screen's scripts, so the browser's connections serve it first", async () => {
+    const { context, close } = await launchBrowser();
+    try {
+      const { studyUrl, studyId } = await studyWithFinishedCrisisRun(server, context, SMALL_CRISIS, { study: "Invented cold study", run: "Life habit across 66 Ma" });
+      const page = await context.newPage();
+      const asked: string[] = [];
+      page.on("request", (r) => asked.push(new URL(r.url()).pathname));
+      await withScreenshotOnFailure(context, "first-visit-cold-order", async () => {
+        await page.goto(`${studyUrl}/boundary`);
+        await page.getByRole("region", { name: "Outcomes across the boundary" }).waitFor();
+        const study = asked.indexOf(`/api/studies/${studyId}`);
+        const firstScreenScript = asked.findIndex((p) => /\/assets\/(AppShell|StudyLayout|BoundaryPage)-/.test(p));
+        expect(study).toBeGreaterThan(-1);
+        expect(firstScreenScript).toBeGreaterThan(-1);
+        expect(study).toBeLessThan(firstScreenScript);
       });
     } finally {
       await close();
