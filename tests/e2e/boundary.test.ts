@@ -3,12 +3,12 @@
 // the window, sets one taxon's outcome by hand with a reason (the counts change), reopens the
 // link, revokes the override (the counts return), and tries a custom age. The study, its genera
 // and species, and its basin are invented.
-import { randomUUID } from "node:crypto";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Page } from "playwright-core";
 import { taxa } from "../../db/schema/index";
 import { launchBrowser, screenshot, withScreenshotOnFailure } from "../support/browser";
-import { PASSWORD, startTestServer, uniqueEmail } from "../support/server";
+import { startTestServer } from "../support/server";
+import { leadWithStudy } from "../support/leadWithStudy";
 
 type Server = Awaited<ReturnType<typeof startTestServer>>;
 type Browser = Awaited<ReturnType<typeof launchBrowser>>;
@@ -75,15 +75,12 @@ describe("boundary screen", () => {
     const page = await browser.context.newPage();
     await withScreenshotOnFailure(browser.context, "boundary", async () => {
       // A study lead with an invented study, set up through the API and the database.
-      const signup = await page.request.post(`${server.url}/api/auth/signup`, {
-        data: { email: uniqueEmail("boundary-lead"), password: PASSWORD, name: "Invented Boundary Lead" },
-      });
-      expect(signup.status()).toBe(201);
-      const created = await page.request.post(`${server.url}/api/studies`, {
-        data: { name: `Invented Vessiran Basin bivalves ${randomUUID().slice(0, 6)}`, description: "Invented example data." },
-      });
-      expect(created.status()).toBe(201);
-      const studyId = ((await created.json()) as { id: string }).id;
+      const { studyId } = await leadWithStudy(
+        server.url,
+        page.request,
+        { label: "boundary-lead", name: "Invented Boundary Lead" },
+        { name: "Invented Vessiran Basin bivalves", description: "Invented example data." },
+      );
       await server.ctx.db
         .insert(taxa)
         .values(INVENTED_TAXA.map(([name, fad, lad]) => ({ studyId, name, higherTaxon: `${name.split(" ")[0]}idae (invented)`, fadMa: fad, ladMa: lad })));

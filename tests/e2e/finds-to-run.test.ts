@@ -9,12 +9,12 @@
 import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
-import { randomUUID } from "node:crypto";
 import type { Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { SUGGESTED_CODEBOOK } from "../../shared/codebook";
 import { launchBrowser, screenshot, withScreenshotOnFailure } from "../support/browser";
-import { PASSWORD, startTestServer, uniqueEmail } from "../support/server";
+import { startTestServer } from "../support/server";
+import { leadWithStudy } from "../support/leadWithStudy";
 
 type Server = Awaited<ReturnType<typeof startTestServer>>;
 type Browser = Awaited<ReturnType<typeof launchBrowser>>;
@@ -85,13 +85,12 @@ const studyNav = (page: Page, name: string) => page.getByRole("navigation", { na
 describe("from finds to a selectivity run", () => {
   it("uploads occurrences, applies the ranges, codes a trait, reads the boundary with its sampling, and runs the test", async () => {
     const { context } = browser;
-    const signup = await context.request.post(`${server.url}/api/auth/signup`, { data: { email: uniqueEmail("finds-run"), password: PASSWORD, name: "Invented Finds Analyst" } });
-    expect(signup.status()).toBe(201);
-    const created = await context.request.post(`${server.url}/api/studies`, {
-      data: { name: `Invented Jarrow finds ${randomUUID().slice(0, 6)}`, description: "Invented example." },
-    });
-    expect(created.status()).toBe(201);
-    const studyId = ((await created.json()) as { id: string }).id;
+    const { studyId } = await leadWithStudy(
+      server.url,
+      context.request,
+      { label: "finds-run", name: "Invented Finds Analyst" },
+      { name: "Invented Jarrow finds", description: "Invented example." },
+    );
     // The trait to code: the suggested feeding mode (added unless the new study's codebook already has it).
     const codebook = (await (await context.request.get(`${server.url}/api/studies/${studyId}/traits`)).json()) as { traits: Array<{ key: string }> };
     if (!codebook.traits.some((t) => t.key === "feeding")) {

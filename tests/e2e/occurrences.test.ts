@@ -6,10 +6,10 @@
 import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
-import { randomUUID } from "node:crypto";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { launchBrowser, withScreenshotOnFailure } from "../support/browser";
-import { PASSWORD, startTestServer, uniqueEmail } from "../support/server";
+import { startTestServer } from "../support/server";
+import { leadWithStudy } from "../support/leadWithStudy";
 
 type Server = Awaited<ReturnType<typeof startTestServer>>;
 type Browser = Awaited<ReturnType<typeof launchBrowser>>;
@@ -48,10 +48,7 @@ afterAll(async () => {
 describe("occurrences", () => {
   it("uploads finds, derives and applies ranges, and shows sampling completeness at the boundary", async () => {
     const { context } = browser;
-    const signup = await context.request.post(`${server.url}/api/auth/signup`, { data: { email: uniqueEmail("finds"), password: PASSWORD, name: "Invented Finds Lead" } });
-    expect(signup.status()).toBe(201);
-    const created = await context.request.post(`${server.url}/api/studies`, { data: { name: `Invented Vessiran finds ${randomUUID().slice(0, 6)}`, description: "Invented example." } });
-    const studyId = ((await created.json()) as { id: string }).id;
+    const { studyId } = await leadWithStudy(server.url, context.request, { label: "finds", name: "Invented Finds Lead" }, { name: "Invented Vessiran finds", description: "Invented example." });
     const csvPath = join(fileDir, "vessiran-finds.csv");
     writeFileSync(csvPath, CSV);
 

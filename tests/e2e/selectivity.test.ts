@@ -3,7 +3,6 @@
 // reference states, reads the design, runs the tests, leaves the screen and comes back, reads the
 // forest plot and the flagged trait, downloads the CSV and a chart, opens the printable report,
 // and re-runs the analysis on today's data. The basin, its clades and taxa are invented.
-import { randomUUID } from "node:crypto";
 import { readFileSync } from "node:fs";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Download, Page } from "playwright-core";
@@ -11,8 +10,9 @@ import { eq } from "drizzle-orm";
 import { runs, taxa } from "../../db/schema/index";
 import type { Run } from "../../shared/schemas/runs";
 import { launchBrowser, screenshot, withScreenshotOnFailure } from "../support/browser";
-import { PASSWORD, startTestServer, uniqueEmail } from "../support/server";
+import { startTestServer } from "../support/server";
 import { NO_HABIT, NOT_AT_RISK, plantedTaxa, SPARED } from "../support/plantedSelectivity";
+import { leadWithStudy } from "../support/leadWithStudy";
 
 type Server = Awaited<ReturnType<typeof startTestServer>>;
 type Browser = Awaited<ReturnType<typeof launchBrowser>>;
@@ -46,16 +46,12 @@ const VICTIMS = 163;
 const SURVIVORS = 247;
 
 async function buildStudy(page: Page): Promise<{ studyId: string; userId: string }> {
-  const signup = await page.request.post(`${server.url}/api/auth/signup`, {
-    data: { email: uniqueEmail("selectivity-lead"), password: PASSWORD, name: "Invented Selectivity Lead" },
-  });
-  expect(signup.status()).toBe(201);
-  const userId = ((await signup.json()) as { id: string }).id;
-  const created = await page.request.post(`${server.url}/api/studies`, {
-    data: { name: `Invented Orrent Basin crisis ${randomUUID().slice(0, 6)}`, description: "Invented example data with planted effects.", suggestedCodebook: true },
-  });
-  expect(created.status()).toBe(201);
-  const studyId = ((await created.json()) as { id: string }).id;
+  const { studyId, userId } = await leadWithStudy(
+    server.url,
+    page.request,
+    { label: "selectivity-lead", name: "Invented Selectivity Lead" },
+    { name: "Invented Orrent Basin crisis", description: "Invented example data with planted effects.", suggestedCodebook: true },
+  );
   // The study asked for the suggested codebook, which holds both traits (and states no taxon here has).
   const codebook = await page.request.get(`${server.url}/api/studies/${studyId}/traits`);
   expect(codebook.status()).toBe(200);

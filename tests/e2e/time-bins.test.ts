@@ -4,10 +4,10 @@
 import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
-import { randomUUID } from "node:crypto";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { launchBrowser, withScreenshotOnFailure } from "../support/browser";
-import { PASSWORD, startTestServer, uniqueEmail } from "../support/server";
+import { startTestServer } from "../support/server";
+import { leadWithStudy } from "../support/leadWithStudy";
 
 type Server = Awaited<ReturnType<typeof startTestServer>>;
 type Browser = Awaited<ReturnType<typeof launchBrowser>>;
@@ -31,10 +31,7 @@ afterAll(async () => {
 describe("time bins", () => {
   it("reads a file of slices, names the row at fault, saves the corrected set and counts it in the codebook", async () => {
     const { context } = browser;
-    const signup = await context.request.post(`${server.url}/api/auth/signup`, { data: { email: uniqueEmail("bins"), password: PASSWORD, name: "Invented Bins Lead" } });
-    expect(signup.status()).toBe(201);
-    const created = await context.request.post(`${server.url}/api/studies`, { data: { name: `Invented slices ${randomUUID().slice(0, 6)}`, description: "Invented example." } });
-    const studyId = ((await created.json()) as { id: string }).id;
+    const { studyId } = await leadWithStudy(server.url, context.request, { label: "bins", name: "Invented Bins Lead" }, { name: "Invented slices", description: "Invented example." });
     const bad = join(fileDir, "slices-overlap.csv");
     writeFileSync(bad, "slice,base_ma,top_ma\n1,458.2,455\n2,456,452.8\n");
     const good = join(fileDir, "slices.csv");

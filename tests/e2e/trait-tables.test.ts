@@ -6,10 +6,10 @@
 import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
-import { randomUUID } from "node:crypto";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { launchBrowser, screenshot, withScreenshotOnFailure } from "../support/browser";
-import { PASSWORD, startTestServer, uniqueEmail } from "../support/server";
+import { startTestServer } from "../support/server";
+import { leadWithStudy } from "../support/leadWithStudy";
 
 type Server = Awaited<ReturnType<typeof startTestServer>>;
 type Browser = Awaited<ReturnType<typeof launchBrowser>>;
@@ -42,16 +42,12 @@ afterAll(async () => {
 
 /** A signed-in study lead (through the API, with the browser's cookie jar) and a new study. */
 async function studyWithLead(name: string) {
-  const { context } = browser;
-  const email = uniqueEmail("lead");
-  const signup = await context.request.post(`${server.url}/api/auth/signup`, { data: { email, password: PASSWORD, name } });
-  expect(signup.status()).toBe(201);
-  const created = await context.request.post(`${server.url}/api/studies`, {
-    data: { name: `Invented Vessiran Basin crisis ${randomUUID().slice(0, 6)}`, description: "Invented example study.", suggestedCodebook: true },
-  });
-  expect(created.status()).toBe(201);
-  const studyId = ((await created.json()) as { id: string }).id;
-  return { studyId, studyUrl: `${server.url}/studies/${studyId}` };
+  return leadWithStudy(
+    server.url,
+    browser.context.request,
+    { label: "lead", name },
+    { name: "Invented Vessiran Basin crisis", description: "Invented example study.", suggestedCodebook: true },
+  );
 }
 
 describe("trait tables", () => {

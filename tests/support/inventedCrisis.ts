@@ -2,11 +2,11 @@
 // `victims` of each habit last seen at 67 Ma (inside the Maastrichtian, so they die out at 66 Ma),
 // the rest ranging on to 60 Ma; and, for browser tests, a study lead, a study and a finished run of
 // the life habit. Every name is invented.
-import { randomUUID } from "node:crypto";
 import type { BrowserContext } from "playwright-core";
 import { expect } from "vitest";
 import { taxa } from "../../db/schema/index";
-import { PASSWORD, uniqueEmail, type TestApp } from "./server";
+import type { TestApp } from "./server";
+import { leadWithStudy } from "./leadWithStudy";
 
 export interface InventedCrisis {
   habits: ReadonlyArray<{ code: string; victims: number }>;
@@ -43,14 +43,12 @@ export async function studyWithFinishedCrisisRun(
   crisis: InventedCrisis,
   names: { study: string; run: string },
 ): Promise<{ studyId: string; runId: string; studyUrl: string; email: string }> {
-  const email = uniqueEmail("lead");
-  const signup = await context.request.post(`${server.url}/api/auth/signup`, { data: { email, password: PASSWORD, name: "Invented Study Lead" } });
-  expect(signup.status()).toBe(201);
-  const created = await context.request.post(`${server.url}/api/studies`, {
-    data: { name: `${names.study} ${randomUUID().slice(0, 6)}`, description: "Invented example study.", suggestedCodebook: true },
-  });
-  expect(created.status()).toBe(201);
-  const studyId = ((await created.json()) as { id: string }).id;
+  const { email, studyId, studyUrl } = await leadWithStudy(
+    server.url,
+    context.request,
+    { label: "lead", name: "Invented Study Lead" },
+    { name: names.study, description: "Invented example study.", suggestedCodebook: true },
+  );
   const api = `${server.url}/api/studies/${studyId}`;
   const studyTraits = ((await (await context.request.get(`${api}/traits`)).json()) as { traits: Array<{ id: string; key: string }> }).traits;
   const habitId = studyTraits.find((t) => t.key === "life_habit")!.id;
@@ -61,5 +59,5 @@ export async function studyWithFinishedCrisisRun(
   await expect
     .poll(async () => ((await (await context.request.get(`${api}/runs/${runId}`)).json()) as { status: string }).status, { timeout: 60_000, interval: 200 })
     .toBe("succeeded");
-  return { studyId, runId, studyUrl: `${server.url}/studies/${studyId}`, email };
+  return { studyId, runId, studyUrl, email };
 }
