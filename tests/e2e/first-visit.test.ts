@@ -46,7 +46,9 @@ describe("first visit", () => {
       if (m.type() === "error") consoleErrors.push(m.text());
     });
     page.on("pageerror", (e) => consoleErrors.push(e.message));
+    let sessionAsks = 0;
     page.on("response", (r) => {
+      if (new URL(r.url()).pathname === "/api/auth/session") sessionAsks++;
       if (r.status() >= 400) failed.push(`${r.status()} ${r.url()}`);
       if (r.url().endsWith(".js")) scripts.push({ url: r.url(), encoding: r.headers()["content-encoding"] });
     });
@@ -69,6 +71,9 @@ describe("first visit", () => {
       await page.getByRole("heading", { level: 1, name: /studies/i }).waitFor();
       expect(failed).toEqual([]);
       expect(consoleErrors).toEqual([]);
+      // The session was asked once, on the way to the sign-in page; after signing in, the sign-in's
+      // answer stands for it (src/lib/session.ts).
+      expect(sessionAsks).toBe(1);
     });
   });
 
