@@ -92,7 +92,8 @@ export function createTaxaGrid(db: Database, options: TaxaGridOptions = {}) {
   const maxTaxa = options.maxTaxa ?? 500_000;
   const entries = new Map<string, StudyEntry>();
 
-  function setRow(copy: StudyCopy, row: number, r: TaxonGridRow): void {
+  /** Writes row `row` of the copy; `fresh`: the row was never written (its trait slots are all empty already). */
+  function setRow(copy: StudyCopy, row: number, r: TaxonGridRow, fresh = false): void {
     const c = copy.columns;
     c.ids[row] = r.id;
     c.names[row] = r.name;
@@ -104,13 +105,16 @@ export function createTaxaGrid(db: Database, options: TaxaGridOptions = {}) {
     c.ladIntervals[row] = sharedText(copy.texts, r.lad_interval);
     c.updatedAt[row] = r.updated;
     c.alive[row] = !r.removed;
-    for (const values of c.traitColumns.values()) values[row] = undefined;
-    for (const [traitId, value] of Object.entries(r.trait_values ?? {})) {
+    if (!fresh) for (const values of c.traitColumns.values()) values[row] = undefined;
+    const traitValues = r.trait_values;
+    if (!traitValues) return;
+    for (const traitId in traitValues) {
       let values = c.traitColumns.get(traitId);
       if (!values) {
         values = new Array<TraitValue | undefined>(c.ids.length).fill(undefined);
         c.traitColumns.set(traitId, values);
       }
+      const value = traitValues[traitId];
       values[row] = typeof value === "string" ? sharedText(copy.texts, value) : (value ?? undefined);
     }
   }
@@ -137,7 +141,14 @@ export function createTaxaGrid(db: Database, options: TaxaGridOptions = {}) {
       snapshotXmin,
       syncedAt: Date.now(),
     };
-    for (const r of rows) appendRow(copy, r);
+    // All rows at once: the ids first, so that each trait column is made at its full length when first
+    // met, instead of growing by one slot per trait per row as appendRow does (a third of the first
+    // read of a 100,000-taxon study).
+    for (const r of rows) columns.ids.push(r.id);
+    rows.forEach((r, row) => {
+      setRow(copy, row, r, true);
+      copy.rowOf.set(r.id, row);
+    });
     return copy;
   }
 
