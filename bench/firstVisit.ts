@@ -75,40 +75,37 @@ async function watchTraffic(page: Page): Promise<Traffic> {
   };
 }
 
-/** Waits until the page shows no loading state (LoadingState and the skeletons carry role=status with "Loading"). */
-async function settled(page: Page): Promise<void> {
-  await page.waitForFunction(
-    () => {
-      const main = document.querySelector("main");
-      if (!main) return false;
-      return ![...document.querySelectorAll('[role="status"]')].some((el) => /Loading|Opening/.test(el.textContent ?? ""));
-    },
-    undefined,
-    { timeout: 30_000, polling: 25 },
-  );
-}
-
 /**
  * Times in the page itself, so that the automation's own checks before a click (is the button
  * visible, stable for two frames, not covered) are not counted: the click event's timestamp, and
- * the first animation frame at which the screen is at `path`, shows `text` (the screen's own words:
- * the address changes before the screen is drawn) and no loading state.
+ * the first animation frame at which the screen is shown (below).
  */
 const CLICK_RECORDER = () => window.addEventListener("click", (event) => ((window as unknown as { benchClickAt: number }).benchClickAt = event.timeStamp), true);
 
-async function msFromClickToSettled(page: Page, path: RegExp, text?: string): Promise<number> {
+/**
+ * Waits for the first animation frame at which the page is at `path`, shows `text` (the screen's own
+ * words: the address changes before the screen is drawn) and no loading state (LoadingState and the
+ * skeletons carry role=status with "Loading"); answers the page's clock at that frame.
+ */
+async function screenShownAt(page: Page, { path = /./, text }: { path?: RegExp; text?: string } = {}): Promise<number> {
   const handle = await page.waitForFunction(
     ({ path, text }) => {
       const main = document.querySelector("main");
       if (!main || !new RegExp(path).test(location.pathname + location.search)) return false;
       if (text && !main.textContent?.includes(text)) return false;
       if ([...document.querySelectorAll('[role="status"]')].some((el) => /Loading|Opening/.test(el.textContent ?? ""))) return false;
-      return performance.now() - (window as unknown as { benchClickAt: number }).benchClickAt;
+      return performance.now();
     },
     { path: path.source, text },
     { timeout: 30_000, polling: "raf" },
   );
   return (await handle.jsonValue()) as number;
+}
+
+/** Milliseconds from the last click (CLICK_RECORDER) to the screen shown, as screenShownAt. */
+async function msFromClickToShown(page: Page, path: RegExp, text: string): Promise<number> {
+  const shownAt = await screenShownAt(page, { path, text });
+  return shownAt - (await page.evaluate(() => (window as unknown as { benchClickAt: number }).benchClickAt));
 }
 
 const kb = (bytes: number) => bytes / 1024;
@@ -170,14 +167,14 @@ async function signInAndOpenBoundary(
     const beforeClick = traffic.requests.length;
     const clickedAt = Date.now();
     await page.getByRole("button", { name: "Sign in" }).click();
-    const overviewMs = await msFromClickToSettled(page, new RegExp(`^${new URL(studyUrl).pathname}$`), "Study overview");
+    const overviewMs = await msFromClickToShown(page, new RegExp(`^${new URL(studyUrl).pathname}$`), "Study overview");
     if (verbose) printWaterfall("after sign-in", traffic.requests.slice(beforeClick), clickedAt);
 
     if (afterReading) await traffic.idle(300);
     const beforeBoundary = traffic.requests.length;
     const toBoundaryAt = Date.now();
     await page.getByRole("navigation", { name: "Study" }).getByRole("link", { name: "Boundary" }).click();
-    const boundaryMs = await msFromClickToSettled(page, /\/boundary\?/, "Outcomes across the boundary");
+    const boundaryMs = await msFromClickToShown(page, /\/boundary\?/, "Outcomes across the boundary");
     if (verbose) printWaterfall("boundary from the Overview", traffic.requests.slice(beforeBoundary), toBoundaryAt);
     // The charts are drawn after the numbers (src/components/DeferredChart.tsx): when the last one is in.
     const chartsDrawn = await page.waitForFunction(
@@ -282,7 +279,7 @@ export async function benchFirstVisit(): Promise<FirstVisitFigure[]> {
         const url = screen.path === "/" ? `${app.url}/` : `${studyUrl}${screen.path}`;
         const started = performance.now();
         await page.goto(url);
-        await settled(page);
+        await screenShownAt(page);
         const settleMs = performance.now() - started;
         await traffic.idle();
         const api = traffic.requests.filter((r) => r.path.startsWith("/api/"));
