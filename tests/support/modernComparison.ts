@@ -6,7 +6,7 @@ import type { BrowserContext } from "playwright-core";
 import { comparisons, modernLists, modernSpecies, runs, traits } from "../../db/schema/index";
 import type { Cast } from "../api/fixtures";
 import { studyWithFinishedCrisisRun, type InventedCrisis } from "./inventedCrisis";
-import { type TestApp } from "./server";
+import type { TestApp } from "./server";
 
 type Agent = Cast["anonymous"];
 
