@@ -207,6 +207,11 @@ describe("a day of each person in the demo study", () => {
     const page = await browser.context.newPage();
     await withScreenshotOnFailure(browser.context, "journey-analyst", async () => {
       await page.goto(`${demo.studyUrl}/boundary`);
+      // The screen opens at the study's main boundary, the demo crisis's Turonian. Its view is let in
+      // before the analyst picks the stage again, so the waits below can only be met by the view of
+      // that pick (each select moves the screen: the Cretaceous, then the Upper Cretaceous, then
+      // the Turonian), not by the opening view while the pick's moves are still on their way.
+      await page.getByText(/ taxa at 93\.9 Ma, window /).waitFor();
       await page.getByLabel("Period", { exact: true }).selectOption("Cretaceous");
       await page.getByLabel("Epoch", { exact: true }).selectOption("UpperCretaceous");
       await page.getByLabel("Stage", { exact: true }).selectOption("Turonian");
