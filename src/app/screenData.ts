@@ -3,7 +3,6 @@ import type { LoaderFunctionArgs, ShouldRevalidateFunctionArgs } from "react-rou
 import type { Study } from "@shared/schemas/studies";
 import { queryKeys } from "../lib/queryKeys";
 import { studiesQuery, studyQuery } from "../lib/queries/study";
-import { onlyStudyToOpen } from "../lib/onlyStudy";
 import { meQuery } from "../lib/session";
 
 // The router runs the first page's loaders as soon as it is created, before the providers have made
@@ -52,21 +51,20 @@ export function overviewDataLoader({ params }: LoaderFunctionArgs): null {
 }
 
 /**
- * Route loader of the studies list: when the list is about to take the person to their only study
- * (the rule in src/lib/onlyStudy.ts, for someone opening the app's address), that study's Overview
- * requests start as soon as the list arrives, beside the list's script, instead of a round trip
- * after the redirect. Never holds or fails the navigation; a list that stays costs nothing more.
+ * Route loader of the studies list: a person with one study is taken straight to it (the list's
+ * own rule, after signing in), so that study's Overview requests start as soon as the list arrives,
+ * beside the list's script and the session, instead of a round trip after the redirect. Never holds
+ * or fails the navigation; a person with several studies costs nothing more.
  */
 export function studiesDataLoader(): null {
   void client
     .then(async (queryClient) => {
       // The session first (it answers 200 for nobody): a signed-out visit asks nothing that would fail.
-      const me = await queryClient.fetchQuery(meQuery());
-      // Read as the list arrives, before the list screen marks this arrival as seen.
-      const only = onlyStudyToOpen(me.user.id, await queryClient.fetchQuery(studiesQuery()));
-      if (!only) return;
+      await queryClient.fetchQuery(meQuery());
+      const studies = await queryClient.fetchQuery(studiesQuery());
+      if (studies.length !== 1) return;
       const screen = await import("../features/study-overview/screenQueries");
-      screen.prefetchOverviewScreen(queryClient, only.id);
+      screen.prefetchOverviewScreen(queryClient, studies[0].id);
     })
     .catch(() => undefined);
   return null;
